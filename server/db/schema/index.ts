@@ -1,0 +1,3 @@
+export * from './users';
+export * from './registers';
+export * from './runs';

@@ -1,0 +1,38 @@
+import { z } from 'zod';
+
+const EnvSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+  HOST: z.string().default('0.0.0.0'),
+  /** Where PGlite keeps its files, the lock, the signing secret, the sample journal and uploads. */
+  DATA_DIR: z.string().min(1).default('./data'),
+  /** A postgres:// URL switches storage to a PostgreSQL server; unset means embedded PGlite. */
+  DATABASE_URL: z
+    .string()
+    .regex(/^postgres(ql)?:\/\//, 'DATABASE_URL must be a postgres:// URL')
+    .optional(),
+  BENCH: z.enum(['sim', 'serial']).default('sim'),
+  /** Hold time in seconds before a stable point is captured (common practice: at least 30 s). */
+  HOLD_SECONDS: z.coerce.number().positive().max(3600).default(30),
+  /** SMTP URL for mail; unset starts a local fake SMTP server and the Outbox. */
+  SMTP_URL: z.string().url().optional(),
+  DEMO_PASSWORD: z.string().min(10, 'DEMO_PASSWORD must have at least 10 characters').default('stillpoint-demo'),
+  /** Secret for signing session tokens (≥ 32 chars); generated into DATA_DIR when unset. */
+  SESSION_SECRET: z.string().min(32, 'SESSION_SECRET must have at least 32 characters').optional(),
+  /** Origins allowed for state-changing requests besides the server's own. Comma-separated. */
+  ALLOWED_ORIGINS: z.string().default(''),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /** Set to 0 to skip seeding the demo site into an empty database. */
+  SEED_DEMO: z.enum(['0', '1']).default('1'),
+});
+
+export type Env = z.infer<typeof EnvSchema>;
+
+/** Parses the environment; on failure throws one readable message listing every bad variable. */
+export function parseEnv(source: Record<string, string | undefined> = process.env): Env {
+  const cleaned = Object.fromEntries(Object.entries(source).filter(([, v]) => v !== undefined && v !== ''));
+  const parsed = EnvSchema.safeParse(cleaned);
+  if (parsed.success) return parsed.data;
+  const lines = parsed.error.issues.map((i) => `  - ${i.path.join('.') || '(env)'}: ${i.message}`);
+  throw new Error(`Invalid environment:\n${lines.join('\n')}`);
+}

@@ -1,0 +1,235 @@
+/**
+ * Hold analysis: settling, stability and leak detection over timestamped samples, O(1) per sample.
+ *
+ * Each channel keeps Welford running moments (mean, variance) and the co-moment of time and value
+ * (Welford's update extended to covariance), with time taken relative to the channel's first
+ * timestamp for numerical stability; the least-squares slope is C_ty/M2_t. The band is the running
+ * max − min since the hold started: the window is the hold itself, which the caller restarts
+ * (`reset`) when stability is lost, so no sliding window is needed.
+ *
+ * No universal numeric limits exist (REFERENCE.md, EURAMET cg-17 v4.1): every limit below is a
+ * setting, and each default is a product default / common practice, not a standard's value.
+ */
+
+/** Running statistics of one channel. */
+export interface ChannelStats {
+  n: number;
+  mean: number;
+  /** Sample standard deviation (n − 1); 0 for n < 2. */
+  sd: number;
+  /** Least-squares slope, unit per minute; 0 for n < 2 or zero time spread. */
+  slopePerMin: number;
+  /** Standard error of the slope, unit per minute; Infinity for n < 3. */
+  slopeSePerMin: number;
+  min: number;
+  max: number;
+  /** max − min since the hold started. */
+  band: number;
+  /** Last minus first timestamp, ms. */
+  durationMs: number;
+}
+
+const MS_PER_MIN = 60_000;
+
+/** Incremental statistics of one channel; O(1) per sample. Timestamps in ms, non-decreasing. */
+export class ChannelAccumulator {
+  private n = 0;
+  private t0 = 0;
+  private lastT = 0;
+  private meanT = 0;
+  private meanY = 0;
+  private m2t = 0;
+  private m2y = 0;
+  private cty = 0;
+  private min = Infinity;
+  private max = -Infinity;
+
+  /** Add one sample. */
+  push(tMs: number, y: number): void {
+    if (this.n === 0) this.t0 = tMs;
+    this.lastT = tMs;
+    const t = tMs - this.t0;
+    const n = ++this.n;
+    const dt = t - this.meanT;
+    this.meanT += dt / n;
+    const dy = y - this.meanY;
+    this.meanY += dy / n;
+    const dy2 = y - this.meanY;
+    this.m2t += dt * (t - this.meanT);
+    this.m2y += dy * dy2;
+    this.cty += dt * dy2;
+    if (y < this.min) this.min = y;
+    if (y > this.max) this.max = y;
+  }
+
+  /** Forget everything (a new hold). */
+  reset(): void {
+    this.n = 0;
+    this.meanT = this.meanY = this.m2t = this.m2y = this.cty = 0;
+    this.min = Infinity;
+    this.max = -Infinity;
+  }
+
+  /** Number of samples so far. */
+  get count(): number {
+    return this.n;
+  }
+
+  /** Current statistics. */
+  stats(): ChannelStats {
+    const n = this.n;
+    const slope = n >= 2 && this.m2t > 0 ? this.cty / this.m2t : 0;
+    let se = Infinity;
+    if (n >= 3 && this.m2t > 0) {
+      const sse = Math.max(0, this.m2y - (this.cty * this.cty) / this.m2t);
+      se = Math.sqrt(sse / (n - 2) / this.m2t);
+    }
+    return {
+      n,
+      mean: n > 0 ? this.meanY : NaN,
+      sd: n >= 2 ? Math.sqrt(this.m2y / (n - 1)) : 0,
+      slopePerMin: slope * MS_PER_MIN,
+      slopeSePerMin: se * MS_PER_MIN,
+      min: this.min,
+      max: this.max,
+      band: n > 0 ? this.max - this.min : 0,
+      durationMs: n > 0 ? this.lastT - this.t0 : 0,
+    };
+  }
+}
+
+/** Hold settings. Defaults are product defaults / common practice. */
+export interface HoldSettings {
+  /** |URV − LRV| of the DP channel, instrument unit. Required. */
+  dpSpan: number;
+  /** Hold time, ms. Default 30 000 (a wait of ≥ 30 s after a pressure change is common practice). */
+  holdTimeMs?: number;
+  /** Stability band of the applied DP, max − min, % of DP span. Default 0.1 %. */
+  dpBandPctSpan?: number;
+  /** Stability band of the current, max − min, mA. Default 0.016 mA (0.1 % of 16 mA). */
+  maBandMa?: number;
+  /** Slope limit for stability, % of span per minute (DP span; 16 mA for current). Default 0.05 %/min. */
+  slopeLimitPctSpanPerMin?: number;
+  /** Leak limit on the DP slope, % of DP span per minute. Default 0.1 %/min. */
+  leakLimitPctSpanPerMin?: number;
+  /** Leak limit on the DP slope in instrument unit per minute; overrides the % limit when set. */
+  leakLimitUnitPerMin?: number;
+  /** Minimum samples per channel before any verdict. Default 5. */
+  minSamples?: number;
+  /** Minimum DP duration before a leak is called, ms (the slope is too noisy before). Default 5 000. */
+  leakMinDurationMs?: number;
+}
+
+/** Default hold settings (product defaults / common practice). */
+export const DEFAULT_HOLD_SETTINGS = {
+  holdTimeMs: 30_000,
+  dpBandPctSpan: 0.1,
+  maBandMa: 0.016,
+  slopeLimitPctSpanPerMin: 0.05,
+  leakLimitPctSpanPerMin: 0.1,
+  minSamples: 5,
+  leakMinDurationMs: 5_000,
+} as const;
+
+/** Hold verdict. */
+export interface HoldResult {
+  dp: ChannelStats;
+  ma: ChannelStats;
+  /** Shorter of the two channels' durations, ms. */
+  durationMs: number;
+  /** Both channels within band and slope limits with enough samples. */
+  stable: boolean;
+  /** DP slope beyond the leak limit (after the minimum duration). */
+  leak: boolean;
+  /** DP slope, instrument unit per minute. */
+  leakRateUnitPerMin: number;
+  /** DP slope, % of DP span per minute. */
+  leakRatePctSpanPerMin: number;
+  /** The hold time has elapsed. */
+  holdComplete: boolean;
+  /** stable, complete and no leak: the point may be captured. */
+  capturable: boolean;
+  /** Why not stable or capturable (empty when capturable). */
+  reasons: string[];
+}
+
+/** Two-channel hold analyser (applied DP and mA), fed one sample at a time. */
+export class HoldAnalyzer {
+  readonly dp = new ChannelAccumulator();
+  readonly ma = new ChannelAccumulator();
+  private readonly s: Required<Omit<HoldSettings, 'leakLimitUnitPerMin'>> & { leakLimitUnitPerMin: number | undefined };
+
+  constructor(settings: HoldSettings) {
+    if (!(settings.dpSpan > 0)) throw new RangeError('dpSpan must be > 0');
+    this.s = { ...DEFAULT_HOLD_SETTINGS, ...settings, leakLimitUnitPerMin: settings.leakLimitUnitPerMin };
+  }
+
+  /** Add an applied-DP sample (ms, instrument unit). */
+  pushDp(tMs: number, value: number): void {
+    this.dp.push(tMs, value);
+  }
+
+  /** Add a current sample (ms, mA). */
+  pushMa(tMs: number, value: number): void {
+    this.ma.push(tMs, value);
+  }
+
+  /** Restart the hold (stability lost, device reconnected, new point). */
+  reset(): void {
+    this.dp.reset();
+    this.ma.reset();
+  }
+
+  /** Verdict from the samples so far. */
+  result(): HoldResult {
+    const s = this.s;
+    const dp = this.dp.stats();
+    const ma = this.ma.stats();
+    const reasons: string[] = [];
+    const enough = dp.n >= s.minSamples && ma.n >= s.minSamples;
+    if (!enough) reasons.push('too few samples');
+    const dpBand = (s.dpBandPctSpan / 100) * s.dpSpan;
+    const dpSlopeLimit = (s.slopeLimitPctSpanPerMin / 100) * s.dpSpan;
+    const maSlopeLimit = (s.slopeLimitPctSpanPerMin / 100) * 16;
+    if (dp.band > dpBand) reasons.push('applied DP outside the stability band');
+    if (ma.band > s.maBandMa) reasons.push('current outside the stability band');
+    if (Math.abs(dp.slopePerMin) > dpSlopeLimit) reasons.push('applied DP drifting');
+    if (Math.abs(ma.slopePerMin) > maSlopeLimit) reasons.push('current drifting');
+    const stable = reasons.length === 0;
+    const leakLimit = s.leakLimitUnitPerMin ?? (s.leakLimitPctSpanPerMin / 100) * s.dpSpan;
+    const leak = dp.n >= s.minSamples && dp.durationMs >= s.leakMinDurationMs && Math.abs(dp.slopePerMin) > leakLimit;
+    if (leak) reasons.push('leak');
+    const durationMs = Math.min(dp.durationMs, ma.durationMs);
+    const holdComplete = durationMs >= s.holdTimeMs;
+    if (!holdComplete) reasons.push('hold time not reached');
+    return {
+      dp,
+      ma,
+      durationMs,
+      stable,
+      leak,
+      leakRateUnitPerMin: dp.slopePerMin,
+      leakRatePctSpanPerMin: (dp.slopePerMin / s.dpSpan) * 100,
+      holdComplete,
+      capturable: stable && holdComplete && !leak,
+      reasons,
+    };
+  }
+}
+
+/** One timestamped sample for the batch form; either channel may be absent. */
+export interface HoldSample {
+  tMs: number;
+  dp?: number;
+  ma?: number;
+}
+
+/** Batch form: a fold of {@link HoldAnalyzer} over the samples. */
+export function analyzeHold(settings: HoldSettings, samples: Iterable<HoldSample>): HoldResult {
+  const h = new HoldAnalyzer(settings);
+  for (const x of samples) {
+    if (x.dp !== undefined) h.pushDp(x.tMs, x.dp);
+    if (x.ma !== undefined) h.pushMa(x.tMs, x.ma);
+  }
+  return h.result();
+}

@@ -1,0 +1,89 @@
+import { z } from 'zod';
+
+/** How the transmitter's 4–20 mA relates to DP (REFERENCE.md "Transfer functions"). */
+export const OUTPUT_MODES = ['linear', 'sqrt-transmitter', 'sqrt-host'] as const;
+export const OutputModeSchema = z.enum(OUTPUT_MODES);
+export type OutputMode = z.infer<typeof OutputModeSchema>;
+
+/** Low-flow cutoff behaviour of a rooted output. */
+export const CUTOFF_MODES = ['none', 'clamp', 'linear'] as const;
+export const CutoffModeSchema = z.enum(CUTOFF_MODES);
+export type CutoffMode = z.infer<typeof CutoffModeSchema>;
+
+export const INSTRUMENT_KINDS = ['dp-flow', 'pressure', 'dp-level'] as const;
+
+const finite = (label: string) => z.number({ message: `${label} must be a number` }).finite(`${label} must be finite`);
+
+export const PrimaryElementSchema = z.object({
+  kind: z.literal('orifice'),
+  /** Pipe internal diameter D, mm. */
+  pipeDiameterMm: finite('Pipe diameter').positive(),
+  /** Orifice bore d, mm. */
+  boreDiameterMm: finite('Bore diameter').positive(),
+  taps: z.enum(['corner', 'd-d2', 'flange']),
+  fluid: z.enum(['liquid', 'gas']),
+  /** Density at flowing conditions, kg/m³. */
+  densityKgM3: finite('Density').positive(),
+  /** Dynamic viscosity, Pa·s. */
+  viscosityPaS: finite('Viscosity').positive(),
+  /** Isentropic exponent κ (gases). */
+  kappa: finite('Isentropic exponent').positive().optional(),
+  /** Upstream absolute pressure p1, Pa (gases). */
+  upstreamPressurePa: finite('Upstream pressure').positive().optional(),
+  /** Flow unit to show, e.g. 'm3/h', 'kg/h'. */
+  flowUnit: z.string().max(20).optional(),
+});
+
+export const InstrumentInputSchema = z
+  .object({
+    tag: z
+      .string()
+      .trim()
+      .min(2, 'Enter a tag')
+      .max(40)
+      .regex(/^[A-Z0-9][A-Z0-9-]*[A-Z0-9]$/i, 'Tags use letters, digits and hyphens (e.g. FT-101)'),
+    kind: z.enum(INSTRUMENT_KINDS),
+    service: z.string().trim().max(200).default(''),
+    location: z.string().trim().max(200).default(''),
+    lrv: finite('LRV'),
+    urv: finite('URV'),
+    unit: z.string().min(1, 'Choose a unit').max(20),
+    outputMode: OutputModeSchema,
+    cutoffMode: CutoffModeSchema.default('none'),
+    /** Cutoff value: % flow for 'clamp', breakpoint % DP for 'linear'. */
+    cutoffValue: finite('Cutoff').min(0).max(50).default(0),
+    /** Tolerance, ± % of span (of flow span for rooted outputs). */
+    tolerancePct: finite('Tolerance').positive('Tolerance must be above 0').max(50),
+    intervalDays: z.number().int('Whole days').min(1).max(3650),
+    primaryElement: PrimaryElementSchema.nullable().default(null),
+    notes: z.string().max(2000).default(''),
+  })
+  .refine((v) => v.lrv !== v.urv, { message: 'LRV and URV must differ', path: ['urv'] })
+  .refine((v) => v.outputMode !== 'linear' || v.cutoffMode === 'none', {
+    message: 'A linear output has no low-flow cutoff',
+    path: ['cutoffMode'],
+  });
+export type InstrumentInput = z.input<typeof InstrumentInputSchema>;
+
+export const InstrumentSchema = z.object({
+  id: z.string(),
+  tag: z.string(),
+  kind: z.enum(INSTRUMENT_KINDS),
+  service: z.string(),
+  location: z.string(),
+  lrv: z.number(),
+  urv: z.number(),
+  unit: z.string(),
+  outputMode: OutputModeSchema,
+  cutoffMode: CutoffModeSchema,
+  cutoffValue: z.number(),
+  tolerancePct: z.number(),
+  intervalDays: z.number(),
+  primaryElement: PrimaryElementSchema.nullable(),
+  notes: z.string(),
+  lastCalibratedOn: z.string().nullable(),
+  nextDueOn: z.string().nullable(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Instrument = z.infer<typeof InstrumentSchema>;
