@@ -27,3 +27,13 @@ export const ErrorBodySchema = z.object({
   }),
 });
 export type ErrorBody = z.infer<typeof ErrorBodySchema>;
+
+/** Query of a paged register list. */
+export const ListQuerySchema = z.object({
+  q: z.string().trim().max(100).optional(),
+  sort: z.string().max(40).optional(),
+  dir: z.enum(['asc', 'desc']).default('asc'),
+  page: z.coerce.number().int().min(1).max(100_000).default(1),
+  pageSize: z.coerce.number().int().min(1).max(500).default(50),
+});
+export type ListQuery = z.infer<typeof ListQuerySchema>;

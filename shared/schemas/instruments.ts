@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { PRESSURE_UNIT_IDS } from '../calc';
 
 /** How the transmitter's 4–20 mA relates to DP (REFERENCE.md "Transfer functions"). */
 export const OUTPUT_MODES = ['linear', 'sqrt-transmitter', 'sqrt-host'] as const;
@@ -47,7 +48,7 @@ export const InstrumentInputSchema = z
     location: z.string().trim().max(200).default(''),
     lrv: finite('LRV'),
     urv: finite('URV'),
-    unit: z.string().min(1, 'Choose a unit').max(20),
+    unit: z.enum(PRESSURE_UNIT_IDS, { message: 'Choose a pressure unit' }),
     outputMode: OutputModeSchema,
     cutoffMode: CutoffModeSchema.default('none'),
     /** Cutoff value: % flow for 'clamp', breakpoint % DP for 'linear'. */

@@ -1,0 +1,92 @@
+import path from 'node:path';
+import fs from 'node:fs';
+import express, { type RequestHandler } from 'express';
+import cookieParser from 'cookie-parser';
+import helmet from 'helmet';
+import type { Logger } from 'pino';
+import { notFound } from './errors';
+import { loadSession } from './http/middleware/auth';
+import { errorHandler } from './http/middleware/error-handler';
+import { sameOrigin } from './http/middleware/same-origin';
+import type { RouteSpec, RouteTable } from './http/route-table';
+import { auditRoutes } from './http/routes/audit/audit.routes';
+import { authRoutes } from './http/routes/auth/auth.routes';
+import { calcRoutes } from './http/routes/calc/calc.routes';
+import { jobRoutes } from './http/routes/jobs/jobs.routes';
+import { instrumentRoutes, standardRoutes } from './http/routes/registers/registers.routes';
+import { userRoutes } from './http/routes/users/users.routes';
+import type { Services } from './services';
+
+export interface AppDeps {
+  services: Services;
+  logger: Logger;
+  health: () => { ok: boolean; db: 'pglite' | 'postgres'; bench: 'sim' | 'serial' };
+  allowedOrigins: string[];
+  /** Directory of the built client to serve (production); omitted in development and API tests. */
+  clientDir?: string;
+  /** Vite's middleware in development. */
+  devMiddleware?: RequestHandler;
+  /** Extra route tables (bench, runs, ...) mounted after the core ones. */
+  extraRoutes?: RouteTable[];
+}
+
+/** Builds the Express app from its dependencies; it does not listen. */
+export function createApp(deps: AppDeps) {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'", 'ws:', 'wss:'],
+          upgradeInsecureRequests: null,
+        },
+      },
+      // The app is often served over plain HTTP on a plant LAN; HSTS would lock that out.
+      strictTransportSecurity: false,
+    }),
+  );
+  app.use(express.json({ limit: '1mb' }));
+  app.use(cookieParser());
+  app.use('/api', sameOrigin(deps.allowedOrigins));
+  app.use('/api', loadSession(deps.services.auth));
+
+  const tables: RouteTable[] = [
+    authRoutes(deps.services.auth),
+    userRoutes(deps.services.users),
+    instrumentRoutes(deps.services.registers),
+    standardRoutes(deps.services.registers),
+    jobRoutes(deps.services.jobs),
+    auditRoutes(deps.services.audit),
+    calcRoutes(),
+    ...(deps.extraRoutes ?? []),
+  ];
+  const routes: RouteSpec[] = [{ method: 'get', path: '/api/health', action: null }];
+  app.get('/api/health', (_req, res) => {
+    res.json(deps.health());
+  });
+  for (const t of tables) {
+    app.use(t.base, t.router);
+    routes.push(...t.specs);
+  }
+  app.locals.routes = routes;
+  app.use('/api', (_req, _res, next) => next(notFound('No such API route')));
+
+  if (deps.devMiddleware) app.use(deps.devMiddleware);
+  else if (deps.clientDir && fs.existsSync(path.join(deps.clientDir, 'index.html'))) {
+    const dir = deps.clientDir;
+    app.use(express.static(dir, { index: false, maxAge: '1h' }));
+    // Client-side routes: every other GET gets the app shell.
+    app.get(/^(?!\/api\/|\/ws).*/, (_req, res) => {
+      res.sendFile(path.join(dir, 'index.html'));
+    });
+  }
+  app.use(errorHandler(deps.logger));
+  return app;
+}

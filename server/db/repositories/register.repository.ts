@@ -1,0 +1,165 @@
+import { asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
+import type { Db } from '../client';
+import { instruments, jobs, standards, users } from '../schema';
+
+export type InstrumentRow = typeof instruments.$inferSelect;
+export type InstrumentInsert = typeof instruments.$inferInsert;
+export type StandardRow = typeof standards.$inferSelect;
+export type StandardInsert = typeof standards.$inferInsert;
+export type JobRow = typeof jobs.$inferSelect & { tag: string; assigneeName: string | null };
+
+export interface ListQuery {
+  q?: string;
+  sort?: string;
+  dir?: 'asc' | 'desc';
+  page: number;
+  pageSize: number;
+}
+
+const instrumentSort = {
+  tag: instruments.tag,
+  service: instruments.service,
+  location: instruments.location,
+  outputMode: instruments.outputMode,
+  intervalDays: instruments.intervalDays,
+  lastCalibratedOn: instruments.lastCalibratedOn,
+} as const;
+
+const standardSort = {
+  description: standards.description,
+  serial: standards.serial,
+  kind: standards.kind,
+  dueOn: standards.dueOn,
+} as const;
+
+export function instrumentRepository(db: Db) {
+  return {
+    async list(query: ListQuery): Promise<{ items: InstrumentRow[]; total: number }> {
+      const where: SQL | undefined = query.q
+        ? or(ilike(instruments.tag, `%${query.q}%`), ilike(instruments.service, `%${query.q}%`), ilike(instruments.location, `%${query.q}%`))
+        : undefined;
+      const col = instrumentSort[query.sort as keyof typeof instrumentSort] ?? instruments.tag;
+      const items = await db
+        .select()
+        .from(instruments)
+        .where(where)
+        .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(instruments.tag))
+        .limit(query.pageSize)
+        .offset((query.page - 1) * query.pageSize);
+      const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(instruments).where(where);
+      return { items, total: count?.n ?? 0 };
+    },
+    async all(): Promise<InstrumentRow[]> {
+      return db.select().from(instruments).orderBy(asc(instruments.tag));
+    },
+    async get(id: string): Promise<InstrumentRow | undefined> {
+      const [row] = await db.select().from(instruments).where(eq(instruments.id, id)).limit(1);
+      return row;
+    },
+    async findByTag(tag: string): Promise<InstrumentRow | undefined> {
+      const [row] = await db.select().from(instruments).where(eq(instruments.tag, tag)).limit(1);
+      return row;
+    },
+    async create(values: InstrumentInsert): Promise<InstrumentRow> {
+      const [row] = await db.insert(instruments).values(values).returning();
+      return row!;
+    },
+    async createMany(values: InstrumentInsert[]): Promise<number> {
+      if (!values.length) return 0;
+      return db.transaction(async (tx) => {
+        const rows = await tx.insert(instruments).values(values).returning({ id: instruments.id });
+        return rows.length;
+      });
+    },
+    async update(id: string, values: Partial<InstrumentInsert>): Promise<InstrumentRow | undefined> {
+      const [row] = await db
+        .update(instruments)
+        .set({ ...values, updatedAt: new Date() })
+        .where(eq(instruments.id, id))
+        .returning();
+      return row;
+    },
+  };
+}
+
+export function standardRepository(db: Db) {
+  return {
+    async list(query: ListQuery): Promise<{ items: StandardRow[]; total: number }> {
+      const where: SQL | undefined = query.q
+        ? or(ilike(standards.description, `%${query.q}%`), ilike(standards.serial, `%${query.q}%`), ilike(standards.certificateNo, `%${query.q}%`))
+        : undefined;
+      const col = standardSort[query.sort as keyof typeof standardSort] ?? standards.dueOn;
+      const items = await db
+        .select()
+        .from(standards)
+        .where(where)
+        .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(standards.serial))
+        .limit(query.pageSize)
+        .offset((query.page - 1) * query.pageSize);
+      const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(standards).where(where);
+      return { items, total: count?.n ?? 0 };
+    },
+    async all(): Promise<StandardRow[]> {
+      return db.select().from(standards).orderBy(asc(standards.dueOn));
+    },
+    async get(id: string): Promise<StandardRow | undefined> {
+      const [row] = await db.select().from(standards).where(eq(standards.id, id)).limit(1);
+      return row;
+    },
+    async findBySerial(serial: string): Promise<StandardRow | undefined> {
+      const [row] = await db.select().from(standards).where(eq(standards.serial, serial)).limit(1);
+      return row;
+    },
+    async create(values: StandardInsert): Promise<StandardRow> {
+      const [row] = await db.insert(standards).values(values).returning();
+      return row!;
+    },
+    async createMany(values: StandardInsert[]): Promise<number> {
+      if (!values.length) return 0;
+      return db.transaction(async (tx) => (await tx.insert(standards).values(values).returning({ id: standards.id })).length);
+    },
+    async update(id: string, values: Partial<StandardInsert>): Promise<StandardRow | undefined> {
+      const [row] = await db
+        .update(standards)
+        .set({ ...values, updatedAt: new Date() })
+        .where(eq(standards.id, id))
+        .returning();
+      return row;
+    },
+  };
+}
+
+export function jobRepository(db: Db) {
+  const base = () =>
+    db
+      .select({ job: jobs, tag: instruments.tag, assigneeName: users.name })
+      .from(jobs)
+      .innerJoin(instruments, eq(instruments.id, jobs.instrumentId))
+      .leftJoin(users, eq(users.id, jobs.assigneeId));
+  const flat = (r: { job: typeof jobs.$inferSelect; tag: string; assigneeName: string | null }): JobRow => ({
+    ...r.job,
+    tag: r.tag,
+    assigneeName: r.assigneeName,
+  });
+  return {
+    async list(): Promise<JobRow[]> {
+      return (await base().orderBy(asc(jobs.dueOn), asc(instruments.tag))).map(flat);
+    },
+    async get(id: string): Promise<JobRow | undefined> {
+      const [row] = await base().where(eq(jobs.id, id)).limit(1);
+      return row ? flat(row) : undefined;
+    },
+    async create(values: typeof jobs.$inferInsert): Promise<typeof jobs.$inferSelect> {
+      const [row] = await db.insert(jobs).values(values).returning();
+      return row!;
+    },
+    async update(id: string, values: Partial<typeof jobs.$inferInsert>): Promise<typeof jobs.$inferSelect | undefined> {
+      const [row] = await db
+        .update(jobs)
+        .set({ ...values, updatedAt: new Date() })
+        .where(eq(jobs.id, id))
+        .returning();
+      return row;
+    },
+  };
+}

@@ -1,0 +1,79 @@
+import { and, asc, eq, isNull } from 'drizzle-orm';
+import type { Db } from '../client';
+import { sessions, sites, users } from '../schema';
+
+export type UserRow = typeof users.$inferSelect;
+export type SiteRow = typeof sites.$inferSelect;
+
+export function userRepository(db: Db) {
+  return {
+    async findByEmail(email: string): Promise<UserRow | undefined> {
+      const [row] = await db.select().from(users).where(eq(users.email, email)).limit(1);
+      return row;
+    },
+    async findById(id: string): Promise<UserRow | undefined> {
+      const [row] = await db.select().from(users).where(eq(users.id, id)).limit(1);
+      return row;
+    },
+    async list(): Promise<UserRow[]> {
+      return db.select().from(users).orderBy(asc(users.name));
+    },
+    async count(): Promise<number> {
+      const rows = await db.select({ id: users.id }).from(users);
+      return rows.length;
+    },
+    async create(values: typeof users.$inferInsert): Promise<UserRow> {
+      const [row] = await db.insert(users).values(values).returning();
+      return row!;
+    },
+    async update(id: string, values: Partial<Pick<UserRow, 'role' | 'active' | 'name' | 'passwordHash'>>): Promise<UserRow | undefined> {
+      const [row] = await db
+        .update(users)
+        .set({ ...values, updatedAt: new Date() })
+        .where(eq(users.id, id))
+        .returning();
+      return row;
+    },
+  };
+}
+
+export function sessionRepository(db: Db) {
+  return {
+    async create(values: { jti: string; userId: string; expiresAt: Date }): Promise<void> {
+      await db.insert(sessions).values(values);
+    },
+    async findActive(jti: string): Promise<typeof sessions.$inferSelect | undefined> {
+      const [row] = await db
+        .select()
+        .from(sessions)
+        .where(and(eq(sessions.jti, jti), isNull(sessions.revokedAt)))
+        .limit(1);
+      return row;
+    },
+    async revoke(jti: string): Promise<void> {
+      await db.update(sessions).set({ revokedAt: new Date() }).where(eq(sessions.jti, jti));
+    },
+    async revokeAllFor(userId: string): Promise<void> {
+      await db
+        .update(sessions)
+        .set({ revokedAt: new Date() })
+        .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)));
+    },
+  };
+}
+
+export function siteRepository(db: Db) {
+  return {
+    async get(): Promise<SiteRow | undefined> {
+      const [row] = await db.select().from(sites).limit(1);
+      return row;
+    },
+    async create(values: typeof sites.$inferInsert): Promise<SiteRow> {
+      const [row] = await db.insert(sites).values(values).returning();
+      return row!;
+    },
+    async updateSettings(id: string, settings: string): Promise<void> {
+      await db.update(sites).set({ settings }).where(eq(sites.id, id));
+    },
+  };
+}

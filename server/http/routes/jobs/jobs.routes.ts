@@ -1,0 +1,27 @@
+import { AssignJobBodySchema, CreateJobBodySchema } from '../../../../shared/schemas/jobs';
+import { IdParamSchema } from '../../../../shared/schemas/users';
+import type { JobService } from '../../../services/job.service';
+import { currentUser } from '../../middleware/auth';
+import { input, validate } from '../../middleware/validate';
+import { routeTable } from '../../route-table';
+
+export function jobRoutes(jobs: JobService) {
+  const t = routeTable('/api/jobs');
+  t.add('get', '/', 'jobs.read', async (_req, res) => {
+    res.json({ items: await jobs.list(currentUser(res)) });
+  });
+  const one = { params: IdParamSchema };
+  t.add('get', '/:id', 'jobs.read', validate(one), async (_req, res) => {
+    res.json(await jobs.get(input(res, one).params.id));
+  });
+  const create = { body: CreateJobBodySchema };
+  t.add('post', '/', 'jobs.plan', validate(create), async (_req, res) => {
+    res.status(201).json(await jobs.create(currentUser(res), input(res, create).body));
+  });
+  const assign = { params: IdParamSchema, body: AssignJobBodySchema };
+  t.add('post', '/:id/assign', 'jobs.plan', validate(assign), async (_req, res) => {
+    const { params, body } = input(res, assign);
+    res.json(await jobs.assign(currentUser(res), params.id, body.assigneeId));
+  });
+  return t;
+}

@@ -1,0 +1,66 @@
+import { z } from 'zod';
+import { DECISION_RULES, PRESSURE_UNIT_IDS } from '../calc';
+import { CutoffModeSchema, OutputModeSchema } from './instruments';
+
+export const PressureUnitSchema = z.enum(PRESSURE_UNIT_IDS, { message: 'Unknown pressure unit' });
+
+const num = (label: string) => z.number({ message: `${label} must be a number` }).finite(`${label} must be finite`);
+const nonNeg = (label: string) => num(label).min(0, `${label} cannot be negative`);
+
+export const PressureReferenceSpecSchema = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('spec'),
+    unit: PressureUnitSchema,
+    pctOfReading: nonNeg('% of reading').max(10),
+    pctOfFullScale: nonNeg('% of full scale').max(10),
+    fullScale: num('Full scale').positive('Full scale must be above 0'),
+    resolution: nonNeg('Resolution').optional(),
+  }),
+  z.object({
+    kind: z.literal('certificate'),
+    unit: PressureUnitSchema,
+    expandedU: nonNeg('Expanded uncertainty'),
+    k: num('Coverage factor').positive().max(10),
+    resolution: nonNeg('Resolution').optional(),
+  }),
+]);
+
+export const CurrentMeterSpecSchema = z.object({
+  pctOfReading: nonNeg('% of reading').max(10),
+  floorMa: nonNeg('Floor'),
+  resolutionMa: nonNeg('Resolution').optional(),
+});
+
+/** Body of `POST /api/calc/evaluate`: mirrors `EvaluateInput` of shared/calc. */
+export const EvaluateBodySchema = z.object({
+  instrument: z
+    .object({
+      lrv: num('LRV'),
+      urv: num('URV'),
+      unit: PressureUnitSchema,
+      outputMode: OutputModeSchema,
+      cutoffMode: CutoffModeSchema.optional(),
+      cutoffValue: nonNeg('Cutoff').max(50).optional(),
+      tolerancePctSpan: num('Tolerance').positive('Tolerance must be above 0').max(50),
+    })
+    .refine((i) => i.lrv !== i.urv, { message: 'LRV and URV must differ', path: ['urv'] }),
+  standards: z.object({ pressure: PressureReferenceSpecSchema, current: CurrentMeterSpecSchema }),
+  decisionRule: z.enum(DECISION_RULES),
+  readings: z
+    .array(
+      z.object({
+        nominalPct: num('Nominal %').min(-25).max(125),
+        basis: z.enum(['flow', 'dp']).optional(),
+        direction: z.enum(['up', 'down']),
+        appliedDp: num('Applied DP'),
+        measuredMa: num('Measured current').min(0).max(30),
+        appliedDpSd: nonNeg('DP standard deviation').optional(),
+        measuredMaSd: nonNeg('Current standard deviation').optional(),
+        n: z.number().int().min(1).max(10_000_000).optional(),
+      }),
+    )
+    .min(1, 'Give at least one reading')
+    .max(200),
+  coverageFactor: num('Coverage factor').positive().max(10).optional(),
+});
+export type EvaluateBody = z.infer<typeof EvaluateBodySchema>;

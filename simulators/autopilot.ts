@@ -1,0 +1,122 @@
+/**
+ * A careful technician at the pump, as a pure state machine: for each point it comes from the
+ * correct side (below on the way up, above on the way down), lets the source settle, dwells for the
+ * hold time, then moves on.
+ */
+import type { SourceState } from './rig-model';
+
+/** One test point for the autopilot. */
+export interface AutopilotPoint {
+  /** Applied DP to reach, rig unit. */
+  targetDp: number;
+  /** Direction of travel: approach from below (`up`) or from above (`down`). */
+  direction: 'up' | 'down';
+}
+
+/** What the autopilot should do. */
+export interface AutopilotPlan {
+  points: AutopilotPoint[];
+  /** Dwell at each point once settled, s (before the speed factor). Default 30 s. */
+  holdSeconds?: number;
+  /** Speed factor: dwell and the source's time constant are divided by it. Default 1. */
+  speed?: number;
+  /** How far past the point to pre-position before approaching, rig unit. Default 3 % of the largest |target|, at least 0.1. */
+  approachMargin?: number;
+  /** Deliberate overshoot on the approach, fraction of the step (0.2 = 20 %). Default none. */
+  overshoot?: { fraction: number; points?: number[] };
+  /** Leak injected while dwelling, rig unit per minute. Default none. */
+  leak?: { perMin: number; points?: number[] };
+}
+
+/** Phase of the autopilot at the current point. */
+export type AutopilotPhase = 'pre-position' | 'approach' | 'dwell' | 'done';
+
+/** Where the autopilot is. */
+export interface AutopilotState {
+  index: number;
+  phase: AutopilotPhase;
+  /** Model time the current phase started, s. */
+  phaseStartS: number;
+  /** Setpoint last requested, rig unit; `undefined` before the first request. */
+  requested: number | undefined;
+}
+
+/** What the rig should do after a step. */
+export interface AutopilotCommand {
+  setpoint?: { value: number; overshoot: number };
+  /** Leak rate to apply from now, rig unit per minute. */
+  leakPerMin: number;
+}
+
+/** Starting state. */
+export function startAutopilot(nowS: number): AutopilotState {
+  return { index: 0, phase: 'pre-position', phaseStartS: nowS, requested: undefined };
+}
+
+function applies(list: number[] | undefined, index: number): boolean {
+  return list === undefined || list.includes(index);
+}
+
+/** Margin used when the plan gives none. */
+export function defaultMargin(plan: AutopilotPlan): number {
+  return Math.max(0.1, 0.03 * Math.max(...plan.points.map((p) => Math.abs(p.targetDp)), 0));
+}
+
+/**
+ * Advances the autopilot to `nowS` given the source as it is now. Returns the new state and, when
+ * something changes, the setpoint to request and the leak to apply.
+ */
+export function stepAutopilot(
+  plan: AutopilotPlan,
+  state: AutopilotState,
+  source: SourceState,
+  nowS: number,
+): { state: AutopilotState; command: AutopilotCommand | undefined } {
+  const point = plan.points[state.index];
+  if (state.phase === 'done' || !point) return { state: { ...state, phase: 'done' }, command: undefined };
+  const speed = plan.speed ?? 1;
+  const margin = plan.approachMargin ?? defaultMargin(plan);
+  const settled = source.phase === 'isolated';
+  const below = point.direction === 'up';
+
+  switch (state.phase) {
+    case 'pre-position': {
+      const onCorrectSide = below ? source.pressure <= point.targetDp - margin / 2 : source.pressure >= point.targetDp + margin / 2;
+      if (onCorrectSide && (settled || state.requested === undefined)) {
+        return approach(plan, state, point, nowS);
+      }
+      // Going up to a point at or above zero DP, start no lower than zero (vented), as at the bench.
+      const start = below ? (point.targetDp >= 0 ? Math.max(0, point.targetDp - margin) : point.targetDp - margin) : point.targetDp + margin;
+      if (state.requested !== start) {
+        return { state: { ...state, requested: start }, command: { setpoint: { value: start, overshoot: 0 }, leakPerMin: 0 } };
+      }
+      if (settled) return approach(plan, state, point, nowS);
+      return { state, command: undefined };
+    }
+    case 'approach':
+      if (settled && source.setpoint === point.targetDp) {
+        const leak = plan.leak && applies(plan.leak.points, state.index) ? plan.leak.perMin : 0;
+        return { state: { ...state, phase: 'dwell', phaseStartS: nowS }, command: { leakPerMin: leak } };
+      }
+      return { state, command: undefined };
+    case 'dwell': {
+      if (nowS - state.phaseStartS < (plan.holdSeconds ?? 30) / speed) return { state, command: undefined };
+      const index = state.index + 1;
+      const phase: AutopilotPhase = index >= plan.points.length ? 'done' : 'pre-position';
+      return { state: { ...state, index, phase, phaseStartS: nowS }, command: { leakPerMin: 0 } };
+    }
+  }
+}
+
+function approach(
+  plan: AutopilotPlan,
+  state: AutopilotState,
+  point: AutopilotPoint,
+  nowS: number,
+): { state: AutopilotState; command: AutopilotCommand } {
+  const overshoot = plan.overshoot && applies(plan.overshoot.points, state.index) ? plan.overshoot.fraction : 0;
+  return {
+    state: { ...state, phase: 'approach', phaseStartS: nowS, requested: point.targetDp },
+    command: { setpoint: { value: point.targetDp, overshoot }, leakPerMin: 0 },
+  };
+}
