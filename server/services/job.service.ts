@@ -1,11 +1,12 @@
 import type { Db } from '../db/client';
-import { instrumentRepository, jobRepository, type JobRow } from '../db/repositories/register.repository';
+import { instrumentRepository, jobRepository, standardRepository, type JobRow } from '../db/repositories/register.repository';
 import { userRepository } from '../db/repositories/user.repository';
-import { badRequest, notFound } from '../errors';
-import type { Job } from '../../shared/schemas/jobs';
+import { badRequest, forbidden, locked, notFound } from '../errors';
+import { convertPressure, isPressureUnitId } from '../../shared/calc';
+import type { Checklist, ChecklistPatch, Job, JobDetail } from '../../shared/schemas/jobs';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
-import { isoDate } from './dates';
+import { dueState, isoDate } from './dates';
 
 export function toJob(r: JobRow, today = isoDate(new Date())): Job {
   return {
@@ -25,17 +26,43 @@ export function toJob(r: JobRow, today = isoDate(new Date())): Job {
   };
 }
 
+export const EMPTY_CHECKLIST: Checklist = {
+  standardIds: [],
+  permitNo: null,
+  bypass: { required: false, description: '', recorded: null, removed: null },
+  operatorsInformed: null,
+  isolated: null,
+  vented: null,
+  flushed: null,
+  returnedToService: null,
+};
+
+function checklistOf(raw: unknown): Checklist {
+  const c = (raw ?? {}) as Partial<Checklist>;
+  return { ...EMPTY_CHECKLIST, ...c, bypass: { ...EMPTY_CHECKLIST.bypass, ...(c.bypass ?? {}) } };
+}
+
+/** Current a loop meter must read: NE 43 failure levels down to 3.6 mA and up to 21 mA. */
+const CURRENT_SPAN_NEEDED = { min: 3.6, max: 21 };
+
 export function createJobService(db: Db, audit: AuditService) {
   const jobs = jobRepository(db);
   const users = userRepository(db);
   const instruments = instrumentRepository(db);
+  const standards = standardRepository(db);
 
   async function assignable(assigneeId: string) {
     const u = await users.findById(assigneeId);
     if (!u || !u.active || u.role !== 'technician') throw badRequest('Choose an active technician', { assigneeId: ['Not an active technician'] });
   }
 
-  return {
+  async function row(id: string): Promise<JobRow> {
+    const r = await jobs.get(id);
+    if (!r) throw notFound('No such job');
+    return r;
+  }
+
+  const service = {
     /** All jobs; a technician's own come first, then the rest by due date. */
     async list(viewer: SessionUser): Promise<Job[]> {
       const all = (await jobs.list()).map((r) => toJob(r));
@@ -43,27 +70,140 @@ export function createJobService(db: Db, audit: AuditService) {
       return [...all.filter((j) => j.assigneeId === viewer.id), ...all.filter((j) => j.assigneeId !== viewer.id)];
     },
     async get(id: string): Promise<Job> {
-      const row = await jobs.get(id);
-      if (!row) throw notFound('No such job');
-      return toJob(row);
+      return toJob(await row(id));
     },
+
+    /**
+     * The job with its checklist, the chosen standards and their checks, its runs, and what
+     * blocks the next run and the submission — in words a technician can act on.
+     */
+    async detail(id: string, today = isoDate(new Date())): Promise<JobDetail> {
+      const r = await row(id);
+      const checklist = checklistOf(r.checklist);
+      const instrument = (await instruments.get(r.instrumentId))!;
+      const chosen = [];
+      for (const sid of checklist.standardIds) {
+        const s = await standards.get(sid);
+        if (!s) continue;
+        const state = dueState(s.dueOn, today);
+        let problem: string | null = state === 'expired' ? `calibration expired on ${s.dueOn}` : null;
+        if (!problem && s.kind === 'pressure') {
+          if (isPressureUnitId(s.unit) && isPressureUnitId(instrument.unit)) {
+            const hi = convertPressure(Math.max(instrument.lrv, instrument.urv), instrument.unit, s.unit);
+            const lo = convertPressure(Math.min(instrument.lrv, instrument.urv), instrument.unit, s.unit);
+            if (hi > s.rangeMax * (1 + 1e-9) || lo < s.rangeMin - 1e-9)
+              problem = `range ${s.rangeMin}–${s.rangeMax} ${s.unit} does not cover the instrument's ${instrument.lrv}–${instrument.urv} ${instrument.unit}`;
+          } else problem = `unit ${s.unit} cannot be compared with ${instrument.unit}`;
+        }
+        if (!problem && s.kind === 'current' && (s.rangeMin > CURRENT_SPAN_NEEDED.min || s.rangeMax < CURRENT_SPAN_NEEDED.max)) {
+          problem = `range ${s.rangeMin}–${s.rangeMax} mA does not cover 3.6–21 mA`;
+        }
+        chosen.push({ id: s.id, kind: s.kind, description: s.description, serial: s.serial, certificateNo: s.certificateNo, dueOn: s.dueOn, dueState: state, problem });
+      }
+      const runs = await jobs.runs(id);
+      const blockers: string[] = [];
+      if (!r.assigneeId) blockers.push('No technician is assigned');
+      if (r.status === 'submitted' || r.status === 'approved') blockers.push(`The job is ${r.status}`);
+      if (!chosen.some((s) => s.kind === 'pressure')) blockers.push('Choose a pressure reference standard');
+      if (!chosen.some((s) => s.kind === 'current')) blockers.push('Choose a current meter');
+      for (const s of chosen) if (s.problem) blockers.push(`${s.description} (${s.serial}): ${s.problem}`);
+      if (!checklist.permitNo) blockers.push('Record the permit-to-work number');
+      if (checklist.bypass.required && !checklist.bypass.recorded) blockers.push('Record the interlock bypass');
+      if (!checklist.operatorsInformed) blockers.push('Confirm the operators are informed');
+      if (!checklist.isolated) blockers.push('Confirm the transmitter is isolated from the process');
+      if (!checklist.vented) blockers.push('Confirm the transmitter is vented and drained');
+
+      const results = (kind: string) => runs.filter((x) => x.kind === kind && x.status === 'complete');
+      const decisionOf = (x: (typeof runs)[number]) => ((x.results as { overallDecision?: string } | null)?.overallDecision ?? null);
+      const submitBlockers: string[] = [];
+      const asFound = results('as-found').at(-1);
+      if (!asFound) submitBlockers.push('Complete the as-found run');
+      const trimmed = runs.some((x) => x.kind === 'trim' && x.status === 'complete');
+      const asLeft = results('as-left').at(-1);
+      if (asFound && (decisionOf(asFound) !== 'pass' || trimmed) && !asLeft) submitBlockers.push('Complete the as-left run');
+      if (checklist.bypass.required && checklist.bypass.recorded && !checklist.bypass.removed) submitBlockers.push('Record the removal of the interlock bypass');
+      if (!checklist.returnedToService) submitBlockers.push('Confirm the loop is returned to service');
+      if (r.status !== 'in-progress' && r.status !== 'open' && r.status !== 'returned') submitBlockers.push(`The job is ${r.status}`);
+
+      return {
+        ...toJob(r, today),
+        checklist,
+        standards: chosen,
+        runs: runs.map((x) => ({
+          id: x.id,
+          kind: x.kind,
+          status: x.status,
+          startedAt: x.startedAt.toISOString(),
+          endedAt: x.endedAt?.toISOString() ?? null,
+          overallDecision: decisionOf(x),
+        })),
+        blockers,
+        submitBlockers,
+      };
+    },
+
     async create(actor: Actor, body: { instrumentId: string; assigneeId: string | null; dueOn: string; notes: string }): Promise<Job> {
       if (!(await instruments.get(body.instrumentId))) throw badRequest('No such instrument', { instrumentId: ['No such instrument'] });
       if (body.assigneeId) await assignable(body.assigneeId);
-      const row = await jobs.create({ ...body, createdBy: actor.id });
-      const job = await this.get(row.id);
-      await audit.record(actor, 'job.created', 'job', row.id, undefined, job);
+      const created = await jobs.create({ ...body, createdBy: actor.id });
+      const job = await service.get(created.id);
+      await audit.record(actor, 'job.created', 'job', created.id, undefined, job);
       return job;
     },
+
     async assign(actor: Actor, id: string, assigneeId: string): Promise<Job> {
-      const before = await this.get(id);
-      if (before.status === 'approved') throw badRequest('An approved job cannot be reassigned');
+      const before = await service.get(id);
+      if (before.status === 'approved') throw locked('An approved job cannot be reassigned');
       await assignable(assigneeId);
       await jobs.update(id, { assigneeId });
-      const after = await this.get(id);
       await audit.record(actor, 'job.assigned', 'job', id, { assigneeId: before.assigneeId }, { assigneeId });
-      return after;
+      return service.get(id);
+    },
+
+    /** Preparation and return-to-service steps; the server stamps who and when. Assignee only. */
+    async updateChecklist(actor: SessionUser, id: string, patch: ChecklistPatch): Promise<JobDetail> {
+      const r = await row(id);
+      if (r.assigneeId !== actor.id) throw forbidden('Only the assigned technician prepares this job');
+      if (r.status === 'submitted' || r.status === 'approved') throw locked(`The job is ${r.status}; its checklist is locked`);
+      const before = checklistOf(r.checklist);
+      const c: Checklist = structuredClone(before);
+      const stamp = { by: actor.id, byName: actor.name, at: new Date().toISOString() };
+      if (patch.standardIds) {
+        for (const sid of patch.standardIds) if (!(await standards.get(sid))) throw badRequest('No such standard', { standardIds: [`Unknown standard ${sid}`] });
+        c.standardIds = [...new Set(patch.standardIds)];
+      }
+      if (patch.permitNo !== undefined) c.permitNo = patch.permitNo;
+      if (patch.bypass) {
+        if (c.bypass.recorded && !patch.bypass.required && !c.bypass.removed) {
+          throw badRequest('The bypass is recorded; record its removal instead', { bypass: ['Record the removal'] });
+        }
+        c.bypass = { ...c.bypass, required: patch.bypass.required, description: patch.bypass.description };
+      }
+      if (patch.bypassRecorded) {
+        if (!c.bypass.required) throw badRequest('Say that a bypass is needed and which one first', { bypass: ['No bypass is declared'] });
+        c.bypass.recorded = stamp;
+      }
+      if (patch.bypassRemoved) {
+        if (!c.bypass.recorded) throw badRequest('No bypass was recorded', { bypassRemoved: ['Nothing to remove'] });
+        c.bypass.removed = stamp;
+      }
+      for (const k of ['operatorsInformed', 'isolated', 'vented', 'flushed', 'returnedToService'] as const) if (patch[k]) c[k] = stamp;
+      await jobs.update(id, { checklist: c, permitNo: c.permitNo, status: r.status === 'open' ? 'in-progress' : r.status });
+      await audit.record(actor, 'job.checklist-changed', 'job', id, before, c);
+      return service.detail(id);
+    },
+
+    /** Hands the job to review; refused with the reasons while anything is missing. */
+    async submit(actor: SessionUser, id: string): Promise<JobDetail> {
+      const r = await row(id);
+      if (r.assigneeId !== actor.id) throw forbidden('Only the assigned technician submits this job');
+      const d = await service.detail(id);
+      if (d.submitBlockers.length) throw badRequest(`Not ready to submit: ${d.submitBlockers.join('; ')}`, { submit: d.submitBlockers });
+      await jobs.update(id, { status: 'submitted' });
+      await audit.record(actor, 'job.submitted', 'job', id, { status: r.status }, { status: 'submitted' });
+      return service.detail(id);
     },
   };
+  return service;
 }
 export type JobService = ReturnType<typeof createJobService>;

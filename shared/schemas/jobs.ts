@@ -33,3 +33,77 @@ export const JobSchema = z.object({
   updatedAt: z.string(),
 });
 export type Job = z.infer<typeof JobSchema>;
+
+/** Who did a preparation step and when (ISO date-time). */
+export const SignedStepSchema = z.object({ by: z.string(), byName: z.string(), at: z.string() }).nullable();
+
+/** The preparation checklist and return to service (DESIGN.md §3.3). */
+export const ChecklistSchema = z.object({
+  standardIds: z.array(z.string()),
+  permitNo: z.string().nullable(),
+  bypass: z.object({
+    /** Whether an interlock bypass is needed for this work. */
+    required: z.boolean(),
+    /** Which interlock or trip is bypassed. */
+    description: z.string(),
+    recorded: SignedStepSchema,
+    removed: SignedStepSchema,
+  }),
+  operatorsInformed: SignedStepSchema,
+  isolated: SignedStepSchema,
+  vented: SignedStepSchema,
+  flushed: SignedStepSchema,
+  returnedToService: SignedStepSchema,
+});
+export type Checklist = z.infer<typeof ChecklistSchema>;
+
+/** Changes to the checklist; the server stamps who and when on each step set true. */
+export const ChecklistPatchSchema = z
+  .object({
+    standardIds: z.array(z.string().uuid('Not a valid standard')).max(6).optional(),
+    permitNo: z.string().trim().min(1, 'Enter the permit number').max(60).optional(),
+    bypass: z.object({ required: z.boolean(), description: z.string().trim().max(200) }).optional(),
+    bypassRecorded: z.literal(true).optional(),
+    bypassRemoved: z.literal(true).optional(),
+    operatorsInformed: z.literal(true).optional(),
+    isolated: z.literal(true).optional(),
+    vented: z.literal(true).optional(),
+    flushed: z.literal(true).optional(),
+    returnedToService: z.literal(true).optional(),
+  })
+  .refine((v) => Object.keys(v).length > 0, { message: 'Nothing to change' })
+  .refine((v) => !v.bypass?.required || v.bypass.description.length > 0, { message: 'Say which interlock is bypassed', path: ['bypass', 'description'] });
+export type ChecklistPatch = z.infer<typeof ChecklistPatchSchema>;
+
+/** A standard as chosen for a job, with the checks that decide whether it may be used. */
+export const JobStandardSchema = z.object({
+  id: z.string(),
+  kind: z.enum(['pressure', 'current']),
+  description: z.string(),
+  serial: z.string(),
+  certificateNo: z.string(),
+  dueOn: z.string(),
+  dueState: z.enum(['in-date', 'due-soon', 'expired']),
+  /** Why it may not be used, or null. */
+  problem: z.string().nullable(),
+});
+
+export const RunSummarySchema = z.object({
+  id: z.string(),
+  kind: z.enum(['mode-check', 'as-found', 'trim', 'as-left']),
+  status: z.string(),
+  startedAt: z.string(),
+  endedAt: z.string().nullable(),
+  overallDecision: z.string().nullable(),
+});
+
+export const JobDetailSchema = JobSchema.extend({
+  checklist: ChecklistSchema,
+  standards: z.array(JobStandardSchema),
+  runs: z.array(RunSummarySchema),
+  /** What stops the next step, in words; empty when the run may start. */
+  blockers: z.array(z.string()),
+  /** Blockers for submission. */
+  submitBlockers: z.array(z.string()),
+});
+export type JobDetail = z.infer<typeof JobDetailSchema>;

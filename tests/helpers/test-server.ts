@@ -81,7 +81,7 @@ export class ApiClient {
       if (pair!.startsWith('sp_session=')) this.cookie = pair!.endsWith('=') ? '' : pair!;
     }
     const text = await res.text();
-    let json: unknown = undefined;
+    let json: unknown;
     try {
       json = text ? JSON.parse(text) : undefined;
     } catch {

@@ -1,6 +1,6 @@
 import { asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
-import { instruments, jobs, standards, users } from '../schema';
+import { instruments, jobs, runs, standards, users } from '../schema';
 
 export type InstrumentRow = typeof instruments.$inferSelect;
 export type InstrumentInsert = typeof instruments.$inferInsert;
@@ -152,6 +152,9 @@ export function jobRepository(db: Db) {
     async create(values: typeof jobs.$inferInsert): Promise<typeof jobs.$inferSelect> {
       const [row] = await db.insert(jobs).values(values).returning();
       return row!;
+    },
+    async runs(jobId: string): Promise<(typeof runs.$inferSelect)[]> {
+      return db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(asc(runs.startedAt));
     },
     async update(id: string, values: Partial<typeof jobs.$inferInsert>): Promise<typeof jobs.$inferSelect | undefined> {
       const [row] = await db

@@ -1,4 +1,4 @@
-import { AssignJobBodySchema, CreateJobBodySchema } from '../../../../shared/schemas/jobs';
+import { AssignJobBodySchema, ChecklistPatchSchema, CreateJobBodySchema } from '../../../../shared/schemas/jobs';
 import { IdParamSchema } from '../../../../shared/schemas/users';
 import type { JobService } from '../../../services/job.service';
 import { currentUser } from '../../middleware/auth';
@@ -12,7 +12,7 @@ export function jobRoutes(jobs: JobService) {
   });
   const one = { params: IdParamSchema };
   t.add('get', '/:id', 'jobs.read', validate(one), async (_req, res) => {
-    res.json(await jobs.get(input(res, one).params.id));
+    res.json(await jobs.detail(input(res, one).params.id));
   });
   const create = { body: CreateJobBodySchema };
   t.add('post', '/', 'jobs.plan', validate(create), async (_req, res) => {
@@ -22,6 +22,14 @@ export function jobRoutes(jobs: JobService) {
   t.add('post', '/:id/assign', 'jobs.plan', validate(assign), async (_req, res) => {
     const { params, body } = input(res, assign);
     res.json(await jobs.assign(currentUser(res), params.id, body.assigneeId));
+  });
+  const checklist = { params: IdParamSchema, body: ChecklistPatchSchema };
+  t.add('put', '/:id/checklist', 'jobs.perform', validate(checklist), async (_req, res) => {
+    const { params, body } = input(res, checklist);
+    res.json(await jobs.updateChecklist(currentUser(res), params.id, body));
+  });
+  t.add('post', '/:id/submit', 'jobs.perform', validate(one), async (_req, res) => {
+    res.json(await jobs.submit(currentUser(res), input(res, one).params.id));
   });
   return t;
 }

@@ -1,0 +1,15 @@
+import { cleanup, render, screen } from '@testing-library/react';
+import { afterEach, describe, expect, it } from 'vitest';
+import { SafetyNote } from './safety-note';
+
+afterEach(cleanup);
+
+describe('SafetyNote', () => {
+  it('lists the usual cautions and defers to site procedures', () => {
+    render(<SafetyNote />);
+    const note = screen.getByRole('complementary', { name: 'Safety cautions' });
+    const text = note.textContent ?? '';
+    for (const words of ['Isolate and vent', 'hazardous', 'interlock bypass', 'overpressure']) expect(text).toContain(words);
+    expect(text).toContain('Follow your site procedures, local codes and licensed practice; Stillpoint does not replace them.');
+  });
+});

@@ -1,0 +1,26 @@
+import { queryOptions, useQuery } from '@tanstack/react-query';
+import { MeSchema, type Me } from '../../../../shared/schemas/auth';
+import { api } from '../../../lib/api-client';
+import { SESSION_CHECK } from '../../../lib/query-client';
+
+export const meQueryKey = ['auth', 'me'] as const;
+
+/** GET /api/auth/me → the signed-in user, or ApiError 401. */
+export function getMe(signal?: AbortSignal): Promise<Me> {
+  return api.get('/api/auth/me', { schema: MeSchema, ...(signal ? { signal } : {}) });
+}
+
+export function meQueryOptions() {
+  return queryOptions({
+    queryKey: meQueryKey,
+    queryFn: ({ signal }) => getMe(signal),
+    staleTime: 5 * 60_000,
+    retry: false,
+    // The route guards redirect on this query's 401 themselves.
+    meta: { [SESSION_CHECK]: true },
+  });
+}
+
+export function useMe() {
+  return useQuery(meQueryOptions());
+}

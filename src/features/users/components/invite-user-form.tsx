@@ -1,0 +1,87 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
+import { ROLES } from '../../../../shared/schemas/auth';
+import { InviteUserBodySchema, type InviteUserBody, type User } from '../../../../shared/schemas/users';
+import { Button } from '../../../components/ui/button';
+import { SelectField, TextField } from '../../../components/ui/field';
+import { isApiError } from '../../../lib/api-client';
+import { ROLE_LABELS } from '../../../lib/authorization';
+import { useInviteUser } from '../api/invite-user';
+
+export interface InviteUserFormProps {
+  onInvited: (user: User) => void;
+  onCancel?: () => void;
+}
+
+const FIELDS = ['email', 'name', 'role', 'password'] as const;
+
+export function InviteUserForm({ onInvited, onCancel }: InviteUserFormProps) {
+  const {
+    register,
+    handleSubmit,
+    setError,
+    formState: { errors, isSubmitting },
+  } = useForm<InviteUserBody, unknown, InviteUserBody>({
+    resolver: zodResolver(InviteUserBodySchema),
+    defaultValues: { email: '', name: '', role: 'technician', password: '' },
+  });
+  const invite = useInviteUser();
+
+  const onSubmit = handleSubmit(async (values) => {
+    try {
+      const user = await invite.mutateAsync(values);
+      onInvited(user);
+    } catch (e) {
+      if (!isApiError(e)) {
+        setError('root', { message: 'Something went wrong. Try again.' });
+        return;
+      }
+      // Server field errors go next to their field; anything else above the form.
+      let placed = false;
+      for (const f of FIELDS) {
+        const msg = e.fieldMessage(f);
+        if (msg) {
+          setError(f, { message: msg }, { shouldFocus: !placed });
+          placed = true;
+        }
+      }
+      if (!placed) setError('root', { message: e.message });
+    }
+  });
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
+      {errors.root?.message && (
+        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
+          {errors.root.message}
+        </div>
+      )}
+      <TextField label="Name" autoComplete="off" error={errors.name?.message} {...register('name')} />
+      <TextField label="Email" type="email" autoComplete="off" error={errors.email?.message} {...register('email')} />
+      <SelectField
+        label="Role"
+        options={ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] }))}
+        error={errors.role?.message}
+        {...register('role')}
+      />
+      <TextField
+        label="Initial password"
+        type="password"
+        autoComplete="new-password"
+        hint="At least 10 characters. Give it to the person yourself, not by email."
+        error={errors.password?.message}
+        {...register('password')}
+      />
+      <div className="flex justify-end gap-2 pt-2">
+        {onCancel && (
+          <Button variant="secondary" onClick={onCancel}>
+            Cancel
+          </Button>
+        )}
+        <Button type="submit" loading={isSubmitting || invite.isPending}>
+          Invite
+        </Button>
+      </div>
+    </form>
+  );
+}
