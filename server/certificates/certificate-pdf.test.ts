@@ -1,0 +1,125 @@
+import { spawnSync } from 'node:child_process';
+import fs from 'node:fs/promises';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { CertificateDataError } from './certificate-data';
+import { renderCertificate } from './certificate-pdf';
+import { sampleCertificate, SAMPLE_AS_FOUND_MA, SAMPLE_AS_LEFT_MA } from './sample-certificate';
+
+const has = (cmd: string) => spawnSync('sh', ['-c', `command -v ${cmd}`]).status === 0;
+
+/** pdffonts and pdftotext come from poppler-utils; install them when we can, else say how. */
+function ensurePoppler(): void {
+  if (has('pdffonts') && has('pdftotext')) return;
+  if (process.getuid?.() === 0) {
+    const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+    let r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
+    if (r.status !== 0) {
+      spawnSync('apt-get', ['update'], { env });
+      r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
+    }
+    if (r.status === 0 && has('pdffonts')) return;
+  }
+  throw new Error('These tests need poppler-utils (pdffonts, pdftotext). Install it: sudo apt-get install -y poppler-utils');
+}
+
+let dir: string;
+let pdfPath: string;
+let pdf: Buffer;
+let fonts: string;
+let text: string;
+
+function run(cmd: string, args: string[]): string {
+  const r = spawnSync(cmd, args, { encoding: 'utf8' });
+  if (r.status !== 0) throw new Error(`${cmd} failed: ${r.stderr}`);
+  return r.stdout;
+}
+
+beforeAll(async () => {
+  ensurePoppler();
+  dir = await fs.mkdtemp(path.join(os.tmpdir(), 'stillpoint-cert-'));
+  pdf = await renderCertificate(sampleCertificate());
+  pdfPath = path.join(dir, 'certificate.pdf');
+  await fs.writeFile(pdfPath, pdf);
+  fonts = run('pdffonts', [pdfPath]);
+  // Whitespace collapsed, so wrapped sentences can be matched whole.
+  text = run('pdftotext', [pdfPath, '-']).replace(/\s+/g, ' ');
+}, 120_000);
+
+afterAll(async () => {
+  if (dir) await fs.rm(dir, { recursive: true, force: true });
+});
+
+describe('renderCertificate', () => {
+  it('produces a PDF', () => {
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+    expect(pdf.length).toBeGreaterThan(10_000);
+  });
+
+  it('embeds Inter and JetBrains Mono and no other font', () => {
+    const rows = fonts.split('\n').slice(2).filter((l) => l.trim());
+    expect(rows.length).toBeGreaterThanOrEqual(3);
+    for (const row of rows) {
+      expect(row).toMatch(/\+(Inter|JetBrainsMono)-/);
+      // Columns: name type encoding emb sub uni object ID
+      expect(row).toMatch(/\s+yes\s+yes\s+yes\s+\d+\s+\d+\s*$/);
+    }
+    expect(fonts).toMatch(/Inter-Regular/);
+    expect(fonts).toMatch(/Inter-SemiBold/);
+    expect(fonts).toMatch(/JetBrainsMono-Regular/);
+  });
+
+  it('shows the tag, the as-found and as-left readings and the trims', () => {
+    expect(text).toContain('FT-101');
+    expect(text).toContain('SP-2025-0042');
+    for (const ma of [...SAMPLE_AS_FOUND_MA, ...SAMPLE_AS_LEFT_MA]) expect(text).toContain(ma.toFixed(4));
+    expect(text).toContain('Lower trim');
+    expect(text).toContain('20.0931');
+    expect(text).toContain('0.0 to 2500.0 mmH2O@68F');
+    expect(text).toContain('mmH2O at 68 °F (20 °C)'); // the calc label's subscript ₂ is mapped into the latin subset
+  });
+
+  it('states the decision rule, the statement of conformity and the uncertainty', () => {
+    expect(text).toContain('Non-binary statement with guard band w = U (ILAC-G8:09/2019)');
+    expect(text).toContain('As found, the instrument did not conform to its specified tolerance of ±0.50 % of flow span');
+    expect(text).toContain('As left, the instrument conforms to its specified tolerance of ±0.50 % of flow span at all 9 test points.');
+    expect(text).toContain('coverage factor k = 2');
+  });
+
+  it('carries traceability, environment, signatures, page numbers and the reproduction note', () => {
+    expect(text).toContain('LAB-7781/24');
+    expect(text).toContain('All were within their calibration due dates on 2025-03-14.');
+    expect(text).toContain('21.4 °C');
+    expect(text).toContain('Lee Okafor');
+    expect(text).toContain('Reviewed and approved');
+    expect(text).toContain('2025-03-17 08:02 UTC');
+    expect(text).toMatch(/Page 1 of (\d+)/);
+    const pages = Number(/Page 1 of (\d+)/.exec(text)![1]);
+    expect(pages).toBeGreaterThanOrEqual(2);
+    expect(text).toContain(`Page ${pages} of ${pages}`);
+    expect(text.match(/shall not be reproduced except in full/g)).toHaveLength(pages);
+    expect(text).toContain('End of certificate');
+    expect(text).toContain('The results relate only to the item calibrated');
+  });
+
+  it('is deterministic for the same data', async () => {
+    const again = await renderCertificate(sampleCertificate());
+    expect(again.equals(pdf)).toBe(true);
+  });
+
+  it('prints a revision with its reason, and a draft banner', async () => {
+    const rev = await renderCertificate(sampleCertificate({ revision: 2, revisionReason: 'Customer address corrected.', draft: true, signatures: [] }));
+    const p = path.join(dir, 'rev.pdf');
+    await fs.writeFile(p, rev);
+    const t = run('pdftotext', [p, '-']).replace(/\s+/g, ' ');
+    expect(t).toContain('This revision replaces revision 1 of certificate SP-2025-0042, which is withdrawn. Reason: Customer address corrected.');
+    expect(t).toContain('DRAFT — not approved');
+    expect(t).toContain('SP-2025-0042 · rev 2');
+  });
+
+  it('refuses data that cannot make a certificate', async () => {
+    await expect(renderCertificate(sampleCertificate({ revision: 2 }))).rejects.toBeInstanceOf(CertificateDataError);
+    await expect(renderCertificate(sampleCertificate({ signatures: [] }))).rejects.toThrow(/approval signature/);
+  });
+});
