@@ -22,6 +22,8 @@ export const StartRunBodySchema = z.object({
   kind: RunKindSchema,
   /** Trim runs: which trim is being performed. */
   trim: z.enum(['zero-trim', 'lower-trim', 'span-trim']).optional(),
+  /** Bench the run is captured on. Default the server's own bench ('bench-1'). Additive. */
+  benchId: z.string().min(1).max(80).optional(),
 });
 export type StartRunBody = z.infer<typeof StartRunBodySchema>;
 
@@ -89,6 +91,10 @@ export const RunSchema = z.object({
     .nullable(),
   startedAt: z.string(),
   endedAt: z.string().nullable(),
+  /** Bench the run is captured on. Additive. */
+  benchId: z.string().optional(),
+  /** Why `results` is null although points were captured (e.g. no standards chosen). Additive. */
+  resultsProblem: z.string().nullable().optional(),
 });
 export type Run = z.infer<typeof RunSchema>;
 

@@ -1,0 +1,368 @@
+/**
+ * Bench path figures, measured in one run:
+ *  1. latency from the last byte of a line written at a pseudo-terminal (socat) to its arrival at a
+ *     WebSocket client, through the whole product (port → driver → hub → writer + engine + stream),
+ *     next to a bare relay (serialport → ws, no hub, no storage);
+ *  2. sustained ingest into PGlite through the sample writer next to a PGlite COPY baseline;
+ *  3. how many simulated benches (two devices at 10 readings/s each) one process sustains with
+ *     storage and streaming at a hub → WebSocket p99 ≤ 50 ms;
+ *  4. the live-path p99 while a heavy review query (the full trace of a long run) runs, vs idle.
+ * Run: `npx tsx bench/bench.bench.ts`, or through `npm run bench`.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import http from 'node:http';
+import os from 'node:os';
+import path from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { PGlite } from '@electric-sql/pglite';
+import { ReadlineParser } from '@serialport/parser-readline';
+import { SerialPort } from 'serialport';
+import WebSocket, { WebSocketServer } from 'ws';
+import { boot, type Running } from '../server/boot';
+import { parseEnv } from '../server/env';
+import { createLogger } from '../server/logger';
+import { openDatabase } from '../server/db/client';
+import { sampleRepository } from '../server/db/repositories/sample.repository';
+import { SampleJournal } from '../server/bench/journal';
+import { SampleWriter } from '../server/bench/sample-writer';
+import { BenchHub } from '../server/bench/hub';
+import { SIMCAL_FEED_PROFILE } from '../shared/protocol';
+import type { StreamMessage } from '../shared/schemas/stream';
+import { findSocat } from '../simulators/pty-sim';
+
+/** One benchmark figure. */
+export interface BenchFigure {
+  name: string;
+  value: number;
+  unit: string;
+  target?: string;
+  ok?: boolean;
+}
+
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+const tmp = () => fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-bench-'));
+
+function pct(values: number[], p: number): number {
+  if (!values.length) return NaN;
+  const s = [...values].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))]!;
+}
+
+async function socatPair(dir: string, name: string): Promise<{ a: string; b: string; child: ChildProcess }> {
+  const socat = await findSocat();
+  if (!socat) throw new Error('socat is not installed (apt-get install socat)');
+  const a = path.join(dir, `${name}-a`);
+  const b = path.join(dir, `${name}-b`);
+  const child = spawn(socat, [`pty,raw,echo=0,link=${a}`, `pty,raw,echo=0,link=${b}`], { stdio: 'ignore' });
+  for (let i = 0; i < 250 && !(fs.existsSync(a) && fs.existsSync(b)); i++) await sleep(20);
+  if (!fs.existsSync(a)) throw new Error('socat did not create its links');
+  return { a, b, child };
+}
+
+async function openWriter(p: string): Promise<SerialPort> {
+  const port = new SerialPort({ path: p, baudRate: 115200, autoOpen: false });
+  await new Promise<void>((res, rej) => port.open((e) => (e ? rej(e) : res())));
+  return port;
+}
+
+/**
+ * Writes `count` numbered calibrator lines at `rateHz` at a pty and returns the time each line's
+ * last byte was handed to the pty (write drained), by number.
+ */
+async function writeLines(port: SerialPort, count: number, rateHz: number): Promise<Map<number, number>> {
+  const sentAt = new Map<number, number>();
+  for (let i = 1; i <= count; i++) {
+    const line = `DP +${(i / 1000).toFixed(5)} inH2O@68F\r\n`;
+    await new Promise<void>((res) => port.write(line, () => port.drain(() => res())));
+    sentAt.set(i, performance.now());
+    await sleep(1000 / rateHz);
+  }
+  return sentAt;
+}
+
+async function signIn(url: string, email: string): Promise<string> {
+  const res = await fetch(`${url}/api/auth/login`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', origin: url },
+    body: JSON.stringify({ email, password: 'stillpoint-demo' }),
+  });
+  return res.headers.getSetCookie().find((c) => c.startsWith('sp_session='))!.split(';')[0]!;
+}
+
+function wsClient(url: string, cookie: string, onMessage: (m: StreamMessage, at: number) => void): Promise<WebSocket> {
+  const ws = new WebSocket(`${url.replace('http', 'ws')}/ws`, { headers: { cookie, origin: url } });
+  ws.on('message', (d) => onMessage(JSON.parse(String(d)) as StreamMessage, performance.now()));
+  return new Promise((res, rej) => {
+    ws.once('open', () => res(ws));
+    ws.once('error', rej);
+  });
+}
+
+async function bootApp(bench: Parameters<typeof boot>[0]['bench'], env: Record<string, string> = {}): Promise<Running> {
+  const e = parseEnv({ NODE_ENV: 'test', PORT: '0', HOST: '127.0.0.1', LOG_LEVEL: 'silent', DATA_DIR: '.tmp/unused', ...env });
+  return boot({ env: e, logger: createLogger('silent'), memory: true, journalDir: bench?.journalDir, bench });
+}
+
+const LINES = 300;
+const RATE = 50;
+
+/** 1. pty → WebSocket latency through the product and through a bare relay. */
+async function latency(): Promise<BenchFigure[]> {
+  const dir = tmp();
+  const pressure = await socatPair(dir, 'pressure');
+  const current = await socatPair(dir, 'current');
+  const journalDir = tmp();
+  const app = await bootApp({ mode: 'serial', serialPaths: { pressure: pressure.b, current: current.b }, profile: SIMCAL_FEED_PROFILE, journalDir }, { BENCH: 'serial' });
+  const cookie = await signIn(app.url, 'tech@stillpoint-demo.test');
+  const gotProduct = new Map<number, number>();
+  const ws = await wsClient(app.url, cookie, (m, at) => {
+    if (m.type === 'sample.received' && m.device === 'pressure' && m.value !== null) gotProduct.set(Math.round(m.value * 1000), at);
+  });
+  const w1 = await openWriter(pressure.a);
+  await sleep(500);
+  const sent1 = await writeLines(w1, LINES, RATE);
+  await sleep(500);
+  ws.terminate();
+  await new Promise<void>((r) => w1.close(() => r()));
+  await app.close();
+
+  // Bare relay: serialport + readline parser → ws server → client; nothing else.
+  const relay = await socatPair(dir, 'relay');
+  const server = http.createServer();
+  const wss = new WebSocketServer({ server });
+  await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()));
+  const port = new SerialPort({ path: relay.b, baudRate: 115200 });
+  const parser = port.pipe(new ReadlineParser({ delimiter: '\r\n' }));
+  parser.on('data', (line: string) => {
+    const msg = JSON.stringify({ raw: line, wallMs: Date.now() });
+    for (const c of wss.clients) c.send(msg);
+  });
+  const gotBare = new Map<number, number>();
+  const addr = server.address() as { port: number };
+  const client = new WebSocket(`ws://127.0.0.1:${addr.port}`);
+  client.on('message', (d) => {
+    const raw = (JSON.parse(String(d)) as { raw: string }).raw;
+    gotBare.set(Math.round(Number(raw.split(/\s+/)[1]) * 1000), performance.now());
+  });
+  await new Promise((r) => client.once('open', r));
+  const w2 = await openWriter(relay.a);
+  await sleep(300);
+  const sent2 = await writeLines(w2, LINES, RATE);
+  await sleep(500);
+  client.terminate();
+  await new Promise<void>((r) => w2.close(() => r()));
+  await new Promise<void>((r) => port.close(() => r()));
+  wss.close();
+  server.close();
+  for (const p of [pressure, current, relay]) p.child.kill('SIGTERM');
+
+  const lat = (sent: Map<number, number>, got: Map<number, number>) => [...sent].filter(([i]) => got.has(i)).map(([i, t]) => got.get(i)! - t);
+  const product = lat(sent1, gotProduct);
+  const bare = lat(sent2, gotBare);
+  const p50 = pct(product, 50);
+  const p99 = pct(product, 99);
+  const b50 = pct(bare, 50);
+  const b99 = pct(bare, 99);
+  const ratio = p99 / b99;
+  return [
+    { name: `pty → ws latency p50, product (${product.length}/${LINES} lines at ${RATE}/s)`, value: p50, unit: 'ms' },
+    { name: 'pty → ws latency p99, product', value: p99, unit: 'ms' },
+    { name: `pty → ws latency p50, bare relay (${bare.length}/${LINES} lines)`, value: b50, unit: 'ms' },
+    { name: 'pty → ws latency p99, bare relay', value: b99, unit: 'ms' },
+    { name: 'latency ratio product / bare relay (p50)', value: p50 / b50, unit: '×' },
+    { name: 'latency ratio product / bare relay (p99)', value: ratio, unit: '×', target: '<= 1.3', ok: ratio <= 1.3 },
+  ];
+}
+
+/** Migrations applied by hand to a raw PGlite (the baseline has no drizzle). */
+async function rawPglite(): Promise<PGlite> {
+  const db = new PGlite();
+  await db.waitReady;
+  const mig = path.resolve(import.meta.dirname, '../drizzle');
+  for (const f of fs.readdirSync(mig).filter((x) => x.endsWith('.sql')).sort()) {
+    for (const stmt of fs.readFileSync(path.join(mig, f), 'utf8').split('--> statement-breakpoint')) if (stmt.trim()) await db.exec(stmt);
+  }
+  return db;
+}
+
+const INGEST_ROWS = 200_000;
+
+/** 2. Sample writer into PGlite vs COPY FROM '/dev/blob'. */
+async function ingest(): Promise<BenchFigure[]> {
+  const mkRow = (i: number) => ({
+    benchId: 'bench-1',
+    device: (i & 1 ? 'current' : 'pressure') as 'current' | 'pressure',
+    raw: i & 1 ? `+${(0.012 + i * 1e-9).toExponential(8)}` : `DP +${(50 + (i % 100) / 1000).toFixed(5)} inH2O@68F`,
+    value: i & 1 ? 12 + (i % 100) / 1e4 : 50 + (i % 100) / 1000,
+    unit: i & 1 ? 'mA' : 'inH2O@68F',
+  });
+
+  const figures: BenchFigure[] = [];
+  for (const journaled of [true, false]) {
+    const database = await openDatabase({});
+    const repo = sampleRepository(database.db);
+    const hub = new BenchHub({ ringCapacity: 1000 });
+    const journalDir = tmp();
+    const writer = new SampleWriter({ sink: repo, journal: journaled ? new SampleJournal(journalDir) : undefined, flushMs: 250 });
+    hub.setNextSeq(await writer.start());
+    hub.subscribe('writer', writer.consume);
+    const t0 = performance.now();
+    // Sustained: 2 000 samples every 10 ms of wall time offered (far beyond a bench), writer keeping up as it can.
+    let i = 0;
+    while (i < INGEST_ROWS) {
+      for (let k = 0; k < 2000 && i < INGEST_ROWS; k++, i++) hub.ingestSample(mkRow(i));
+      await sleep(0);
+    }
+    await hub.drain();
+    await writer.flush();
+    while (writer.stats.storedSeq < hub.latestSeq) {
+      await writer.flush();
+      await sleep(5);
+    }
+    const s = (performance.now() - t0) / 1000;
+    if ((await repo.count()) !== INGEST_ROWS) throw new Error('writer lost rows');
+    figures.push({ name: `sample writer → PGlite ingest${journaled ? ' (journal fsync + DB)' : ' (DB only)'}`, value: Math.round(INGEST_ROWS / s), unit: 'rows/s' });
+    await writer.stop();
+    await database.close();
+    fs.rmSync(journalDir, { recursive: true, force: true });
+  }
+
+  const pg = await rawPglite();
+  const esc = (v: string) => `"${v.replace(/"/g, '""')}"`;
+  const t0 = performance.now();
+  const lines: string[] = [];
+  for (let i = 0; i < INGEST_ROWS; i++) {
+    const r = mkRow(i);
+    lines.push([i + 1, r.benchId, r.device, '', esc(r.raw), r.value, r.unit, Date.now(), performance.now()].join(','));
+  }
+  await pg.query(`COPY samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms) FROM '/dev/blob' WITH (FORMAT csv)`, [], {
+    blob: new Blob([lines.join('\n') + '\n']),
+  });
+  const copyS = (performance.now() - t0) / 1000;
+  const n = (await pg.query<{ n: number }>('SELECT count(*)::int AS n FROM samples')).rows[0]!.n;
+  if (n !== INGEST_ROWS) throw new Error(`COPY stored ${n} rows`);
+  await pg.close();
+  const copyRate = INGEST_ROWS / copyS;
+  const ratio = figures[0]!.value / copyRate;
+  figures.push({ name: 'PGlite COPY FROM /dev/blob baseline', value: Math.round(copyRate), unit: 'rows/s' });
+  figures.push({ name: 'ingest ratio writer (journal + DB) / COPY', value: ratio, unit: '×', target: '>= 0.8', ok: ratio >= 0.8 });
+  figures.push({ name: 'ingest ratio writer (DB only) / COPY', value: figures[1]!.value / copyRate, unit: '×' });
+  return figures;
+}
+
+/** Drives `benches` synthetic benches (2 devices × 10/s) for `ms` and returns hub → ws latencies. */
+async function drive(app: Running, cookie: string, benches: number, ms: number, during?: () => Promise<void>): Promise<{ lat: number[]; offered: number }> {
+  const ingestAt = new Map<number, number>();
+  const lat: number[] = [];
+  const ws = await wsClient(app.url, cookie, (m, at) => {
+    if (m.type !== 'sample.received') return;
+    const t = ingestAt.get(m.seq);
+    if (t !== undefined) {
+      lat.push(at - t);
+      ingestAt.delete(m.seq);
+    }
+  });
+  const hub = app.bench.hub;
+  const perTick = (benches * 20) / 100; // samples per 10 ms
+  let carry = 0;
+  let offered = 0;
+  let b = 0;
+  const end = performance.now() + ms;
+  const heavy = during?.();
+  while (performance.now() < end) {
+    carry += perTick;
+    while (carry >= 1) {
+      carry--;
+      const device = offered & 1 ? 'current' : 'pressure';
+      const e = hub.ingestSample({
+        benchId: `sim-${b++ % benches}`,
+        device,
+        raw: device === 'current' ? '+1.20000000E-02' : 'DP +50.00000 inH2O@68F',
+        value: device === 'current' ? 12 : 50,
+        unit: device === 'current' ? 'mA' : 'inH2O@68F',
+      });
+      ingestAt.set(e.seq, performance.now());
+      offered++;
+    }
+    await sleep(10);
+  }
+  await heavy;
+  await sleep(300);
+  ws.terminate();
+  return { lat, offered };
+}
+
+/** 3 and 4. Benches per process at p99 ≤ 50 ms, and the live path under a heavy review query. */
+async function capacity(): Promise<BenchFigure[]> {
+  const journalDir = tmp();
+  const app = await bootApp({ journalDir, noLocalDevices: true });
+  const cookie = await signIn(app.url, 'lead@stillpoint-demo.test');
+  const figures: BenchFigure[] = [];
+  let sustained = 0;
+  for (const benches of [50, 100, 200, 400, 800]) {
+    const { lat, offered } = await drive(app, cookie, benches, 5000);
+    const p99 = pct(lat, 99);
+    const delivered = lat.length / offered;
+    figures.push({ name: `${benches} benches (${benches * 20} samples/s): hub → ws p99, storage + stream`, value: p99, unit: 'ms' });
+    await app.bench.writer.flush();
+    if (p99 <= 50 && delivered > 0.99 && app.bench.writer.stats.pending < benches * 20) sustained = benches;
+    else break;
+  }
+  figures.push({ name: 'benches sustained per process at p99 <= 50 ms', value: sustained, unit: 'benches', target: '>= 200', ok: sustained >= 200 });
+
+  // A long run's trace: 8 h at 20 samples/s = 576 000 samples under one run id.
+  const runId = '11111111-1111-4111-8111-111111111111';
+  await app.database.exec(
+    `INSERT INTO runs (id, job_id, kind, status, plan) SELECT '${runId}', id, 'as-found', 'complete', '{"benchId":"bench-1","points":[]}'::jsonb FROM jobs LIMIT 1`,
+  );
+  await app.database.exec(
+    `INSERT INTO samples SELECT g, 'bench-9', CASE WHEN g % 2 = 0 THEN 'pressure' ELSE 'current' END, '${runId}', 'DP +50.00000 inH2O@68F', 50, 'inH2O@68F', 1.7e12 + g::float8 * 50, g::float8 * 50 FROM generate_series(1000000000::bigint, 1000575999::bigint) g`,
+  );
+  const idle = await drive(app, cookie, 20, 5000);
+  let queries = 0;
+  let queryMs = 0;
+  const heavy = await drive(app, cookie, 20, 8000, async () => {
+    const end = performance.now() + 7500;
+    while (performance.now() < end) {
+      const t = performance.now();
+      const r = await fetch(`${app.url}/api/runs/${runId}/trace?limit=500000`, { headers: { cookie } });
+      await r.arrayBuffer();
+      queryMs += performance.now() - t;
+      queries++;
+    }
+  });
+  const i99 = pct(idle.lat, 99);
+  const h99 = pct(heavy.lat, 99);
+  figures.push({ name: 'live path p99, 20 benches, idle', value: i99, unit: 'ms' });
+  figures.push({ name: `live path p99, 20 benches, during full-trace queries (${queries} × 500 000 rows, ${(queryMs / Math.max(1, queries)).toFixed(0)} ms each)`, value: h99, unit: 'ms' });
+  figures.push({ name: 'live path p99 ratio heavy query / idle', value: h99 / i99, unit: '×', target: '<= 2', ok: h99 / i99 <= 2 });
+  figures.push({ name: 'live path max during heavy query', value: Math.max(...heavy.lat), unit: 'ms' });
+  await app.close();
+  fs.rmSync(journalDir, { recursive: true, force: true });
+  return figures;
+}
+
+export async function run(): Promise<BenchFigure[]> {
+  const out: BenchFigure[] = [];
+  for (const [name, fn] of [
+    ['latency', latency],
+    ['ingest', ingest],
+    ['capacity', capacity],
+  ] as const) {
+    if (process.env.BENCH_ONLY && process.env.BENCH_ONLY !== name) continue;
+    process.stderr.write(`  bench.bench: ${name}\n`);
+    try {
+      out.push(...(await fn()));
+    } catch (e) {
+      out.push({ name: `${name} FAILED: ${(e as Error).message}`, value: NaN, unit: '', ok: false });
+    }
+  }
+  return out;
+}
+
+const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
+if (isMain) {
+  console.table(await run());
+  process.exit(0);
+}

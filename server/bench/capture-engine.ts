@@ -1,0 +1,441 @@
+/**
+ * Capture engine: the authority on holds and captures for the running run of one bench. Each
+ * point goes `waiting → approaching → settling → holding → captured`; flags `leak`, `overshoot`,
+ * `unstable`, `manual`. Uses shared/calc's ApproachTracker and HoldAnalyzer (O(1) per sample).
+ * It keeps no storage: it emits events and the run service persists them.
+ */
+import { EventEmitter } from 'node:events';
+import {
+  ApproachTracker,
+  classifyNe43,
+  convertPressure,
+  HoldAnalyzer,
+  isPressureUnitId,
+  type HoldSettings,
+  type PlanPoint,
+} from '../../shared/calc';
+import type { PointCapture, PointFlag, PointState } from '../../shared/schemas/runs';
+import type { HubEntry } from './hub';
+
+/** Run settings frozen at start. */
+export interface EngineRunSettings {
+  runId: string;
+  benchId: string;
+  /** Instrument unit (a pressure unit id). */
+  unit: string;
+  /** |URV − LRV|, instrument unit. */
+  dpSpan: number;
+  holdSeconds: number;
+  /** Extra hold settings (bands, limits); `dpSpan` and `holdTimeMs` come from above. */
+  hold?: Omit<HoldSettings, 'dpSpan' | 'holdTimeMs'>;
+  /** A point still settling after this many hold times gets the `unstable` flag. Default 4. */
+  unstableAfterHolds?: number;
+  /** Least interval between hold-progress events, ms. Default 250 ms. */
+  progressEveryMs?: number;
+}
+
+/** A point as the engine sees it. */
+export interface EnginePoint {
+  plan: PlanPoint;
+  state: PointState;
+  flags: PointFlag[];
+  capture: PointCapture | null;
+  warning: string | null;
+}
+
+export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43';
+export type RunStatus = 'running' | 'paused' | 'complete' | 'aborted';
+
+/** Events of the engine; names and fields follow the stream messages (captures carry their data). */
+export type EngineEvent =
+  | { type: 'point.changed'; runId: string; index: number; state: PointState; flags: PointFlag[]; hold: { elapsedMs: number; requiredMs: number } | null; warning: string | null }
+  | { type: 'point.captured'; runId: string; index: number; manual: boolean; capture: PointCapture; flags: PointFlag[] }
+  | { type: 'run.warned'; runId: string; index: number; kind: WarningKind; message: string; ratePctSpanPerMin: number | null }
+  | { type: 'run.changed'; runId: string; status: RunStatus; currentIndex: number | null };
+
+/** Why an engine command was refused. */
+export class EngineRefusal extends Error {
+  constructor(
+    message: string,
+    readonly status: 404 | 409 = 409,
+  ) {
+    super(message);
+    this.name = 'EngineRefusal';
+  }
+}
+
+interface Active {
+  s: EngineRunSettings;
+  points: EnginePoint[];
+  status: RunStatus;
+  current: number | null;
+  tracker: ApproachTracker | undefined;
+  hold: HoldAnalyzer | undefined;
+  holdSettings: HoldSettings;
+  holdStartWall: number | undefined;
+  holdEndWall: number | undefined;
+  settlingSinceMs: number | undefined;
+  lastProgressMs: number;
+  overshoots: number;
+  leakWarned: boolean;
+  ne43Warned: boolean;
+  unitWarned: boolean;
+  lastMa: number | undefined;
+}
+
+const BAND_REASONS = ['applied DP outside the stability band', 'current outside the stability band'];
+
+export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
+  readonly benchId: string;
+  private run: Active | undefined;
+
+  constructor(benchId: string) {
+    super();
+    this.benchId = benchId;
+  }
+
+  /** Id of the run on this bench that is running or paused, if any. */
+  get activeRunId(): string | null {
+    return this.run && (this.run.status === 'running' || this.run.status === 'paused') ? this.run.s.runId : null;
+  }
+
+  /** Snapshot of the active run's points (copies). */
+  snapshot(): { runId: string; status: RunStatus; currentIndex: number | null; points: EnginePoint[] } | undefined {
+    const r = this.run;
+    if (!r) return undefined;
+    return {
+      runId: r.s.runId,
+      status: r.status,
+      currentIndex: r.current,
+      points: r.points.map((p) => ({ ...p, flags: [...p.flags], capture: p.capture ? { ...p.capture } : null })),
+    };
+  }
+
+  /**
+   * Starts (or restores) a run. `restore` carries point states already persisted (after a restart);
+   * captured points stay captured and the first uncaptured one becomes current.
+   */
+  start(settings: EngineRunSettings, plan: PlanPoint[], restore?: { status: 'running' | 'paused'; points: { state: PointState; flags: PointFlag[]; capture: PointCapture | null }[] }): void {
+    if (this.activeRunId) throw new EngineRefusal(`Another run (${this.activeRunId}) is active on ${this.benchId}`);
+    const holdSettings: HoldSettings = {
+      ...settings.hold,
+      dpSpan: settings.dpSpan,
+      holdTimeMs: settings.holdSeconds * 1000,
+      // A leak must be called within a hold, also when the hold is short.
+      leakMinDurationMs: Math.min(settings.hold?.leakMinDurationMs ?? 5000, settings.holdSeconds * 1000),
+    };
+    const points: EnginePoint[] = plan.map((p, i) => {
+      const r = restore?.points[i];
+      const captured = r?.state === 'captured' && r.capture;
+      return { plan: p, state: captured ? 'captured' : 'waiting', flags: r ? [...r.flags] : [], capture: captured ? r.capture : null, warning: null };
+    });
+    this.run = {
+      s: settings,
+      points,
+      status: restore?.status ?? 'running',
+      current: null,
+      tracker: undefined,
+      hold: undefined,
+      holdSettings,
+      holdStartWall: undefined,
+      holdEndWall: undefined,
+      settlingSinceMs: undefined,
+      lastProgressMs: 0,
+      overshoots: 0,
+      leakWarned: false,
+      ne43Warned: false,
+      unitWarned: false,
+      lastMa: undefined,
+    };
+    const next = this.nextUncaptured(-1);
+    if (next === null) this.finish('complete');
+    else {
+      this.moveTo(next);
+      this.emitRun();
+    }
+  }
+
+  /** Drops the run without events (service shutdown). */
+  unload(): void {
+    this.run = undefined;
+  }
+
+  pause(): void {
+    const r = this.need();
+    if (r.status !== 'running') throw new EngineRefusal(`The run is ${r.status}, not running`);
+    r.status = 'paused';
+    this.invalidateHold(r);
+    if (r.current !== null) this.setState(r, r.points[r.current]!, 'approaching');
+    this.emitRun();
+  }
+
+  resume(): void {
+    const r = this.need();
+    if (r.status !== 'paused') throw new EngineRefusal(`The run is ${r.status}, not paused`);
+    r.status = 'running';
+    if (r.current !== null) this.moveTo(r.current);
+    this.emitRun();
+  }
+
+  abort(): void {
+    const r = this.need();
+    if (r.status !== 'running' && r.status !== 'paused') throw new EngineRefusal(`The run is already ${r.status}`);
+    this.finish('aborted');
+  }
+
+  /** Manual capture of the current point with the hold means so far (flag `manual`). */
+  manualCapture(index: number, reason: string, by: string): PointCapture {
+    const r = this.need();
+    if (r.status !== 'running' && r.status !== 'paused') throw new EngineRefusal(`The run is ${r.status}`);
+    if (r.current !== index) throw new EngineRefusal(`Point ${index} is not the current point (${r.current ?? 'none'})`);
+    const h = r.hold?.result();
+    if (!h || h.dp.n < 2 || h.ma.n < 2) throw new EngineRefusal('No hold readings yet: bring the applied DP into the window first');
+    return this.capture(r, true, reason, by);
+  }
+
+  /** Clears a point's capture and flags and makes it the current point. */
+  redo(index: number): void {
+    const r = this.need();
+    if (r.status !== 'running' && r.status !== 'paused' && r.status !== 'complete') throw new EngineRefusal(`The run is ${r.status}`);
+    const p = r.points[index];
+    if (!p) throw new EngineRefusal(`No point ${index}`, 404);
+    p.capture = null;
+    p.flags = [];
+    p.warning = null;
+    if (r.status === 'complete') r.status = 'running';
+    if (r.current !== null && r.current !== index) this.setState(r, r.points[r.current]!, 'waiting');
+    this.moveTo(index);
+    this.emitRun();
+  }
+
+  /** Hub consumer. */
+  readonly consume = (batch: HubEntry[]): void => {
+    for (const e of batch) this.onEntry(e);
+  };
+
+  private onEntry(e: HubEntry): void {
+    const r = this.run;
+    if (!r || r.status !== 'running' || r.current === null) return;
+    if (e.kind === 'message') {
+      const m = e.message;
+      if (m.type === 'device.disconnected' && m.benchId === r.s.benchId) this.onDisconnect(r, m.device, m.reason);
+      return;
+    }
+    if (e.benchId !== r.s.benchId || e.value === null) return;
+    if (e.device === 'pressure') this.onPressure(r, e.tMs, e.wallMs, e.value, e.unit);
+    else this.onCurrent(r, e.tMs, e.wallMs, e.value);
+  }
+
+  private onDisconnect(r: Active, device: string, reason: string): void {
+    const p = r.points[r.current!]!;
+    const hadHold = p.state === 'holding' || p.state === 'settling';
+    this.invalidateHold(r);
+    r.tracker = this.newTracker(p.plan);
+    this.setState(r, p, 'approaching');
+    if (hadHold) {
+      this.warn(r, 'disconnect', `The ${device === 'pressure' ? 'pressure calibrator' : 'current meter'} disconnected (${reason}); the hold at point ${p.plan.index + 1} was discarded and restarts when it is back`, null);
+    }
+  }
+
+  private toRunUnit(r: Active, value: number, unit: string | null): number {
+    if (!unit || unit === r.s.unit) return value;
+    if (isPressureUnitId(unit) && isPressureUnitId(r.s.unit)) return convertPressure(value, unit, r.s.unit);
+    if (!r.unitWarned) {
+      r.unitWarned = true;
+      this.warn(r, 'unstable', `The calibrator reads in ${unit}, which cannot be converted to ${r.s.unit}`, null);
+    }
+    return value;
+  }
+
+  private onPressure(r: Active, tMs: number, wallMs: number, raw: number, unit: string | null): void {
+    const p = r.points[r.current!]!;
+    const value = this.toRunUnit(r, raw, unit);
+    const before = r.tracker!.status();
+    const st = r.tracker!.push(tMs, value);
+    if (st.overshoots > before.overshoots) {
+      if (!p.flags.includes('overshoot')) p.flags.push('overshoot');
+      const side = p.plan.approach === 'up' ? 'below' : 'above';
+      const limit = p.plan.approach === 'up' ? p.plan.targetDp - p.plan.window : p.plan.targetDp + p.plan.window;
+      this.warn(
+        r,
+        'overshoot',
+        `Overshoot at point ${p.plan.index + 1}: the applied DP went past the window. Back off ${side} ${round(limit)} ${r.s.unit} and approach ${p.plan.targetDp} again from ${side}`,
+        null,
+      );
+    }
+    if (st.state !== 'in-window') {
+      if (p.state === 'settling' || p.state === 'holding') this.invalidateHold(r);
+      this.setState(r, p, 'approaching');
+      return;
+    }
+    if (p.state === 'approaching' || p.state === 'waiting') {
+      this.invalidateHold(r);
+      r.hold = new HoldAnalyzer(r.holdSettings);
+      r.settlingSinceMs = tMs;
+      this.setState(r, p, 'settling');
+    }
+    this.mark(r, wallMs);
+    r.hold!.pushDp(tMs, value);
+    this.evaluate(r, tMs);
+  }
+
+  private onCurrent(r: Active, tMs: number, wallMs: number, value: number): void {
+    const p = r.points[r.current!]!;
+    const ne = classifyNe43(value);
+    if (!ne.isMeasurement) {
+      if (!r.ne43Warned) {
+        r.ne43Warned = true;
+        this.warn(r, 'ne43', `Loop current ${value.toFixed(3)} mA is outside the NE 43 measurement range (3.8–20.5 mA): ${ne.class}`, null);
+      }
+    } else r.ne43Warned = false;
+    r.lastMa = value;
+    if (!r.hold || (p.state !== 'settling' && p.state !== 'holding')) return;
+    this.mark(r, wallMs);
+    r.hold.pushMa(tMs, value);
+    this.evaluate(r, tMs);
+  }
+
+  private mark(r: Active, wallMs: number): void {
+    if (r.holdStartWall === undefined) r.holdStartWall = wallMs;
+    r.holdEndWall = wallMs;
+  }
+
+  private evaluate(r: Active, tMs: number): void {
+    const p = r.points[r.current!]!;
+    const h = r.hold!.result();
+    const required = r.holdSettings.holdTimeMs!;
+    if (h.leak) {
+      if (!p.flags.includes('leak')) p.flags.push('leak');
+      if (!r.leakWarned) {
+        r.leakWarned = true;
+        this.warn(
+          r,
+          'leak',
+          `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(h.leakRatePctSpanPerMin).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
+          h.leakRatePctSpanPerMin,
+        );
+      }
+    }
+    const enough = h.dp.n >= 5 && h.ma.n >= 5;
+    if (enough && h.reasons.some((x) => BAND_REASONS.includes(x))) {
+      // A disturbance: the hold restarts from here (the leak verdict of the last hold stays on the point).
+      r.hold!.reset();
+      r.holdStartWall = r.holdEndWall = undefined;
+      r.leakWarned = false;
+      this.setState(r, p, 'settling');
+    } else if (h.capturable) {
+      this.capture(r, false, null, null);
+      return;
+    } else this.setState(r, p, h.stable && !h.leak ? 'holding' : 'settling');
+    if (r.settlingSinceMs !== undefined && p.state === 'settling' && tMs - r.settlingSinceMs > (r.s.unstableAfterHolds ?? 4) * required && !p.flags.includes('unstable')) {
+      p.flags.push('unstable');
+      this.warn(r, 'unstable', `Point ${p.plan.index + 1} has not settled: ${h.reasons.filter((x) => x !== 'hold time not reached').join(', ') || 'readings keep moving'}`, null);
+    }
+    if (p.state === 'holding' && tMs - r.lastProgressMs >= (r.s.progressEveryMs ?? 250)) {
+      r.lastProgressMs = tMs;
+      this.emitPoint(r, p, { elapsedMs: h.durationMs, requiredMs: required });
+    }
+  }
+
+  private capture(r: Active, manual: boolean, reason: string | null, by: string | null): PointCapture {
+    const p = r.points[r.current!]!;
+    const h = r.hold!.result();
+    const capture: PointCapture = {
+      appliedDp: h.dp.mean,
+      appliedDpSd: h.dp.sd,
+      measuredMa: h.ma.mean,
+      measuredMaSd: h.ma.sd,
+      n: Math.min(h.dp.n, h.ma.n),
+      startMs: r.holdStartWall ?? 0,
+      endMs: r.holdEndWall ?? 0,
+      leakRatePctSpanPerMin: Number.isFinite(h.leakRatePctSpanPerMin) ? h.leakRatePctSpanPerMin : null,
+      manualReason: reason,
+      capturedBy: by,
+    };
+    if (manual && !p.flags.includes('manual')) p.flags.push('manual');
+    p.capture = capture;
+    p.state = 'captured';
+    this.emitPoint(r, p, null);
+    this.emit('event', { type: 'point.captured', runId: r.s.runId, index: p.plan.index, manual, capture, flags: [...p.flags] });
+    const next = this.nextUncaptured(r.current!);
+    if (next === null) this.finish('complete');
+    else {
+      this.moveTo(next);
+      this.emitRun();
+    }
+    return capture;
+  }
+
+  private nextUncaptured(after: number): number | null {
+    const pts = this.run!.points;
+    for (let k = 1; k <= pts.length; k++) {
+      const i = (after + k + pts.length) % pts.length;
+      if (pts[i]!.state !== 'captured') return i;
+    }
+    return null;
+  }
+
+  private moveTo(index: number): void {
+    const r = this.run!;
+    r.current = index;
+    this.invalidateHold(r);
+    r.tracker = this.newTracker(r.points[index]!.plan);
+    r.overshoots = 0;
+    this.setState(r, r.points[index]!, 'approaching', true);
+  }
+
+  private newTracker(p: PlanPoint): ApproachTracker {
+    return new ApproachTracker({ target: p.targetDp, window: p.window, direction: p.approach });
+  }
+
+  private invalidateHold(r: Active): void {
+    r.hold = undefined;
+    r.holdStartWall = r.holdEndWall = undefined;
+    r.settlingSinceMs = undefined;
+    r.leakWarned = false;
+  }
+
+  private finish(status: 'complete' | 'aborted'): void {
+    const r = this.run!;
+    r.status = status;
+    if (r.current !== null && status === 'aborted') {
+      const p = r.points[r.current]!;
+      if (p.state !== 'captured') this.setState(r, p, 'waiting');
+    }
+    r.current = null;
+    this.invalidateHold(r);
+    this.emitRun();
+  }
+
+  private setState(r: Active, p: EnginePoint, state: PointState, force = false): void {
+    if (p.state === state && !force) return;
+    p.state = state;
+    this.emitPoint(r, p, null);
+  }
+
+  private warn(r: Active, kind: WarningKind, message: string, rate: number | null): void {
+    const index = r.current ?? -1;
+    const p = r.points[index];
+    if (p) p.warning = message;
+    this.emit('event', { type: 'run.warned', runId: r.s.runId, index, kind, message, ratePctSpanPerMin: rate });
+    if (p) this.emitPoint(r, p, null);
+  }
+
+  private emitPoint(r: Active, p: EnginePoint, hold: { elapsedMs: number; requiredMs: number } | null): void {
+    this.emit('event', { type: 'point.changed', runId: r.s.runId, index: p.plan.index, state: p.state, flags: [...p.flags], hold, warning: p.warning });
+  }
+
+  private emitRun(): void {
+    const r = this.run!;
+    this.emit('event', { type: 'run.changed', runId: r.s.runId, status: r.status, currentIndex: r.current });
+  }
+
+  private need(): Active {
+    if (!this.run) throw new EngineRefusal('No run is active on this bench', 404);
+    return this.run;
+  }
+}
+
+function round(x: number): number {
+  return Math.round(x * 1e4) / 1e4;
+}

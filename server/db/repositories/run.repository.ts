@@ -1,0 +1,48 @@
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
+import type { Db } from '../client';
+import { points, runs } from '../schema';
+
+export type RunRow = typeof runs.$inferSelect;
+export type PointRow = typeof points.$inferSelect;
+
+export function runRepository(db: Db) {
+  return {
+    /** Creates a run and its points (all `waiting`) in one transaction. */
+    async create(values: typeof runs.$inferInsert, pointCount: number): Promise<RunRow> {
+      return db.transaction(async (tx) => {
+        const [row] = await tx.insert(runs).values(values).returning();
+        if (pointCount > 0) {
+          await tx.insert(points).values(Array.from({ length: pointCount }, (_, index) => ({ runId: row!.id, index, state: 'waiting', flags: [] })));
+        }
+        return row!;
+      });
+    },
+    async get(id: string): Promise<RunRow | undefined> {
+      const [row] = await db.select().from(runs).where(eq(runs.id, id)).limit(1);
+      return row;
+    },
+    async forJob(jobId: string): Promise<RunRow[]> {
+      return db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(desc(runs.startedAt));
+    },
+    async active(): Promise<RunRow[]> {
+      return db
+        .select()
+        .from(runs)
+        .where(inArray(runs.status, ['running', 'paused']))
+        .orderBy(asc(runs.startedAt));
+    },
+    async points(runId: string): Promise<PointRow[]> {
+      return db.select().from(points).where(eq(points.runId, runId)).orderBy(asc(points.index));
+    },
+    async updatePoint(runId: string, index: number, values: Partial<Pick<PointRow, 'state' | 'flags' | 'capture' | 'reason'>>): Promise<void> {
+      await db
+        .update(points)
+        .set({ ...values, updatedAt: new Date() })
+        .where(and(eq(points.runId, runId), eq(points.index, index)));
+    },
+    async update(id: string, values: Partial<Pick<RunRow, 'status' | 'results' | 'endedAt'>>): Promise<void> {
+      await db.update(runs).set(values).where(eq(runs.id, id));
+    },
+  };
+}
+export type RunRepository = ReturnType<typeof runRepository>;

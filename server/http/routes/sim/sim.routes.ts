@@ -1,0 +1,87 @@
+import { z } from 'zod';
+import type { BenchService } from '../../../services/bench.service';
+import { input, validate } from '../../middleware/validate';
+import { routeTable } from '../../route-table';
+
+const finite = z.number().finite();
+const DeviceFaultsSchema = z
+  .object({
+    unplugged: z.boolean(),
+    garbage: z.boolean(),
+    lateReplyMs: finite.min(0).max(60_000),
+    dropReplies: finite.min(0).max(1),
+    wrongUnit: z.string().max(20).nullable(),
+    overflow: z.boolean(),
+    burstBytes: z.number().int().min(0).max(4096),
+  })
+  .partial()
+  .strict();
+
+const cutoff = z.discriminatedUnion('mode', [
+  z.object({ mode: z.literal('none') }),
+  z.object({ mode: z.literal('clamp'), flowPct: finite.min(0).max(100) }),
+  z.object({ mode: z.literal('linear-below'), breakpointDpPct: finite.positive().max(100) }),
+]);
+
+/** Mirrors SimControl (simulators/sim-rig.ts); the autopilot follows the bench's current run. */
+export const SimBodySchema = z
+  .object({
+    transmitter: z
+      .object({
+        lrv: finite,
+        urv: finite,
+        outputMode: z.enum(['linear', 'sqrt-transmitter', 'sqrt-host']),
+        cutoff,
+        zeroErrorPct: finite.min(-100).max(100),
+        spanErrorPct: finite.min(-100).max(100),
+        nonLinearityPct: finite.min(-100).max(100),
+        hysteresisPct: finite.min(0).max(100),
+        outputNoiseMa: finite.min(0).max(5),
+        failure: z.enum(['none', 'low', 'high']),
+        lowFailureMa: finite.min(0).max(4),
+        highFailureMa: finite.min(20).max(25),
+      })
+      .partial()
+      .strict(),
+    source: z
+      .object({
+        timeConstantS: finite.min(0.001).max(600),
+        noise: finite.min(0),
+        noiseCorrelationS: finite.min(0.001).max(600),
+        overshoot: finite.min(0).max(2),
+        leakPerMin: finite.min(0),
+        isolateBand: finite.positive(),
+      })
+      .partial()
+      .strict(),
+    setpoint: z.object({ value: finite, overshoot: finite.min(0).max(2).optional() }).strict(),
+    faults: z.object({ pressure: DeviceFaultsSchema, current: DeviceFaultsSchema }).partial().strict(),
+    autopilot: z.union([
+      z.literal('stop'),
+      z
+        .object({
+          speed: finite.min(0.1).max(1000),
+          holdSeconds: finite.positive().max(3600),
+          overshoot: z.object({ fraction: finite.positive().max(2), points: z.array(z.number().int().min(0)).optional() }).strict(),
+          leak: z.object({ perMin: finite.positive(), points: z.array(z.number().int().min(0)).optional() }).strict(),
+          keepTransmitter: z.boolean(),
+        })
+        .partial()
+        .strict(),
+    ]),
+  })
+  .partial()
+  .strict();
+
+/** The simulated rig (BENCH=sim only): transmitter errors, noise, leak, overshoot, faults, autopilot. */
+export function simRoutes(bench: BenchService) {
+  const t = routeTable('/api/sim');
+  t.add('get', '/', 'sim.control', (_req, res) => {
+    res.json(bench.simSnapshot());
+  });
+  const body = { body: SimBodySchema };
+  t.add('post', '/', 'sim.control', validate(body), (_req, res) => {
+    res.json(bench.sim(input(res, body).body));
+  });
+  return t;
+}

@@ -1,0 +1,271 @@
+/**
+ * `/ws`: live samples and run events (shared/schemas/stream.ts) on the app's HTTP server.
+ * Authenticated on upgrade from the session cookie, Origin checked, heartbeat, resume by sequence
+ * number (`?since=SEQ`, from the ring buffer or the stored samples), per-client backpressure that
+ * only ever skips samples for display, and client messages `watch` and `lines.forwarded`.
+ */
+import type http from 'node:http';
+import type { Duplex } from 'node:stream';
+import type { Logger } from 'pino';
+import { WebSocketServer, type RawData, type WebSocket } from 'ws';
+import { ClientMessageSchema, type StreamMessage } from '../../shared/schemas/stream';
+import { toStreamMessage, type HubEntry } from '../bench/hub';
+import { allows } from '../http/policy';
+import type { AuthService, SessionUser } from '../services/auth.service';
+import type { BenchService } from '../services/bench.service';
+
+export const SESSION_COOKIE = 'sp_session';
+
+/** Options of {@link attachStreamServer}. */
+export interface StreamServerOptions {
+  server: http.Server;
+  auth: AuthService;
+  bench: BenchService;
+  logger: Logger;
+  /** Origins allowed besides the server's own. */
+  allowedOrigins: string[];
+  /** Ping interval, ms; a client that has not answered the previous ping is dropped. Default 15 000. */
+  heartbeatMs?: number;
+  /** Largest client message, bytes. Default 64 KiB. */
+  maxPayload?: number;
+  /** Above this many buffered bytes a client gets only the latest sample per device. Default 512 KiB. */
+  highWaterBytes?: number;
+  /** Most stored samples replayed on a resume. Default 100 000. */
+  maxReplayFromDb?: number;
+}
+
+interface Client {
+  ws: WebSocket;
+  user: SessionUser;
+  alive: boolean;
+  /** Run filter for run events; null = all. */
+  runId: string | null;
+  /** Live messages held while a resume is being read from the database. */
+  held: StreamMessage[] | undefined;
+  lastSent: number;
+  /** Latest skipped sample per bench/device while over the high-water mark. */
+  skipped: Map<string, StreamMessage>;
+  skippedCount: number;
+}
+
+function parseCookies(header: string | undefined): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const part of (header ?? '').split(';')) {
+    const i = part.indexOf('=');
+    if (i < 0) continue;
+    const k = part.slice(0, i).trim();
+    try {
+      out[k] = decodeURIComponent(part.slice(i + 1).trim());
+    } catch {
+      out[k] = part.slice(i + 1).trim();
+    }
+  }
+  return out;
+}
+
+function refuse(socket: Duplex, status: number, text: string, message: string): void {
+  const body = JSON.stringify({ error: { code: status === 401 ? 'unauthenticated' : status === 403 ? 'cross_site' : 'bad_request', message } });
+  socket.end(`HTTP/1.1 ${status} ${text}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: ${Buffer.byteLength(body)}\r\n\r\n${body}`);
+}
+
+const RUN_EVENTS = new Set(['point.changed', 'run.warned', 'point.captured', 'run.changed']);
+
+export function attachStreamServer(o: StreamServerOptions) {
+  const heartbeatMs = o.heartbeatMs ?? 15_000;
+  const highWater = o.highWaterBytes ?? 512 * 1024;
+  const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
+  const clients = new Set<Client>();
+  const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0 };
+
+  const send = (c: Client, m: StreamMessage): void => {
+    if (c.ws.readyState !== c.ws.OPEN) return;
+    c.ws.send(JSON.stringify(m));
+    if (m.seq > c.lastSent) c.lastSent = m.seq;
+  };
+
+  /** Sends a live message, or keeps only the latest sample for display while the client is behind. */
+  const deliver = (c: Client, m: StreamMessage): void => {
+    if (c.held) {
+      c.held.push(m);
+      return;
+    }
+    if (m.seq <= c.lastSent) return;
+    if (RUN_EVENTS.has(m.type) && c.runId && 'runId' in m && m.runId !== c.runId) return;
+    if (m.type === 'sample.received' && c.ws.bufferedAmount > highWater) {
+      c.skipped.set(`${m.benchId}/${m.device}`, m);
+      c.skippedCount++;
+      stats.skippedSamples++;
+      return;
+    }
+    if (c.skipped.size && c.ws.bufferedAmount <= highWater / 2) {
+      const latest = [...c.skipped.values()].sort((a, b) => a.seq - b.seq);
+      c.skipped.clear();
+      for (const s of latest) send(c, s);
+    }
+    send(c, m);
+  };
+
+  const unsubscribe = o.bench.subscribe('stream', (batch: HubEntry[]) => {
+    if (!clients.size) return;
+    const msgs = batch.map(toStreamMessage);
+    for (const c of clients) for (const m of msgs) deliver(c, m);
+  });
+
+  const onUpgrade = (req: http.IncomingMessage, socket: Duplex, head: Buffer): void => {
+    const url = new URL(req.url ?? '/', 'http://localhost');
+    if (url.pathname !== '/ws') {
+      socket.destroy();
+      return;
+    }
+    socket.on('error', () => {});
+    void (async () => {
+      const origin = req.headers.origin;
+      if (origin) {
+        const own = [`http://${req.headers.host}`, `https://${req.headers.host}`];
+        if (!own.includes(origin) && !o.allowedOrigins.includes(origin)) {
+          stats.refused++;
+          refuse(socket, 403, 'Forbidden', 'Connection refused: it came from another site');
+          return;
+        }
+      }
+      const token = parseCookies(req.headers.cookie)[SESSION_COOKIE];
+      let user: SessionUser | undefined;
+      if (token) {
+        try {
+          user = await o.auth.verify(token);
+        } catch {
+          user = undefined;
+        }
+      }
+      if (!user) {
+        stats.refused++;
+        refuse(socket, 401, 'Unauthorized', 'Sign in first');
+        return;
+      }
+      if (!allows('stream.subscribe', user.role)) {
+        stats.refused++;
+        refuse(socket, 403, 'Forbidden', 'Your role does not allow this');
+        return;
+      }
+      const sinceRaw = url.searchParams.get('since');
+      const since = sinceRaw !== null && /^\d+$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
+      const signedIn = user;
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, signedIn, since));
+    })();
+  };
+
+  function open(ws: WebSocket, user: SessionUser, since: number | undefined): void {
+    const hub = o.bench.hub;
+    const c: Client = { ws, user, alive: true, runId: null, held: undefined, lastSent: 0, skipped: new Map(), skippedCount: 0 };
+    clients.add(c);
+    stats.connected++;
+    ws.on('pong', () => {
+      c.alive = true;
+    });
+    ws.on('close', () => clients.delete(c));
+    ws.on('error', () => clients.delete(c));
+    ws.on('message', (data: RawData, isBinary: boolean) => onMessage(c, data, isBinary));
+    const latest = hub.latestSeq;
+    if (since === undefined || since >= latest) {
+      send(c, { type: 'stream.opened', seq: since ?? latest, latestSeq: latest, heartbeatMs });
+      c.lastSent = since ?? latest;
+      return;
+    }
+    send(c, { type: 'stream.opened', seq: since, latestSeq: latest, heartbeatMs });
+    c.lastSent = since;
+    // Everything live from here on is after `latest`: the replay covers (since, latest], in order.
+    const fromRing = hub.ring.since(since);
+    if (fromRing) {
+      for (const e of fromRing) send(c, toStreamMessage(e));
+      return;
+    }
+    c.held = [];
+    void (async () => {
+      try {
+        const oldest = hub.ring.oldestSeq ?? latest + 1;
+        const limit = o.maxReplayFromDb ?? 100_000;
+        const rows = await o.bench.samplesAfter(since, limit);
+        const stored = rows.filter((r) => Number(r.seq) < oldest);
+        const ring = hub.ring.since(oldest - 1);
+        const complete = rows.length < limit || Number(rows[rows.length - 1]!.seq) >= oldest - 1;
+        if (!ring || !complete) {
+          send(c, { type: 'stream.resynced', seq: hub.latestSeq, fromSeq: since });
+          c.lastSent = hub.latestSeq;
+        } else {
+          for (const r of stored) {
+            send(c, {
+              type: 'sample.received',
+              seq: Number(r.seq),
+              benchId: r.benchId,
+              device: r.device as 'pressure' | 'current',
+              value: r.value,
+              unit: r.unit,
+              raw: r.raw,
+              wallMs: r.wallMs,
+              runId: r.runId,
+            });
+          }
+          for (const e of ring) send(c, toStreamMessage(e));
+        }
+      } catch (err) {
+        o.logger.warn({ err }, 'stream resume from storage failed');
+        send(c, { type: 'stream.resynced', seq: hub.latestSeq, fromSeq: since });
+        c.lastSent = hub.latestSeq;
+      }
+      const held = c.held ?? [];
+      c.held = undefined;
+      for (const m of held) deliver(c, m);
+    })();
+  }
+
+  function onMessage(c: Client, data: RawData, isBinary: boolean): void {
+    if (isBinary) return;
+    let parsed;
+    try {
+      parsed = ClientMessageSchema.safeParse(JSON.parse(String(data)));
+    } catch {
+      return;
+    }
+    if (!parsed.success) return;
+    const m = parsed.data;
+    if (m.type === 'watch') {
+      c.runId = m.runId;
+      return;
+    }
+    // Forwarded instrument lines feed the hub like a port: only roles that perform calibrations may do it.
+    if (!allows('jobs.perform', c.user.role)) return;
+    stats.forwardedLines += m.lines.length;
+    o.bench.ingestForwarded(m);
+  }
+
+  const beat = setInterval(() => {
+    for (const c of clients) {
+      if (!c.alive) {
+        c.ws.terminate();
+        clients.delete(c);
+        continue;
+      }
+      c.alive = false;
+      c.ws.ping();
+    }
+  }, heartbeatMs);
+  beat.unref();
+
+  o.server.on('upgrade', onUpgrade);
+
+  return {
+    stats: () => ({ ...stats, clients: clients.size }),
+    /** Closes every client (1001 going away) and stops listening for upgrades. */
+    async close(): Promise<void> {
+      clearInterval(beat);
+      o.server.off('upgrade', onUpgrade);
+      unsubscribe();
+      for (const c of clients) c.ws.close(1001, 'server shutting down');
+      await new Promise((r) => setTimeout(r, 50));
+      for (const c of clients) c.ws.terminate();
+      clients.clear();
+      await new Promise<void>((resolve) => wss.close(() => resolve()));
+    },
+  };
+}
+export type StreamServer = ReturnType<typeof attachStreamServer>;
