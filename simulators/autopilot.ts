@@ -39,6 +39,8 @@ export interface AutopilotState {
   phaseStartS: number;
   /** Setpoint last requested, rig unit; `undefined` before the first request. */
   requested: number | undefined;
+  /** Index of a point the bench has captured: the dwell there ends at once (see {@link releasePoint}). */
+  released?: number;
 }
 
 /** What the rig should do after a step. */
@@ -100,12 +102,19 @@ export function stepAutopilot(
       }
       return { state, command: undefined };
     case 'dwell': {
-      if (nowS - state.phaseStartS < (plan.holdSeconds ?? 30) / speed) return { state, command: undefined };
+      // Like a technician watching the screen: move on once the point is captured, or after the longest dwell.
+      const captured = state.released === state.index;
+      if (!captured && nowS - state.phaseStartS < (plan.holdSeconds ?? 30) / speed) return { state, command: undefined };
       const index = state.index + 1;
       const phase: AutopilotPhase = index >= plan.points.length ? 'done' : 'pre-position';
       return { state: { ...state, index, phase, phaseStartS: nowS }, command: { leakPerMin: 0 } };
     }
   }
+}
+
+/** Marks point `index` as captured, so the dwell there ends at the next step. */
+export function releasePoint(state: AutopilotState, index: number): AutopilotState {
+  return { ...state, released: index };
 }
 
 function approach(

@@ -8,7 +8,7 @@ import { ScpiMeterEmulator } from './scpi-meter-emulator';
 import { createSimBinding, type SimBinding } from './sim-binding';
 import type { DeviceFaults } from './line-device';
 import { seededRng, type Rng } from './random';
-import { defaultMargin, startAutopilot, stepAutopilot, type AutopilotPlan, type AutopilotState } from './autopilot';
+import { defaultMargin, releasePoint, startAutopilot, stepAutopilot, type AutopilotPlan, type AutopilotState } from './autopilot';
 import {
   appliedPressure,
   DEFAULT_SOURCE,
@@ -183,6 +183,11 @@ export class SimRig {
     this.plan = { ...plan, approachMargin: margin };
     this.pilot = startAutopilot(this.lastMs / 1000);
     this.pilotStep();
+  }
+
+  /** Tells the autopilot that point `index` was captured, so it moves on without waiting out its dwell. */
+  releaseAutopilotPoint(index: number): void {
+    if (this.pilot) this.pilot = releasePoint(this.pilot, index);
   }
 
   private stopAutopilot(): void {

@@ -78,12 +78,22 @@ interface Active {
   lastProgressMs: number;
   overshoots: number;
   leakWarned: boolean;
+  /** DP slope (% of span/min) of the last settling window that was restarted for drifting; undefined after a clean window. */
+  windowSlope: number | undefined;
   ne43Warned: boolean;
   unitWarned: boolean;
   lastMa: number | undefined;
 }
 
 const BAND_REASONS = ['applied DP outside the stability band', 'current outside the stability band'];
+
+/**
+ * A settling approach slows down from one window to the next (a first-order tail falls by
+ * e^(−W/τ) per window); a leak keeps its rate with the source isolated. Two consecutive windows
+ * that both exceed the leak limit, in the same direction, the second at least this fraction of the
+ * first, are called a leak. Product choice, not a published value.
+ */
+const LEAK_PERSISTENCE = 0.5;
 
 export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   readonly benchId: string;
@@ -143,6 +153,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       lastProgressMs: 0,
       overshoots: 0,
       leakWarned: false,
+      windowSlope: undefined,
       ne43Warned: false,
       unitWarned: false,
       lastMa: undefined,
@@ -304,28 +315,34 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     const p = r.points[r.current!]!;
     const h = r.hold!.result();
     const required = r.holdSettings.holdTimeMs!;
-    if (h.leak) {
-      if (!p.flags.includes('leak')) p.flags.push('leak');
-      if (!r.leakWarned) {
-        r.leakWarned = true;
-        this.warn(
-          r,
-          'leak',
-          `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(h.leakRatePctSpanPerMin).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
-          h.leakRatePctSpanPerMin,
-        );
-      }
-    }
     const enough = h.dp.n >= 5 && h.ma.n >= 5;
+    const windowLongEnough = h.durationMs >= r.holdSettings.leakMinDurationMs!;
     if (enough && h.reasons.some((x) => BAND_REASONS.includes(x))) {
       // A disturbance: the hold restarts from here (the leak verdict of the last hold stays on the point).
-      r.hold!.reset();
-      r.holdStartWall = r.holdEndWall = undefined;
-      r.leakWarned = false;
+      this.restartWindow(r, windowLongEnough ? h.leakRatePctSpanPerMin : undefined);
       this.setState(r, p, 'settling');
     } else if (h.capturable) {
       this.capture(r, false, null, null);
       return;
+    } else if (enough && windowLongEnough && (h.leak || !h.stable)) {
+      // The window is not clean: the approach is still settling, or the tubing leaks. The window
+      // slides on from here, so the approach before the source was isolated is not held against it.
+      const slope = h.leakRatePctSpanPerMin;
+      const prev = r.windowSlope;
+      if (h.leak && prev !== undefined && Math.sign(prev) === Math.sign(slope) && Math.abs(slope) >= LEAK_PERSISTENCE * Math.abs(prev)) {
+        if (!p.flags.includes('leak')) p.flags.push('leak');
+        if (!r.leakWarned) {
+          r.leakWarned = true;
+          this.warn(
+            r,
+            'leak',
+            `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(slope).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
+            slope,
+          );
+        }
+      }
+      this.restartWindow(r, slope);
+      this.setState(r, p, 'settling');
     } else this.setState(r, p, h.stable && !h.leak ? 'holding' : 'settling');
     if (r.settlingSinceMs !== undefined && p.state === 'settling' && tMs - r.settlingSinceMs > (r.s.unstableAfterHolds ?? 4) * required && !p.flags.includes('unstable')) {
       p.flags.push('unstable');
@@ -388,11 +405,19 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     return new ApproachTracker({ target: p.targetDp, window: p.window, direction: p.approach });
   }
 
+  /** Starts a new hold window from the next sample, remembering the slope of the one that ended. */
+  private restartWindow(r: Active, slopePctSpanPerMin: number | undefined): void {
+    r.hold!.reset();
+    r.holdStartWall = r.holdEndWall = undefined;
+    r.windowSlope = slopePctSpanPerMin;
+  }
+
   private invalidateHold(r: Active): void {
     r.hold = undefined;
     r.holdStartWall = r.holdEndWall = undefined;
     r.settlingSinceMs = undefined;
     r.leakWarned = false;
+    r.windowSlope = undefined;
   }
 
   private finish(status: 'complete' | 'aborted'): void {

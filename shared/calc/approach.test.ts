@@ -20,6 +20,13 @@ describe('approach tracker (approach direction: common practice, REFERENCE.md)',
     expect(t.push(1, 25.3).approachSeen).toBe(true);
     expect(t.push(2, 24.4).state).toBe('overshoot');
   });
+  it('starting on the far side asks for a back-off but counts no overshoot', () => {
+    const t = new ApproachTracker({ target: 1, window: 0.5, direction: 'up' });
+    expect(t.push(0, 60)).toMatchObject({ state: 'overshoot', overshoots: 0 });
+    expect(t.push(1, 1.2)).toMatchObject({ state: 'overshoot', overshoots: 0 }); // passing down through: still the wrong side
+    expect(t.push(2, 0)).toMatchObject({ state: 'approaching', overshoots: 0 });
+    expect(t.push(3, 0.9)).toMatchObject({ state: 'in-window', approachSeen: true, overshoots: 0 });
+  });
   it('starting inside the window is in-window without a seen approach', () => {
     expect(trackApproach({ target: 0, window: 0.5, direction: 'up' }, [{ tMs: 0, value: 0.1 }])).toMatchObject({ state: 'in-window', approachSeen: false });
   });

@@ -64,8 +64,9 @@ export class ApproachTracker {
           this.state = 'in-window';
           this.enteredAtMs = tMs;
         } else {
+          // Starting on the far side is not an overshoot (nothing was approached yet), but the
+          // point must still be approached from the correct side: back off past it first.
           this.state = 'overshoot';
-          this.overshoots++;
         }
         break;
       case 'approaching':
