@@ -97,6 +97,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       e.on('event', (ev) => {
         hub.publish(toMessage(ev));
         if (ev.type === 'run.changed') hub.setRun(id, ev.status === 'running' || ev.status === 'paused' ? ev.runId : null);
+        if (ev.type === 'point.captured' && id === benchId) rig?.releaseAutopilotPoint(ev.index);
         for (const l of engineListeners) l(ev);
       });
       hub.subscribe(`capture-engine:${id}`, e.consume);
@@ -234,8 +235,9 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
           };
         }
         const speed = autopilot.speed ?? 1;
-        // Dwell long enough in real time for the engine's hold (which is not sped up) plus settling.
-        const dwellS = autopilot.holdSeconds ?? ctx.holdSeconds * 2 + 2;
+        // The autopilot moves on when the engine captures the point; this is only the longest it waits
+        // (in real time: the engine's hold is not sped up), so a point that cannot be captured is left.
+        const dwellS = autopilot.holdSeconds ?? ctx.holdSeconds * 4 + 10;
         const plan: AutopilotPlan = {
           points: ctx.points.map((p) => ({ targetDp: toRig(p.targetDp), direction: p.approach })),
           holdSeconds: dwellS * speed,
