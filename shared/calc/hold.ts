@@ -153,6 +153,12 @@ export interface HoldResult {
   reasons: string[];
 }
 
+/**
+ * Standard errors by which a fitted slope must exceed a slope or leak limit before it counts:
+ * 2 (about 95 % one-sided for a normal estimate). Product choice, not a published value.
+ */
+export const SLOPE_SIGNIFICANCE = 2;
+
 /** Two-channel hold analyser (applied DP and mA), fed one sample at a time. */
 export class HoldAnalyzer {
   readonly dp = new ChannelAccumulator();
@@ -182,6 +188,9 @@ export class HoldAnalyzer {
 
   /** Verdict from the samples so far. */
   result(): HoldResult {
+    // A slope counts against a limit only where it exceeds it by more than SLOPE_SIGNIFICANCE
+    // standard errors, so that noise over a short hold is not read as drift or a leak.
+    const beyond = (slope: number, se: number, limit: number) => Math.abs(slope) - SLOPE_SIGNIFICANCE * (Number.isFinite(se) ? se : 0) > limit;
     const s = this.s;
     const dp = this.dp.stats();
     const ma = this.ma.stats();
@@ -193,11 +202,11 @@ export class HoldAnalyzer {
     const maSlopeLimit = (s.slopeLimitPctSpanPerMin / 100) * 16;
     if (dp.band > dpBand) reasons.push('applied DP outside the stability band');
     if (ma.band > s.maBandMa) reasons.push('current outside the stability band');
-    if (Math.abs(dp.slopePerMin) > dpSlopeLimit) reasons.push('applied DP drifting');
-    if (Math.abs(ma.slopePerMin) > maSlopeLimit) reasons.push('current drifting');
+    if (beyond(dp.slopePerMin, dp.slopeSePerMin, dpSlopeLimit)) reasons.push('applied DP drifting');
+    if (beyond(ma.slopePerMin, ma.slopeSePerMin, maSlopeLimit)) reasons.push('current drifting');
     const stable = reasons.length === 0;
     const leakLimit = s.leakLimitUnitPerMin ?? (s.leakLimitPctSpanPerMin / 100) * s.dpSpan;
-    const leak = dp.n >= s.minSamples && dp.durationMs >= s.leakMinDurationMs && Math.abs(dp.slopePerMin) > leakLimit;
+    const leak = dp.n >= s.minSamples && dp.durationMs >= s.leakMinDurationMs && beyond(dp.slopePerMin, dp.slopeSePerMin, leakLimit);
     if (leak) reasons.push('leak');
     const durationMs = Math.min(dp.durationMs, ma.durationMs);
     const holdComplete = durationMs >= s.holdTimeMs;
