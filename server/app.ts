@@ -13,7 +13,9 @@ import { auditRoutes } from './http/routes/audit/audit.routes';
 import { authRoutes } from './http/routes/auth/auth.routes';
 import { calcRoutes } from './http/routes/calc/calc.routes';
 import { jobRoutes } from './http/routes/jobs/jobs.routes';
+import { queueRoutes, recordsRoutes } from './http/routes/records/records.routes';
 import { instrumentRoutes, standardRoutes } from './http/routes/registers/registers.routes';
+import { reviewRoutes, reviewTraceRoutes } from './http/routes/review/review.routes';
 import { userRoutes } from './http/routes/users/users.routes';
 import type { Services } from './services';
 
@@ -60,9 +62,13 @@ export function createApp(deps: AppDeps) {
   const tables: RouteTable[] = [
     authRoutes(deps.services.auth),
     userRoutes(deps.services.users),
-    instrumentRoutes(deps.services.registers),
-    standardRoutes(deps.services.registers),
+    instrumentRoutes(deps.services.registers, { csv: deps.services.csv, drift: deps.services.drift }),
+    standardRoutes(deps.services.registers, { csv: deps.services.csv }),
     jobRoutes(deps.services.jobs),
+    reviewRoutes(deps.services.review),
+    reviewTraceRoutes(deps.services.review),
+    recordsRoutes(deps.services.review),
+    queueRoutes(deps.services.drift),
     auditRoutes(deps.services.audit),
     calcRoutes(),
     ...(deps.extraRoutes ?? []),

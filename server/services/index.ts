@@ -1,19 +1,33 @@
 import type { Database } from '../db/client';
 import { createAuditService } from './audit.service';
 import { createAuthService } from './auth.service';
+import { createCsvService } from './csv.service';
+import { createDriftService } from './drift.service';
 import { createJobService } from './job.service';
 import { createRegisterService } from './register.service';
+import { createReviewService, type ReviewNotice } from './review.service';
 import { createUserService } from './user.service';
 
 /** Builds every service over one database; the composition root and tests share this. */
-export function createServices(database: Database, secret: Uint8Array) {
+export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}) {
   const audit = createAuditService(database.db);
+  const auth = createAuthService(database.db, secret, audit);
+  const registers = createRegisterService(database.db, audit);
+  const jobs = createJobService(database.db, audit);
   return {
     audit,
-    auth: createAuthService(database.db, secret, audit),
+    auth,
     users: createUserService(database.db, audit),
-    registers: createRegisterService(database.db, audit),
-    jobs: createJobService(database.db, audit),
+    registers,
+    jobs,
+    review: createReviewService(database.db, { audit, auth, jobs, registers, notify: (n) => hooks.onReview?.(n) }),
+    csv: createCsvService(database.db, audit),
+    drift: createDriftService(database.db, audit, jobs),
   };
+}
+
+/** Late-bound listeners (mail), set by the composition root after the services exist. */
+export interface ServiceHooks {
+  onReview?: (notice: ReviewNotice) => void | Promise<void>;
 }
 export type Services = ReturnType<typeof createServices>;

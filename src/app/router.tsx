@@ -24,6 +24,16 @@ export function createRoutes(queryClient: QueryClient): RouteObject[] {
       loader: login.createLoader(queryClient),
     },
     {
+      // The capture screen runs outside the shell: the whole screen for the bench.
+      path: '/runs/:id',
+      HydrateFallback: appLayout.HydrateFallback,
+      // Loaded on demand: the charting code stays out of the first bundle.
+      lazy: async () => {
+        const m = await import('./routes/run');
+        return { Component: m.Component, ErrorBoundary: m.ErrorBoundary, loader: m.createLoader(queryClient) };
+      },
+    },
+    {
       id: 'app',
       path: '/',
       Component: appLayout.Component,
@@ -33,6 +43,27 @@ export function createRoutes(queryClient: QueryClient): RouteObject[] {
       children: [
         { index: true, loader: () => redirect('/queue'), Component: () => <Navigate to="/queue" replace /> },
         { path: 'queue', Component: queue.Component, ErrorBoundary: queue.ErrorBoundary, loader: queue.createLoader(queryClient) },
+        {
+          path: 'jobs/:id',
+          lazy: async () => {
+            const m = await import('./routes/job');
+            return { Component: m.Component, ErrorBoundary: m.ErrorBoundary, loader: m.createLoader(queryClient) };
+          },
+        },
+        {
+          path: 'jobs/:id/review',
+          lazy: async () => {
+            const m = await import('./routes/review');
+            return { Component: m.Component, ErrorBoundary: m.ErrorBoundary, loader: m.createLoader(queryClient) };
+          },
+        },
+        {
+          path: 'instruments/:id/drift',
+          lazy: async () => {
+            const m = await import('./routes/drift');
+            return { Component: m.Component, ErrorBoundary: m.ErrorBoundary, loader: m.createLoader(queryClient) };
+          },
+        },
         {
           path: 'instruments',
           Component: instruments.Component,
@@ -45,8 +76,8 @@ export function createRoutes(queryClient: QueryClient): RouteObject[] {
           ErrorBoundary: standards.ErrorBoundary,
           loader: standards.createLoader(queryClient),
         },
-        { path: 'bench', Component: bench.Component, ErrorBoundary: bench.ErrorBoundary },
-        { path: 'records', Component: records.Component, ErrorBoundary: records.ErrorBoundary },
+        { path: 'bench', Component: bench.Component, ErrorBoundary: bench.ErrorBoundary, loader: bench.createLoader(queryClient) },
+        { path: 'records', Component: records.Component, ErrorBoundary: records.ErrorBoundary, loader: records.createLoader(queryClient) },
         { path: 'audit', Component: audit.Component, ErrorBoundary: audit.ErrorBoundary, loader: audit.createLoader(queryClient) },
         { path: 'users', Component: users.Component, ErrorBoundary: users.ErrorBoundary, loader: users.createLoader(queryClient) },
         { path: 'outbox', Component: outbox.Component, ErrorBoundary: outbox.ErrorBoundary, loader: outbox.createLoader(queryClient) },

@@ -1,3 +1,4 @@
 export * from './users';
 export * from './registers';
 export * from './runs';
+export * from './records';

@@ -3,6 +3,9 @@ import { ErrorNotice } from '../../components/ui/error-notice';
 import { PageHeader } from '../../components/ui/page-header';
 import { useMe } from '../../features/auth/api/get-me';
 import { jobsQueryOptions, useJobs } from '../../features/queue/api/get-jobs';
+import { useQueue } from '../../features/queue/api/get-queue';
+import { LeadJobActions } from '../../features/queue/components/job-actions';
+import { NeedsJobList } from '../../features/queue/components/needs-job-list';
 import { JobList, QueueEmpty, sortJobs, splitQueue } from '../../features/queue/components/job-list';
 import { daysUntil } from '../../lib/format';
 import { RouteErrorBoundary } from './route-error';
@@ -14,10 +17,19 @@ export const createLoader = (queryClient: QueryClient) => () => {
   return null;
 };
 
+/** Instruments due within this many days without a job show as needing one. */
+const WITHIN_DAYS = 30;
+
 export function Component() {
   const me = useMe().data;
   const jobs = useJobs();
-  const items = jobs.data ?? [];
+  // What falls due without a job, and who can be assigned: for the people who plan the work.
+  const planner = me?.role === 'lead' || me?.role === 'admin';
+  const queue = useQueue(WITHIN_DAYS, planner);
+  const items = (jobs.data ?? []).filter((j) => j.status !== 'approved');
+  const needs = queue.data?.needsJob ?? [];
+  const technicians = queue.data?.technicians ?? [];
+  const isLead = me?.role === 'lead';
   const overdue = items.filter((j) => j.overdue).length;
   const dueSoon = items.filter((j) => !j.overdue && daysUntil(j.dueOn) <= 14).length;
   const mine = me ? items.filter((j) => j.assigneeId === me.id).length : 0;
@@ -29,7 +41,7 @@ export function Component() {
         <ListSkeleton />
       ) : jobs.isError ? (
         <ErrorNotice title="Could not load the queue" error={jobs.error} onRetry={() => void jobs.refetch()} />
-      ) : items.length === 0 ? (
+      ) : items.length === 0 && needs.length === 0 ? (
         <QueueEmpty />
       ) : (
         <div className="flex flex-col gap-8">
@@ -37,7 +49,7 @@ export function Component() {
             <Stat label="Jobs" value={items.length} />
             <Stat label="Overdue" value={overdue} tone={overdue ? 'danger' : undefined} />
             <Stat label="Due within 14 days" value={dueSoon} tone={dueSoon ? 'warn' : undefined} />
-            <Stat label="Assigned to me" value={mine} />
+            <Stat label={me?.role === 'technician' ? 'Assigned to me' : 'Need a job'} value={me?.role === 'technician' ? mine : needs.length} tone={me?.role !== 'technician' && needs.length ? 'warn' : undefined} />
           </dl>
           {me?.role === 'technician' ? (
             <TechnicianQueue jobs={items} userId={me.id} />
@@ -46,7 +58,15 @@ export function Component() {
               <h2 id="all-jobs" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
                 All jobs
               </h2>
-              <JobList jobs={sortJobs(items)} label="All jobs" />
+              <JobList jobs={sortJobs(items)} label="All jobs" actions={isLead ? (j) => <LeadJobActions job={j} technicians={technicians} /> : undefined} />
+            </section>
+          )}
+          {planner && (
+            <section aria-labelledby="needs-job">
+              <h2 id="needs-job" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+                Due within {WITHIN_DAYS} days, no job yet
+              </h2>
+              <NeedsJobList items={needs} technicians={technicians} canPlan={isLead} />
             </section>
           )}
         </div>

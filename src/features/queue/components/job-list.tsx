@@ -1,3 +1,5 @@
+import type { ReactNode } from 'react';
+import { Link } from 'react-router';
 import type { Job, JobStatus } from '../../../../shared/schemas/jobs';
 import { Badge, type BadgeTone } from '../../../components/ui/badge';
 import { EmptyState } from '../../../components/ui/empty-state';
@@ -31,9 +33,11 @@ export interface JobListProps {
   emptyText?: string;
   /** Hide the assignee (e.g. in the caller's own list). */
   hideAssignee?: boolean;
+  /** Extra controls per job (assign, review), shown before the status. */
+  actions?: (job: Job) => ReactNode;
 }
 
-export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideAssignee = false }: JobListProps) {
+export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideAssignee = false, actions }: JobListProps) {
   if (jobs.length === 0) return <p className="rounded-card border border-dashed border-line px-4 py-6 text-center text-sm text-ink-muted">{emptyText}</p>;
   return (
     <ul aria-label={label} className="divide-y divide-line overflow-hidden rounded-card border border-line bg-surface shadow-card">
@@ -42,7 +46,9 @@ export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideA
         const st = STATUS[j.status];
         return (
           <li key={j.id} className={cn('grid grid-cols-[minmax(7rem,10rem)_1fr_auto] items-center gap-4 px-4 py-3', j.overdue && 'border-l-4 border-l-danger pl-3')}>
-            <div className="num text-base font-semibold text-ink">{j.tag}</div>
+            <Link to={`/jobs/${j.id}`} className="num text-base font-semibold text-accent underline-offset-2 hover:underline" data-testid={`job-link-${j.tag}`}>
+              {j.tag}
+            </Link>
             <div className="flex min-w-0 flex-wrap items-center gap-x-4 gap-y-1 text-sm">
               <span className="text-ink-muted">
                 Due <span className="num text-ink">{j.dueOn}</span>{' '}
@@ -53,9 +59,12 @@ export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideA
                 <span className="text-ink-muted">{j.assigneeName ? <>Assigned to {j.assigneeName}</> : <span className="italic">Unassigned</span>}</span>
               )}
             </div>
-            <Badge tone={st.tone} dot>
-              {st.label}
-            </Badge>
+            <div className="flex items-center gap-3">
+              {actions?.(j)}
+              <Badge tone={st.tone} dot>
+                {st.label}
+              </Badge>
+            </div>
           </li>
         );
       })}

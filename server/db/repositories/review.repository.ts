@@ -1,0 +1,237 @@
+import { and, asc, desc, eq, inArray, or, sql, ilike, type SQL } from 'drizzle-orm';
+import type { Db } from '../client';
+import { instruments, jobRevisions, jobs, points, runs, samples, signatures, standards, users } from '../schema';
+
+export type SignatureRow = typeof signatures.$inferSelect;
+export type SignatureInsert = typeof signatures.$inferInsert;
+export type RevisionRow = typeof jobRevisions.$inferSelect;
+export type RunRow = typeof runs.$inferSelect;
+export type PointRow = typeof points.$inferSelect;
+export type RunWithPoints = RunRow & { points: PointRow[] };
+type JobBase = typeof jobs.$inferSelect;
+export type RecordRow = JobBase & { tag: string; assigneeName: string | null };
+
+/** Signatures, revisions, the runs of a job with their points, and the record lists. */
+export function reviewRepository(db: Db) {
+  const self = {
+    async runsWithPoints(jobId: string): Promise<RunWithPoints[]> {
+      const rs = await db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(asc(runs.startedAt));
+      if (!rs.length) return [];
+      const ps = await db
+        .select()
+        .from(points)
+        .where(
+          inArray(
+            points.runId,
+            rs.map((r) => r.id),
+          ),
+        )
+        .orderBy(asc(points.index));
+      return rs.map((r) => ({ ...r, points: ps.filter((p) => p.runId === r.id) }));
+    },
+
+    async signatures(jobId: string): Promise<SignatureRow[]> {
+      return db.select().from(signatures).where(eq(signatures.jobId, jobId)).orderBy(asc(signatures.signedAt));
+    },
+
+    async revisions(jobId: string): Promise<RevisionRow[]> {
+      return db.select().from(jobRevisions).where(eq(jobRevisions.jobId, jobId)).orderBy(asc(jobRevisions.revision));
+    },
+
+    async revision(jobId: string, revision: number): Promise<RevisionRow | undefined> {
+      const [row] = await db
+        .select()
+        .from(jobRevisions)
+        .where(and(eq(jobRevisions.jobId, jobId), eq(jobRevisions.revision, revision)))
+        .limit(1);
+      return row;
+    },
+
+    async userName(id: string): Promise<string | undefined> {
+      const [row] = await db.select({ name: users.name }).from(users).where(eq(users.id, id)).limit(1);
+      return row?.name;
+    },
+
+    /**
+     * Signs the job in one transaction: the signature row, the job's new status (only if it is still
+     * `expectStatus` at the same revision, so two leads cannot both sign), and, on approval, the
+     * instrument's last calibration date. Returns undefined when the job moved on meanwhile.
+     */
+    async sign(
+      sig: Omit<SignatureInsert, 'id'>,
+      change: { status: 'approved' | 'returned'; expectStatus: 'submitted'; instrumentId: string; calibratedOn: string | null },
+    ): Promise<{ signature: SignatureRow; previousCalibratedOn: string | null } | undefined> {
+      return db.transaction(async (tx) => {
+        const [moved] = await tx
+          .update(jobs)
+          .set({ status: change.status, updatedAt: new Date() })
+          .where(and(eq(jobs.id, sig.jobId), eq(jobs.status, change.expectStatus), eq(jobs.revision, sig.revision)))
+          .returning({ id: jobs.id });
+        if (!moved) return undefined;
+        const [signature] = await tx.insert(signatures).values(sig).returning();
+        const [inst] = await tx.select({ last: instruments.lastCalibratedOn }).from(instruments).where(eq(instruments.id, change.instrumentId));
+        if (change.calibratedOn) {
+          await tx.update(instruments).set({ lastCalibratedOn: change.calibratedOn, updatedAt: new Date() }).where(eq(instruments.id, change.instrumentId));
+        }
+        return { signature: signature!, previousCalibratedOn: inst?.last ?? null };
+      });
+    },
+
+    /** Keeps the approved revision's snapshot and reopens the job at revision + 1, atomically. */
+    async openRevision(values: Omit<typeof jobRevisions.$inferInsert, 'id' | 'createdAt'>): Promise<RevisionRow | undefined> {
+      return db.transaction(async (tx) => {
+        const [moved] = await tx
+          .update(jobs)
+          .set({ status: 'in-progress', revision: values.revision + 1, updatedAt: new Date() })
+          .where(and(eq(jobs.id, values.jobId), eq(jobs.status, 'approved'), eq(jobs.revision, values.revision)))
+          .returning({ id: jobs.id });
+        if (!moved) return undefined;
+        const [row] = await tx.insert(jobRevisions).values(values).returning();
+        return row;
+      });
+    },
+
+    /** Submitted and approved jobs (and any with revisions), newest first. */
+    async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string }): Promise<RecordRow[]> {
+      const where: SQL[] = [];
+      if (opts.status === 'all') where.push(or(inArray(jobs.status, ['submitted', 'approved']), sql`${jobs.revision} > 1`)!);
+      else where.push(eq(jobs.status, opts.status));
+      if (opts.q) where.push(or(ilike(instruments.tag, `%${opts.q}%`), ilike(instruments.service, `%${opts.q}%`))!);
+      const rows = await db
+        .select({ job: jobs, tag: instruments.tag, assigneeName: users.name })
+        .from(jobs)
+        .innerJoin(instruments, eq(instruments.id, jobs.instrumentId))
+        .leftJoin(users, eq(users.id, jobs.assigneeId))
+        .where(and(...where))
+        .orderBy(desc(jobs.updatedAt))
+        .limit(500);
+      return rows.map((r) => ({ ...r.job, tag: r.tag, assigneeName: r.assigneeName }));
+    },
+
+    async signaturesFor(jobIds: string[]): Promise<SignatureRow[]> {
+      if (!jobIds.length) return [];
+      return db.select().from(signatures).where(inArray(signatures.jobId, jobIds)).orderBy(asc(signatures.signedAt));
+    },
+
+    async revisionCounts(jobIds: string[]): Promise<Map<string, number>> {
+      if (!jobIds.length) return new Map();
+      const rows = await db
+        .select({ jobId: jobRevisions.jobId, n: sql<number>`count(*)::int` })
+        .from(jobRevisions)
+        .where(inArray(jobRevisions.jobId, jobIds))
+        .groupBy(jobRevisions.jobId);
+      return new Map(rows.map((r) => [r.jobId, r.n]));
+    },
+
+    /** Approved jobs of an instrument with their runs (for drift), oldest first. */
+    async approvedJobsWithRuns(instrumentId: string): Promise<Array<JobBase & { runs: RunRow[] }>> {
+      const js = await db
+        .select()
+        .from(jobs)
+        .where(and(eq(jobs.instrumentId, instrumentId), eq(jobs.status, 'approved')))
+        .orderBy(asc(jobs.dueOn));
+      if (!js.length) return [];
+      const rs = await db
+        .select()
+        .from(runs)
+        .where(
+          inArray(
+            runs.jobId,
+            js.map((j) => j.id),
+          ),
+        )
+        .orderBy(asc(runs.startedAt));
+      return js.map((j) => ({ ...j, runs: rs.filter((r) => r.jobId === j.id) }));
+    },
+
+    /** Job ids that are open (not approved) per instrument. */
+    async openJobInstrumentIds(): Promise<Set<string>> {
+      const rows = await db
+        .select({ id: jobs.instrumentId })
+        .from(jobs)
+        .where(inArray(jobs.status, ['open', 'in-progress', 'submitted', 'returned']));
+      return new Set(rows.map((r) => r.id));
+    },
+
+    /** Status and end of a run (to tell whether its samples can still change). */
+    async runState(runId: string): Promise<{ status: string; endedAt: Date | null } | undefined> {
+      const [row] = await db.select({ status: runs.status, endedAt: runs.endedAt }).from(runs).where(eq(runs.id, runId)).limit(1);
+      return row;
+    },
+
+    // ---- raw trace for review: counts, raw rows and a min/mean/max decimation in the database ----
+
+    async traceSpan(runId: string): Promise<{ n: number; from: number | null; to: number | null }> {
+      const [row] = await db
+        .select({ n: sql<number>`count(*)::int`, from: sql<number | null>`min(${samples.wallMs})`, to: sql<number | null>`max(${samples.wallMs})` })
+        .from(samples)
+        .where(eq(samples.runId, runId));
+      return { n: row?.n ?? 0, from: row?.from ?? null, to: row?.to ?? null };
+    },
+    async traceCount(runId: string, from: number, to: number): Promise<number> {
+      const [row] = await db
+        .select({ n: sql<number>`count(*)::int` })
+        .from(samples)
+        .where(and(eq(samples.runId, runId), sql`${samples.wallMs} between ${from} and ${to}`));
+      return row?.n ?? 0;
+    },
+    async traceRaw(runId: string, from: number, to: number, limit: number) {
+      return db
+        .select({ device: samples.device, wallMs: samples.wallMs, value: samples.value, raw: samples.raw })
+        .from(samples)
+        .where(and(eq(samples.runId, runId), sql`${samples.wallMs} between ${from} and ${to}`))
+        .orderBy(asc(samples.wallMs))
+        .limit(limit);
+    },
+    /** Per device and time bucket: min, mean and max of the value and the number of samples. */
+    async traceBuckets(runId: string, from: number, to: number, bucketMs: number) {
+      const b = sql<number>`floor((${samples.wallMs} - ${from}) / ${bucketMs})::int`;
+      return db
+        .select({ device: samples.device, b, lo: sql<number | null>`min(${samples.value})`, hi: sql<number | null>`max(${samples.value})`, mean: sql<number | null>`avg(${samples.value})`, n: sql<number>`count(*)::int` })
+        .from(samples)
+        .where(and(eq(samples.runId, runId), sql`${samples.wallMs} between ${from} and ${to}`))
+        // By position: the bucket expression carries bind parameters, so it cannot be repeated.
+        .groupBy(sql`1`, sql`2`)
+        .orderBy(sql`2`);
+    },
+
+    // ---- CSV import: every row in one transaction, rows returned for the audit trail ----
+
+    async insertInstruments(values: Array<typeof instruments.$inferInsert>): Promise<Array<typeof instruments.$inferSelect>> {
+      if (!values.length) return [];
+      return db.transaction(async (tx) => tx.insert(instruments).values(values).returning());
+    },
+    async insertStandards(values: Array<typeof standards.$inferInsert>): Promise<Array<typeof standards.$inferSelect>> {
+      if (!values.length) return [];
+      return db.transaction(async (tx) => tx.insert(standards).values(values).returning());
+    },
+
+    // ---- demo history and benchmarks: write completed work directly ----
+
+    /** Raw samples in batches (benchmarks and demo traces). */
+    async insertSamples(values: Array<typeof samples.$inferInsert>): Promise<void> {
+      for (let i = 0; i < values.length; i += 5000) await db.insert(samples).values(values.slice(i, i + 5000));
+    },
+    async maxSampleSeq(): Promise<number> {
+      const [row] = await db.select({ m: sql<number>`coalesce(max(${samples.seq}), 0)::bigint` }).from(samples);
+      return Number(row?.m ?? 0);
+    },
+
+    async insertJob(values: typeof jobs.$inferInsert): Promise<JobBase> {
+      const [row] = await db.insert(jobs).values(values).returning();
+      return row!;
+    },
+    async insertRun(values: typeof runs.$inferInsert, pts: Array<Omit<typeof points.$inferInsert, 'runId'>>): Promise<RunRow> {
+      return db.transaction(async (tx) => {
+        const [run] = await tx.insert(runs).values(values).returning();
+        if (pts.length) await tx.insert(points).values(pts.map((p) => ({ ...p, runId: run!.id })));
+        return run!;
+      });
+    },
+    async insertSignature(values: SignatureInsert): Promise<void> {
+      await db.insert(signatures).values(values);
+    },
+  };
+  return self;
+}
+export type ReviewRepository = ReturnType<typeof reviewRepository>;

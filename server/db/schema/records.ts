@@ -1,0 +1,57 @@
+import { index, integer, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { jobs } from './registers';
+import { users } from './users';
+
+/**
+ * Electronic signatures on job records (21 CFR Part 11 §11.50): the signer's id and printed
+ * name, the UTC date-time and the meaning, linked to the record by the hash of what was signed
+ * (§11.70). Rows are never changed; a correction is a new revision with its own signature.
+ */
+export const signatures = pgTable(
+  'signatures',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    jobId: uuid('job_id')
+      .notNull()
+      .references(() => jobs.id),
+    /** Revision of the job record that was signed. */
+    revision: integer('revision').notNull(),
+    decision: text('decision', { enum: ['approve', 'return'] }).notNull(),
+    /** What the signature means, in words (e.g. "approved", "reviewed"). */
+    meaning: text('meaning').notNull(),
+    comment: text('comment').notNull().default(''),
+    signerId: uuid('signer_id')
+      .notNull()
+      .references(() => users.id),
+    /** Printed name and email at the time of signing. */
+    signerName: text('signer_name').notNull(),
+    signerEmail: text('signer_email').notNull(),
+    signedAt: timestamp('signed_at', { withTimezone: true }).notNull(),
+    /** sha256 of the canonical JSON of the record as signed (job detail and its runs). */
+    recordHash: text('record_hash').notNull(),
+  },
+  (t) => [index('signatures_job_idx').on(t.jobId)],
+);
+
+/**
+ * A superseded revision of a job record: the approved detail, runs, points and signatures as
+ * they stood when a correction was opened, so the earlier record stays readable.
+ */
+export const jobRevisions = pgTable(
+  'job_revisions',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    jobId: uuid('job_id')
+      .notNull()
+      .references(() => jobs.id),
+    /** The revision number this snapshot preserves (the job moved on to revision + 1). */
+    revision: integer('revision').notNull(),
+    /** Why the correction was opened. */
+    reason: text('reason').notNull(),
+    snapshot: jsonb('snapshot').notNull(),
+    createdBy: uuid('created_by').notNull(),
+    createdByName: text('created_by_name').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [unique('job_revisions_job_revision_uq').on(t.jobId, t.revision)],
+);

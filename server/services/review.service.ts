@@ -1,0 +1,388 @@
+import { createHash } from 'node:crypto';
+import type { Db } from '../db/client';
+import { reviewRepository, type RunWithPoints, type SignatureRow } from '../db/repositories/review.repository';
+import { AppError, conflict, forbidden, locked, notFound } from '../errors';
+import type { JobDetail } from '../../shared/schemas/jobs';
+import type {
+  AuditEntry,
+  RecordItem,
+  Revision,
+  RevisionSummary,
+  ReviewBundle,
+  ReviewTrace,
+  Signature,
+  SnapshotRun,
+} from '../../shared/schemas/records';
+import { canonical, type AuditService } from './audit.service';
+import type { AuthService, SessionUser } from './auth.service';
+import { isoDate } from './dates';
+import type { JobService } from './job.service';
+import { toJob } from './job.service';
+import type { RegisterService } from './register.service';
+
+/** Something the review flow tells the team about (mail); never allowed to block or fail the action. */
+export type ReviewNotice =
+  | { kind: 'approved'; jobId: string; signature: Signature }
+  | { kind: 'returned'; jobId: string; signature: Signature }
+  | { kind: 'revision-opened'; jobId: string; revision: number; reason: string; byName: string };
+
+export interface ReviewServiceDeps {
+  audit: AuditService;
+  auth: AuthService;
+  jobs: JobService;
+  registers: RegisterService;
+  /** Called after a successful action; errors are swallowed. */
+  notify?: (notice: ReviewNotice) => void | Promise<void>;
+}
+
+export function toSignature(r: SignatureRow): Signature {
+  return {
+    id: r.id,
+    jobId: r.jobId,
+    revision: r.revision,
+    decision: r.decision,
+    meaning: r.meaning,
+    comment: r.comment,
+    signerId: r.signerId,
+    signerName: r.signerName,
+    signerEmail: r.signerEmail,
+    signedAt: r.signedAt.toISOString(),
+    recordHash: r.recordHash,
+  };
+}
+
+export function toSnapshotRun(r: RunWithPoints): SnapshotRun {
+  return {
+    id: r.id,
+    kind: r.kind,
+    status: r.status,
+    plan: r.plan,
+    results: r.results ?? null,
+    startedBy: r.startedBy,
+    startedAt: r.startedAt.toISOString(),
+    endedAt: r.endedAt?.toISOString() ?? null,
+    points: r.points.map((p) => ({ index: p.index, state: p.state, flags: p.flags, capture: p.capture ?? null, reason: p.reason })),
+  };
+}
+
+/** sha256 over the canonical JSON of what is being signed. */
+export function recordHash(job: JobDetail, runs: SnapshotRun[]): string {
+  // Volatile fields (blockers depend on today's date) are left out of what is signed.
+  const { blockers: _b, submitBlockers: _s, overdue: _o, updatedAt: _u, ...stable } = job;
+  return createHash('sha256').update(canonical({ job: stable, runs })).digest('hex');
+}
+
+/** Ids of the people who performed the work: the assignee, whoever started a run or captured a point. */
+function performerIds(job: JobDetail, runs: RunWithPoints[]): Set<string> {
+  const ids = new Set<string>();
+  if (job.assigneeId) ids.add(job.assigneeId);
+  for (const r of runs) {
+    if (r.startedBy) ids.add(r.startedBy);
+    for (const p of r.points) {
+      const by = (p.capture as { capturedBy?: unknown } | null)?.capturedBy;
+      if (typeof by === 'string' && by) ids.add(by);
+    }
+  }
+  return ids;
+}
+
+/** Calibration date of the record: the day the last completed as-left (or as-found) run ended. */
+function calibrationDate(runs: RunWithPoints[], fallback: string): string {
+  const done = runs.filter((r) => r.status === 'complete' && (r.kind === 'as-left' || r.kind === 'as-found'));
+  const last = done.at(-1);
+  return last ? isoDate(last.endedAt ?? last.startedAt) : fallback;
+}
+
+export function createReviewService(db: Db, deps: ReviewServiceDeps) {
+  const repo = reviewRepository(db);
+  const { audit, auth, jobs } = deps;
+
+  const tell = (n: ReviewNotice) => {
+    try {
+      void Promise.resolve(deps.notify?.(n)).catch(() => {});
+    } catch {
+      /* mail never blocks a signature */
+    }
+  };
+
+  async function performers(job: JobDetail, runs: RunWithPoints[]) {
+    const out: Array<{ id: string; name: string }> = [];
+    for (const id of performerIds(job, runs)) {
+      // capturedBy may hold a name rather than an id when written by a device-side process.
+      const name = /^[0-9a-f-]{36}$/i.test(id) ? await repo.userName(id) : undefined;
+      out.push({ id, name: name ?? id });
+    }
+    return out;
+  }
+
+  /** Why `user` may not sign the job now, or null. */
+  function cannotSign(user: SessionUser, job: JobDetail, performed: Set<string>): { status: number; reason: string } | null {
+    if (user.role !== 'lead') return { status: 403, reason: 'Only a lead signs off calibration records' };
+    if (performed.has(user.id) || performed.has(user.name) || performed.has(user.email))
+      return { status: 403, reason: 'You performed part of this work; another lead must sign it off' };
+    if (job.status === 'approved') return { status: 423, reason: `Revision ${job.revision} is approved and locked; open a revision to correct it` };
+    if (job.status !== 'submitted') return { status: 409, reason: `The job is ${job.status}; only a submitted job can be reviewed` };
+    return null;
+  }
+
+
+  async function computeTrace(
+    runId: string,
+    q: { from?: number; to?: number; buckets: number; maxRaw: number },
+    span: { n: number; from: number | null; to: number | null },
+  ): Promise<ReviewTrace> {
+    if (span.from === null || span.to === null) {
+      return { runId, mode: 'raw', t0: 0, from: 0, to: 0, span: { from: null, to: null }, total: 0, bucketMs: null, x: [], dp: { v: [] }, ma: { v: [] }, raw: [] };
+    }
+    const whole = q.from === undefined && q.to === undefined;
+    const from = Math.max(q.from ?? span.from, span.from);
+    const to = Math.max(from, Math.min(q.to ?? span.to, span.to));
+    const t0 = Math.floor(from);
+    const total = whole ? span.n : await repo.traceCount(runId, from, to);
+    const spanOut = { from: span.from, to: span.to };
+    if (total <= q.maxRaw) {
+      const rows = total ? await repo.traceRaw(runId, from, to, q.maxRaw) : [];
+      const x: number[] = [];
+      const dp: Array<number | null> = [];
+      const ma: Array<number | null> = [];
+      const raw: string[] = [];
+      for (const r of rows) {
+        x.push(r.wallMs - t0);
+        dp.push(r.device === 'pressure' ? r.value : null);
+        ma.push(r.device === 'current' ? r.value : null);
+        raw.push(r.raw);
+      }
+      return { runId, mode: 'raw', t0, from, to, span: spanOut, total, bucketMs: null, x, dp: { v: dp }, ma: { v: ma }, raw };
+    }
+    const bucketMs = Math.max(1, (to - from) / q.buckets);
+    const rows = await repo.traceBuckets(runId, from, to, bucketMs);
+    const index = new Map<number, number>();
+    const x: number[] = [];
+    const out = { dp: { v: [] as Array<number | null>, lo: [] as Array<number | null>, hi: [] as Array<number | null> }, ma: { v: [] as Array<number | null>, lo: [] as Array<number | null>, hi: [] as Array<number | null> } };
+    for (const r of rows) {
+      let k = index.get(r.b);
+      if (k === undefined) {
+        k = x.length;
+        index.set(r.b, k);
+        x.push(from - t0 + (r.b + 0.5) * bucketMs);
+        for (const ch of [out.dp, out.ma]) {
+          ch.v.push(null);
+          ch.lo.push(null);
+          ch.hi.push(null);
+        }
+      }
+      const ch = r.device === 'pressure' ? out.dp : out.ma;
+      ch.v[k] = r.mean === null ? null : Number(r.mean);
+      ch.lo[k] = r.lo === null ? null : Number(r.lo);
+      ch.hi[k] = r.hi === null ? null : Number(r.hi);
+    }
+    return { runId, mode: 'envelope', t0, from, to, span: spanOut, total, bucketMs, x, ...out };
+  }
+
+  const overviews = new Map<string, { version: string; value: Promise<ReviewTrace> }>();
+
+  const service = {
+    /** Refuses (423) any change to a job whose current revision is approved. For run and capture services. */
+    async assertEditable(jobId: string): Promise<void> {
+      const j = await jobs.get(jobId);
+      if (j.status === 'approved') throw locked(`Revision ${j.revision} of this record is approved and locked; a lead can open a revision to correct it`);
+    },
+
+    /** The review page's data: job, instrument, signatures, revisions, audit trail and who may sign. */
+    async bundle(user: SessionUser, jobId: string): Promise<ReviewBundle> {
+      const job = await jobs.detail(jobId);
+      const [instrument, runs, sigs, revs] = await Promise.all([
+        deps.registers.getInstrument(job.instrumentId),
+        repo.runsWithPoints(jobId),
+        repo.signatures(jobId),
+        repo.revisions(jobId),
+      ]);
+      const performed = performerIds(job, runs);
+      const no = cannotSign(user, job, performed);
+      const bundle: ReviewBundle = {
+        job,
+        instrument,
+        signatures: sigs.map(toSignature),
+        revisions: revs.map(summary),
+        audit: await service.trail(jobId, runs.map((r) => r.id)),
+        performers: await performers(job, runs),
+        canSign: !no,
+        cannotSignReason: no?.reason ?? null,
+      };
+      // The page opens the first completed as-found run (else the first completed run): start its trace now.
+      const first = runs.find((r) => r.status === 'complete' && r.kind === 'as-found') ?? runs.find((r) => r.status === 'complete');
+      if (first) service.warmTrace(first.id);
+      return bundle;
+    },
+
+    /** Audit events of the job and of each of its runs, oldest first. */
+    async trail(jobId: string, runIds: string[]): Promise<AuditEntry[]> {
+      const lists = await Promise.all([jobId, ...runIds].map((id) => audit.list({ entityId: id, limit: 1000 })));
+      return lists
+        .flat()
+        .sort((a, b) => a.id - b.id)
+        .map((r) => ({ ...r, at: r.at.toISOString() }));
+    },
+
+    /**
+     * Signs a submitted job: approve (locks the record, records the calibration date on the
+     * instrument) or return with comments. The signer must be a lead who did not perform the work and
+     * must re-enter their password (21 CFR Part 11 §11.200); a wrong password is refused and audited.
+     */
+    async review(
+      user: SessionUser,
+      jobId: string,
+      body: { decision: 'approve' | 'return'; password: string; meaning: string; comment: string },
+    ): Promise<{ job: JobDetail; signature: Signature }> {
+      const job = await jobs.detail(jobId);
+      const runs = await repo.runsWithPoints(jobId);
+      const no = cannotSign(user, job, performerIds(job, runs));
+      if (no) {
+        if (no.status === 403) {
+          await audit.record(user, 'signature.refused', 'job', jobId, undefined, { decision: body.decision, reason: no.reason });
+          throw forbidden(no.reason);
+        }
+        throw no.status === 423 ? locked(no.reason) : conflict(no.reason);
+      }
+      if (!(await auth.checkPassword(user.id, body.password))) {
+        await audit.record(user, 'signature.failed', 'job', jobId, undefined, {
+          decision: body.decision,
+          meaning: body.meaning,
+          reason: 'password not accepted',
+        });
+        throw new AppError(401, 'unauthenticated', 'The password is not right; nothing was signed', { password: ['The password is not right'] });
+      }
+      const snapshotRuns = runs.map(toSnapshotRun);
+      const hash = recordHash(job, snapshotRuns);
+      const signedAt = new Date();
+      const approve = body.decision === 'approve';
+      const calibratedOn = approve ? calibrationDate(runs, isoDate(signedAt)) : null;
+      const done = await repo.sign(
+        {
+          jobId,
+          revision: job.revision,
+          decision: body.decision,
+          meaning: body.meaning,
+          comment: body.comment,
+          signerId: user.id,
+          signerName: user.name,
+          signerEmail: user.email,
+          signedAt,
+          recordHash: hash,
+        },
+        { status: approve ? 'approved' : 'returned', expectStatus: 'submitted', instrumentId: job.instrumentId, calibratedOn },
+      );
+      if (!done) throw conflict('The job changed while you were signing; reload and review it again');
+      const signature = toSignature(done.signature);
+      await audit.record(user, 'signature.applied', 'job', jobId, undefined, signature);
+      await audit.record(
+        user,
+        approve ? 'job.approved' : 'job.returned',
+        'job',
+        jobId,
+        { status: job.status, revision: job.revision },
+        { status: approve ? 'approved' : 'returned', revision: job.revision, comment: body.comment || undefined },
+      );
+      if (approve && calibratedOn) {
+        await audit.record(user, 'instrument.calibration-recorded', 'instrument', job.instrumentId, { lastCalibratedOn: done.previousCalibratedOn }, { lastCalibratedOn: calibratedOn, jobId });
+      }
+      tell({ kind: approve ? 'approved' : 'returned', jobId, signature });
+      return { job: await jobs.detail(jobId), signature };
+    },
+
+    /**
+     * Opens a correction of an approved record: the approved revision (detail, runs with points,
+     * signatures) is kept as a snapshot, and the job returns to in-progress at revision + 1.
+     */
+    async openRevision(user: SessionUser, jobId: string, reason: string): Promise<JobDetail> {
+      const job = await jobs.detail(jobId);
+      if (job.status !== 'approved') throw conflict(`The job is ${job.status}; only an approved record is corrected by a revision`);
+      const [runs, sigs] = await Promise.all([repo.runsWithPoints(jobId), repo.signatures(jobId)]);
+      const snapshot = {
+        job,
+        runs: runs.map(toSnapshotRun),
+        signatures: sigs.filter((s) => s.revision === job.revision).map(toSignature),
+      };
+      const row = await repo.openRevision({ jobId, revision: job.revision, reason, snapshot, createdBy: user.id, createdByName: user.name });
+      if (!row) throw conflict('The job changed meanwhile; reload it');
+      await audit.record(
+        user,
+        'job.revision-opened',
+        'job',
+        jobId,
+        { revision: job.revision, status: job.status },
+        { revision: job.revision + 1, status: 'in-progress', reason },
+      );
+      tell({ kind: 'revision-opened', jobId, revision: job.revision + 1, reason, byName: user.name });
+      return jobs.detail(jobId);
+    },
+
+    async revisions(jobId: string): Promise<RevisionSummary[]> {
+      await jobs.get(jobId);
+      return (await repo.revisions(jobId)).map(summary);
+    },
+
+    async revision(jobId: string, revision: number): Promise<Revision> {
+      const row = await repo.revision(jobId, revision);
+      if (!row) throw notFound(`Revision ${revision} of this job is not kept (only superseded revisions are)`);
+      return { ...summary(row), snapshot: row.snapshot as Revision['snapshot'] };
+    },
+
+    async signatures(jobId: string): Promise<Signature[]> {
+      await jobs.get(jobId);
+      return (await repo.signatures(jobId)).map(toSignature);
+    },
+
+    /**
+     * The raw trace of a run for review: every sample in a small window, or a min/mean/max
+     * envelope per time bucket over a long one (computed in the database, so a one-hour run opens
+     * fast). The whole-run view is kept per run while its samples do not change.
+     */
+    async trace(runId: string, q: { from?: number; to?: number; buckets: number; maxRaw: number }): Promise<ReviewTrace> {
+      if (q.from === undefined && q.to === undefined) {
+        // A completed run's samples no longer change: its whole-run view is kept until the run changes state.
+        const state = await repo.runState(runId);
+        if (state && state.status !== 'running' && state.status !== 'paused') {
+          const key = `${runId}|${q.buckets}|${q.maxRaw}`;
+          const version = `${state.status}|${state.endedAt?.getTime() ?? ''}`;
+          const hit = overviews.get(key);
+          if (hit && hit.version === version) return hit.value;
+          const value = repo.traceSpan(runId).then((span) => computeTrace(runId, q, span));
+          overviews.set(key, { version, value });
+          value.catch(() => overviews.delete(key));
+          while (overviews.size > OVERVIEW_CACHE) overviews.delete(overviews.keys().next().value!);
+          return value;
+        }
+      }
+      return computeTrace(runId, q, await repo.traceSpan(runId));
+    },
+
+    /** Starts computing a run's whole-run trace so that the review page's request finds it ready. */
+    warmTrace(runId: string): void {
+      service.trace(runId, TRACE_DEFAULTS).catch(() => {});
+    },
+
+    /** Submitted and approved jobs with their last signature
+    /** Submitted and approved jobs with their last signature and number of revisions. */
+    async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string }): Promise<RecordItem[]> {
+      const rows = await repo.records(opts);
+      const ids = rows.map((r) => r.id);
+      const [sigs, counts] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids)]);
+      const last = new Map<string, SignatureRow>();
+      for (const s of sigs) last.set(s.jobId, s);
+      return rows.map((r) => ({ ...toJob(r), lastSignature: last.has(r.id) ? toSignature(last.get(r.id)!) : null, revisions: counts.get(r.id) ?? 0 }));
+    },
+  };
+  return service;
+}
+
+function summary(r: { revision: number; reason: string; createdAt: Date; createdByName: string }): RevisionSummary {
+  return { revision: r.revision, reason: r.reason, createdAt: r.createdAt.toISOString(), createdByName: r.createdByName };
+}
+
+export type ReviewService = ReturnType<typeof createReviewService>;
+
+/** Whole-run traces kept in memory (a few runs under review at once). */
+const OVERVIEW_CACHE = 16;
+/** Defaults of the review trace query (ReviewTraceQuerySchema). */
+export const TRACE_DEFAULTS = { buckets: 1200, maxRaw: 12_000 } as const;

@@ -1,0 +1,289 @@
+import { z } from 'zod';
+import { InstrumentSchema } from './instruments';
+import { JobDetailSchema, JobSchema } from './jobs';
+
+/** Decisions a lead can sign (DESIGN.md §3.7). */
+export const REVIEW_DECISIONS = ['approve', 'return'] as const;
+export const ReviewDecisionSchema = z.enum(REVIEW_DECISIONS);
+export type ReviewDecision = z.infer<typeof ReviewDecisionSchema>;
+
+/** Meanings offered in the signing dialog; any short statement is accepted (21 CFR Part 11 §11.50(a)(3)). */
+export const SIGNATURE_MEANINGS = {
+  approve: ['approved', 'reviewed and approved'],
+  return: ['returned for correction', 'reviewed, not accepted'],
+} as const satisfies Record<ReviewDecision, readonly string[]>;
+
+/** Body of `POST /api/jobs/:id/review`. The password is checked again at every signing (§11.200). */
+export const ReviewBodySchema = z
+  .object({
+    decision: ReviewDecisionSchema,
+    password: z.string().min(1, 'Enter your password to sign').max(256),
+    meaning: z.string().trim().min(3, 'State what the signature means').max(120),
+    comment: z.string().trim().max(2000).default(''),
+  })
+  .refine((v) => v.decision !== 'return' || v.comment.length >= 5, {
+    message: 'Say what needs correcting (at least 5 characters)',
+    path: ['comment'],
+  });
+export type ReviewBody = z.input<typeof ReviewBodySchema>;
+
+/** A signature as stored: who (id and printed name), when (UTC), what it means, and what was signed. */
+export const SignatureSchema = z.object({
+  id: z.string(),
+  jobId: z.string(),
+  revision: z.number().int(),
+  decision: ReviewDecisionSchema,
+  meaning: z.string(),
+  comment: z.string(),
+  signerId: z.string(),
+  signerName: z.string(),
+  signerEmail: z.string(),
+  /** ISO date-time, UTC. */
+  signedAt: z.string(),
+  /** sha256 of the record as signed. */
+  recordHash: z.string(),
+});
+export type Signature = z.infer<typeof SignatureSchema>;
+
+/** Body of `POST /api/jobs/:id/revisions`. */
+export const RevisionBodySchema = z.object({
+  reason: z.string().trim().min(5, 'Give the reason for the correction (at least 5 characters)').max(1000),
+});
+export type RevisionBody = z.input<typeof RevisionBodySchema>;
+
+export const RevisionSummarySchema = z.object({
+  revision: z.number().int(),
+  reason: z.string(),
+  createdAt: z.string(),
+  createdByName: z.string(),
+});
+export type RevisionSummary = z.infer<typeof RevisionSummarySchema>;
+
+/** A stored run as it stood in a superseded revision (rows as stored, times ISO). */
+export const SnapshotRunSchema = z.object({
+  id: z.string(),
+  kind: z.string(),
+  status: z.string(),
+  plan: z.unknown(),
+  results: z.unknown().nullable(),
+  startedBy: z.string().nullable(),
+  startedAt: z.string(),
+  endedAt: z.string().nullable(),
+  points: z.array(
+    z.object({ index: z.number(), state: z.string(), flags: z.unknown(), capture: z.unknown().nullable(), reason: z.string().nullable() }),
+  ),
+});
+export type SnapshotRun = z.infer<typeof SnapshotRunSchema>;
+
+export const RevisionSchema = RevisionSummarySchema.extend({
+  snapshot: z.object({
+    job: JobDetailSchema,
+    runs: z.array(SnapshotRunSchema),
+    signatures: z.array(SignatureSchema),
+  }),
+});
+export type Revision = z.infer<typeof RevisionSchema>;
+
+/** One audit trail row as the API returns it. */
+export const AuditEntrySchema = z.object({
+  id: z.number(),
+  at: z.string(),
+  actorId: z.string().nullable(),
+  actorEmail: z.string().nullable(),
+  action: z.string(),
+  entity: z.string(),
+  entityId: z.string().nullable(),
+  before: z.unknown(),
+  after: z.unknown(),
+  prevHash: z.string(),
+  hash: z.string(),
+});
+export type AuditEntry = z.infer<typeof AuditEntrySchema>;
+
+export const AuditVerifySchema = z.object({
+  ok: z.boolean(),
+  checked: z.number(),
+  brokenAt: z.object({ id: z.number(), reason: z.string() }).optional(),
+});
+export type AuditVerify = z.infer<typeof AuditVerifySchema>;
+
+/** Everything the lead needs to review a job, except the runs' points and traces (GET /api/runs/:id). */
+export const ReviewBundleSchema = z.object({
+  job: JobDetailSchema,
+  instrument: InstrumentSchema,
+  signatures: z.array(SignatureSchema),
+  revisions: z.array(RevisionSummarySchema),
+  /** The job's and its runs' audit events, oldest first. */
+  audit: z.array(AuditEntrySchema),
+  /** Names of the people who performed the work (assignee, who started runs or captured points). */
+  performers: z.array(z.object({ id: z.string(), name: z.string() })),
+  /** Whether the signed-in user may sign this job now, and why not. */
+  canSign: z.boolean(),
+  cannotSignReason: z.string().nullable(),
+});
+export type ReviewBundle = z.infer<typeof ReviewBundleSchema>;
+
+/** A row of the Records page. */
+export const RecordItemSchema = JobSchema.extend({
+  lastSignature: SignatureSchema.nullable(),
+  revisions: z.number().int(),
+});
+export type RecordItem = z.infer<typeof RecordItemSchema>;
+
+export const RecordsQuerySchema = z.object({
+  status: z.enum(['approved', 'submitted', 'all']).default('all'),
+  q: z.string().trim().max(100).optional(),
+});
+
+/** An instrument falling due without an open job. */
+export const NeedsJobSchema = z.object({
+  instrumentId: z.string(),
+  tag: z.string(),
+  service: z.string(),
+  location: z.string(),
+  intervalDays: z.number(),
+  lastCalibratedOn: z.string().nullable(),
+  /** Null when never calibrated (due now). */
+  nextDueOn: z.string().nullable(),
+  daysLeft: z.number().nullable(),
+  overdue: z.boolean(),
+});
+export type NeedsJob = z.infer<typeof NeedsJobSchema>;
+
+export const QueueQuerySchema = z.object({
+  /** Show instruments due within this many days (default 30). */
+  withinDays: z.coerce.number().int().min(0).max(730).default(30),
+});
+
+export const QueueSchema = z.object({
+  /** Open work; the signed-in technician's own jobs first. */
+  jobs: z.array(JobSchema),
+  needsJob: z.array(NeedsJobSchema),
+  withinDays: z.number(),
+  /** Active technicians a lead may assign (empty for other roles). */
+  technicians: z.array(z.object({ id: z.string(), name: z.string() })),
+});
+export type Queue = z.infer<typeof QueueSchema>;
+
+/** CSV import body: the text (or a file in a multipart form), dry run unless `confirm` is true. */
+export const ImportBodySchema = z.object({
+  csv: z.string().min(1, 'The file is empty').max(2_000_000, 'The file is larger than 2 MB'),
+  confirm: z
+    .union([z.boolean(), z.enum(['true', 'false', '1', '0'])])
+    .default(false)
+    .transform((v) => v === true || v === 'true' || v === '1'),
+});
+
+export const ImportRowSchema = z.object({
+  /** 1-based data row (the header is row 0). */
+  row: z.number().int(),
+  /** Line in the file where the row starts. */
+  line: z.number().int(),
+  /** Key shown in the preview (tag or serial). */
+  key: z.string(),
+  ok: z.boolean(),
+  /** Field → messages. */
+  errors: z.record(z.string(), z.array(z.string())),
+  /** The parsed values (as they would be written) when ok. */
+  value: z.record(z.string(), z.unknown()).nullable(),
+});
+export type ImportRow = z.infer<typeof ImportRowSchema>;
+
+export const ImportReportSchema = z.object({
+  dryRun: z.boolean(),
+  total: z.number().int(),
+  valid: z.number().int(),
+  invalid: z.number().int(),
+  /** Problems with the file as a whole (missing columns, unknown columns, parse errors). */
+  fileErrors: z.array(z.string()),
+  rows: z.array(ImportRowSchema),
+  written: z.number().int(),
+});
+export type ImportReport = z.infer<typeof ImportReportSchema>;
+
+/** Drift and interval analysis of one tag (DESIGN.md §3.8). */
+export const DriftEventSchema = z.object({
+  jobId: z.string(),
+  revision: z.number().int(),
+  /** Date of the as-found run, ISO. */
+  on: z.string(),
+  atMs: z.number(),
+  asFound: z.number(),
+  asLeft: z.number(),
+});
+
+export const DriftPointSchema = z.object({
+  key: z.string(),
+  nominalPct: z.number(),
+  basis: z.enum(['flow', 'dp']),
+  direction: z.enum(['up', 'down']),
+  events: z.array(DriftEventSchema),
+  drifts: z.array(z.object({ from: z.string(), to: z.string(), drift: z.number(), ratePerDay: z.number().nullable() })),
+  /** Predicted as-found error at the next due date, % of span; null without drift history. */
+  predictedAtDue: z.number().nullable(),
+});
+export type DriftPoint = z.infer<typeof DriftPointSchema>;
+
+export const IntervalRecommendationSchema = z.object({
+  method: z.enum(['staircase', 'a3']),
+  action: z.enum(['extend', 'keep', 'shorten']),
+  recommendedDays: z.number().int(),
+  /** How it was found, in words with the numbers. */
+  basis: z.string(),
+});
+export type IntervalRecommendation = z.infer<typeof IntervalRecommendationSchema>;
+
+export const DriftReportSchema = z.object({
+  instrument: InstrumentSchema,
+  /** Errors are in % of span (of flow span for rooted outputs). */
+  unit: z.literal('% of span'),
+  tolerancePct: z.number(),
+  calibrations: z.number().int(),
+  inTolerance: z.number().int(),
+  points: z.array(DriftPointSchema),
+  /** Largest |predicted error| at the next due date over all points, or null. */
+  worstPredicted: z.number().nullable(),
+  recommendations: z.array(IntervalRecommendationSchema),
+});
+export type DriftReport = z.infer<typeof DriftReportSchema>;
+
+export const AcceptIntervalBodySchema = z.object({
+  intervalDays: z.number().int().min(1).max(3650),
+  method: z.enum(['staircase', 'a3']),
+});
+export type AcceptIntervalBody = z.infer<typeof AcceptIntervalBodySchema>;
+
+/** Query of the review trace: a window of a run (wall-clock ms); the whole run when omitted. */
+export const ReviewTraceQuerySchema = z.object({
+  from: z.coerce.number().finite().optional(),
+  to: z.coerce.number().finite().optional(),
+  /** Envelope buckets when the window holds more than `maxRaw` samples. */
+  buckets: z.coerce.number().int().min(50).max(5000).default(1200),
+  maxRaw: z.coerce.number().int().min(100).max(50_000).default(12_000),
+});
+
+const nums = z.array(z.number().nullable());
+
+/**
+ * A run's raw trace, both channels on one time axis (`x`, ms after `t0`), ready to draw. `raw`
+ * mode carries every sample as received (one channel per x, the other null, with the line as
+ * received); `envelope` mode carries min, mean and max per time bucket so spikes stay visible.
+ */
+export const ReviewTraceSchema = z.object({
+  runId: z.string(),
+  mode: z.enum(['raw', 'envelope']),
+  t0: z.number(),
+  from: z.number(),
+  to: z.number(),
+  /** Whole run span, ms since epoch (null without samples). */
+  span: z.object({ from: z.number().nullable(), to: z.number().nullable() }),
+  /** Samples in the window. */
+  total: z.number().int(),
+  bucketMs: z.number().nullable(),
+  x: z.array(z.number()),
+  dp: z.object({ v: nums, lo: nums.optional(), hi: nums.optional() }),
+  ma: z.object({ v: nums, lo: nums.optional(), hi: nums.optional() }),
+  /** Raw lines (raw mode only), aligned with x. */
+  raw: z.array(z.string()).optional(),
+});
+export type ReviewTrace = z.infer<typeof ReviewTraceSchema>;

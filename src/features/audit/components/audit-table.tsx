@@ -1,0 +1,73 @@
+import { Fragment, useState } from 'react';
+import type { AuditEntry } from '../../../../shared/schemas/records';
+import { cn } from '../../../lib/cn';
+
+/** Changed keys between two JSON values (top level), for a quick old → new reading. */
+function changedKeys(before: unknown, after: unknown): string[] {
+  if (!before || !after || typeof before !== 'object' || typeof after !== 'object') return [];
+  const a = before as Record<string, unknown>;
+  const b = after as Record<string, unknown>;
+  return [...new Set([...Object.keys(a), ...Object.keys(b)])].filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k]));
+}
+
+/** The audit trail: when (UTC), who, what, which record, and old → new values on demand. */
+export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; brokenId?: number | undefined }) {
+  const [open, setOpen] = useState<number | null>(null);
+  return (
+    <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+      <table className="w-full text-sm" aria-label="Audit trail">
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+          <tr>
+            <th className="px-3 py-2">#</th>
+            <th className="px-3 py-2">When (UTC)</th>
+            <th className="px-3 py-2">Who</th>
+            <th className="px-3 py-2">Action</th>
+            <th className="px-3 py-2">Record</th>
+            <th className="px-3 py-2">Changed</th>
+          </tr>
+        </thead>
+        <tbody>
+          {entries.map((e) => {
+            const keys = changedKeys(e.before, e.after);
+            return (
+              <Fragment key={e.id}>
+                <tr className={cn('border-t border-line', e.id === brokenId && 'bg-danger-soft')} data-testid={`audit-row-${e.id}`}>
+                  <td className="num px-3 py-2">{e.id}</td>
+                  <td className="num px-3 py-2 whitespace-nowrap">{e.at.replace('T', ' ').slice(0, 19)}</td>
+                  <td className="px-3 py-2">{e.actorEmail ?? <span className="text-ink-faint">system</span>}</td>
+                  <td className="px-3 py-2 font-medium">{e.action}</td>
+                  <td className="px-3 py-2">
+                    {e.entity}
+                    {e.entityId && <span className="num ml-1 text-xs text-ink-muted">{e.entityId.slice(0, 8)}</span>}
+                  </td>
+                  <td className="px-3 py-2">
+                    <button type="button" className="text-accent hover:underline" onClick={() => setOpen(open === e.id ? null : e.id)} aria-expanded={open === e.id}>
+                      {keys.length ? keys.slice(0, 4).join(', ') + (keys.length > 4 ? '…' : '') : e.before == null && e.after != null ? 'new values' : 'details'}
+                    </button>
+                  </td>
+                </tr>
+                {open === e.id && (
+                  <tr className="bg-sunken/40">
+                    <td colSpan={6} className="px-3 py-2">
+                      <div className="grid gap-2 md:grid-cols-2">
+                        <div>
+                          <div className="text-xs text-ink-muted">Before</div>
+                          <pre className="num max-h-64 overflow-auto rounded bg-surface p-2 text-[11px]">{JSON.stringify(e.before, null, 2) ?? 'null'}</pre>
+                        </div>
+                        <div>
+                          <div className="text-xs text-ink-muted">After</div>
+                          <pre className="num max-h-64 overflow-auto rounded bg-surface p-2 text-[11px]">{JSON.stringify(e.after, null, 2) ?? 'null'}</pre>
+                        </div>
+                      </div>
+                      <div className="num mt-1 truncate text-[11px] text-ink-faint">hash {e.hash} ← {e.prevHash}</div>
+                    </td>
+                  </tr>
+                )}
+              </Fragment>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
+  );
+}

@@ -1,0 +1,71 @@
+import { queryOptions, useQuery } from '@tanstack/react-query';
+import { z } from 'zod';
+import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
+
+const Counters = z.object({
+  samples: z.number(),
+  badLines: z.number(),
+  lastWallMs: z.number().nullable(),
+  lastValue: z.number().nullable(),
+  lastUnit: z.string().nullable(),
+  connected: z.boolean(),
+  path: z.string().nullable(),
+  reason: z.string().nullable(),
+});
+
+const LocalDevice = z
+  .object({
+    path: z.string(),
+    connected: z.boolean(),
+    state: z.string(),
+    /** Port settings, when the server reports them. */
+    protocol: z.string().optional(),
+    baudRate: z.number().optional(),
+    stats: z
+      .object({
+        parser: z.object({ samples: z.number(), texts: z.number(), rejected: z.record(z.string(), z.number()), framer: z.object({ bytes: z.number(), lines: z.number(), dropped: z.record(z.string(), z.number()) }) }).partial(),
+        queue: z.object({ sent: z.number(), replied: z.number(), timeouts: z.number(), badReplies: z.number() }).partial(),
+        pollFailures: z.number(),
+      })
+      .partial()
+      .optional(),
+  })
+  .passthrough();
+
+/** GET /api/bench: devices and their state, counters and storage acknowledgement. */
+export const BenchStatusSchema = z
+  .object({
+    mode: z.enum(['sim', 'serial']),
+    benchId: z.string(),
+    latestSeq: z.number(),
+    ackedSeq: z.number().nullable().optional(),
+    storedSeq: z.number().nullable().optional(),
+    benches: z.array(
+      z
+        .object({
+          benchId: z.string(),
+          runId: z.string().nullable().optional(),
+          activeRunId: z.string().nullable().optional(),
+          devices: z.record(z.string(), Counters),
+          local: z.object({ pressure: LocalDevice, current: LocalDevice }).nullable().optional(),
+        })
+        .passthrough(),
+    ),
+  })
+  .passthrough();
+export type BenchStatus = z.infer<typeof BenchStatusSchema>;
+
+export function benchQueryOptions() {
+  return queryOptions({
+    queryKey: queryKeys.bench,
+    queryFn: ({ signal }) => api.get('/api/bench', { schema: BenchStatusSchema, signal }),
+    // Counters move all the time; device events from the stream refetch at once.
+    refetchInterval: 2_000,
+    staleTime: 1_000,
+  });
+}
+
+export function useBench() {
+  return useQuery(benchQueryOptions());
+}

@@ -1,0 +1,98 @@
+import { useEffect, useRef } from 'react';
+import uPlot from 'uplot';
+import 'uplot/dist/uPlot.min.css';
+import type { DriftPoint } from '../../../../shared/schemas/records';
+import { useThemeStore } from '../../../lib/theme';
+
+function cssVar(name: string, fallback: string): string {
+  return getComputedStyle(document.documentElement).getPropertyValue(name).trim() || fallback;
+}
+
+/** A palette of our own for up to ten points (up and down series share a hue, down dashed). */
+const HUES = [188, 28, 262, 140, 340, 210, 48, 300, 100, 0];
+
+/**
+ * As-found error at each point over time (% of span) against the ± tolerance, with the predicted
+ * error at the next due date drawn as a dotted extension of each point's line.
+ */
+export function DriftChart({ points, tolerance, dueOn, height = 300 }: { points: DriftPoint[]; tolerance: number; dueOn: string | null; height?: number }) {
+  const host = useRef<HTMLDivElement>(null);
+  const theme = useThemeStore((s) => s.theme);
+  useEffect(() => {
+    const el = host.current;
+    if (!el || !points.length) return;
+    const ink = cssVar('--sp-ink-muted', '#4b5854');
+    const grid = cssVar('--sp-line', '#dde1db');
+    const danger = cssVar('--sp-danger', '#b0383a');
+    const dueSec = dueOn ? Date.parse(`${dueOn}T00:00:00Z`) / 1000 : null;
+    const times = [...new Set(points.flatMap((p) => p.events.map((e) => e.atMs / 1000)))].sort((a, b) => a - b);
+    if (dueSec && !times.includes(dueSec)) times.push(dueSec);
+    const series: uPlot.Series[] = [{}];
+    const data: (number | null)[][] = [times];
+    points.forEach((p, k) => {
+      const hue = HUES[Math.floor(k / 2) % HUES.length]!;
+      const col = `hsl(${hue} 55% ${theme === 'bench' ? 62 : 42}%)`;
+      const byT = new Map(p.events.map((e) => [e.atMs / 1000, e.asFound]));
+      data.push(times.map((t) => byT.get(t) ?? null));
+      series.push({ label: `${p.nominalPct} % ${p.direction === 'up' ? '↑' : '↓'}`, stroke: col, width: 1.5, dash: p.direction === 'down' ? [5, 4] : undefined, spanGaps: true, points: { show: true, size: 5 } });
+      // Prediction: from the last as-left to the next due date.
+      const last = p.events.at(-1);
+      data.push(times.map((t) => (last && t === last.atMs / 1000 ? last.asLeft : dueSec !== null && t === dueSec && p.predictedAtDue !== null ? p.predictedAtDue : null)));
+      series.push({ label: `${p.nominalPct} % predicted`, stroke: col, width: 1, dash: [2, 4], spanGaps: true, points: { show: false } });
+    });
+    const opts: uPlot.Options = {
+      width: el.clientWidth || 700,
+      height,
+      legend: { show: false },
+      scales: { x: { time: true }, y: { range: (_u, lo, hi) => [Math.min(lo, -tolerance * 1.2), Math.max(hi, tolerance * 1.2)] } },
+      axes: [
+        { stroke: ink, grid: { stroke: grid } },
+        { stroke: ink, grid: { stroke: grid }, label: 'As-found error, % of span', size: 60 },
+      ],
+      series,
+      hooks: {
+        draw: [
+          (u) => {
+            const ctx = u.ctx;
+            ctx.save();
+            ctx.strokeStyle = danger;
+            ctx.lineWidth = 1.5 * devicePixelRatio;
+            ctx.setLineDash([8, 4]);
+            for (const v of [tolerance, -tolerance]) {
+              const y = u.valToPos(v, 'y', true);
+              ctx.beginPath();
+              ctx.moveTo(u.bbox.left, y);
+              ctx.lineTo(u.bbox.left + u.bbox.width, y);
+              ctx.stroke();
+            }
+            if (dueSec) {
+              const x = u.valToPos(dueSec, 'x', true);
+              ctx.strokeStyle = ink;
+              ctx.setLineDash([2, 3]);
+              ctx.beginPath();
+              ctx.moveTo(x, u.bbox.top);
+              ctx.lineTo(x, u.bbox.top + u.bbox.height);
+              ctx.stroke();
+            }
+            ctx.restore();
+          },
+        ],
+      },
+    };
+    const plot = new uPlot(opts, data as uPlot.AlignedData, el);
+    const ro = new ResizeObserver(() => plot.setSize({ width: el.clientWidth, height }));
+    ro.observe(el);
+    return () => {
+      ro.disconnect();
+      plot.destroy();
+    };
+  }, [points, tolerance, dueOn, height, theme]);
+  return (
+    <figure className="m-0">
+      <div ref={host} className="w-full" role="img" aria-label={`As-found error per point over time against ±${tolerance} % of span`} data-testid="drift-chart" />
+      <figcaption className="mt-2 text-xs text-ink-muted">
+        Solid: rising points; dashed: falling points; dotted: predicted error at the next due date (vertical line). Red dashes: ±{tolerance} % tolerance.
+      </figcaption>
+    </figure>
+  );
+}

@@ -1,0 +1,92 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
+import { PRESSURE_UNIT_IDS } from '../../../../shared/calc/units';
+import { CUTOFF_MODES, INSTRUMENT_KINDS, InstrumentInputSchema, OUTPUT_MODES, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
+import { Button } from '../../../components/ui/button';
+import { SelectField, TextField } from '../../../components/ui/field';
+import { isApiError } from '../../../lib/api-client';
+import { unitLabel } from '../../../lib/format';
+import { useSaveInstrument } from '../api/get-instruments';
+import { OUTPUT_MODE_LABELS } from './instruments-table';
+
+const FIELDS = ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'notes'] as const;
+const CUTOFF_LABELS = { none: 'None', clamp: 'Clamp to zero below the cutoff', linear: 'Linear below the breakpoint' } as const;
+const KIND_LABELS = { 'dp-flow': 'DP flow', pressure: 'Pressure', 'dp-level': 'DP level' } as const;
+
+function toInput(i: Instrument | null): InstrumentInput {
+  if (!i) return { tag: '', kind: 'dp-flow', service: '', location: '', lrv: 0, urv: 100, unit: 'kPa', outputMode: 'sqrt-transmitter', cutoffMode: 'none', cutoffValue: 0, tolerancePct: 0.5, intervalDays: 365, primaryElement: null, notes: '' };
+  return {
+    tag: i.tag,
+    kind: i.kind,
+    service: i.service,
+    location: i.location,
+    lrv: i.lrv,
+    urv: i.urv,
+    unit: i.unit as InstrumentInput['unit'],
+    outputMode: i.outputMode,
+    cutoffMode: i.cutoffMode,
+    cutoffValue: i.cutoffValue,
+    tolerancePct: i.tolerancePct,
+    intervalDays: i.intervalDays,
+    primaryElement: i.primaryElement,
+    notes: i.notes,
+  };
+}
+
+/** Create or edit an instrument with the shared schema; the server's field errors appear in place. */
+export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: Instrument | null; onSaved: (i: Instrument) => void; onCancel: () => void }) {
+  const save = useSaveInstrument(instrument?.id ?? null);
+  const {
+    register,
+    handleSubmit,
+    setError,
+    formState: { errors, isSubmitting },
+  } = useForm<InstrumentInput>({ resolver: zodResolver(InstrumentInputSchema) as never, defaultValues: toInput(instrument) });
+  const onSubmit = handleSubmit(async (values) => {
+    try {
+      onSaved(await save.mutateAsync(values));
+    } catch (e) {
+      if (!isApiError(e)) return setError('root', { message: 'Something went wrong. Try again.' });
+      let placed = false;
+      for (const f of FIELDS) {
+        const m = e.fieldMessage(f);
+        if (m) {
+          setError(f, { message: m }, { shouldFocus: !placed });
+          placed = true;
+        }
+      }
+      if (!placed) setError('root', { message: e.message });
+    }
+  });
+  const num = { valueAsNumber: true } as const;
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-4 sm:grid-cols-2" aria-label={instrument ? `Edit ${instrument.tag}` : 'New instrument'}>
+      {errors.root?.message && (
+        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger sm:col-span-2">
+          {errors.root.message}
+        </div>
+      )}
+      <TextField label="Tag" error={errors.tag?.message} {...register('tag')} />
+      <SelectField label="Kind" options={INSTRUMENT_KINDS.map((k) => ({ value: k, label: KIND_LABELS[k] }))} error={errors.kind?.message} {...register('kind')} />
+      <TextField label="Service" error={errors.service?.message} {...register('service')} />
+      <TextField label="Location" error={errors.location?.message} {...register('location')} />
+      <TextField label="LRV" type="number" step="any" error={errors.lrv?.message} {...register('lrv', num)} />
+      <TextField label="URV" type="number" step="any" error={errors.urv?.message} {...register('urv', num)} />
+      <SelectField label="Unit" options={PRESSURE_UNIT_IDS.map((u) => ({ value: u, label: unitLabel(u) }))} error={errors.unit?.message} {...register('unit')} />
+      <SelectField label="Output" options={OUTPUT_MODES.map((m) => ({ value: m, label: OUTPUT_MODE_LABELS[m] }))} error={errors.outputMode?.message} {...register('outputMode')} />
+      <SelectField label="Low-flow cutoff" options={CUTOFF_MODES.map((m) => ({ value: m, label: CUTOFF_LABELS[m] }))} error={errors.cutoffMode?.message} {...register('cutoffMode')} />
+      <TextField label="Cutoff value (%)" type="number" step="any" error={errors.cutoffValue?.message} {...register('cutoffValue', num)} />
+      <TextField label="Tolerance (± % of span)" type="number" step="any" error={errors.tolerancePct?.message} {...register('tolerancePct', num)} />
+      <TextField label="Interval (days)" type="number" step="1" error={errors.intervalDays?.message} {...register('intervalDays', num)} />
+      <TextField label="Notes" className="sm:col-span-2" error={errors.notes?.message} {...register('notes')} />
+      <div className="flex justify-end gap-2 sm:col-span-2">
+        <Button variant="secondary" onClick={onCancel}>
+          Cancel
+        </Button>
+        <Button type="submit" loading={isSubmitting}>
+          {instrument ? 'Save changes' : 'Add instrument'}
+        </Button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,109 @@
+import { Link } from 'react-router';
+import type { TrimPlan } from '../../../../shared/calc';
+import type { Run } from '../../../../shared/schemas/runs';
+import { Badge } from '../../../components/ui/badge';
+import { Button } from '../../../components/ui/button';
+import { formatNumber } from '../../../lib/format';
+
+const TRIM_LABEL: Record<string, string> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
+
+/** Captured readings of the trim runs of one kind, in order: the first is "before", the last "after". */
+export function trimReadings(runs: readonly Run[], kind: string): { before: Run['points'][number] | undefined; after: Run['points'][number] | undefined; runs: Run[] } {
+  const mine = runs.filter((r) => r.kind === 'trim' && r.trim === kind).sort((a, b) => a.startedAt.localeCompare(b.startedAt));
+  const captured = mine.flatMap((r) => r.points.filter((p) => p.capture));
+  return { before: captured[0], after: captured.length > 1 ? captured.at(-1) : undefined, runs: mine };
+}
+
+/**
+ * Guides the trims for the output mode (shared/calc `trimPlan`): a lower trim at 10 % flow
+ * (1 % DP) and a span trim at 100 % for a root in the transmitter — never a zero trim there —
+ * and zero and span trims otherwise. Each trim is a short run that captures the reading live.
+ */
+export function TrimPanel({
+  plan,
+  runs,
+  unitLabel,
+  dpDecimals,
+  canStart,
+  onStart,
+  starting,
+  rooted,
+}: {
+  plan: TrimPlan;
+  runs: readonly Run[];
+  unitLabel: string;
+  dpDecimals: number;
+  canStart: boolean;
+  onStart: (kind: 'zero-trim' | 'lower-trim' | 'span-trim') => void;
+  starting: string | null;
+  rooted: boolean;
+}) {
+  return (
+    <div className="flex flex-col gap-3">
+      {rooted && (
+        <p className="text-sm text-ink-muted">
+          The square root is taken in the transmitter: trim the lower point at 10 % flow (1 % DP), not at zero — at 0 % DP the root&apos;s gain has no bound and the low-flow cutoff holds the output at 4 mA.
+        </p>
+      )}
+      {plan.warnings.map((w) => (
+        <p key={w} className="text-sm font-medium text-warn">
+          Note: {w}
+        </p>
+      ))}
+      <ol className="grid gap-3 md:grid-cols-2">
+        {plan.steps.map((s, i) => {
+          const r = trimReadings(runs, s.kind);
+          const open = r.runs.find((x) => x.status === 'running' || x.status === 'paused');
+          const done = r.runs.some((x) => x.status === 'complete');
+          const err = (ma: number) => ((ma - s.expectedMa) / 16) * 100;
+          return (
+            <li key={s.kind} className="rounded-md border border-line p-4" data-testid={`trim-${s.kind}`}>
+              <div className="flex items-start justify-between gap-2">
+                <p className="font-semibold text-ink">
+                  <span className="num text-ink-faint">{i + 1}.</span> {TRIM_LABEL[s.kind]}
+                </p>
+                {done ? <Badge tone="ok">Captured</Badge> : <Badge>Not yet</Badge>}
+              </div>
+              <p className="mt-1 text-sm text-ink-muted">
+                Apply <span className="num text-ink">{formatNumber(s.targetDp, dpDecimals)}</span> {unitLabel} (<span className="num">{formatNumber(s.dpPct, 2)} % DP</span>
+                {s.flowPct !== undefined && (
+                  <>
+                    , <span className="num">{formatNumber(s.flowPct, 2)} % flow</span>
+                  </>
+                )}
+                ); trim until the output reads <span className="num text-ink">{formatNumber(s.expectedMa, 3)} mA</span>.
+              </p>
+              <dl className="mt-3 grid grid-cols-2 gap-2 text-sm">
+                <div className="rounded bg-sunken px-3 py-2">
+                  <dt className="text-xs text-ink-muted">Before</dt>
+                  <dd className="num text-lg text-ink" data-testid={`trim-before-${s.kind}`}>
+                    {r.before?.capture ? `${formatNumber(r.before.capture.measuredMa, 4)} mA` : '—'}
+                  </dd>
+                  {r.before?.capture && <dd className="num text-xs text-ink-muted">{formatNumber(err(r.before.capture.measuredMa), 3)} % span</dd>}
+                </div>
+                <div className="rounded bg-sunken px-3 py-2">
+                  <dt className="text-xs text-ink-muted">After</dt>
+                  <dd className="num text-lg text-ink" data-testid={`trim-after-${s.kind}`}>
+                    {r.after?.capture ? `${formatNumber(r.after.capture.measuredMa, 4)} mA` : '—'}
+                  </dd>
+                  {r.after?.capture && <dd className="num text-xs text-ink-muted">{formatNumber(err(r.after.capture.measuredMa), 3)} % span</dd>}
+                </div>
+              </dl>
+              <div className="mt-3">
+                {open ? (
+                  <Link to={`/runs/${open.id}`} className="text-sm font-medium text-accent underline-offset-2 hover:underline">
+                    Open the capture screen
+                  </Link>
+                ) : (
+                  <Button size="sm" variant={done ? 'secondary' : 'primary'} disabled={!canStart} loading={starting === s.kind} onClick={() => onStart(s.kind)} data-testid={`start-${s.kind}`}>
+                    {done ? `Capture ${TRIM_LABEL[s.kind]?.toLowerCase()} again` : `Start ${TRIM_LABEL[s.kind]?.toLowerCase()}`}
+                  </Button>
+                )}
+              </div>
+            </li>
+          );
+        })}
+      </ol>
+    </div>
+  );
+}

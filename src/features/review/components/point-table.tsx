@@ -1,0 +1,76 @@
+import type { Run } from '../../../../shared/schemas/runs';
+import { Badge } from '../../../components/ui/badge';
+import { cn } from '../../../lib/cn';
+import { formatNumber } from '../../../lib/format';
+import { DECISION_LABELS, DECISION_TONES, pointsWithResults } from '../lib/results';
+
+export interface PointTableProps {
+  run: Run;
+  selectedIndex: number | null;
+  onSelect: (index: number) => void;
+}
+
+/** Every point of a run with its capture, result, uncertainty and decision; a row opens its trace. */
+export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
+  const rows = pointsWithResults(run);
+  return (
+    <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+      <table className="w-full border-collapse text-sm" aria-label={`Points of the ${run.kind} run`}>
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+          <tr>
+            <th className="px-3 py-2">Point</th>
+            <th className="px-3 py-2 text-right">Applied ({run.unit})</th>
+            <th className="px-3 py-2 text-right">Current (mA)</th>
+            <th className="px-3 py-2 text-right">Expected (mA)</th>
+            <th className="px-3 py-2 text-right">Error (% span)</th>
+            <th className="px-3 py-2 text-right">U, k=2 (% span)</th>
+            <th className="px-3 py-2 text-right">TUR</th>
+            <th className="px-3 py-2">Decision</th>
+            <th className="px-3 py-2">Flags</th>
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map(({ point: p, result: r }) => (
+            <tr
+              key={p.index}
+              aria-selected={p.index === selectedIndex}
+              className={cn('border-t border-line', p.index === selectedIndex ? 'bg-accent-soft' : 'hover:bg-sunken/50')}
+            >
+              <td className="px-3 py-2 whitespace-nowrap">
+                <button
+                  type="button"
+                  onClick={() => onSelect(p.index)}
+                  disabled={!p.capture}
+                  data-testid={`point-${p.index}`}
+                  className="rounded font-medium text-accent underline-offset-2 hover:underline focus-visible:outline-2 focus-visible:outline-focus disabled:text-ink-faint disabled:no-underline"
+                >
+                  <span className="num">
+                    {p.index + 1}. {formatNumber(p.nominalPct, 2)} % {p.basis === 'flow' ? 'flow' : 'DP'} {p.approach === 'up' ? '↑' : '↓'}
+                  </span>
+                </button>
+              </td>
+              <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.appliedDp, 4) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{formatNumber(r?.expectedMa ?? p.expectedMa, 4)}</td>
+              <td className="num px-3 py-2 text-right">{r ? formatNumber(r.errorPctSpan, 3) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{r?.expandedUncertaintyPctSpan != null ? formatNumber(r.expandedUncertaintyPctSpan, 3) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{r?.tur != null ? formatNumber(r.tur, 1) : '—'}</td>
+              <td className="px-3 py-2">{r ? <Badge tone={DECISION_TONES[r.decision] ?? 'neutral'}>{DECISION_LABELS[r.decision] ?? r.decision}</Badge> : '—'}</td>
+              <td className="px-3 py-2">
+                <div className="flex flex-wrap gap-1">
+                  {p.flags.map((f) => (
+                    <Badge key={f} tone={f === 'leak' ? 'danger' : 'warn'}>
+                      {f}
+                    </Badge>
+                  ))}
+                  {p.capture?.manualReason && <span className="text-xs text-ink-muted">“{p.capture.manualReason}”</span>}
+                  {p.warning && <span className="text-xs text-warn">{p.warning}</span>}
+                </div>
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}

@@ -1,0 +1,68 @@
+import { z } from 'zod';
+import type { Run, RunPoint } from '../../../../shared/schemas/runs';
+
+/** The parts of shared/calc's EvaluateOutput the review shows; anything else is ignored. */
+const PointResultSchema = z.object({
+  nominalPct: z.number(),
+  direction: z.enum(['up', 'down']),
+  appliedDp: z.number(),
+  measuredMa: z.number(),
+  expectedMa: z.number(),
+  errorPctSpan: z.number(),
+  expandedUncertaintyPctSpan: z.number().nullable(),
+  tur: z.number().nullable(),
+  decision: z.string(),
+  acceptanceLimitPctSpan: z.number(),
+});
+const ResultsSchema = z.object({
+  points: z.array(PointResultSchema),
+  maxHysteresisPctSpan: z.number().nullable().optional(),
+  overallDecision: z.string(),
+});
+export type PointResult = z.infer<typeof PointResultSchema>;
+export type RunResults = z.infer<typeof ResultsSchema>;
+
+export function parseResults(run: Run): RunResults | null {
+  const r = ResultsSchema.safeParse(run.results);
+  return r.success ? r.data : null;
+}
+
+/** Each planned point with its result (results are computed over the captured points, in order). */
+export function pointsWithResults(run: Run): Array<{ point: RunPoint; result: PointResult | null }> {
+  const results = parseResults(run);
+  let k = 0;
+  return run.points.map((point) => ({ point, result: point.capture && results ? (results.points[k++] ?? null) : null }));
+}
+
+export const DECISION_LABELS: Record<string, string> = {
+  pass: 'Pass',
+  'conditional-pass': 'Conditional pass',
+  'conditional-fail': 'Conditional fail',
+  fail: 'Fail',
+};
+export const DECISION_TONES: Record<string, 'ok' | 'warn' | 'danger' | 'neutral'> = {
+  pass: 'ok',
+  'conditional-pass': 'warn',
+  'conditional-fail': 'warn',
+  fail: 'danger',
+};
+
+export const RUN_KIND_LABELS: Record<string, string> = { 'mode-check': 'Mode check', 'as-found': 'As-found', trim: 'Trim', 'as-left': 'As-left' };
+
+/** The window a lead looks at for one point: from the end of the previous hold (the approach) to just after its own hold. */
+export function pointWindow(run: Run, index: number): { from: number; to: number } | null {
+  const p = run.points[index];
+  if (!p?.capture) return null;
+  const prev = run.points
+    .slice(0, index)
+    .reverse()
+    .find((x) => x.capture);
+  const from = prev?.capture ? prev.capture.endMs : p.capture.startMs - 60_000;
+  return { from: from - 1000, to: p.capture.endMs + 5000 };
+}
+
+/** The run the review opens first: the first completed as-found run, else the first completed run. */
+export function defaultRunId(runs: ReadonlyArray<{ id: string; kind: string; status: string }>): string | null {
+  const done = runs.filter((r) => r.status === 'complete');
+  return (done.find((r) => r.kind === 'as-found') ?? done[0])?.id ?? null;
+}

@@ -1,0 +1,104 @@
+import type { RunPoint } from '../../../../shared/schemas/runs';
+import { Badge } from '../../../components/ui/badge';
+import { cn } from '../../../lib/cn';
+import { formatNumber } from '../../../lib/format';
+import { nominalWords } from '../lib/live-values';
+import type { RunResults } from '../lib/results';
+import { STATE_LABEL } from './current-point';
+
+/** Every point of the run with its state, flags and captured values; redo on captured points. */
+export function PointList({
+  points,
+  currentIndex,
+  results,
+  dpDecimals,
+  canAct,
+  onRedo,
+  rooted,
+}: {
+  points: readonly RunPoint[];
+  currentIndex: number | null;
+  results: RunResults | null;
+  dpDecimals: number;
+  canAct: boolean;
+  onRedo: (index: number) => void;
+  rooted: boolean;
+}) {
+  return (
+    <div className="overflow-hidden rounded-card border border-line bg-surface shadow-card">
+      <table className="w-full text-sm" aria-label="Points">
+        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted uppercase">
+          <tr>
+            <th scope="col" className="px-3 py-2">
+              Point
+            </th>
+            <th scope="col" className="px-3 py-2">
+              State
+            </th>
+            <th scope="col" className="px-3 py-2 text-right">
+              mA
+            </th>
+            <th scope="col" className="px-3 py-2 text-right whitespace-nowrap" title={rooted ? 'Error, % of flow span' : 'Error, % of span'}>
+              Error %
+            </th>
+            <th scope="col" className="px-2 py-2">
+              <span className="sr-only">Actions</span>
+            </th>
+          </tr>
+        </thead>
+        <tbody>
+          {points.map((p) => {
+            const current = p.index === currentIndex && p.state !== 'captured';
+            const r = results?.points.find((x) => x.index === p.index);
+            const err = r ? r.errorPctSpan : p.capture ? ((p.capture.measuredMa - p.expectedMa) / 16) * 100 : null;
+            return (
+              <tr
+                key={p.index}
+                data-testid={`point-row-${p.index}`}
+                data-state={p.state}
+                aria-current={current ? 'step' : undefined}
+                className={cn('border-t border-line', current && 'bg-accent-soft/50')}
+              >
+                <td className="px-3 py-2">
+                  <div className="flex items-center gap-2">
+                    <span className={cn('num w-5 text-right text-ink-faint', current && 'text-accent')}>{p.index + 1}</span>
+                    <span className="num font-medium text-ink">{nominalWords(p)}</span>
+                    <span aria-label={p.approach === 'up' ? 'from below' : 'from above'} className="text-ink-muted">
+                      {p.approach === 'up' ? '↑' : '↓'}
+                    </span>
+                  </div>
+                  <div className="num pl-7 text-xs text-ink-faint">{formatNumber(p.targetDp, dpDecimals)}</div>
+                </td>
+                <td className="px-3 py-2">
+                  <div className="flex flex-wrap gap-1">
+                    <Badge tone={p.state} dot>
+                      {STATE_LABEL[p.state]}
+                    </Badge>
+                    {p.flags.map((f) => (
+                      <Badge key={f} tone={f} className="uppercase" >
+                        {f}
+                      </Badge>
+                    ))}
+                  </div>
+                </td>
+                <td className="num px-3 py-2 text-right" data-testid={`point-ma-${p.index}`}>
+                  {p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}
+                </td>
+                <td className={cn('num px-3 py-2 text-right', r && r.decision !== 'pass' && 'text-danger')} data-testid={`point-error-${p.index}`}>
+                  {err === null ? '—' : `${err >= 0 ? '+' : '−'}${formatNumber(Math.abs(err), 3)}`}
+                </td>
+                <td className="px-2 py-2 text-right">
+                  {p.state === 'captured' && canAct && (
+                    <button type="button" onClick={() => onRedo(p.index)} className="rounded px-2 py-1 text-xs font-medium text-accent hover:bg-sunken" data-testid={`redo-${p.index}`}>
+                      Redo
+                    </button>
+                  )}
+                </td>
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
+  );
+}

@@ -1,0 +1,88 @@
+import { Badge, type BadgeTone } from '../../../components/ui/badge';
+import { formatNumber } from '../../../lib/format';
+import { nominalWords } from '../lib/live-values';
+import { hysteresisAt, type RunResults } from '../lib/results';
+
+export const DECISION: Record<string, { label: string; tone: BadgeTone }> = {
+  pass: { label: 'Pass', tone: 'ok' },
+  'conditional-pass': { label: 'Conditional pass', tone: 'warn' },
+  'conditional-fail': { label: 'Conditional fail', tone: 'danger' },
+  fail: { label: 'Fail', tone: 'danger' },
+};
+
+const signed = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : `${v >= 0 ? '+' : '−'}${formatNumber(Math.abs(v), d)}`);
+const plain = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : formatNumber(v, d));
+
+/** Per-point results of a run: applied DP and flow, expected and measured current, error, hysteresis, U, TUR, decision. */
+export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, testId }: { results: RunResults; unitLabel: string; rooted: boolean; dpDecimals: number; caption: string; testId?: string }) {
+  const overall = results.overallDecision ? DECISION[results.overallDecision] : undefined;
+  return (
+    <div className="flex flex-col gap-2" data-testid={testId}>
+      <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+        <table className="w-full border-collapse text-sm">
+          <caption className="sr-only">{caption}</caption>
+          <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted uppercase">
+            <tr>
+              <th scope="col" className="px-3 py-2 text-left">Point</th>
+              <th scope="col" className="px-3 py-2 text-right">Applied DP ({unitLabel})</th>
+              {rooted && <th scope="col" className="px-3 py-2 text-right">Applied flow %</th>}
+              <th scope="col" className="px-3 py-2 text-right">Expected mA</th>
+              <th scope="col" className="px-3 py-2 text-right">Measured mA</th>
+              <th scope="col" className="px-3 py-2 text-right">Error % {rooted ? 'flow span' : 'span'}</th>
+              <th scope="col" className="px-3 py-2 text-right">Hysteresis %</th>
+              <th scope="col" className="px-3 py-2 text-right">U (k=2) %</th>
+              <th scope="col" className="px-3 py-2 text-right">TUR</th>
+              <th scope="col" className="px-3 py-2 text-left">Decision</th>
+            </tr>
+          </thead>
+          <tbody>
+            {results.points.map((p) => {
+              const d = DECISION[p.decision] ?? { label: p.decision, tone: 'neutral' as const };
+              const h = p.direction === 'down' ? null : hysteresisAt(results, p.nominalPct);
+              return (
+                <tr key={p.index} className="border-t border-line" data-testid={`result-row-${p.index}`}>
+                  <td className="px-3 py-2 whitespace-nowrap">
+                    <span className="num">{nominalWords({ nominalPct: p.nominalPct, basis: p.basis ?? (rooted ? 'flow' : 'dp') })}</span> <span className="text-ink-muted">{p.direction === 'up' ? '↑' : '↓'}</span>
+                  </td>
+                  <td className="num px-3 py-2 text-right">{plain(p.appliedDp, dpDecimals)}</td>
+                  {rooted && <td className="num px-3 py-2 text-right">{plain(p.appliedFlowPct, 3)}</td>}
+                  <td className="num px-3 py-2 text-right">{plain(p.expectedMa, 4)}</td>
+                  <td className="num px-3 py-2 text-right" data-testid={`result-ma-${p.index}`}>{plain(p.measuredMa, 4)}</td>
+                  <td className="num px-3 py-2 text-right" data-testid={`result-error-${p.index}`}>{signed(p.errorPctSpan, 3)}</td>
+                  <td className="num px-3 py-2 text-right">{plain(h, 3)}</td>
+                  <td className="num px-3 py-2 text-right">{plain(p.expandedUncertaintyPctSpan, 3)}</td>
+                  <td className="num px-3 py-2 text-right">{p.tur === null || p.tur === undefined ? '—' : `${formatNumber(p.tur, 1)}:1`}</td>
+                  <td className="px-3 py-2" data-testid={`result-decision-${p.index}`} data-decision={p.decision}>
+                    <Badge tone={d.tone}>{d.label}</Badge>
+                  </td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
+      <p className="flex flex-wrap items-center gap-x-4 gap-y-1 text-sm text-ink-muted">
+        <span>
+          Overall:{' '}
+          {overall ? (
+            <Badge tone={overall.tone} dot className="text-sm" >
+              <span data-testid="overall-decision" data-decision={results.overallDecision ?? ''}>{overall.label}</span>
+            </Badge>
+          ) : (
+            '—'
+          )}
+        </span>
+        {results.worstError && (
+          <span>
+            Worst error <span className="num text-ink">{signed(results.worstError.errorPctSpan, 3)} %</span> at point <span className="num">{results.worstError.index + 1}</span>
+          </span>
+        )}
+        {results.maxHysteresisPctSpan !== null && results.maxHysteresisPctSpan !== undefined && (
+          <span>
+            Max hysteresis <span className="num text-ink">{formatNumber(results.maxHysteresisPctSpan, 3)} %</span>
+          </span>
+        )}
+      </p>
+    </div>
+  );
+}

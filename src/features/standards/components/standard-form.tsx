@@ -1,0 +1,73 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
+import { STANDARD_KINDS, StandardInputSchema, type Standard, type StandardInput } from '../../../../shared/schemas/standards';
+import { Button } from '../../../components/ui/button';
+import { SelectField, TextField } from '../../../components/ui/field';
+import { isApiError } from '../../../lib/api-client';
+import { useSaveStandard } from '../api/get-standards';
+
+const FIELDS = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'accuracy.pctReading', 'accuracy.pctFullScale', 'accuracy.floor', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'] as const;
+
+function toInput(s: Standard | null): StandardInput {
+  if (!s) return { kind: 'pressure', description: '', serial: '', rangeMin: 0, rangeMax: 100, unit: 'kPa', accuracy: { pctReading: 0, pctFullScale: 0, floor: 0, certificateU: null, certificateK: null }, resolution: 0.001, certificateNo: '', calibratedOn: '', dueOn: '' };
+  const { kind, description, serial, rangeMin, rangeMax, unit, accuracy, resolution, certificateNo, calibratedOn, dueOn } = s;
+  return { kind, description, serial, rangeMin, rangeMax, unit, accuracy, resolution, certificateNo, calibratedOn, dueOn };
+}
+
+/** Create or edit a reference standard; server field errors appear next to their field. */
+export function StandardForm({ standard, onSaved, onCancel }: { standard: Standard | null; onSaved: (s: Standard) => void; onCancel: () => void }) {
+  const save = useSaveStandard(standard?.id ?? null);
+  const {
+    register,
+    handleSubmit,
+    setError,
+    formState: { errors, isSubmitting },
+  } = useForm<StandardInput>({ resolver: zodResolver(StandardInputSchema) as never, defaultValues: toInput(standard) });
+  const onSubmit = handleSubmit(async (values) => {
+    try {
+      onSaved(await save.mutateAsync(values));
+    } catch (e) {
+      if (!isApiError(e)) return setError('root', { message: 'Something went wrong. Try again.' });
+      let placed = false;
+      for (const f of FIELDS) {
+        const m = e.fieldMessage(f);
+        if (m) {
+          setError(f, { message: m }, { shouldFocus: !placed });
+          placed = true;
+        }
+      }
+      if (!placed) setError('root', { message: e.message });
+    }
+  });
+  const num = { valueAsNumber: true } as const;
+  return (
+    <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-4 sm:grid-cols-2" aria-label={standard ? `Edit ${standard.serial}` : 'New standard'}>
+      {errors.root?.message && (
+        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger sm:col-span-2">
+          {errors.root.message}
+        </div>
+      )}
+      <SelectField label="Kind" options={STANDARD_KINDS.map((k) => ({ value: k, label: k === 'pressure' ? 'Pressure reference' : 'Current meter' }))} error={errors.kind?.message} {...register('kind')} />
+      <TextField label="Serial number" error={errors.serial?.message} {...register('serial')} />
+      <TextField label="Description" className="sm:col-span-2" error={errors.description?.message} {...register('description')} />
+      <TextField label="Range minimum" type="number" step="any" error={errors.rangeMin?.message} {...register('rangeMin', num)} />
+      <TextField label="Range maximum" type="number" step="any" error={errors.rangeMax?.message} {...register('rangeMax', num)} />
+      <TextField label="Unit" error={errors.unit?.message} {...register('unit')} />
+      <TextField label="Resolution" type="number" step="any" error={errors.resolution?.message} {...register('resolution', num)} />
+      <TextField label="Accuracy, % of reading" type="number" step="any" error={errors.accuracy?.pctReading?.message} {...register('accuracy.pctReading', num)} />
+      <TextField label="Accuracy, % of full scale" type="number" step="any" error={errors.accuracy?.pctFullScale?.message} {...register('accuracy.pctFullScale', num)} />
+      <TextField label="Accuracy floor (unit)" type="number" step="any" error={errors.accuracy?.floor?.message} {...register('accuracy.floor', num)} />
+      <TextField label="Certificate number" error={errors.certificateNo?.message} {...register('certificateNo')} />
+      <TextField label="Calibrated on" type="date" error={errors.calibratedOn?.message} {...register('calibratedOn')} />
+      <TextField label="Due on" type="date" error={errors.dueOn?.message} {...register('dueOn')} />
+      <div className="flex justify-end gap-2 sm:col-span-2">
+        <Button variant="secondary" onClick={onCancel}>
+          Cancel
+        </Button>
+        <Button type="submit" loading={isSubmitting}>
+          {standard ? 'Save changes' : 'Add standard'}
+        </Button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,340 @@
+/**
+ * The page's only WebSocket: `/ws` with the session cookie. Reconnects with exponential backoff
+ * and resumes with `?since=<last seq>`, so no message is lost across a drop; drops duplicates by
+ * sequence number; checks every message against `StreamMessageSchema`; pushes samples into the
+ * live-sample store and updates or invalidates TanStack Query caches on point and run events.
+ */
+import type { QueryClient } from '@tanstack/react-query';
+import { useEffect, useSyncExternalStore } from 'react';
+import type { Run } from '../../shared/schemas/runs';
+import { StreamMessageSchema, type ClientMessage, type StreamMessage } from '../../shared/schemas/stream';
+import { liveSamples, type LiveSampleStore } from '../stores/live-samples';
+import { useLiveRun } from '../stores/live-run';
+import { queryKeys } from './query-keys';
+
+export type LiveStatus = 'idle' | 'connecting' | 'open' | 'reconnecting' | 'closed';
+
+/** The part of the browser WebSocket we use (a fake one in tests). */
+export interface SocketLike {
+  readyState: number;
+  onopen: ((ev: unknown) => void) | null;
+  onmessage: ((ev: { data: unknown }) => void) | null;
+  onclose: ((ev: unknown) => void) | null;
+  onerror: ((ev: unknown) => void) | null;
+  send(data: string): void;
+  close(code?: number, reason?: string): void;
+}
+
+export interface LiveStreamOptions {
+  /** Builds the socket; default `new WebSocket(url)`. */
+  createSocket?: (url: string) => SocketLike;
+  /** Base URL of the stream; default ws(s)://<this host>/ws. */
+  baseUrl?: () => string;
+  /** First reconnect delay, ms. Default 500 ms. */
+  initialBackoffMs?: number;
+  /** Longest reconnect delay, ms. Default 10 s. */
+  maxBackoffMs?: number;
+  /** 0–1 random spread added to each delay (avoids a thundering herd). Default 0.2. */
+  jitter?: number;
+  /** Timers (fake ones in tests). */
+  setTimer?: (cb: () => void, ms: number) => unknown;
+  clearTimer?: (handle: unknown) => void;
+  random?: () => number;
+}
+
+const OPEN = 1;
+
+function defaultBaseUrl(): string {
+  const { protocol, host } = window.location;
+  return `${protocol === 'https:' ? 'wss:' : 'ws:'}//${host}/ws`;
+}
+
+/** Reconnect delay for the n-th consecutive failure (n ≥ 1), before jitter. */
+export function backoffDelay(n: number, initialMs: number, maxMs: number): number {
+  return Math.min(maxMs, initialMs * 2 ** Math.max(0, n - 1));
+}
+
+export class LiveStream {
+  private socket: SocketLike | null = null;
+  private status: LiveStatus = 'idle';
+  private users = 0;
+  private failures = 0;
+  private reconnectTimer: unknown = null;
+  private heartbeatTimer: unknown = null;
+  private heartbeatMs = 0;
+  private watching: string | null = null;
+  private readonly listeners = new Set<(m: StreamMessage) => void>();
+  private readonly statusListeners = new Set<() => void>();
+  private readonly opts: Required<LiveStreamOptions>;
+  /** Sequence number of the last message handled; the resume point. */
+  lastSeq: number | null = null;
+  /** Messages that failed the contract (counted, not thrown). */
+  rejected = 0;
+
+  constructor(options: LiveStreamOptions = {}) {
+    this.opts = {
+      createSocket: options.createSocket ?? ((url) => new WebSocket(url) as unknown as SocketLike),
+      baseUrl: options.baseUrl ?? defaultBaseUrl,
+      initialBackoffMs: options.initialBackoffMs ?? 500,
+      maxBackoffMs: options.maxBackoffMs ?? 10_000,
+      jitter: options.jitter ?? 0.2,
+      setTimer: options.setTimer ?? ((cb, ms) => setTimeout(cb, ms)),
+      clearTimer: options.clearTimer ?? ((h) => clearTimeout(h as ReturnType<typeof setTimeout>)),
+      random: options.random ?? Math.random,
+    };
+  }
+
+  getStatus = (): LiveStatus => this.status;
+
+  subscribeStatus = (l: () => void): (() => void) => {
+    this.statusListeners.add(l);
+    return () => this.statusListeners.delete(l);
+  };
+
+  /** Listen to every accepted message, in sequence order. */
+  subscribe(listener: (m: StreamMessage) => void): () => void {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
+  }
+
+  /** Reference-counted connection: connects on the first user, closes after the last. */
+  acquire(): () => void {
+    this.users += 1;
+    if (this.users === 1) this.connect();
+    let released = false;
+    return () => {
+      if (released) return;
+      released = true;
+      this.users -= 1;
+      if (this.users === 0) this.shutdown();
+    };
+  }
+
+  /** Ask the server for a run's point and warning events (re-sent after every reconnect). */
+  watch(runId: string | null): void {
+    this.watching = runId;
+    this.send({ type: 'watch', runId });
+  }
+
+  /** Sends a client message when open; false when it could not be sent now. */
+  send(message: ClientMessage): boolean {
+    if (!this.socket || this.socket.readyState !== OPEN) return false;
+    this.socket.send(JSON.stringify(message));
+    return true;
+  }
+
+  /** URL of the next connection: resumes after the last handled message. */
+  url(): string {
+    const base = this.opts.baseUrl();
+    return this.lastSeq === null ? base : `${base}?since=${this.lastSeq}`;
+  }
+
+  private setStatus(s: LiveStatus): void {
+    if (this.status === s) return;
+    this.status = s;
+    for (const l of [...this.statusListeners]) l();
+  }
+
+  private connect(): void {
+    this.clearReconnect();
+    this.setStatus(this.failures > 0 ? 'reconnecting' : 'connecting');
+    let socket: SocketLike;
+    try {
+      socket = this.opts.createSocket(this.url());
+    } catch {
+      this.scheduleReconnect();
+      return;
+    }
+    this.socket = socket;
+    socket.onopen = () => {
+      if (this.socket !== socket) return;
+      this.failures = 0;
+      this.setStatus('open');
+      if (this.watching) this.send({ type: 'watch', runId: this.watching });
+    };
+    socket.onmessage = (ev) => {
+      if (this.socket !== socket) return;
+      this.armHeartbeat();
+      this.handleRaw(ev.data);
+    };
+    socket.onerror = () => {
+      // onclose follows and schedules the reconnect.
+    };
+    socket.onclose = () => {
+      if (this.socket !== socket) return;
+      this.socket = null;
+      this.clearHeartbeat();
+      if (this.users > 0) this.scheduleReconnect();
+      else this.setStatus('closed');
+    };
+  }
+
+  private handleRaw(data: unknown): void {
+    let json: unknown;
+    try {
+      json = JSON.parse(typeof data === 'string' ? data : String(data));
+    } catch {
+      this.rejected += 1;
+      return;
+    }
+    const parsed = StreamMessageSchema.safeParse(json);
+    if (!parsed.success) {
+      this.rejected += 1;
+      return;
+    }
+    const m = parsed.data;
+    if (m.type === 'stream.opened') {
+      this.heartbeatMs = m.heartbeatMs;
+      this.armHeartbeat();
+    } else if (m.type !== 'stream.resynced') {
+      // A resumed connection may repeat what we already have; keep order, drop repeats.
+      if (this.lastSeq !== null && m.seq <= this.lastSeq) return;
+      this.lastSeq = m.seq;
+    } else {
+      this.lastSeq = m.seq;
+    }
+    for (const l of [...this.listeners]) l(m);
+  }
+
+  /** No message (heartbeats included) for 2.5 heartbeats: the connection is dead; reconnect. */
+  private armHeartbeat(): void {
+    this.clearHeartbeat();
+    if (!(this.heartbeatMs > 0)) return;
+    this.heartbeatTimer = this.opts.setTimer(() => {
+      const s = this.socket;
+      if (!s) return;
+      this.socket = null;
+      try {
+        s.close(4000, 'heartbeat missed');
+      } catch {
+        // already closed
+      }
+      if (this.users > 0) this.scheduleReconnect();
+    }, this.heartbeatMs * 2.5);
+  }
+
+  private clearHeartbeat(): void {
+    if (this.heartbeatTimer !== null) this.opts.clearTimer(this.heartbeatTimer);
+    this.heartbeatTimer = null;
+  }
+
+  private scheduleReconnect(): void {
+    this.failures += 1;
+    this.setStatus('reconnecting');
+    const base = backoffDelay(this.failures, this.opts.initialBackoffMs, this.opts.maxBackoffMs);
+    const delay = base * (1 + this.opts.jitter * this.opts.random());
+    this.clearReconnect();
+    this.reconnectTimer = this.opts.setTimer(() => {
+      this.reconnectTimer = null;
+      if (this.users > 0) this.connect();
+    }, delay);
+  }
+
+  private clearReconnect(): void {
+    if (this.reconnectTimer !== null) this.opts.clearTimer(this.reconnectTimer);
+    this.reconnectTimer = null;
+  }
+
+  private shutdown(): void {
+    this.clearReconnect();
+    this.clearHeartbeat();
+    const s = this.socket;
+    this.socket = null;
+    this.failures = 0;
+    s?.close(1000, 'done');
+    this.setStatus('closed');
+  }
+}
+
+/**
+ * Applies stream messages to the client's state: samples to the ring buffers, warnings and hold
+ * progress to the live-run store, point and run events to the TanStack Query caches.
+ */
+export function applyStreamMessage(m: StreamMessage, queryClient: QueryClient, samples: LiveSampleStore = liveSamples): void {
+  const live = useLiveRun.getState();
+  switch (m.type) {
+    case 'sample.received':
+      if (samples.bench !== null && m.benchId !== samples.bench) return;
+      samples.push(m.device, m.wallMs, m.value, m.unit);
+      return;
+    case 'point.changed':
+      live.pointChanged(m);
+      queryClient.setQueryData<Run>(queryKeys.run(m.runId), (run) =>
+        run
+          ? {
+              ...run,
+              currentIndex: m.state === 'captured' ? run.currentIndex : m.index,
+              points: run.points.map((p) => (p.index === m.index ? { ...p, state: m.state, flags: m.flags } : p)),
+            }
+          : run,
+      );
+      return;
+    case 'point.captured':
+      live.captured(m.runId, m.index);
+      void queryClient.invalidateQueries({ queryKey: queryKeys.run(m.runId) });
+      return;
+    case 'run.warned':
+      live.warned({ kind: m.kind, runId: m.runId, index: m.index, message: m.message, ratePctSpanPerMin: m.ratePctSpanPerMin });
+      queryClient.setQueryData<Run>(queryKeys.run(m.runId), (run) =>
+        run ? { ...run, points: run.points.map((p) => (p.index === m.index ? { ...p, warning: m.message } : p)) } : run,
+      );
+      return;
+    case 'run.changed':
+      queryClient.setQueryData<Run>(queryKeys.run(m.runId), (run) => (run ? { ...run, status: m.status, currentIndex: m.currentIndex } : run));
+      void queryClient.invalidateQueries({ queryKey: queryKeys.run(m.runId) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.jobs });
+      return;
+    case 'device.connected':
+      live.device(m.device, { connected: true, path: m.path, reason: null, at: m.at });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
+      return;
+    case 'device.disconnected':
+      live.device(m.device, { connected: false, path: m.path, reason: m.reason, at: m.at });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
+      return;
+    case 'stream.resynced':
+      // The server no longer has what we missed: refetch all live server state.
+      void queryClient.invalidateQueries({ queryKey: queryKeys.runs });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.jobs });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
+      return;
+    case 'stream.opened':
+      return;
+  }
+}
+
+let singleton: LiveStream | null = null;
+let boundClient: QueryClient | null = null;
+let unbind: (() => void) | null = null;
+
+/** The page's one stream. */
+export function getLiveStream(): LiveStream {
+  singleton ??= new LiveStream();
+  return singleton;
+}
+
+/** Routes the stream's messages into `queryClient` (once per client). */
+function bindQueryClient(stream: LiveStream, queryClient: QueryClient): void {
+  if (boundClient === queryClient) return;
+  unbind?.();
+  boundClient = queryClient;
+  unbind = stream.subscribe((m) => applyStreamMessage(m, queryClient));
+}
+
+/**
+ * Keeps the live stream open while the calling component is mounted; with `runId`, asks for
+ * that run's events. Returns the connection status.
+ */
+export function useLiveStream(queryClient: QueryClient, runId?: string | null): LiveStatus {
+  const stream = getLiveStream();
+  useEffect(() => {
+    bindQueryClient(stream, queryClient);
+    return stream.acquire();
+  }, [stream, queryClient]);
+  useEffect(() => {
+    if (runId === undefined) return;
+    stream.watch(runId);
+    return () => stream.watch(null);
+  }, [stream, runId]);
+  return useSyncExternalStore(stream.subscribeStatus, stream.getStatus, stream.getStatus);
+}

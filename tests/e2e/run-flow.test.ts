@@ -1,0 +1,199 @@
+import { mkdirSync } from 'node:fs';
+import path from 'node:path';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchBrowser, recordOffHostRequests } from '../helpers/browser';
+import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer } from '../helpers/test-server';
+
+/**
+ * The whole job in the browser, hands-free on the simulated rig (HOLD_SECONDS=2, autopilot):
+ * prepare FT-101 (square root in the transmitter), output-mode check, as-found with the sim
+ * transmitter out of tolerance, lower and span trims, as-left in tolerance, return to service,
+ * submit. Values and decisions on screen are checked against GET /api/runs/:id.
+ */
+const SCREENS = path.resolve(import.meta.dirname, '../../.tmp/screens');
+
+let server: TestServer;
+let browser: Browser;
+let admin: ApiClient;
+let tech: ApiClient;
+
+beforeAll(async () => {
+  server = await startTestServer({ env: { HOLD_SECONDS: '2' } });
+  browser = await launchBrowser();
+  admin = new ApiClient(server.url);
+  await admin.login(demoEmail('admin'));
+  tech = new ApiClient(server.url);
+  await tech.login(demoEmail('tech'));
+  mkdirSync(SCREENS, { recursive: true });
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+async function signIn(page: Page, who: 'tech' | 'admin') {
+  await page.goto(`${server.url}/login`);
+  await page.getByLabel('Email').fill(demoEmail(who));
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/queue$/);
+}
+
+async function sim(body: unknown) {
+  const r = await admin.post('/api/sim', body);
+  expect(r.status, JSON.stringify(r.body)).toBe(200);
+  return r.body;
+}
+
+/** Text of a numeral on screen as a number (our minus sign is U+2212). */
+async function numberIn(page: Page, testId: string): Promise<number> {
+  const t = (await page.getByTestId(testId).first().textContent()) ?? '';
+  return Number(t.replace('−', '-').replace(/[^0-9.+-]/g, ''));
+}
+
+/** Starts a run from the job page, drives it with the autopilot, waits for it to complete. */
+async function runHandsFree(page: Page, startTestId: string, timeoutMs = 240_000): Promise<string> {
+  await page.getByTestId(startTestId).click();
+  await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
+  const runId = page.url().split('/').pop()!;
+  await page.getByTestId('capture-screen').waitFor();
+  await sim({ autopilot: { speed: 4 } });
+  await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: timeoutMs });
+  return runId;
+}
+
+async function runJson(runId: string) {
+  const r = await tech.get(`/api/runs/${runId}`);
+  expect(r.status).toBe(200);
+  return r.body as {
+    status: string;
+    points: { index: number; state: string; capture: { measuredMa: number } | null }[];
+    results: { points: { index: number; measuredMa: number; errorPctSpan: number; decision: string }[]; overallDecision: string } | null;
+    modeCheck: { finding: string; matchesRegister: boolean } | null;
+  };
+}
+
+/** Every captured value and decision on screen equals the server's. */
+async function expectResultsMatch(page: Page, runId: string) {
+  const run = await runJson(runId);
+  expect(run.status).toBe('complete');
+  expect(run.results).not.toBeNull();
+  const table = page.getByTestId('run-results');
+  await table.waitFor();
+  for (const p of run.results!.points) {
+    expect(await numberIn(page, `result-ma-${p.index}`)).toBeCloseTo(p.measuredMa, 4);
+    expect(await numberIn(page, `result-error-${p.index}`)).toBeCloseTo(p.errorPctSpan, 3);
+    expect(await table.getByTestId(`result-decision-${p.index}`).getAttribute('data-decision')).toBe(p.decision);
+  }
+  expect(await page.getByTestId('overall-decision').first().getAttribute('data-decision')).toBe(run.results!.overallDecision);
+  return run;
+}
+
+describe('run flow (FT-101, rooted output)', () => {
+  it('prepares, checks the output mode, finds, trims, leaves and submits — hands-free', { timeout: 900_000 }, async () => {
+    const context = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const page = await context.newPage();
+    const offHost = recordOffHostRequests(page);
+    const pageErrors: string[] = [];
+    page.on('pageerror', (e) => pageErrors.push(e.message));
+    try {
+      await signIn(page, 'tech');
+      await page.getByTestId('job-link-FT-101').click();
+      await page.waitForURL(/\/jobs\/[0-9a-f-]+$/);
+      const jobId = page.url().split('/').pop()!;
+      const jobUrl = page.url();
+
+      // Preparation: an expired standard is refused with the server's reason, verbatim.
+      await page.getByRole('checkbox', { name: /Handheld loop meter/ }).check();
+      await page.getByRole('button', { name: 'Save standards' }).click();
+      await expect.poll(() => page.getByTestId('standard-problem').first().textContent()).toMatch(/^Cannot be used: calibration expired on /);
+      const prep = page.getByTestId('step-preparation');
+      expect(await prep.getByTestId('blockers').textContent()).toContain('Handheld loop meter (QDU-MM-0118): calibration expired on');
+
+      await page.getByRole('checkbox', { name: /Handheld loop meter/ }).uncheck();
+      await page.getByRole('checkbox', { name: /0–100 kPa module/ }).check();
+      await page.getByRole('checkbox', { name: /Bench multimeter/ }).check();
+      await page.getByRole('button', { name: 'Save standards' }).click();
+      await expect.poll(async () => (await prep.getByTestId('blockers').textContent()) ?? '').not.toContain('Choose a pressure reference standard');
+      await page.getByLabel('Permit-to-work number').fill('PTW-2291');
+      await page.getByRole('button', { name: 'Record permit' }).click();
+      for (const ack of ['ack-operators', 'ack-isolated', 'ack-vented', 'ack-flushed']) {
+        await page.getByTestId(ack).getByRole('button', { name: 'Confirm' }).click();
+        await page.locator(`[data-testid="${ack}"][data-done="true"]`).waitFor();
+      }
+      await page.locator('[data-testid="rail-preparation"][data-status="done"]').waitFor();
+      // The as-found run waits for the output-mode check.
+      expect(await page.getByTestId('step-as-found').getByTestId('blockers').textContent()).toContain('Run the output-mode check first');
+      await page.screenshot({ path: path.join(SCREENS, 'job-prepared-light.png'), fullPage: true });
+
+      // Output-mode check: 25 % DP reads 12 mA — root in the transmitter, as the register says.
+      const modeRunId = await runHandsFree(page, 'start-mode-check');
+      const finding = page.getByTestId('mode-check-finding');
+      expect(await finding.getAttribute('data-finding')).toBe('root-in-transmitter');
+      expect(await finding.getAttribute('data-matches')).toBe('true');
+      expect((await runJson(modeRunId)).modeCheck).toMatchObject({ finding: 'root-in-transmitter', matchesRegister: true });
+
+      // As-found with the transmitter out of tolerance (zero error 1.5 % of span; tolerance ±0.5 %).
+      await sim({ transmitter: { zeroErrorPct: 1.5, spanErrorPct: 0, outputNoiseMa: 0.001 } });
+      await page.goto(jobUrl);
+      await page.getByTestId('start-as-found').click();
+      await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
+      const asFoundId = page.url().split('/').pop()!;
+      await sim({ autopilot: { speed: 4 } });
+      // The capture screen while a point holds, in both themes.
+      await page.locator('[data-testid="current-point"][data-state="holding"]').waitFor({ timeout: 120_000 });
+      await page.screenshot({ path: path.join(SCREENS, 'capture-holding-light.png') });
+      await page.evaluate(() => document.documentElement.setAttribute('data-theme', 'bench'));
+      await page.screenshot({ path: path.join(SCREENS, 'capture-holding-bench.png') });
+      await page.evaluate(() => document.documentElement.setAttribute('data-theme', 'light'));
+      await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: 240_000 });
+      const found = await expectResultsMatch(page, asFoundId);
+      expect(found.results!.overallDecision).toBe('fail');
+      expect(found.points.every((p) => p.state === 'captured')).toBe(true);
+      await page.screenshot({ path: path.join(SCREENS, 'capture-complete-light.png'), fullPage: true });
+
+      // Decision on the job page, then the trims of a rooted output: lower trim at 10 % flow and span trim — no zero trim.
+      await page.goto(jobUrl);
+      await page.getByTestId('as-found-results').waitFor();
+      await page.getByTestId('error-chart').locator('canvas').waitFor();
+      expect(await page.getByTestId('trim-zero-trim').count()).toBe(0);
+      await page.getByTestId('trim-lower-trim').waitFor();
+      const lowerBefore = await runHandsFree(page, 'start-lower-trim');
+      // The "trim": the sim transmitter back in tolerance.
+      await sim({ transmitter: { zeroErrorPct: 0, spanErrorPct: 0 } });
+      await page.goto(jobUrl);
+      const lowerAfter = await runHandsFree(page, 'start-lower-trim');
+      await page.goto(jobUrl);
+      const spanTrim = await runHandsFree(page, 'start-span-trim');
+      await page.goto(jobUrl);
+      const before = (await runJson(lowerBefore)).points[0]!.capture!.measuredMa;
+      const after = (await runJson(lowerAfter)).points[0]!.capture!.measuredMa;
+      expect(await numberIn(page, 'trim-before-lower-trim')).toBeCloseTo(before, 4);
+      expect(await numberIn(page, 'trim-after-lower-trim')).toBeCloseTo(after, 4);
+      expect(Math.abs(after - 5.6)).toBeLessThan(Math.abs(before - 5.6));
+      expect((await runJson(spanTrim)).status).toBe('complete');
+
+      // As-left: in tolerance.
+      const asLeftId = await runHandsFree(page, 'start-as-left');
+      const left = await expectResultsMatch(page, asLeftId);
+      expect(left.results!.overallDecision).toBe('pass');
+
+      // Both on the error chart; return to service; submit.
+      await page.goto(jobUrl);
+      await page.getByTestId('as-left-results').waitFor();
+      await page.getByTestId('ack-returned').getByRole('button', { name: 'Confirm' }).click();
+      await page.locator('[data-testid="ack-returned"][data-done="true"]').waitFor();
+      await page.screenshot({ path: path.join(SCREENS, 'job-done-light.png'), fullPage: true });
+      await page.getByTestId('submit-job').click();
+      await page.getByTestId('submitted').waitFor();
+      expect((await tech.get(`/api/jobs/${jobId}`)).body.status).toBe('submitted');
+
+      expect(offHost).toEqual([]);
+      expect(pageErrors).toEqual([]);
+    } finally {
+      await context.close();
+    }
+  });
+});

@@ -1,0 +1,143 @@
+import { mkdirSync } from 'node:fs';
+import path from 'node:path';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchBrowser } from '../helpers/browser';
+import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer } from '../helpers/test-server';
+
+/**
+ * Warnings that cannot be missed, on the capture screen, against the simulated rig driven
+ * directly (no autopilot): a leak during a hold warns with its rate and blocks auto-capture; an
+ * overshoot on the approach asks for a re-approach from the correct side.
+ */
+const SCREENS = path.resolve(import.meta.dirname, '../../.tmp/screens');
+let server: TestServer;
+let browser: Browser;
+let admin: ApiClient;
+let tech: ApiClient;
+let jobId: string;
+
+beforeAll(async () => {
+  server = await startTestServer({ env: { HOLD_SECONDS: '6' } });
+  browser = await launchBrowser();
+  admin = new ApiClient(server.url);
+  await admin.login(demoEmail('admin'));
+  tech = new ApiClient(server.url);
+  await tech.login(demoEmail('tech'));
+  mkdirSync(SCREENS, { recursive: true });
+  const job = (await tech.get('/api/jobs')).body.items.find((j: { tag: string }) => j.tag === 'FT-101');
+  jobId = job.id;
+  const stds = (await tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
+  const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
+  const c = stds.find((s: { kind: string }) => s.kind === 'current');
+  const r = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-77', operatorsInformed: true, isolated: true, vented: true });
+  expect(r.body.blockers).toEqual([]);
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+async function sim(body: unknown) {
+  const r = await admin.post('/api/sim', body);
+  expect(r.status, JSON.stringify(r.body)).toBe(200);
+}
+
+async function openRun(page: Page, runId: string) {
+  await page.goto(`${server.url}/login`);
+  await page.getByLabel('Email').fill(demoEmail('tech'));
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/queue$/);
+  await page.goto(`${server.url}/runs/${runId}`);
+  await page.locator('[data-testid="stream-status"][data-status="open"]').waitFor();
+}
+
+async function startModeCheck(): Promise<string> {
+  const r = await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'mode-check' });
+  expect(r.status, JSON.stringify(r.body)).toBe(201);
+  return r.body.id;
+}
+
+const getRun = async (id: string) => (await tech.get(`/api/runs/${id}`)).body;
+
+describe('capture-screen warnings', () => {
+  it('warns at once on a leak during a hold, with the measured rate, and does not auto-capture', { timeout: 240_000 }, async () => {
+    await sim({ source: { leakPerMin: 0, overshoot: 0, noise: 0 }, setpoint: { value: 0 } });
+    const runId = await startModeCheck();
+    const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await context.newPage();
+    try {
+      await openRun(page, runId);
+      // Up to 25 % DP from below; the point settles and starts its hold.
+      await sim({ setpoint: { value: 25 } });
+      await page.locator('[data-testid="current-point"][data-state="holding"]').waitFor({ timeout: 60_000 });
+      // Leak: 2 inH2O/min on a 100 inH2O span = 2 % of span per minute, with the source isolated.
+      await sim({ source: { leakPerMin: 2 } });
+      const banner = page.getByTestId('warning-leak');
+      await banner.waitFor({ timeout: 30_000 });
+      expect(await banner.getAttribute('role')).toBe('alert');
+      const rate = Number((await page.getByTestId('leak-rate').textContent())!.replace('−', '-'));
+      // The detector's first estimate; the true rate is 2 % of span per minute.
+      expect(rate).toBeGreaterThan(0.1);
+      expect(rate).toBeLessThan(5);
+      await page.screenshot({ path: path.join(SCREENS, 'warning-leak.png') });
+
+      // Longer than the hold: still not captured while the leak lasts.
+      await page.waitForTimeout(8_000);
+      let run = await getRun(runId);
+      expect(run.points[0].state).not.toBe('captured');
+      expect(run.points[0].flags).toContain('leak');
+      expect(await page.getByTestId('current-point').getAttribute('data-state')).not.toBe('captured');
+      // The server's warning carries the same rate as the banner.
+      const serverRate = Number(/([0-9.]+) % of span per minute/.exec(run.points[0].warning ?? '')?.[1]);
+      expect(serverRate).toBeCloseTo(rate, 2);
+
+      // Manual capture needs a reason; the leak flag and rate stay on the record.
+      await page.keyboard.press('m');
+      const dialog = page.getByRole('dialog');
+      await dialog.getByRole('button', { name: 'Capture now' }).click();
+      await dialog.getByText('Give a reason of at least 5 characters').waitFor();
+      await dialog.getByLabel('Reason').fill('Leak at the manifold; captured to record the as-found state');
+      await dialog.getByRole('button', { name: 'Capture now' }).click();
+      await page.getByTestId('capture-flash').waitFor();
+      run = await getRun(runId);
+      expect(run.points[0].state).toBe('captured');
+      expect(run.points[0].flags).toEqual(expect.arrayContaining(['leak', 'manual']));
+      expect(run.points[0].capture.manualReason).toContain('Leak at the manifold');
+      expect(run.points[0].capture.leakRatePctSpanPerMin).not.toBeNull();
+      expect(Math.abs(run.points[0].capture.leakRatePctSpanPerMin)).toBeGreaterThan(0.1);
+    } finally {
+      await context.close();
+      await sim({ source: { leakPerMin: 0 } });
+      if ((await getRun(runId)).status === 'running') await tech.post(`/api/runs/${runId}/abort`);
+    }
+  });
+
+  it('asks for a re-approach from the correct side after an overshoot', { timeout: 240_000 }, async () => {
+    // Vent to below the point first, with no run active.
+    await sim({ source: { leakPerMin: 0, overshoot: 0 }, setpoint: { value: 10 } });
+    await new Promise((r) => setTimeout(r, 8_000));
+    const runId = await startModeCheck();
+    const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await context.newPage();
+    try {
+      await openRun(page, runId);
+      // Up to 25 with a 60 % overshoot of the step: the DP passes the target on the way up.
+      await sim({ setpoint: { value: 25, overshoot: 0.6 } });
+      const banner = page.getByTestId('warning-overshoot');
+      await banner.waitFor({ timeout: 30_000 });
+      const text = (await banner.textContent()) ?? '';
+      expect(text).toContain('Overshoot');
+      expect(text).toContain('Re-approach from below');
+      expect(await page.getByTestId('approach').textContent()).toContain('approach from below');
+      await page.screenshot({ path: path.join(SCREENS, 'warning-overshoot.png') });
+      const run = await getRun(runId);
+      expect(run.points[0].flags).toContain('overshoot');
+      await tech.post(`/api/runs/${runId}/abort`);
+    } finally {
+      await context.close();
+    }
+  });
+});
