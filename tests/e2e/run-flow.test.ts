@@ -48,9 +48,14 @@ async function sim(body: unknown) {
 }
 
 /** Text of a numeral on screen as a number (our minus sign is U+2212). */
-async function numberIn(page: Page, testId: string): Promise<number> {
-  const t = (await page.getByTestId(testId).first().textContent()) ?? '';
-  return Number(t.replace('−', '-').replace(/[^0-9.+-]/g, ''));
+/** The number shown in an element, once it shows one (results arrive with the run's last refetch). */
+async function numberIn(page: Page, testId: string, timeoutMs = 15_000): Promise<number> {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    const t = (await page.getByTestId(testId).first().textContent()) ?? '';
+    if (/\d/.test(t) || Date.now() > until) return Number(t.replace('−', '-').replace(/[^0-9.+-]/g, ''));
+    await page.waitForTimeout(100);
+  }
 }
 
 /** Starts a run from the job page, drives it with the autopilot, waits for it to complete. */
