@@ -40,6 +40,16 @@ export default defineConfig({
       },
       {
         test: {
+          name: 'proof',
+          environment: 'node',
+          include: ['tests/proof/**/*.test.ts'],
+          testTimeout: 600_000,
+          hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
+      {
+        test: {
           name: 'e2e',
           environment: 'node',
           include: ['tests/e2e/**/*.test.ts'],

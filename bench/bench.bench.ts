@@ -6,7 +6,9 @@
  *  2. sustained ingest into PGlite through the sample writer next to a PGlite COPY baseline;
  *  3. how many simulated benches (two devices at 10 readings/s each) one process sustains with
  *     storage and streaming at a hub → WebSocket p99 ≤ 50 ms;
- *  4. the live-path p99 while a heavy review query (the full trace of a long run) runs, vs idle.
+ *  4. the live-path p99 while a heavy review query (the full trace of a long run, requested from
+ *     another process as a reviewer's browser would) runs, vs idle; and the time of a one-hour
+ *     run's trace (72 000 samples) over HTTP.
  * Run: `npx tsx bench/bench.bench.ts`, or through `npm run bench`.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -293,6 +295,34 @@ async function drive(app: Running, cookie: string, benches: number, ms: number, 
   return { lat, offered };
 }
 
+/**
+ * Requests `url` again and again for `ms` from a child process (reading and discarding each body)
+ * and returns how many requests completed and their total time.
+ */
+async function reviewClient(url: string, cookie: string, ms: number): Promise<{ queries: number; totalMs: number }> {
+  const script = `
+    const [url, cookie, ms] = process.argv.slice(1);
+    (async () => {
+      const end = performance.now() + Number(ms);
+      let queries = 0, totalMs = 0;
+      while (performance.now() < end) {
+        const t = performance.now();
+        const r = await fetch(url, { headers: { cookie } });
+        if (r.status !== 200) throw new Error('trace request: ' + r.status);
+        for await (const _ of r.body) {}
+        totalMs += performance.now() - t;
+        queries++;
+      }
+      process.stdout.write(JSON.stringify({ queries, totalMs }));
+    })().catch((e) => { console.error(e); process.exit(1); });`;
+  const child = spawn(process.execPath, ['-e', script, url, cookie, String(ms)], { stdio: ['ignore', 'pipe', 'inherit'] });
+  let out = '';
+  child.stdout!.on('data', (d: Buffer) => (out += d.toString()));
+  const code = await new Promise<number | null>((r) => child.on('exit', r));
+  if (code !== 0) throw new Error(`review client exited with ${code}`);
+  return JSON.parse(out) as { queries: number; totalMs: number };
+}
+
 /** 3 and 4. Benches per process at p99 ≤ 50 ms, and the live path under a heavy review query. */
 async function capacity(): Promise<BenchFigure[]> {
   const journalDir = tmp();
@@ -311,6 +341,23 @@ async function capacity(): Promise<BenchFigure[]> {
   }
   figures.push({ name: 'benches sustained per process at p99 <= 50 ms', value: sustained, unit: 'benches', target: '>= 200', ok: sustained >= 200 });
 
+  // A one-hour run's trace (2 channels × 10/s = 72 000 samples), read whole as the review page does.
+  const hourRun = '22222222-2222-4222-8222-222222222222';
+  await app.database.exec(
+    `INSERT INTO runs (id, job_id, kind, status, plan) SELECT '${hourRun}', id, 'as-found', 'complete', '{"benchId":"bench-1","points":[]}'::jsonb FROM jobs LIMIT 1`,
+  );
+  await app.database.exec(
+    `INSERT INTO samples SELECT g, 'bench-8', CASE WHEN g % 2 = 0 THEN 'pressure' ELSE 'current' END, '${hourRun}', 'DP +50.00000 inH2O@68F', 50 + (g % 100) / 1000.0, 'inH2O@68F', 1.7e12 + (g - 2000000000)::float8 * 50, g::float8 * 50 FROM generate_series(2000000000::bigint, 2000071999::bigint) g`,
+  );
+  const hourMs: number[] = [];
+  for (let i = 0; i < 7; i++) {
+    const t = performance.now();
+    const body = (await (await fetch(`${app.url}/api/runs/${hourRun}/trace`, { headers: { cookie } }).then((r) => r.json()))) as { items: unknown[] };
+    hourMs.push(performance.now() - t);
+    if (body.items.length !== 72_000) throw new Error(`one-hour trace: ${body.items.length} samples`);
+  }
+  figures.push({ name: 'GET /api/runs/:id/trace of a one-hour run (72 000 samples), median of 7, incl. JSON.parse', value: pct(hourMs, 50), unit: 'ms', target: '< 300', ok: pct(hourMs, 50) < 300 });
+
   // A long run's trace: 8 h at 20 samples/s = 576 000 samples under one run id.
   const runId = '11111111-1111-4111-8111-111111111111';
   await app.database.exec(
@@ -323,19 +370,16 @@ async function capacity(): Promise<BenchFigure[]> {
   let queries = 0;
   let queryMs = 0;
   const heavy = await drive(app, cookie, 20, 8000, async () => {
-    const end = performance.now() + 7500;
-    while (performance.now() < end) {
-      const t = performance.now();
-      const r = await fetch(`${app.url}/api/runs/${runId}/trace?limit=500000`, { headers: { cookie } });
-      await r.arrayBuffer();
-      queryMs += performance.now() - t;
-      queries++;
-    }
+    // The reviewer is another machine's browser: its download (61 MB per request) runs in a child
+    // process, so what is measured is the server's event loop, not this script's HTTP client.
+    const r = await reviewClient(`${app.url}/api/runs/${runId}/trace?limit=500000`, cookie, 7500);
+    queries = r.queries;
+    queryMs = r.totalMs;
   });
   const i99 = pct(idle.lat, 99);
   const h99 = pct(heavy.lat, 99);
   figures.push({ name: 'live path p99, 20 benches, idle', value: i99, unit: 'ms' });
-  figures.push({ name: `live path p99, 20 benches, during full-trace queries (${queries} × 500 000 rows, ${(queryMs / Math.max(1, queries)).toFixed(0)} ms each)`, value: h99, unit: 'ms' });
+  figures.push({ name: `live path p99, 20 benches, during full-trace queries (${queries} × 500 000 rows from another process, ${(queryMs / Math.max(1, queries)).toFixed(0)} ms each)`, value: h99, unit: 'ms' });
   figures.push({ name: 'live path p99 ratio heavy query / idle', value: h99 / i99, unit: '×', target: '<= 2', ok: h99 / i99 <= 2 });
   figures.push({ name: 'live path max during heavy query', value: Math.max(...heavy.lat), unit: 'ms' });
   await app.close();

@@ -13,6 +13,7 @@ import { auditRoutes } from './http/routes/audit/audit.routes';
 import { authRoutes } from './http/routes/auth/auth.routes';
 import { calcRoutes } from './http/routes/calc/calc.routes';
 import { jobRoutes } from './http/routes/jobs/jobs.routes';
+import { certificateRoutes } from './http/routes/records/certificate.routes';
 import { queueRoutes, recordsRoutes } from './http/routes/records/records.routes';
 import { instrumentRoutes, standardRoutes } from './http/routes/registers/registers.routes';
 import { reviewRoutes, reviewTraceRoutes } from './http/routes/review/review.routes';
@@ -46,7 +47,7 @@ export function createApp(deps: AppDeps) {
           styleSrc: ["'self'", "'unsafe-inline'"],
           imgSrc: ["'self'", 'data:', 'blob:'],
           fontSrc: ["'self'", 'data:'],
-          connectSrc: ["'self'", 'ws:', 'wss:'],
+          connectSrc: ["'self'"],
           upgradeInsecureRequests: null,
         },
       },
@@ -68,6 +69,7 @@ export function createApp(deps: AppDeps) {
     reviewRoutes(deps.services.review),
     reviewTraceRoutes(deps.services.review),
     recordsRoutes(deps.services.review),
+    certificateRoutes(deps.services.certificates),
     queueRoutes(deps.services.drift),
     auditRoutes(deps.services.audit),
     calcRoutes(),

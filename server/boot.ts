@@ -1,6 +1,7 @@
 import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import http from 'node:http';
+import os from 'node:os';
 import path from 'node:path';
 import type { AddressInfo, Socket } from 'node:net';
 import type { RequestHandler } from 'express';
@@ -9,9 +10,17 @@ import { createApp } from './app';
 import { openDatabase, type Database } from './db/client';
 import type { Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
+import { uploadRoutes } from './http/routes/files/files.routes';
+import { outboxRoutes } from './http/routes/outbox/outbox.routes';
 import { runRoutes } from './http/routes/runs/runs.routes';
 import { simRoutes } from './http/routes/sim/sim.routes';
-import { createServices, type Services } from './services';
+import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp';
+import { createMailer, type Mailer } from './mail/mailer';
+import { createServices, type ServiceHooks, type Services } from './services';
+import { createFileService, type FileService } from './services/file.service';
+import { createMailService, type MailService } from './services/mail.service';
+import { createFileStore } from './storage/file-store';
+import { createUploads } from './storage/upload';
 import { createBenchService, journalDirOf, type BenchService, type BenchServiceOptions } from './services/bench.service';
 import { seedDemo } from './services/demo-seed.service';
 import { createRunService, type RunService } from './services/run.service';
@@ -37,8 +46,18 @@ export interface Running {
   bench: BenchService;
   runs: RunService;
   stream: StreamServer;
+  files: FileService;
+  /** Upload directories: the file store and multer's temp files (a temp dir for in-memory servers). */
+  uploadDirs: { store: string; tmp: string };
+  mail: MailService;
+  /** The local fake SMTP server (SMTP_URL unset). */
+  fakeSmtp?: FakeSmtp;
+  /** Runs the due-standards and weekly due-list mails now (the scheduler does so on start and then daily / weekly). */
+  sendDueMail(): Promise<void>;
   close(): Promise<void>;
 }
+
+const DAY_MS = 86_400_000;
 
 /** Session-signing secret: SESSION_SECRET, or one generated once into the data directory. */
 function loadSecret(env: Env, memory: boolean): Uint8Array {
@@ -68,11 +87,44 @@ export async function boot(opts: BootOptions): Promise<Running> {
   const memory = !!opts.memory && !env.DATABASE_URL;
   const database = await openDatabase(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : memory ? {} : { dataDir: env.DATA_DIR });
   let benchToStop: BenchService | undefined;
+  let fakeSmtp: FakeSmtp | undefined;
+  let mailer: Mailer | undefined;
+  let tmpRoot: string | undefined;
   try {
-    const services = createServices(database, loadSecret(env, memory));
+    const hooks: ServiceHooks = {};
+    const services = createServices(database, loadSecret(env, memory), hooks);
     if (env.SEED_DEMO === '1' && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
       logger.info('seeded the demo site');
     }
+    // Uploads live outside the web root: DATA_DIR/uploads (in-memory servers: a temp dir, removed on close).
+    const uploadsBase = memory ? (tmpRoot = fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-uploads-'))) : env.DATA_DIR;
+    const uploadDirs = { store: path.join(uploadsBase, 'uploads'), tmp: path.join(uploadsBase, 'upload-tmp') };
+    const store = createFileStore({ root: uploadDirs.store });
+    const files = createFileService(database.db, { audit: services.audit, store, uploads: createUploads({ tmpDir: uploadDirs.tmp, store }) });
+
+    // Mail: SMTP_URL, or a local fake SMTP server whose messages land in the Outbox.
+    let appUrl = `http://localhost:${env.PORT}`;
+    const mailLog = logger.child({ part: 'mail' });
+    const mailRef: { service?: MailService } = {};
+    if (!env.SMTP_URL) {
+      fakeSmtp = await startFakeSmtp({
+        port: 0,
+        host: '127.0.0.1',
+        onMessage: (m) => mailRef.service!.store(m),
+        onError: (err) => mailLog.warn({ err }, 'fake SMTP connection error'),
+      });
+    }
+    mailer = createMailer({
+      smtpUrl: env.SMTP_URL ?? fakeSmtp!.url,
+      from: '"Stillpoint" <noreply@stillpoint.invalid>',
+      logger: mailLog,
+      onGiveUp: (e) => mailLog.warn({ event: e }, 'mail not delivered'),
+    });
+    const mail = createMailService(database.db, { mailer, appUrl: () => appUrl, onError: (err, what) => mailLog.warn({ err, what }, 'mail not sent') });
+    mailRef.service = mail;
+    hooks.onJob = mail.onJob;
+    hooks.onReview = mail.onReview;
+
     const allowedOrigins = env.ALLOWED_ORIGINS.split(',').map((s) => s.trim()).filter(Boolean);
     const bench = createBenchService(database.db, {
       mode: env.BENCH,
@@ -93,7 +145,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(bench)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(bench), ...uploadRoutes(files), outboxRoutes(mail)],
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -107,6 +159,17 @@ export async function boot(opts: BootOptions): Promise<Running> {
     });
     const stream = attachStreamServer({ server, auth: services.auth, bench, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;
+    if (!env.PORT) appUrl = `http://localhost:${port}`;
+
+    // Due mail: standards due within 30 days on start and daily; the weekly due list on start and weekly.
+    let dueRun: Promise<unknown> = Promise.resolve();
+    const sendDueMail = () => (dueRun = dueRun.then(() => Promise.all([mail.standardsDue(), mail.weeklyDueList()]))).then(() => {});
+    void sendDueMail();
+    const timers = [
+      setInterval(() => void (dueRun = dueRun.then(() => mail.standardsDue())), DAY_MS),
+      setInterval(() => void (dueRun = dueRun.then(() => mail.weeklyDueList())), 7 * DAY_MS),
+    ];
+    for (const t of timers) t.unref();
     let closing: Promise<void> | undefined;
     return {
       server,
@@ -116,8 +179,14 @@ export async function boot(opts: BootOptions): Promise<Running> {
       bench,
       runs,
       stream,
+      files,
+      uploadDirs,
+      mail,
+      fakeSmtp,
+      sendDueMail,
       close: () =>
         (closing ??= (async () => {
+          for (const t of timers) clearInterval(t);
           await stream.close();
           await new Promise<void>((resolve) => {
             server.close(() => resolve());
@@ -125,12 +194,20 @@ export async function boot(opts: BootOptions): Promise<Running> {
           });
           await bench.stop();
           await runs.settle();
+          // Mail before the database: let queued messages reach the fake server (which stores them), then stop both.
+          await dueRun.catch(() => {});
+          await mailer!.close({ timeoutMs: 5000 });
+          await fakeSmtp?.close();
           await database.close();
+          if (tmpRoot) fs.rmSync(tmpRoot, { recursive: true, force: true });
         })()),
     };
   } catch (e) {
     await benchToStop?.stop().catch(() => {});
+    await mailer?.close({ timeoutMs: 1000 }).catch(() => {});
+    await fakeSmtp?.close().catch(() => {});
     await database.close();
+    if (tmpRoot) fs.rmSync(tmpRoot, { recursive: true, force: true });
     throw e;
   }
 }

@@ -9,8 +9,10 @@ import {
   ApproachTracker,
   classifyNe43,
   convertPressure,
+  DEFAULT_HOLD_SETTINGS,
   HoldAnalyzer,
   isPressureUnitId,
+  SLOPE_SIGNIFICANCE,
   type HoldSettings,
   type PlanPoint,
 } from '../../shared/calc';
@@ -93,7 +95,10 @@ const BAND_REASONS = ['applied DP outside the stability band', 'current outside 
  * that both exceed the leak limit, in the same direction, the second at least this fraction of the
  * first, are called a leak. Product choice, not a published value.
  */
-const LEAK_PERSISTENCE = 0.5;
+const LEAK_PERSISTENCE = 0.7;
+
+/** Shortest window whose slope counts towards the leak decision, ms (a steep leak leaves the band fast). */
+const LEAK_WINDOW_MIN_MS = 1000;
 
 export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   readonly benchId: string;
@@ -316,20 +321,20 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     const h = r.hold!.result();
     const required = r.holdSettings.holdTimeMs!;
     const enough = h.dp.n >= 5 && h.ma.n >= 5;
-    const windowLongEnough = h.durationMs >= r.holdSettings.leakMinDurationMs!;
-    if (enough && h.reasons.some((x) => BAND_REASONS.includes(x))) {
-      // A disturbance: the hold restarts from here (the leak verdict of the last hold stays on the point).
-      this.restartWindow(r, windowLongEnough ? h.leakRatePctSpanPerMin : undefined);
-      this.setState(r, p, 'settling');
-    } else if (h.capturable) {
+    const bandLost = enough && h.reasons.some((x) => BAND_REASONS.includes(x));
+    const drifting = enough && h.durationMs >= r.holdSettings.leakMinDurationMs! && (h.leak || !h.stable);
+    if (h.capturable && !bandLost) {
       this.capture(r, false, null, null);
       return;
-    } else if (enough && windowLongEnough && (h.leak || !h.stable)) {
+    }
+    if (bandLost || drifting) {
       // The window is not clean: the approach is still settling, or the tubing leaks. The window
       // slides on from here, so the approach before the source was isolated is not held against it.
       const slope = h.leakRatePctSpanPerMin;
+      const counts = h.durationMs >= Math.min(LEAK_WINDOW_MIN_MS, r.holdSettings.leakMinDurationMs!);
+      const beyondLimit = counts && Math.abs(slope) - SLOPE_SIGNIFICANCE * (Number.isFinite(h.dp.slopeSePerMin) ? (h.dp.slopeSePerMin / r.s.dpSpan) * 100 : 0) > this.leakLimitPct(r);
       const prev = r.windowSlope;
-      if (h.leak && prev !== undefined && Math.sign(prev) === Math.sign(slope) && Math.abs(slope) >= LEAK_PERSISTENCE * Math.abs(prev)) {
+      if (beyondLimit && prev !== undefined && Math.sign(prev) === Math.sign(slope) && Math.abs(slope) >= LEAK_PERSISTENCE * Math.abs(prev)) {
         if (!p.flags.includes('leak')) p.flags.push('leak');
         if (!r.leakWarned) {
           r.leakWarned = true;
@@ -341,7 +346,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
           );
         }
       }
-      this.restartWindow(r, slope);
+      this.restartWindow(r, beyondLimit ? slope : undefined);
       this.setState(r, p, 'settling');
     } else this.setState(r, p, h.stable && !h.leak ? 'holding' : 'settling');
     if (r.settlingSinceMs !== undefined && p.state === 'settling' && tMs - r.settlingSinceMs > (r.s.unstableAfterHolds ?? 4) * required && !p.flags.includes('unstable')) {
@@ -403,6 +408,12 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
 
   private newTracker(p: PlanPoint): ApproachTracker {
     return new ApproachTracker({ target: p.targetDp, window: p.window, direction: p.approach });
+  }
+
+  /** Leak limit in % of span per minute, from the run's hold settings (default of shared/calc). */
+  private leakLimitPct(r: Active): number {
+    const hs = r.holdSettings;
+    return hs.leakLimitUnitPerMin !== undefined ? (hs.leakLimitUnitPerMin / r.s.dpSpan) * 100 : (hs.leakLimitPctSpanPerMin ?? DEFAULT_HOLD_SETTINGS.leakLimitPctSpanPerMin);
   }
 
   /** Starts a new hold window from the next sample, remembering the slope of the one that ended. */

@@ -1,12 +1,13 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { PGlite } from '@electric-sql/pglite';
+import type { PGlite } from '@electric-sql/pglite';
 import { drizzle as drizzlePglite } from 'drizzle-orm/pglite';
 import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
 import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
 import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import type { PgDatabase, PgQueryResultHKT } from 'drizzle-orm/pg-core';
 import pg from 'pg';
+import { PgliteWorkerClient } from './pglite-worker-client';
 import * as schema from './schema';
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
@@ -111,24 +112,22 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
       },
     };
   }
-  let release: (() => void) | undefined;
-  let client: PGlite;
-  if (opts.dataDir) {
-    release = lockDataDir(opts.dataDir);
-    try {
-      client = new PGlite(path.join(path.resolve(opts.dataDir), 'pglite'));
-      await client.waitReady;
-    } catch (e) {
-      release();
-      throw e;
-    }
-  } else {
-    client = new PGlite();
-    await client.waitReady;
-  }
-  const db = drizzlePglite(client, { schema }) as unknown as Db;
+  // PGlite runs in a worker thread: on Node it would otherwise run every query on the event loop.
+  // The data-directory lock stays with this process.
+  const release = opts.dataDir ? lockDataDir(opts.dataDir) : undefined;
+  let client: PgliteWorkerClient;
   try {
-    await migratePglite(drizzlePglite(client), { migrationsFolder: MIGRATIONS_DIR });
+    client = await PgliteWorkerClient.start(opts.dataDir ? { dataDir: path.join(path.resolve(opts.dataDir), 'pglite') } : {});
+  } catch (e) {
+    release?.();
+    throw e;
+  }
+  // The worker client has the part of PGlite's interface that drizzle-orm/pglite uses (query with
+  // rowMode and identity parsers, transaction).
+  const asPglite = client as unknown as PGlite;
+  const db = drizzlePglite(asPglite, { schema }) as unknown as Db;
+  try {
+    await migratePglite(drizzlePglite(asPglite), { migrationsFolder: MIGRATIONS_DIR });
   } catch (e) {
     await client.close();
     release?.();
@@ -142,13 +141,16 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
     },
     close: async () => {
       try {
-        if (!client.closed) {
-          await client.query('CHECKPOINT');
-          await client.close();
-        }
+        await client.close();
       } finally {
         release?.();
       }
     },
   };
+}
+
+/** The PGlite worker client behind a drizzle database, when it is one (repositories use its fast paths). */
+export function pgliteWorkerOf(db: Db): PgliteWorkerClient | undefined {
+  const client = (db as unknown as { $client?: unknown }).$client;
+  return client instanceof PgliteWorkerClient ? client : undefined;
 }

@@ -4,6 +4,7 @@ import { siteRepository, userRepository } from '../db/repositories/user.reposito
 import type { AuditService } from './audit.service';
 import { hashPassword } from './auth.service';
 import { addDays, isoDate } from './dates';
+import { seedDemoHistory } from './demo-history';
 
 /**
  * The demo site (DESIGN.md §6): an invented district utility with a boiler house, a water
@@ -76,5 +77,7 @@ export async function seedDemo(db: Db, audit: AuditService, password: string, no
     await job(tag, assignee, due);
   }
   await audit.record(null, 'site.seeded', 'site', null, undefined, { site: DEMO_SITE_NAME, users: DEMO_USERS.length, instruments: INSTRUMENTS.length });
+  // Past calibrations (drift, records, certificates) and the PT-302 job waiting for review with its trace.
+  await seedDemoHistory(db, { audit, now });
   return true;
 }

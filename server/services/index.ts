@@ -1,9 +1,10 @@
 import type { Database } from '../db/client';
 import { createAuditService } from './audit.service';
 import { createAuthService } from './auth.service';
+import { createCertificateService } from './certificate.service';
 import { createCsvService } from './csv.service';
 import { createDriftService } from './drift.service';
-import { createJobService } from './job.service';
+import { createJobService, type JobNotice } from './job.service';
 import { createRegisterService } from './register.service';
 import { createReviewService, type ReviewNotice } from './review.service';
 import { createUserService } from './user.service';
@@ -13,7 +14,7 @@ export function createServices(database: Database, secret: Uint8Array, hooks: Se
   const audit = createAuditService(database.db);
   const auth = createAuthService(database.db, secret, audit);
   const registers = createRegisterService(database.db, audit);
-  const jobs = createJobService(database.db, audit);
+  const jobs = createJobService(database.db, audit, (n) => hooks.onJob?.(n));
   return {
     audit,
     auth,
@@ -23,11 +24,13 @@ export function createServices(database: Database, secret: Uint8Array, hooks: Se
     review: createReviewService(database.db, { audit, auth, jobs, registers, notify: (n) => hooks.onReview?.(n) }),
     csv: createCsvService(database.db, audit),
     drift: createDriftService(database.db, audit, jobs),
+    certificates: createCertificateService(database.db, { jobs, registers }),
   };
 }
 
 /** Late-bound listeners (mail), set by the composition root after the services exist. */
 export interface ServiceHooks {
   onReview?: (notice: ReviewNotice) => void | Promise<void>;
+  onJob?: (notice: JobNotice) => void | Promise<void>;
 }
 export type Services = ReturnType<typeof createServices>;

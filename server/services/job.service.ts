@@ -45,8 +45,18 @@ function checklistOf(raw: unknown): Checklist {
 /** Current a loop meter must read: NE 43 failure levels down to 3.6 mA and up to 21 mA. */
 const CURRENT_SPAN_NEEDED = { min: 3.6, max: 21 };
 
-export function createJobService(db: Db, audit: AuditService) {
+/** Something the job flow tells the team about (mail); never allowed to block or fail the action. */
+export type JobNotice = { kind: 'assigned'; jobId: string; assigneeId: string; byName: string } | { kind: 'submitted'; jobId: string; byName: string; at: string };
+
+export function createJobService(db: Db, audit: AuditService, notify?: (notice: JobNotice) => void | Promise<void>) {
   const jobs = jobRepository(db);
+  const tell = (n: JobNotice) => {
+    try {
+      void Promise.resolve(notify?.(n)).catch(() => {});
+    } catch {
+      /* mail never blocks the action */
+    }
+  };
   const users = userRepository(db);
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
@@ -56,6 +66,10 @@ export function createJobService(db: Db, audit: AuditService) {
     if (!u || !u.active || u.role !== 'technician') throw badRequest('Choose an active technician', { assigneeId: ['Not an active technician'] });
   }
 
+  async function nameOf(actor: Actor): Promise<string> {
+    return (actor as Partial<SessionUser>).name ?? (await users.findById(actor.id))?.name ?? actor.email;
+  }
+
   async function row(id: string): Promise<JobRow> {
     const r = await jobs.get(id);
     if (!r) throw notFound('No such job');
@@ -63,11 +77,16 @@ export function createJobService(db: Db, audit: AuditService) {
   }
 
   const service = {
-    /** All jobs; a technician's own come first, then the rest by due date. */
+    /**
+     * All jobs by due date, open work before approved records (the history would otherwise lead the
+     * list); for a technician their own open jobs come first.
+     */
     async list(viewer: SessionUser): Promise<Job[]> {
       const all = (await jobs.list()).map((r) => toJob(r));
-      if (viewer.role !== 'technician') return all;
-      return [...all.filter((j) => j.assigneeId === viewer.id), ...all.filter((j) => j.assigneeId !== viewer.id)];
+      const open = all.filter((j) => j.status !== 'approved');
+      const done = all.filter((j) => j.status === 'approved');
+      if (viewer.role !== 'technician') return [...open, ...done];
+      return [...open.filter((j) => j.assigneeId === viewer.id), ...open.filter((j) => j.assigneeId !== viewer.id), ...done];
     },
     async get(id: string): Promise<Job> {
       return toJob(await row(id));
@@ -148,6 +167,7 @@ export function createJobService(db: Db, audit: AuditService) {
       const created = await jobs.create({ ...body, createdBy: actor.id });
       const job = await service.get(created.id);
       await audit.record(actor, 'job.created', 'job', created.id, undefined, job);
+      if (body.assigneeId) tell({ kind: 'assigned', jobId: created.id, assigneeId: body.assigneeId, byName: await nameOf(actor) });
       return job;
     },
 
@@ -157,6 +177,7 @@ export function createJobService(db: Db, audit: AuditService) {
       await assignable(assigneeId);
       await jobs.update(id, { assigneeId });
       await audit.record(actor, 'job.assigned', 'job', id, { assigneeId: before.assigneeId }, { assigneeId });
+      if (before.assigneeId !== assigneeId) tell({ kind: 'assigned', jobId: id, assigneeId, byName: await nameOf(actor) });
       return service.get(id);
     },
 
@@ -201,6 +222,7 @@ export function createJobService(db: Db, audit: AuditService) {
       if (d.submitBlockers.length) throw badRequest(`Not ready to submit: ${d.submitBlockers.join('; ')}`, { submit: d.submitBlockers });
       await jobs.update(id, { status: 'submitted' });
       await audit.record(actor, 'job.submitted', 'job', id, { status: r.status }, { status: 'submitted' });
+      tell({ kind: 'submitted', jobId: id, byName: actor.name, at: new Date().toISOString() });
       return service.detail(id);
     },
   };

@@ -339,10 +339,11 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
      * fast). The whole-run view is kept per run while its samples do not change.
      */
     async trace(runId: string, q: { from?: number; to?: number; buckets: number; maxRaw: number }): Promise<ReviewTrace> {
+      const state = await repo.runState(runId);
+      if (!state) throw notFound('No such run');
       if (q.from === undefined && q.to === undefined) {
         // A completed run's samples no longer change: its whole-run view is kept until the run changes state.
-        const state = await repo.runState(runId);
-        if (state && state.status !== 'running' && state.status !== 'paused') {
+        if (state.status !== 'running' && state.status !== 'paused') {
           const key = `${runId}|${q.buckets}|${q.maxRaw}`;
           const version = `${state.status}|${state.endedAt?.getTime() ?? ''}`;
           const hit = overviews.get(key);

@@ -23,7 +23,7 @@ import {
   type TransferSpec,
 } from '../../shared/calc';
 import type { JobDetail } from '../../shared/schemas/jobs';
-import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody, TraceSample } from '../../shared/schemas/runs';
+import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
 import { EngineRefusal, type EngineEvent, type EngineRunSettings } from '../bench/capture-engine';
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
@@ -407,14 +407,14 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       return toRun(await loadRun(id));
     },
 
-    async trace(id: string, q: { from?: number; to?: number; device?: 'pressure' | 'current'; limit: number }): Promise<{ items: TraceSample[]; truncated: boolean }> {
+    /**
+     * The raw trace as the JSON body of `GET /api/runs/:id/trace`: `{ items: TraceSample[], truncated }`,
+     * serialised by the repository (off the event loop on PGlite) so a long run's trace does not
+     * stall the live path.
+     */
+    async traceJson(id: string, q: { from?: number; to?: number; device?: 'pressure' | 'current'; limit: number }): Promise<Buffer> {
       await loadRun(id);
-      const rows = await samples.forRun(id, { ...q, limit: q.limit + 1 });
-      const truncated = rows.length > q.limit;
-      return {
-        items: rows.slice(0, q.limit).map((r) => ({ seq: Number(r.seq), device: r.device as 'pressure' | 'current', wallMs: r.wallMs, value: r.value, unit: r.unit, raw: r.raw })),
-        truncated,
-      };
+      return samples.traceJson(id, q);
     },
 
     /** Waits for every engine event so far to be persisted (tests, shutdown). */

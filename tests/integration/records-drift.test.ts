@@ -5,7 +5,6 @@ import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpe
 let srv: TestServer;
 let lead: ApiClient;
 let tech: ApiClient;
-let seeded: Awaited<ReturnType<typeof seedDemoHistory>>;
 
 async function instrumentId(tag: string): Promise<string> {
   return (await lead.get(`/api/instruments?q=${tag}`)).body.items.find((i: { tag: string }) => i.tag === tag).id;
@@ -13,7 +12,6 @@ async function instrumentId(tag: string): Promise<string> {
 
 beforeAll(async () => {
   srv = await startTestServer();
-  seeded = await seedDemoHistory(srv.database.db, { audit: srv.services.audit, traceSeqBase: 1_000_000_000_000 });
   lead = new ApiClient(srv.url);
   tech = new ApiClient(srv.url);
   await lead.login(demoEmail('lead'));
@@ -25,6 +23,9 @@ afterAll(async () => {
 
 describe('demo history', () => {
   it('writes two-plus years of approved calibrations on a few tags, and one job waiting for review with its raw trace', async () => {
+    // The demo seed writes the history on first start; seeding again writes nothing.
+    const entry = (await lead.get('/api/audit?entity=site&limit=1000')).body.items.find((e: { action: string }) => e.action === 'demo.history-seeded');
+    const seeded = entry.after as { tags: string[]; jobs: number; samples: number };
     expect(seeded.tags).toEqual(['FT-101', 'FT-103', 'PT-104', 'FT-301']);
     expect(seeded.jobs).toBeGreaterThanOrEqual(4 + 7 + 4 + 4 + 1);
     expect(seeded.samples).toBeGreaterThan(10_000);

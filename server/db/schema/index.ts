@@ -2,3 +2,5 @@ export * from './users';
 export * from './registers';
 export * from './runs';
 export * from './records';
+export * from './attachments';
+export * from './mail';

@@ -38,7 +38,10 @@ export function runRoutes(runs: RunService) {
   const trace = { params: IdParamSchema, query: TraceQuerySchema };
   t.add('get', '/runs/:id/trace', 'runs.read', validate(trace), async (_req, res) => {
     const { params, query } = input(res, trace);
-    res.json(await runs.trace(params.id, query));
+    // { items: TraceSample[], truncated }, already JSON (see RunService.traceJson). Sent with end(), not
+    // send(): send() would hash tens of MB for an ETag on the event loop.
+    const body = await runs.traceJson(params.id, query);
+    res.type('application/json').end(body);
   });
   return t;
 }

@@ -1,0 +1,88 @@
+/**
+ * Messages between the main thread ({@link PgliteWorkerClient}) and the PGlite worker
+ * (pglite-worker.ts). Everything here crosses a thread by structured clone, so it holds data
+ * only: no functions, no class instances.
+ */
+
+/** What the worker is started with (`workerData`). */
+export interface WorkerInit {
+  /** PGlite data directory; absent for an in-memory database. */
+  dataDir?: string;
+}
+
+export type WorkerRequest =
+  | {
+      id: number;
+      op: 'query';
+      sql: string;
+      params: unknown[];
+      rowMode: 'object' | 'array';
+      /** Type OIDs whose values are returned as the server's text, unparsed (drizzle's identity parsers). */
+      rawTypes: number[];
+      /** Input of `COPY … FROM '/dev/blob'`. */
+      blob?: ArrayBuffer;
+    }
+  | { id: number; op: 'exec'; sql: string }
+  | {
+      id: number;
+      op: 'copyJsonArray';
+      /** A SELECT whose single column is one json value per row; no bind parameters (COPY takes none). */
+      select: string;
+      /** Rows to put in the array at most; a row beyond it only sets `more`. */
+      limit: number;
+      /** Text around the array: `prefix`, the array, then `suffix[0]` (all rows) or `suffix[1]` (more than `limit`). */
+      wrap?: JsonArrayWrap;
+    }
+  | { id: number; op: 'close' };
+
+/** A PostgreSQL error's fields, as PGlite reports them. */
+export interface WireError {
+  message: string;
+  name?: string;
+  stack?: string;
+  code?: string;
+  severity?: string;
+  detail?: string;
+  hint?: string;
+  position?: string;
+  where?: string;
+  schema?: string;
+  table?: string;
+  column?: string;
+  dataType?: string;
+  constraint?: string;
+  routine?: string;
+}
+
+export interface WireResults {
+  rows: unknown[];
+  fields: { name: string; dataTypeID: number }[];
+  affectedRows?: number;
+  command?: string;
+  rowCount?: number;
+  /** Output of `COPY … TO '/dev/blob'`. */
+  blob?: ArrayBuffer;
+}
+
+export type WorkerReply =
+  | { id: number; ok: true; result: WireResults | WireResults[] | JsonArrayResult | null }
+  | { id: number; ok: false; error: WireError };
+
+export interface JsonArrayWrap {
+  prefix: string;
+  suffix: [whenAll: string, whenMore: string];
+}
+
+/** A JSON array as UTF-8 bytes, built in the worker. */
+export interface JsonArrayResult {
+  bytes: ArrayBuffer;
+  /** Rows in the array. */
+  count: number;
+  /** True when the SELECT had more rows than `limit`. */
+  more: boolean;
+}
+
+/** First message of the worker: ready, or why it could not open the database. */
+export type WorkerHello = { ready: true } | { ready: false; error: WireError };
+
+export const ERROR_FIELDS = ['code', 'severity', 'detail', 'hint', 'position', 'where', 'schema', 'table', 'column', 'dataType', 'constraint', 'routine'] as const;
