@@ -30,7 +30,7 @@ import { instrumentRepository, jobRepository, standardRepository, type Instrumen
 import { runRepository, type RunRow } from '../db/repositories/run.repository';
 import { sampleRepository } from '../db/repositories/sample.repository';
 import { siteRepository } from '../db/repositories/user.repository';
-import { AppError, badRequest, conflict, forbidden, notFound } from '../errors';
+import { AppError, badRequest, conflict, forbidden, locked, notFound } from '../errors';
 import type { Actor, AuditService } from './audit.service';
 import { DEFAULT_BENCH_ID, type BenchService } from './bench.service';
 import type { SessionUser } from './auth.service';
@@ -284,6 +284,8 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
   async function mustPerform(actor: SessionUser, row: RunRow): Promise<void> {
     const job = await jobsRepo.get(row.jobId);
     if (!job || job.assigneeId !== actor.id) throw forbidden('Only the technician assigned to this job may operate its runs');
+    // Records are locked once approved (or under review): a correction is a new revision.
+    if (job.status === 'approved' || job.status === 'submitted') throw locked(`The job is ${job.status}; its runs can no longer change`);
   }
 
   /** The engine holding this run, loading a stored run into it when asked to (redo of a finished run). */

@@ -74,7 +74,7 @@ describe('capture-screen warnings', () => {
       await sim({ setpoint: { value: 25 } });
       await page.locator('[data-testid="current-point"][data-state="holding"]').waitFor({ timeout: 60_000 });
       // Leak: 2 inH2O/min on a 100 inH2O span = 2 % of span per minute, with the source isolated.
-      await sim({ source: { leakPerMin: 2 } });
+      await sim({ source: { leakPerMin: 1 } });
       const banner = page.getByTestId('warning-leak');
       await banner.waitFor({ timeout: 30_000 });
       expect(await banner.getAttribute('role')).toBe('alert');

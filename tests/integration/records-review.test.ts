@@ -120,6 +120,10 @@ describe('review and electronic signature', () => {
     expect((await c.lead.post(`/api/jobs/${jobA}/review`, approve)).status).toBe(423);
     const run = await c.tech.post(`/api/jobs/${jobA}/runs`, { kind: 'as-found' });
     expect([409, 423]).toContain(run.status);
+    // A redo or a manual capture on one of its finished runs is refused too.
+    const runId = (await c.tech.get(`/api/jobs/${jobA}`)).body.runs[0].id;
+    expect((await c.tech.post(`/api/runs/${runId}/points/0/redo`)).status).toBe(423);
+    expect((await c.tech.post(`/api/runs/${runId}/points/0/capture`, { reason: 'changing an approved record' })).status).toBe(423);
     expect((await c.tech.post(`/api/jobs/${jobA}/submit`)).status).toBe(400);
     // Signatures are append-only in the database itself.
     await expect(srv.database.exec(`UPDATE signatures SET meaning = 'forged' WHERE job_id = '${jobA}'`)).rejects.toThrow(/append-only/);
