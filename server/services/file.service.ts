@@ -99,6 +99,7 @@ export function createFileService(db: Db, deps: { audit: AuditService; uploads: 
       return attach(actor, 'job', jobId, 'photo', file, IMAGES);
     },
     async list(entity: AttachmentRow['entity'], entityId: string): Promise<Attachment[]> {
+      if (entity === 'job' && !(await jobs.get(entityId))) throw notFound('No such job');
       return (await attachments.list(entity, entityId)).map(toAttachment);
     },
 
