@@ -452,7 +452,8 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   private warn(r: Active, kind: WarningKind, message: string, rate: number | null): void {
     const index = r.current ?? -1;
     const p = r.points[index];
-    if (p) p.warning = message;
+    // A leaking point never settles: the leak (with its rate) stays the point's headline warning.
+    if (p && !(kind === 'unstable' && p.flags.includes('leak'))) p.warning = message;
     this.emit('event', { type: 'run.warned', runId: r.s.runId, index, kind, message, ratePctSpanPerMin: rate });
     if (p) this.emitPoint(r, p, null);
   }
