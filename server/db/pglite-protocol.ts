@@ -33,6 +33,27 @@ export type WorkerRequest =
       /** Text around the array: `prefix`, the array, then `suffix[0]` (all rows) or `suffix[1]` (more than `limit`). */
       wrap?: JsonArrayWrap;
     }
+  | {
+      id: number;
+      op: 'copyJsonPage';
+      /** A SELECT of two columns, a text key and one json value, per row; no bind parameters. */
+      select: string;
+      /** Rows to return at most; a row beyond it only sets `more`. */
+      limit: number;
+      /**
+       * Compress into the worker's gzip stream `stream` (opened on first use) instead of returning
+       * the page as is: `before` is put in front of the page, and `dropComma` leaves out its
+       * leading comma. The reply's bytes are then whatever compressed output the page flushed.
+       */
+      gzip?: { stream: number; before?: string; dropComma?: boolean };
+    }
+  | {
+      id: number;
+      op: 'gzipEnd';
+      stream: number;
+      /** Last text of the document; absent to abandon the stream (client gone). */
+      tail?: string;
+    }
   | { id: number; op: 'close' };
 
 /** A PostgreSQL error's fields, as PGlite reports them. */
@@ -80,6 +101,16 @@ export interface JsonArrayResult {
   count: number;
   /** True when the SELECT had more rows than `limit`. */
   more: boolean;
+}
+
+/** One page of JSON values, each after a comma, built in the worker. */
+export interface JsonPageResult {
+  /** UTF-8 `,v1,v2,…` (empty when no row). */
+  bytes: ArrayBuffer;
+  count: number;
+  more: boolean;
+  /** Key column of the last row returned (to ask for the page after it); absent when no row. */
+  lastKey?: string;
 }
 
 /** First message of the worker: ready, or why it could not open the database. */

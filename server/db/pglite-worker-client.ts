@@ -11,7 +11,7 @@ import { createRequire } from 'node:module';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { ERROR_FIELDS, type JsonArrayResult, type JsonArrayWrap, type WireError, type WireResults, type WorkerHello, type WorkerInit, type WorkerReply, type WorkerRequest } from './pglite-protocol';
+import { ERROR_FIELDS, type JsonArrayResult, type JsonArrayWrap, type JsonPageResult, type WireError, type WireResults, type WorkerHello, type WorkerInit, type WorkerReply, type WorkerRequest } from './pglite-protocol';
 
 /** An error raised in the worker, with the PostgreSQL fields PGlite gave it (`code`, `detail`, …). */
 export class PgliteWorkerError extends Error {
@@ -99,6 +99,7 @@ function bootstrap(): string {
 export class PgliteWorkerClient implements ProxyTransaction {
   private readonly pending = new Map<number, Pending>();
   private nextId = 1;
+  private gzipStreams = 0;
   private lock: Promise<void> = Promise.resolve();
   private exited = false;
   private closing: Promise<void> | undefined;
@@ -172,6 +173,32 @@ export class PgliteWorkerClient implements ProxyTransaction {
       const r = (await this.send({ op: 'copyJsonArray', select, limit, ...(wrap ? { wrap } : {}) })) as JsonArrayResult;
       return { bytes: Buffer.from(r.bytes), count: r.count, more: r.more };
     });
+  }
+
+  /**
+   * One page of a keyed JSON select (see `copyJsonPage` in the worker): the json values of at most
+   * `limit` rows, each after a comma (`,v1,v2`), and the key of the last one.
+   */
+  copyJsonPage(
+    select: string,
+    limit: number,
+    gzip?: { stream: number; before?: string; dropComma?: boolean },
+  ): Promise<{ bytes: Buffer; count: number; more: boolean; lastKey?: string }> {
+    return this.exclusive(async () => {
+      const r = (await this.send({ op: 'copyJsonPage', select, limit, ...(gzip ? { gzip } : {}) })) as JsonPageResult;
+      return { bytes: Buffer.from(r.bytes), count: r.count, more: r.more, ...(r.lastKey !== undefined ? { lastKey: r.lastKey } : {}) };
+    });
+  }
+
+  /** A new id for a gzip stream of {@link copyJsonPage}. */
+  newGzipStream(): number {
+    return ++this.gzipStreams;
+  }
+
+  /** Ends gzip stream `stream` after `tail` and gives its last bytes; no tail abandons it. */
+  async gzipEnd(stream: number, tail?: string): Promise<Buffer> {
+    const r = (await this.send({ op: 'gzipEnd', stream, ...(tail !== undefined ? { tail } : {}) })) as JsonPageResult;
+    return Buffer.from(r.bytes);
   }
 
   /** `COPY … FROM '/dev/blob'` with `data` as the input; the bytes are moved to the worker, not copied. */

@@ -411,12 +411,16 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
 
     /**
      * The raw trace as the JSON body of `GET /api/runs/:id/trace`: `{ items: TraceSample[], truncated }`,
-     * serialised by the repository (off the event loop on PGlite) so a long run's trace does not
-     * stall the live path.
+     * in pieces serialised by the repository (off the event loop on PGlite) so a long run's trace
+     * does not stall the live path; gzip-compressed when asked. Throws (404) when the run is unknown.
      */
-    async traceJson(id: string, q: { from?: number; to?: number; device?: 'pressure' | 'current'; limit: number }): Promise<Buffer> {
+    async traceJson(
+      id: string,
+      q: { from?: number; to?: number; device?: 'pressure' | 'current'; limit: number },
+      opts: { gzip?: boolean } = {},
+    ): Promise<AsyncGenerator<Buffer>> {
       await loadRun(id);
-      return samples.traceJson(id, q);
+      return samples.traceJson(id, q, opts);
     },
 
     /** Waits for every engine event so far to be persisted (tests, shutdown). */

@@ -52,7 +52,8 @@ export const samples = pgTable(
     /** Monotonic arrival, ms (process clock). */
     monoMs: doublePrecision('mono_ms').notNull(),
   },
-  (t) => [index('samples_run_idx').on(t.runId, t.wallMs)],
+  // (run_id, wall_ms, seq) is the order a trace is read in, page by page (keyset on wall_ms, seq).
+  (t) => [index('samples_run_time_idx').on(t.runId, t.wallMs, t.seq)],
 );
 
 /** Append-only, hash-chained audit trail (a trigger refuses UPDATE and DELETE). */

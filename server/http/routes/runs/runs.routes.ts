@@ -5,6 +5,7 @@ import type { RunService } from '../../../services/run.service';
 import { currentUser } from '../../middleware/auth';
 import { input, validate } from '../../middleware/validate';
 import { routeTable } from '../../route-table';
+import { streamPieces } from '../../stream';
 
 const PointParamsSchema = z.object({ id: z.string().uuid('Not a valid id'), index: z.coerce.number().int('Not a point index').min(0).max(1000) });
 
@@ -36,12 +37,16 @@ export function runRoutes(runs: RunService) {
     });
   }
   const trace = { params: IdParamSchema, query: TraceQuerySchema };
-  t.add('get', '/runs/:id/trace', 'runs.read', validate(trace), async (_req, res) => {
+  t.add('get', '/runs/:id/trace', 'runs.read', validate(trace), async (req, res) => {
     const { params, query } = input(res, trace);
-    // { items: TraceSample[], truncated }, already JSON (see RunService.traceJson). Sent with end(), not
-    // send(): send() would hash tens of MB for an ETag on the event loop.
-    const body = await runs.traceJson(params.id, query);
-    res.type('application/json').end(body);
+    // { items: TraceSample[], truncated }, already JSON, in pieces (see RunService.traceJson), written
+    // as they come with the socket's back-pressure: no ETag hashing and never the whole body in memory.
+    // Gzip when the client takes it (every browser does): a long trace is tens of MB of repetitive text.
+    const gzip = req.acceptsEncodings('gzip', 'identity') === 'gzip';
+    res.vary('Accept-Encoding');
+    const pieces = await runs.traceJson(params.id, query, { gzip });
+    if (gzip) res.set('Content-Encoding', 'gzip');
+    await streamPieces(res, 'application/json', pieces);
   });
   return t;
 }
