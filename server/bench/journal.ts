@@ -2,9 +2,15 @@
  * Append-only sample journal. PGlite on Node does not fsync, so each batch is first appended here
  * and synced to disk; only then does it count as stored. At start-up the journal is read back and
  * whatever the database lacks is replayed, then the file is truncated.
+ *
+ * A batch is a header line `#batch <bytes> <rows>` followed by exactly that many bytes of CSV
+ * (samples-csv.ts, the same bytes the database's COPY reads). A batch cut short by a crash is
+ * ignored: it was never synced, hence never acknowledged. Journals of the older form (one JSON
+ * array per line) are still read.
  */
 import fs from 'node:fs';
 import path from 'node:path';
+import { parseSamplesCsv, samplesCsv } from './samples-csv';
 
 /** One journaled sample row. */
 export interface JournalRow {
@@ -21,7 +27,6 @@ export interface JournalRow {
 
 type Packed = [number, string, string, string | null, string, number | null, string | null, number, number];
 
-const pack = (r: JournalRow): Packed => [r.seq, r.benchId, r.device, r.runId, r.raw, r.value, r.unit, r.wallMs, r.monoMs];
 const unpack = (p: Packed): JournalRow => ({
   seq: p[0],
   benchId: p[1],
@@ -34,7 +39,7 @@ const unpack = (p: Packed): JournalRow => ({
   monoMs: p[8],
 });
 
-/** The journal file: one JSON line per batch. A torn last line (crash mid-write) is ignored: it was never acknowledged. */
+/** The journal file (format above). */
 export class SampleJournal {
   readonly file: string;
   private handle: fs.promises.FileHandle | undefined;
@@ -46,21 +51,42 @@ export class SampleJournal {
 
   /** Rows in the journal now (start-up replay), in file order. */
   async read(): Promise<JournalRow[]> {
-    let text: string;
+    let buf: Buffer;
     try {
-      text = await fs.promises.readFile(this.file, 'utf8');
+      buf = await fs.promises.readFile(this.file);
     } catch (e) {
       if ((e as NodeJS.ErrnoException).code === 'ENOENT') return [];
       throw e;
     }
     const rows: JournalRow[] = [];
-    for (const line of text.split('\n')) {
-      if (!line) continue;
-      try {
-        for (const p of JSON.parse(line) as Packed[]) rows.push(unpack(p));
-      } catch {
-        // Torn or partial line: the batch it held was never synced, hence never acknowledged.
+    let at = 0;
+    while (at < buf.length) {
+      const nl = buf.indexOf(0x0a, at);
+      if (nl === -1) break; // torn header
+      const line = buf.toString('utf8', at, nl);
+      if (line.startsWith('[')) {
+        // Older form: one JSON array of packed rows per line.
+        try {
+          for (const p of JSON.parse(line) as Packed[]) rows.push(unpack(p));
+        } catch {
+          // Torn or partial line: never synced, never acknowledged.
+        }
+        at = nl + 1;
+        continue;
       }
+      const m = /^#batch (\d+) (\d+)$/.exec(line);
+      if (!m) break; // not a header: nothing after it can be trusted
+      const bytes = Number(m[1]);
+      const end = nl + 1 + bytes;
+      if (end > buf.length) break; // torn batch
+      try {
+        const batch = parseSamplesCsv(buf.toString('utf8', nl + 1, end));
+        if (batch.length !== Number(m[2])) break;
+        rows.push(...batch);
+      } catch {
+        break;
+      }
+      at = end;
     }
     return rows;
   }
@@ -74,11 +100,16 @@ export class SampleJournal {
 
   /** Appends one batch and syncs it to disk; resolves when it is durable. */
   async append(rows: JournalRow[]): Promise<void> {
+    await this.appendCsv(new TextEncoder().encode(samplesCsv(rows)), rows.length);
+  }
+
+  /** Appends one batch already in its CSV form ({@link samplesCsv}, `count` rows) and syncs it. */
+  async appendCsv(csv: Uint8Array, count: number): Promise<void> {
     if (!this.handle) throw new Error('journal is not open');
-    const line = `${JSON.stringify(rows.map(pack))}\n`;
-    await this.handle.write(line);
+    const header = Buffer.from(`#batch ${csv.byteLength} ${count}\n`);
+    await this.handle.writev([header, csv]);
     await this.handle.datasync();
-    this.bytes += Buffer.byteLength(line);
+    this.bytes += header.length + csv.byteLength;
   }
 
   /** Bytes in the file now. */

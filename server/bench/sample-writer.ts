@@ -2,13 +2,30 @@
  * Sample writer: batches raw samples from the hub and stores them, journal first (synced), then
  * the database. `ackedSeq` is the highest seq that is durably stored: after the journal sync when
  * there is a journal, else after the database write.
+ *
+ * The two stages overlap: while batch N goes into the database, batch N+1 is appended to the
+ * journal (at most one database write in flight). Batches are bounded (`maxBatchRows`), so a
+ * backlog is written in steady pieces rather than one huge write at the end.
  */
 import type { HubEntry } from './hub';
 import type { JournalRow, SampleJournal } from './journal';
 
+/** A batch made ready on this thread; `csv`, when there, is the journal's and COPY's form of it. */
+export interface PreparedBatch {
+  rows: JournalRow[];
+  csv?: Uint8Array<ArrayBuffer>;
+}
+
 /** Where samples end up; the service passes the sample repository. */
 export interface SampleSink {
   insertMany(rows: JournalRow[]): Promise<void>;
+  /**
+   * Optional split of insertMany: `prepare` does this thread's share (building the COPY input) and
+   * runs in the journal stage, overlapping the previous batch's database write; `insertPrepared`
+   * stores the result.
+   */
+  prepare?(rows: JournalRow[]): PreparedBatch;
+  insertPrepared?(prepared: PreparedBatch): Promise<void>;
   /** Highest seq stored, or 0. */
   maxSeq(): Promise<number>;
   /** Which of the seqs in [from, to] are stored. */
@@ -27,6 +44,8 @@ export interface SampleWriterOptions {
    * the database busy rather than waiting out `flushMs`. Default 5 000.
    */
   batchRows?: number;
+  /** Most rows in one write. Default 20 000. */
+  maxBatchRows?: number;
   /** Journal size that triggers a truncate once its rows are in the database, bytes. Default 4 MiB. */
   rotateBytes?: number;
   onError?: (error: unknown) => void;
@@ -50,10 +69,14 @@ export class SampleWriter {
   private readonly flushMs: number;
   private readonly rotateBytes: number;
   private readonly batchRows: number;
+  private readonly maxBatchRows: number;
   private readonly onError: (error: unknown) => void;
   private pending: JournalRow[] = [];
   private timer: NodeJS.Timeout | undefined;
   private flushing: Promise<void> | undefined;
+  /** The database write in flight (or the last one, settled). Never rejects. */
+  private dbTail: Promise<void> = Promise.resolve();
+  private lastFailureMs = -Infinity;
   private stopped = false;
   readonly stats: SampleWriterStats = { ackedSeq: 0, storedSeq: 0, pending: 0, written: 0, batches: 0, lastBatchMs: 0, failures: 0, replayed: 0 };
 
@@ -63,6 +86,7 @@ export class SampleWriter {
     this.flushMs = options.flushMs ?? 250;
     this.rotateBytes = options.rotateBytes ?? 4 * 1024 * 1024;
     this.batchRows = options.batchRows ?? 5000;
+    this.maxBatchRows = Math.max(1, options.maxBatchRows ?? 20_000);
     this.onError = options.onError ?? (() => {});
   }
 
@@ -118,52 +142,92 @@ export class SampleWriter {
     if (this.pending.length >= this.batchRows && !this.flushing && this.timer) void this.flush();
   };
 
-  /** Writes what is pending; concurrent calls share one write at a time. */
+  /**
+   * Writes a batch of what is pending (journal, then database); concurrent calls share one batch at
+   * a time. Resolves once that batch and every earlier one is in the database (or has failed).
+   */
   flush(): Promise<void> {
-    if (this.flushing) return this.flushing;
-    if (!this.pending.length) return Promise.resolve();
+    if (this.flushing) return this.flushing.then(() => this.dbTail);
+    if (!this.pending.length) return this.dbTail;
     const failuresBefore = this.stats.failures;
     this.flushing = this.writeBatch().finally(() => {
       this.flushing = undefined;
       // A backlog built up during the write: write it now (not after a failure: that waits for the tick).
-      if (this.pending.length >= this.batchRows && this.timer && !this.stopped && this.stats.failures === failuresBefore) void this.flush();
+      const failedLately = this.stats.failures !== failuresBefore || performance.now() - this.lastFailureMs < this.flushMs;
+      if (this.pending.length >= this.batchRows && this.timer && !this.stopped && !failedLately) void this.flush();
     });
-    return this.flushing;
+    return this.flushing.then(() => this.dbTail);
   }
 
+  /** Puts rows that failed to store back in front of what is pending, for the next attempt. */
+  private requeue(rows: JournalRow[], error: unknown): void {
+    this.stats.failures++;
+    this.lastFailureMs = performance.now();
+    // A journaled row may be written twice; the sink and the replay skip stored seqs.
+    this.pending = rows.concat(this.pending);
+    this.stats.pending = this.pending.length;
+    this.onError(error);
+  }
+
+  /**
+   * Journal stage of one batch; starts its database stage behind the previous one and returns when
+   * that previous one is done, so at most one database write is in flight while the next batch
+   * goes to the journal.
+   */
   private async writeBatch(): Promise<void> {
-    const rows = this.pending;
-    this.pending = [];
-    this.stats.pending = 0;
+    if (this.journal && this.journal.size > this.rotateBytes) {
+      // Truncate only when everything journaled is in the database (no append runs meanwhile: this is the journal stage).
+      await this.dbTail;
+      if (this.stats.storedSeq >= this.stats.ackedSeq && !this.pending.some((r) => r.seq <= this.stats.ackedSeq)) await this.journal.truncate();
+    }
+    const rows = this.pending.length <= this.maxBatchRows ? this.pending : this.pending.slice(0, this.maxBatchRows);
+    this.pending = rows === this.pending ? [] : this.pending.slice(rows.length);
+    this.stats.pending = this.pending.length;
+    if (!rows.length) return;
     const t0 = performance.now();
-    const top = rows[rows.length - 1]!.seq;
+    let top = 0;
+    for (const r of rows) if (r.seq > top) top = r.seq;
+    const sink = this.sink;
+    let prepared: PreparedBatch | undefined;
     try {
+      // Serialised once: the CSV made for the database's COPY is also what the journal stores.
+      prepared = sink.prepare && sink.insertPrepared ? sink.prepare(rows) : undefined;
       if (this.journal) {
-        await this.journal.append(rows);
+        if (prepared?.csv) await this.journal.appendCsv(prepared.csv, rows.length);
+        else await this.journal.append(rows);
         this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
       }
-      await this.sink.insertMany(rows);
+    } catch (error) {
+      this.requeue(rows, error);
+      return;
+    }
+    const previous = this.dbTail;
+    this.dbTail = previous.then(async () => {
+      try {
+        if (prepared !== undefined) await sink.insertPrepared!(prepared);
+        else await sink.insertMany(rows);
+      } catch (error) {
+        this.requeue(rows, error);
+        return;
+      }
       this.stats.storedSeq = Math.max(this.stats.storedSeq, top);
       if (!this.journal) this.stats.ackedSeq = this.stats.storedSeq;
       this.stats.written += rows.length;
       this.stats.batches++;
       this.stats.lastBatchMs = performance.now() - t0;
-      if (this.journal && this.journal.size > this.rotateBytes) await this.journal.truncate();
-    } catch (error) {
-      this.stats.failures++;
-      // Keep the rows for the next attempt (a journaled row may be written twice; replay skips stored seqs).
-      this.pending = rows.concat(this.pending);
-      this.onError(error);
-    }
+    });
+    await previous;
   }
 
   /** Flushes everything pending and closes the journal. */
   async stop(): Promise<void> {
     clearInterval(this.timer);
-    for (let i = 0; i < 5 && (this.pending.length || this.flushing); i++) {
+    const rounds = 5 + Math.ceil(this.pending.length / this.maxBatchRows);
+    for (let i = 0; i < rounds && (this.pending.length || this.flushing); i++) {
       await this.flushing;
       await this.flush();
     }
+    await this.dbTail;
     this.stopped = true;
     await this.journal?.close();
   }

@@ -2,28 +2,24 @@ import { and, asc, between, eq, gt, gte, lte, sql, type SQL } from 'drizzle-orm'
 import { pgliteWorkerOf, type Db } from '../client';
 import { GzipPages } from '../gzip-pages';
 import type { PgliteWorkerClient } from '../pglite-worker-client';
+import { samplesCsv } from '../../bench/samples-csv';
 import { samples } from '../schema';
 
+export { samplesCsv };
+
 export type SampleRow = typeof samples.$inferSelect;
+
+/** A batch made ready for storing on this thread: its rows and, on PGlite, its COPY input. */
+export interface PreparedSamples {
+  rows: SampleRow[];
+  csv?: Uint8Array<ArrayBuffer>;
+}
 
 /** Columns per row of `samples`; PostgreSQL allows at most 65 535 bind parameters per statement. */
 const COLUMNS = 9;
 const MAX_ROWS_PER_INSERT = Math.floor(65_535 / COLUMNS) - 1;
 
 const COPY_SAMPLES = `COPY samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms) FROM '/dev/blob' WITH (FORMAT csv)`;
-
-/** A CSV field: text always quoted (so '' is an empty string), null as an unquoted empty field. */
-const csvText = (v: string | null) => (v === null ? '' : `"${v.includes('"') ? v.replaceAll('"', '""') : v}"`);
-const csvNum = (v: number | null) => (v === null ? '' : String(v));
-
-/** Rows as CSV for `COPY samples (…) FROM … WITH (FORMAT csv)`, in COPY_SAMPLES' column order. */
-export function samplesCsv(rows: readonly SampleRow[]): string {
-  let out = '';
-  for (const r of rows) {
-    out += `${r.seq},${csvText(r.benchId)},${csvText(r.device)},${csvText(r.runId)},${csvText(r.raw)},${csvNum(r.value)},${csvText(r.unit)},${r.wallMs},${r.monoMs}\n`;
-  }
-  return out;
-}
 
 /** A string literal for SQL that cannot take bind parameters (COPY); standard_conforming_strings is on. */
 const literal = (s: string) => `'${s.replaceAll("'", "''")}'`;
@@ -87,6 +83,37 @@ async function* gzipHere(pieces: AsyncGenerator<Buffer>): AsyncGenerator<Buffer>
 
 export function sampleRepository(db: Db) {
   const pglite = pgliteWorkerOf(db);
+
+  /**
+   * The part of an insert done on this thread (the COPY input, on PGlite), so a writer can make it
+   * for the next batch while the database stores the previous one.
+   */
+  function prepare(rows: SampleRow[]): PreparedSamples {
+    return { rows, ...(pglite && rows.length ? { csv: new TextEncoder().encode(samplesCsv(rows)) } : {}) };
+  }
+
+  /** Stores what {@link prepare} made (its COPY input is handed to the worker, not copied). */
+  async function insertPrepared(p: PreparedSamples): Promise<void> {
+    const { rows } = p;
+    if (!rows.length) return;
+    if (pglite && p.csv) {
+      const csv = p.csv;
+      p.csv = undefined; // moved to the worker below; a retry prepares afresh
+      try {
+        await pglite.copyFrom(COPY_SAMPLES, csv);
+        await analyzeIfGrown(rows.length);
+        return;
+      } catch (e) {
+        if ((e as { code?: string }).code !== '23505') throw e; // unique_violation
+      }
+    }
+    for (let i = 0; i < rows.length; i += MAX_ROWS_PER_INSERT) {
+      await db
+        .insert(samples)
+        .values(rows.slice(i, i + MAX_ROWS_PER_INSERT))
+        .onConflictDoNothing({ target: samples.seq });
+    }
+  }
 
   /**
    * The trace document in pieces: the opening once the first page is in hand (so a failing first
@@ -228,24 +255,9 @@ export function sampleRepository(db: Db) {
      * a failed write, a replay), COPY refuses it whole and the batch goes in as inserts that skip
      * the stored rows. On PostgreSQL multi-row inserts, chunked under the bind-parameter limit.
      */
-    async insertMany(rows: SampleRow[]): Promise<void> {
-      if (!rows.length) return;
-      if (pglite) {
-        try {
-          await pglite.copyFrom(COPY_SAMPLES, new TextEncoder().encode(samplesCsv(rows)));
-          await analyzeIfGrown(rows.length);
-          return;
-        } catch (e) {
-          if ((e as { code?: string }).code !== '23505') throw e; // unique_violation
-        }
-      }
-      for (let i = 0; i < rows.length; i += MAX_ROWS_PER_INSERT) {
-        await db
-          .insert(samples)
-          .values(rows.slice(i, i + MAX_ROWS_PER_INSERT))
-          .onConflictDoNothing({ target: samples.seq });
-      }
-    },
+    insertMany: (rows: SampleRow[]): Promise<void> => insertPrepared(prepare(rows)),
+    prepare,
+    insertPrepared,
     async maxSeq(): Promise<number> {
       const [r] = await db.select({ m: sql<string | null>`max(${samples.seq})` }).from(samples);
       return r?.m == null ? 0 : Number(r.m);
