@@ -19,7 +19,7 @@ import { toInstrument } from './register.service';
  */
 export const INTERVAL_PARAMS = {
   staircase: { extendAtOrBelow: 0.5, extendFactor: 1.25, shortenFactor: 0.5, minDays: 30, maxDays: 1095 },
-  a3: { targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2 },
+  a3: { targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2, adjustment: 'limit-midpoint' },
 } as const;
 
 interface PointResult {
@@ -160,7 +160,7 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
           method: 'a3',
           action: days > instrument.intervalDays ? 'extend' : days < instrument.intervalDays ? 'shorten' : 'keep',
           recommendedDays: days,
-          basis: `${inTolerance} of ${calibrations} as-found in tolerance (observed reliability ${(a.observedReliability * 100).toFixed(0)} %, limits ${(a.lower * 100).toFixed(0)}–${(a.upper * 100).toFixed(0)} % at confidence ${INTERVAL_PARAMS.a3.confidence}); target ${INTERVAL_PARAMS.a3.targetReliability * 100} % ${a.passes ? 'lies inside: keep' : 'lies outside: adjust'} (NCSLI RP-1 Method A3).`,
+          basis: `${inTolerance} of ${calibrations} as-found in tolerance (observed reliability ${(a.observedReliability * 100).toFixed(0)} %, limits ${(a.lower * 100).toFixed(0)}–${(a.upper * 100).toFixed(0)} % at confidence ${INTERVAL_PARAMS.a3.confidence}); target ${INTERVAL_PARAMS.a3.targetReliability * 100} % ${a.passes ? 'lies inside: keep' : 'lies outside: moved halfway toward the interval the nearest limit implies (exponential model)'} (NCSLI RP-1 Method A3; the adjustment rule is our reconstruction from the 2019 NCSL International tutorial case).`,
         });
       }
       return { instrument, unit: '% of span', tolerancePct: tol, calibrations, inTolerance, points, worstPredicted, recommendations };

@@ -106,6 +106,13 @@ export interface IntervalTestInput {
   confidence: number;
   /** Largest allowed change factor of the interval (e.g. 2: at most double or halve). */
   maxChangeFactor: number;
+  /**
+   * How a failed interval is moved (see {@link intervalTestA3}). Default `'limit-midpoint'`.
+   * - `'limit-midpoint'`: extrapolate from the confidence limit nearest the target, then move
+   *   halfway from the current interval to that value;
+   * - `'observed'`: extrapolate from the observed reliability x/n all the way.
+   */
+  adjustment?: 'limit-midpoint' | 'observed';
 }
 
 /** Result of the A3 interval test. */
@@ -120,11 +127,20 @@ export interface IntervalTestResult {
 }
 
 /**
- * NCSLI RP-1 (2010) Method A3, as reconstructed here: binomial confidence limits of the observed
- * reliability x/n; if the target lies outside them the interval fails the test and a new interval is
- * found by exponential-reliability extrapolation I′ = I·ln(R*)/ln(R_obs) (R_obs = 1 uses the
- * lower confidence limit), bounded by `maxChangeFactor`. See the test for how this compares with
- * the published worked case.
+ * NCSLI RP-1 (2010) Method A3, the interval test: two-sided binomial (Clopper–Pearson) confidence
+ * limits of the observed reliability x/n at the given confidence; if the target R* lies inside
+ * them the interval passes and is kept. If not, the interval is moved with the exponential
+ * reliability model R(t) = exp(−λt), under which the interval that gives R* from an interval I
+ * that gave R is I·ln(R*) / ln(R) (the model usual for these methods; from memory, not quoted).
+ *
+ * Which R, and how far to move, is the `adjustment` setting. The default, `'limit-midpoint'`,
+ * takes R at the confidence limit nearest R* (the least change the data force) and moves halfway
+ * from I toward that interval. It is our reconstruction: it reproduces the published tutorial
+ * case (2019 NCSL International symposium interval tutorial: 15 of 20 in tolerance at 365 days,
+ * R* = 0.95, confidence 0.5 → about 231 days; this gives 232) but RP-1's own text was not
+ * available to us, so the rule is not quoted from it. `'observed'` extrapolates from x/n all the
+ * way (65 days in that case), the harsher reading. Either is bounded by `maxChangeFactor`; an
+ * observed reliability of 0 or 1 uses the nearest limit in both modes.
  */
 export function intervalTestA3(i: IntervalTestInput): IntervalTestResult {
   if (!(i.total > 0 && i.inTolerance >= 0 && i.inTolerance <= i.total)) throw new RangeError('need 0 ≤ inTolerance ≤ total, total > 0');
@@ -135,8 +151,14 @@ export function intervalTestA3(i: IntervalTestInput): IntervalTestResult {
   const passes = i.targetReliability >= lower && i.targetReliability <= upper;
   let rec = i.intervalDays;
   if (!passes) {
-    const rUse = r === 1 ? lower : r === 0 ? upper : r;
-    rec = rUse <= 0 ? i.intervalDays / i.maxChangeFactor : (i.intervalDays * Math.log(i.targetReliability)) / Math.log(rUse);
+    const nearest = i.targetReliability > upper ? upper : lower;
+    const mode = i.adjustment ?? 'limit-midpoint';
+    const rUse = mode === 'observed' && r > 0 && r < 1 ? r : nearest;
+    let moved: number;
+    if (rUse <= 0) moved = 0;
+    else if (rUse >= 1) moved = Infinity;
+    else moved = (i.intervalDays * Math.log(i.targetReliability)) / Math.log(rUse);
+    rec = mode === 'observed' ? moved : (i.intervalDays + moved) / 2;
     rec = Math.min(i.intervalDays * i.maxChangeFactor, Math.max(i.intervalDays / i.maxChangeFactor, rec));
   }
   return { observedReliability: r, lower, upper, passes, recommendedDays: rec };
