@@ -73,9 +73,9 @@ async function openWriter(p: string): Promise<SerialPort> {
  * Writes `count` numbered calibrator lines at `rateHz` at a pty and returns the time each line's
  * last byte was handed to the pty (write drained), by number.
  */
-async function writeLines(port: SerialPort, count: number, rateHz: number): Promise<Map<number, number>> {
+async function writeLines(port: SerialPort, count: number, rateHz: number, from = 1): Promise<Map<number, number>> {
   const sentAt = new Map<number, number>();
-  for (let i = 1; i <= count; i++) {
+  for (let i = from; i < from + count; i++) {
     const line = `DP +${(i / 1000).toFixed(5)} inH2O@68F\r\n`;
     await new Promise<void>((res) => port.write(line, () => port.drain(() => res())));
     sentAt.set(i, performance.now());
@@ -108,6 +108,7 @@ async function bootApp(bench: Parameters<typeof boot>[0]['bench'], env: Record<s
 }
 
 const LINES = 300;
+const LATENCY_ROUNDS = 3;
 const RATE = 50;
 
 /** 1. pty → WebSocket latency through the product and through a bare relay. */
@@ -122,13 +123,6 @@ async function latency(): Promise<BenchFigure[]> {
   const ws = await wsClient(app.url, cookie, (m, at) => {
     if (m.type === 'sample.received' && m.device === 'pressure' && m.value !== null) gotProduct.set(Math.round(m.value * 1000), at);
   });
-  const w1 = await openWriter(pressure.a);
-  await sleep(500);
-  const sent1 = await writeLines(w1, LINES, RATE);
-  await sleep(500);
-  ws.terminate();
-  await new Promise<void>((r) => w1.close(() => r()));
-  await app.close();
 
   // Bare relay: serialport + readline parser → ws server → client; nothing else.
   const relay = await socatPair(dir, 'relay');
@@ -149,18 +143,36 @@ async function latency(): Promise<BenchFigure[]> {
     gotBare.set(Math.round(Number(raw.split(/\s+/)[1]) * 1000), performance.now());
   });
   await new Promise((r) => client.once('open', r));
+
+  // Rounds alternate between the two paths, so a busy spell of a shared machine falls on both;
+  // the p99s are taken over all rounds pooled.
+  const w1 = await openWriter(pressure.a);
   const w2 = await openWriter(relay.a);
-  await sleep(300);
-  const sent2 = await writeLines(w2, LINES, RATE);
   await sleep(500);
+  const sent1 = new Map<number, number>();
+  const sent2 = new Map<number, number>();
+  const roundRatios: number[] = [];
+  const lat = (sent: Map<number, number>, got: Map<number, number>) => [...sent].filter(([i]) => got.has(i)).map(([i, t]) => got.get(i)! - t);
+  for (let r = 0; r < LATENCY_ROUNDS; r++) {
+    const from = 1 + r * LINES;
+    const s1 = await writeLines(w1, LINES, RATE, from);
+    await sleep(300);
+    const s2 = await writeLines(w2, LINES, RATE, from);
+    await sleep(300);
+    roundRatios.push(pct(lat(s1, gotProduct), 99) / pct(lat(s2, gotBare), 99));
+    for (const [k, v] of s1) sent1.set(k, v);
+    for (const [k, v] of s2) sent2.set(k, v);
+  }
+  ws.terminate();
   client.terminate();
+  await new Promise<void>((r) => w1.close(() => r()));
   await new Promise<void>((r) => w2.close(() => r()));
+  await app.close();
   await new Promise<void>((r) => port.close(() => r()));
   wss.close();
   server.close();
   for (const p of [pressure, current, relay]) p.child.kill('SIGTERM');
 
-  const lat = (sent: Map<number, number>, got: Map<number, number>) => [...sent].filter(([i]) => got.has(i)).map(([i, t]) => got.get(i)! - t);
   const product = lat(sent1, gotProduct);
   const bare = lat(sent2, gotBare);
   const p50 = pct(product, 50);
@@ -168,13 +180,15 @@ async function latency(): Promise<BenchFigure[]> {
   const b50 = pct(bare, 50);
   const b99 = pct(bare, 99);
   const ratio = p99 / b99;
+  const total = LINES * LATENCY_ROUNDS;
   return [
-    { name: `pty → ws latency p50, product (${product.length}/${LINES} lines at ${RATE}/s)`, value: p50, unit: 'ms' },
+    { name: `pty → ws latency p50, product (${product.length}/${total} lines at ${RATE}/s, ${LATENCY_ROUNDS} rounds alternating with the relay)`, value: p50, unit: 'ms' },
     { name: 'pty → ws latency p99, product', value: p99, unit: 'ms' },
-    { name: `pty → ws latency p50, bare relay (${bare.length}/${LINES} lines)`, value: b50, unit: 'ms' },
+    { name: `pty → ws latency p50, bare relay (${bare.length}/${total} lines)`, value: b50, unit: 'ms' },
     { name: 'pty → ws latency p99, bare relay', value: b99, unit: 'ms' },
     { name: 'latency ratio product / bare relay (p50)', value: p50 / b50, unit: '×' },
-    { name: 'latency ratio product / bare relay (p99)', value: ratio, unit: '×', target: '<= 1.3', ok: ratio <= 1.3 },
+    { name: 'latency ratio product / bare relay (p99, rounds pooled)', value: ratio, unit: '×', target: '<= 1.3', ok: ratio <= 1.3 },
+    { name: 'latency ratio product / bare relay (p99), per round', value: roundRatios[0]!, unit: `× (all rounds: ${roundRatios.map((x) => x.toFixed(2)).join(', ')})` },
   ];
 }
 

@@ -3,8 +3,8 @@
  * the database. `ackedSeq` is the highest seq that is durably stored: after the journal sync when
  * there is a journal, else after the database write.
  *
- * The two stages overlap: while batch N goes into the database, batch N+1 is appended to the
- * journal (at most one database write in flight). Batches are bounded (`maxBatchRows`), so a
+ * The stages overlap: a batch is appended to the journal while it (or the batch before it) goes
+ * into the database, at most one database write in flight. Batches are bounded (`maxBatchRows`), so a
  * backlog is written in steady pieces rather than one huge write at the end.
  */
 import type { HubEntry } from './hub';
@@ -190,24 +190,36 @@ export class SampleWriter {
     const sink = this.sink;
     let prepared: PreparedBatch | undefined;
     try {
-      // Serialised once: the CSV made for the database's COPY is also what the journal stores.
       prepared = sink.prepare && sink.insertPrepared ? sink.prepare(rows) : undefined;
-      if (this.journal) {
-        if (prepared?.csv) await this.journal.appendCsv(prepared.csv, rows.length);
-        else await this.journal.append(rows);
-        this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
-      }
     } catch (error) {
       this.requeue(rows, error);
       return;
     }
+    // The journal write and the database write of a batch run side by side: a sample counts as
+    // stored (acknowledged) once the journal is synced, whatever the database is doing. Serialised
+    // once: the CSV made for the database's COPY is also what the journal stores (a copy of it,
+    // since COPY's input is moved to the database thread).
+    let failed = false;
+    const fail = (error: unknown) => {
+      if (failed) return; // one requeue per batch, however many stages failed
+      failed = true;
+      this.requeue(rows, error);
+    };
+    const journaled = this.journal
+      ? (prepared?.csv ? this.journal.appendCsv(prepared.csv.slice(), rows.length) : this.journal.append(rows)).then(
+          () => {
+            this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
+          },
+          fail,
+        )
+      : Promise.resolve();
     const previous = this.dbTail;
     this.dbTail = previous.then(async () => {
       try {
         if (prepared !== undefined) await sink.insertPrepared!(prepared);
         else await sink.insertMany(rows);
       } catch (error) {
-        this.requeue(rows, error);
+        fail(error);
         return;
       }
       this.stats.storedSeq = Math.max(this.stats.storedSeq, top);
@@ -216,7 +228,7 @@ export class SampleWriter {
       this.stats.batches++;
       this.stats.lastBatchMs = performance.now() - t0;
     });
-    await previous;
+    await Promise.all([journaled, previous]);
   }
 
   /** Flushes everything pending and closes the journal. */
