@@ -85,7 +85,7 @@ function serialPaths(): { pressure: string; current: string } | undefined {
 export async function boot(opts: BootOptions): Promise<Running> {
   const { env, logger } = opts;
   const memory = !!opts.memory && !env.DATABASE_URL;
-  const database = await openDatabase(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : memory ? {} : { dataDir: env.DATA_DIR });
+  const database = await openDatabase({ ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? {} : { dataDir: env.DATA_DIR }) });
   let benchToStop: BenchService | undefined;
   let fakeSmtp: FakeSmtp | undefined;
   let mailer: Mailer | undefined;

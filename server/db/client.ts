@@ -36,6 +36,48 @@ export class DataDirLockedError extends Error {
   }
 }
 
+/** A second Stillpoint process on one PostgreSQL database (its sample sequence would collide). */
+export class DatabaseInUseError extends DataDirLockedError {
+  constructor(readonly holderPids: number[]) {
+    super('', holderPids[0] ?? 0);
+    this.message =
+      `The PostgreSQL database is in use by another Stillpoint process (server backend pid ${holderPids.join(', ') || 'unknown'}). ` +
+      'Stop that process first, or point DATABASE_URL at another database. Two processes on one database would hand out the same sample numbers.';
+    this.name = 'DatabaseInUseError';
+  }
+}
+
+/** Advisory lock key of a Stillpoint database ("STLP" as a number); advisory locks are per database. */
+const DB_LOCK_KEY = 0x53544c50;
+
+/**
+ * Holds a session-level advisory lock on the database for this process's life, on a connection of
+ * its own. The lock of a killed process goes when its connection does, which the server may take
+ * a moment to notice, so a busy lock is retried for `waitMs` before giving up.
+ */
+async function lockDatabase(url: string, waitMs: number): Promise<() => Promise<void>> {
+  const client = new pg.Client({ connectionString: url });
+  await client.connect();
+  const deadline = Date.now() + waitMs;
+  for (;;) {
+    const r = await client.query<{ ok: boolean }>('SELECT pg_try_advisory_lock($1) AS ok', [DB_LOCK_KEY]);
+    if (r.rows[0]?.ok) break;
+    if (Date.now() >= deadline) {
+      const holders = await client.query<{ pid: number }>(
+        `SELECT pid FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted AND database = (SELECT oid FROM pg_database WHERE datname = current_database())`,
+        [DB_LOCK_KEY],
+      );
+      await client.end();
+      throw new DatabaseInUseError(holders.rows.map((h) => h.pid));
+    }
+    await new Promise((res) => setTimeout(res, 200));
+  }
+  client.on('error', () => {}); // a dropped lock connection surfaces on the pool's own queries
+  return async () => {
+    await client.end();
+  };
+}
+
 /** Lock files this process holds, so a second open in the same process is refused too. */
 const heldLocks = new Set<string>();
 
@@ -93,23 +135,45 @@ export interface OpenOptions {
   databaseUrl?: string;
   /** PGlite data directory; omit for an in-memory database (tests). */
   dataDir?: string;
+  /** PostgreSQL only: how long to wait for another process's hold on the database to go, ms (default 10 000). */
+  lockWaitMs?: number;
 }
 
 /** Opens the database and applies the migrations in drizzle/ in-process. */
 export async function openDatabase(opts: OpenOptions): Promise<Database> {
   if (opts.databaseUrl) {
+    // One process per database (advisory lock) and per data directory (the sample journal lives there).
+    const releaseDir = opts.dataDir ? lockDataDir(opts.dataDir) : undefined;
+    let releaseDb: () => Promise<void>;
+    try {
+      releaseDb = await lockDatabase(opts.databaseUrl, opts.lockWaitMs ?? 10_000);
+    } catch (e) {
+      releaseDir?.();
+      throw e;
+    }
     const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10 });
     const db = drizzlePg(pool, { schema }) as unknown as Db;
-    await migratePg(drizzlePg(pool), { migrationsFolder: MIGRATIONS_DIR });
+    const close = async () => {
+      try {
+        await pool.end();
+        await releaseDb();
+      } finally {
+        releaseDir?.();
+      }
+    };
+    try {
+      await migratePg(drizzlePg(pool), { migrationsFolder: MIGRATIONS_DIR });
+    } catch (e) {
+      await close();
+      throw e;
+    }
     return {
       db,
       kind: 'postgres',
       exec: async (sql) => {
         await pool.query(sql);
       },
-      close: async () => {
-        await pool.end();
-      },
+      close,
     };
   }
   // PGlite runs in a worker thread: on Node it would otherwise run every query on the event loop.

@@ -5,8 +5,8 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import net from 'node:net';
-import pg from 'pg';
 import { sleep } from './proof-helpers';
+import { freshPostgres } from './test-server';
 
 export interface ServerProcess {
   child: ChildProcess;
@@ -59,25 +59,8 @@ export async function waitHealthy(s: ServerProcess, ms = 90_000): Promise<void> 
 }
 
 /** A fresh database on the PostgreSQL server of TEST_DATABASE_URL, or undefined on PGlite. */
-export async function freshPostgresUrl(prefix: string): Promise<{ url: string; drop(): Promise<void> } | undefined> {
-  const admin = process.env.TEST_DATABASE_URL;
-  if (!admin) return undefined;
-  const name = `${prefix}_${Date.now().toString(36)}_${Math.random().toString(36).slice(2, 6)}`;
-  const c = new pg.Client({ connectionString: admin });
-  await c.connect();
-  await c.query(`CREATE DATABASE ${name}`);
-  await c.end();
-  const u = new URL(admin);
-  u.pathname = `/${name}`;
-  return {
-    url: u.toString(),
-    drop: async () => {
-      const d = new pg.Client({ connectionString: admin });
-      await d.connect();
-      await d.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
-      await d.end();
-    },
-  };
+export function freshPostgresUrl(prefix: string): Promise<{ url: string; drop(): Promise<void> } | undefined> {
+  return freshPostgres(prefix);
 }
 
 /** A port on loopback that was free a moment ago (the kernel's choice). */

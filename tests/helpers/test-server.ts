@@ -11,10 +11,10 @@ export const demoEmail = (role: 'tech' | 'tech2' | 'lead' | 'admin' | 'auditor')
  * when TEST_DATABASE_URL is set (a postgres:// URL of a server the tests may create
  * databases on), a fresh database on that server for each booted app.
  */
-async function freshPostgres(): Promise<{ url: string; drop(): Promise<void> } | undefined> {
+export async function freshPostgres(prefix = 'sp_test'): Promise<{ url: string; drop(): Promise<void> } | undefined> {
   const admin = process.env.TEST_DATABASE_URL;
   if (!admin) return undefined;
-  const name = `sp_test_${Date.now().toString(36)}_${Math.random().toString(36).slice(2, 8)}`;
+  const name = `${prefix}_${Date.now().toString(36)}_${Math.random().toString(36).slice(2, 8)}`;
   const c = new pg.Client({ connectionString: admin });
   await c.connect();
   await c.query(`CREATE DATABASE ${name}`);
