@@ -10,15 +10,8 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
+import type { BenchFigure } from './bench.bench';
 
-/** One benchmark figure. */
-export interface BenchFigure {
-  name: string;
-  value: number;
-  unit: string;
-  target?: string;
-  ok?: boolean;
-}
 
 const ROOT = path.resolve(import.meta.dirname, '..');
 const SUMMARY = path.join(ROOT, '.tmp/proof-summary.json');
