@@ -58,6 +58,8 @@ interface Consumer {
 export interface DeviceCounters {
   samples: number;
   badLines: number;
+  /** Forwarded lines refused at the edge (control characters, overlong), never stored. */
+  edgeRefused: number;
   lastWallMs: number | null;
   lastValue: number | null;
   lastUnit: string | null;
@@ -242,7 +244,7 @@ export class BenchHub {
     const key = `${benchId}\u0000${device}`;
     let d = this.devices.get(key);
     if (!d) {
-      d = { samples: 0, badLines: 0, lastWallMs: null, lastValue: null, lastUnit: null, connected: false, path: null, reason: null };
+      d = { samples: 0, badLines: 0, edgeRefused: 0, lastWallMs: null, lastValue: null, lastUnit: null, connected: false, path: null, reason: null };
       this.devices.set(key, d);
     }
     return d;

@@ -7,7 +7,7 @@
 import path from 'node:path';
 import type { Logger } from 'pino';
 import { convertPressure, isPressureUnitId, type OutputMode } from '../../shared/calc';
-import { classifyScpiMeterLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
+import { checkEdgeLine, classifyScpiMeterLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
 import { CaptureEngine, type EngineEvent } from '../bench/capture-engine';
@@ -168,7 +168,14 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       let accepted = 0;
       let rejected = 0;
       for (const l of msg.lines) {
-        const frame = classifiers[l.device](l.raw);
+        // The edge: a line that a port could never deliver (control characters, overlong) is counted and dropped here.
+        const edge = checkEdgeLine(l.raw);
+        if (!edge.ok) {
+          rejected++;
+          hub.counters(msg.benchId, l.device).edgeRefused++;
+          continue;
+        }
+        const frame = classifiers[l.device](edge.line);
         if (frame.type === 'text') continue;
         const ok = frame.type === 'sample';
         if (ok) accepted++;
@@ -176,7 +183,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
         hub.ingestSample({
           benchId: msg.benchId,
           device: l.device,
-          raw: l.raw,
+          raw: edge.line,
           value: ok ? frame.sample.value : null,
           unit: ok ? frame.sample.unit : null,
           wallMs: l.wallMs,

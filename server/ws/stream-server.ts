@@ -8,13 +8,14 @@ import type http from 'node:http';
 import type { Duplex } from 'node:stream';
 import type { Logger } from 'pino';
 import { WebSocketServer, type RawData, type WebSocket } from 'ws';
-import { ClientMessageSchema, type StreamMessage } from '../../shared/schemas/stream';
+import type { StreamMessage } from '../../shared/schemas/stream';
 import { toStreamMessage, type HubEntry } from '../bench/hub';
-import { allows } from '../http/policy';
 import type { AuthService, SessionUser } from '../services/auth.service';
+import { handleForwarded, parseClientMessage } from './client-messages';
+import { authenticateUpgrade } from './upgrade-auth';
 import type { BenchService } from '../services/bench.service';
 
-export const SESSION_COOKIE = 'sp_session';
+export { SESSION_COOKIE } from './upgrade-auth';
 
 /** Options of {@link attachStreamServer}. */
 export interface StreamServerOptions {
@@ -46,21 +47,6 @@ interface Client {
   /** Latest skipped sample per bench/device while over the high-water mark. */
   skipped: Map<string, StreamMessage>;
   skippedCount: number;
-}
-
-function parseCookies(header: string | undefined): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const part of (header ?? '').split(';')) {
-    const i = part.indexOf('=');
-    if (i < 0) continue;
-    const k = part.slice(0, i).trim();
-    try {
-      out[k] = decodeURIComponent(part.slice(i + 1).trim());
-    } catch {
-      out[k] = part.slice(i + 1).trim();
-    }
-  }
-  return out;
 }
 
 function refuse(socket: Duplex, status: number, text: string, message: string): void {
@@ -128,29 +114,16 @@ export function attachStreamServer(o: StreamServerOptions) {
           return;
         }
       }
-      const token = parseCookies(req.headers.cookie)[SESSION_COOKIE];
-      let user: SessionUser | undefined;
-      if (token) {
-        try {
-          user = await o.auth.verify(token);
-        } catch {
-          user = undefined;
-        }
-      }
-      if (!user) {
+      const who = await authenticateUpgrade(req, o.auth);
+      if (!who.ok) {
         stats.refused++;
-        refuse(socket, 401, 'Unauthorized', 'Sign in first');
+        refuse(socket, who.status, who.status === 401 ? 'Unauthorized' : 'Forbidden', who.message);
         return;
       }
-      if (!allows('stream.subscribe', user.role)) {
-        stats.refused++;
-        refuse(socket, 403, 'Forbidden', 'Your role does not allow this');
-        return;
-      }
+      const user = who.user;
       const sinceRaw = url.searchParams.get('since');
       const since = sinceRaw !== null && /^\d+$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
-      const signedIn = user;
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, signedIn, since));
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since));
     })();
   };
 
@@ -219,23 +192,14 @@ export function attachStreamServer(o: StreamServerOptions) {
   }
 
   function onMessage(c: Client, data: RawData, isBinary: boolean): void {
-    if (isBinary) return;
-    let parsed;
-    try {
-      parsed = ClientMessageSchema.safeParse(JSON.parse(String(data)));
-    } catch {
-      return;
-    }
-    if (!parsed.success) return;
-    const m = parsed.data;
+    const m = parseClientMessage(data, isBinary);
+    if (!m) return;
     if (m.type === 'watch') {
       c.runId = m.runId;
       return;
     }
-    // Forwarded instrument lines feed the hub like a port: only roles that perform calibrations may do it.
-    if (!allows('jobs.perform', c.user.role)) return;
-    stats.forwardedLines += m.lines.length;
-    o.bench.ingestForwarded(m);
+    const r = handleForwarded(c.user, m, o.bench);
+    stats.forwardedLines += r.lines;
   }
 
   const beat = setInterval(() => {

@@ -4,3 +4,4 @@ export * from './line-profile';
 export * from './protocol-decoder';
 export * from './sample';
 export * from './scpi';
+export * from './clean-line';
