@@ -8,6 +8,16 @@
 import type { DeviceKind } from '../../shared/protocol';
 import type { StreamMessage } from '../../shared/schemas/stream';
 
+/**
+ * Where a line came from: this server's own port (`id` the bench id), a registered bench agent
+ * (`id` the bench id the agent's token belongs to) or a browser forwarding Web Serial (`id` the
+ * user id). Stored with every sample.
+ */
+export interface SampleSource {
+  kind: 'port' | 'agent' | 'browser';
+  id: string;
+}
+
 /** A raw line received from an instrument (decoded or not). */
 export interface SampleEntry {
   kind: 'sample';
@@ -26,6 +36,10 @@ export interface SampleEntry {
   /** Time base for analysis, ms: `monoMs` for local ports, the sender's wall clock for forwarded lines. */
   tMs: number;
   runId: string | null;
+  /** Who delivered the line. */
+  source: SampleSource;
+  /** The sender's own wall clock for a forwarded line (metadata only), ms since the epoch; null for local ports. */
+  clientWallMs: number | null;
 }
 
 /** Any other stream message (device and run events), already numbered. */
@@ -196,7 +210,17 @@ export class BenchHub {
   }
 
   /** A reading (or a line that failed to decode, with `value` null) arriving now. */
-  ingestSample(s: { benchId: string; device: DeviceKind; raw: string; value: number | null; unit: string | null; tMs?: number; wallMs?: number }): SampleEntry {
+  ingestSample(s: {
+    benchId: string;
+    device: DeviceKind;
+    raw: string;
+    value: number | null;
+    unit: string | null;
+    tMs?: number;
+    wallMs?: number;
+    source?: SampleSource;
+    clientWallMs?: number | null;
+  }): SampleEntry {
     const monoMs = this.monoNow();
     const wallMs = s.wallMs ?? this.wallNow();
     const e: SampleEntry = {
@@ -211,6 +235,8 @@ export class BenchHub {
       monoMs,
       tMs: s.tMs ?? monoMs,
       runId: this.runs.get(s.benchId) ?? null,
+      source: s.source ?? { kind: 'port', id: s.benchId },
+      clientWallMs: s.clientWallMs ?? null,
     };
     const d = this.counters(s.benchId, s.device);
     if (s.value === null) d.badLines++;
