@@ -1,9 +1,10 @@
 /**
  * The driver suite over real pseudo-terminals (socat) and the native serial binding. Setup installs
- * socat with apt-get when it is missing and we are root; otherwise the suite is skipped with a note.
+ * socat with apt-get when it is missing and we are root; otherwise the suite fails with the reason:
+ * a missing tool never skips silently.
  */
 import { execFileSync } from 'node:child_process';
-import { describe, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { defineDriverSuite, SUITE_RIG } from './serial-driver-suite';
 import { findSocat, SOCAT_MISSING, startPtySim } from '../../simulators/pty-sim';
 import { defaultBinding } from '../../server/bench/transport';
@@ -28,7 +29,9 @@ if (available) {
     return { rig: sim.rig, binding: defaultBinding(), paths: sim.hostPaths, teardown: () => sim.stop() };
   });
 } else {
-  describe.skip(`drivers over socat pseudo-terminals — skipped: ${SOCAT_MISSING} (not root, so setup could not install it)`, () => {
-    it('needs socat', () => {});
+  describe('drivers over socat pseudo-terminals', () => {
+    it('needs socat, which is missing and could not be installed (run as root, or apt-get install socat)', () => {
+      expect.fail(`${SOCAT_MISSING}; this is not root, so the set-up could not install it`);
+    });
   });
 }

@@ -37,8 +37,9 @@ import {
   type RawResponse,
 } from '../helpers/proof-helpers';
 import type { Role } from '../../shared/schemas/auth';
+import { proofCount } from '../helpers/proof-level';
 
-const RUNS = Number(process.env.PROOF_FUZZ_RUNS ?? 40);
+const RUNS = proofCount('PROOF_FUZZ_RUNS', 12, 40);
 const SEED = Number(process.env.PROOF_FUZZ_SEED ?? Date.now() % 2 ** 31);
 
 let srv: TestServer;

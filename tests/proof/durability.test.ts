@@ -9,7 +9,7 @@
  *   same values;
  * - a second process on the same data directory is refused (PGlite; every tenth round).
  *
- * `PROOF_KILLS` (default 50; 15 on a PostgreSQL server) sets the rounds, `PROOF_KILL_SEED` replays the
+ * `PROOF_KILLS` (PROOF_LEVEL=full: 50, or 15 on a PostgreSQL server; the short pass of `npm test`: 5, or 3) sets the rounds, `PROOF_KILL_SEED` replays the
  * kill moments. On a PostgreSQL server (TEST_DATABASE_URL) each run gets a fresh database.
  */
 import fs from 'node:fs';
@@ -19,10 +19,11 @@ import { afterAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
 import { ApiClient, demoEmail } from '../helpers/test-server';
 import { prepareFt101, recordSummary, sleep } from '../helpers/proof-helpers';
+import { proofCount } from '../helpers/proof-level';
 import { freshPostgresUrl, randomPort, startHealthy, startServerProcess, type ServerProcess } from '../helpers/proof-process';
 
 const PG_ADMIN = process.env.TEST_DATABASE_URL;
-const KILLS = Number(process.env.PROOF_KILLS ?? (PG_ADMIN ? 15 : 50));
+const KILLS = PG_ADMIN ? proofCount('PROOF_KILLS', 3, 15) : proofCount('PROOF_KILLS', 5, 50);
 const SEED = Number(process.env.PROOF_KILL_SEED ?? Date.now() % 2 ** 31);
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-durability-'));
 const children: ServerProcess[] = [];

@@ -17,11 +17,12 @@ import WebSocket from 'ws';
 import { EvaluateBodySchema } from '../../shared/schemas/calc';
 import { ApiClient, demoEmail } from '../helpers/test-server';
 import { percentile, prepareFt101, recordSummary, sleep } from '../helpers/proof-helpers';
+import { proofCount } from '../helpers/proof-level';
 import { freshPostgresUrl, startHealthy, type ServerProcess } from '../helpers/proof-process';
 
-const SECONDS = Number(process.env.PROOF_LOAD_SECONDS ?? 60);
-const RPS = Number(process.env.PROOF_LOAD_RPS ?? 100);
-const VIEWERS = Number(process.env.PROOF_LOAD_VIEWERS ?? 50);
+const SECONDS = proofCount('PROOF_LOAD_SECONDS', 15, 60);
+const RPS = proofCount('PROOF_LOAD_RPS', 100, 100);
+const VIEWERS = proofCount('PROOF_LOAD_VIEWERS', 50, 50);
 const P99_LIMIT_MS = 200;
 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-load-'));
