@@ -32,6 +32,8 @@ export interface BootOptions {
   /** Use an in-memory PGlite (tests) instead of DATA_DIR. Ignored when DATABASE_URL is set. */
   memory?: boolean;
   devMiddleware?: RequestHandler;
+  /** In memory mode: start the database from this tarball (a migrated, seeded template; tests). */
+  template?: Uint8Array;
   /** Sample journal directory in memory mode (tests); without it an in-memory server keeps no journal. */
   journalDir?: string;
   /** Bench runtime overrides (bench figures, special set-ups). */
@@ -85,7 +87,7 @@ function serialPaths(): { pressure: string; current: string } | undefined {
 export async function boot(opts: BootOptions): Promise<Running> {
   const { env, logger } = opts;
   const memory = !!opts.memory && !env.DATABASE_URL;
-  const database = await openDatabase({ ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? {} : { dataDir: env.DATA_DIR }) });
+  const database = await openDatabase({ ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }) });
   let benchToStop: BenchService | undefined;
   let fakeSmtp: FakeSmtp | undefined;
   let mailer: Mailer | undefined;

@@ -17,6 +17,8 @@ export interface Database {
   kind: 'pglite' | 'postgres';
   /** Runs raw SQL (used by tests and maintenance; services go through repositories). */
   exec(sql: string): Promise<void>;
+  /** PGlite only: the whole database as a tarball, to start in-memory databases from (test templates). */
+  dump?(): Promise<Uint8Array>;
   /** Checkpoints and closes the database and releases the data-directory lock. */
   close(): Promise<void>;
 }
@@ -135,6 +137,8 @@ export interface OpenOptions {
   databaseUrl?: string;
   /** PGlite data directory; omit for an in-memory database (tests). */
   dataDir?: string;
+  /** In-memory PGlite only: start from this tarball (see {@link Database.dump}) instead of an empty database. */
+  template?: Uint8Array;
   /** PostgreSQL only: how long to wait for another process's hold on the database to go, ms (default 10 000). */
   lockWaitMs?: number;
 }
@@ -181,7 +185,13 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
   const release = opts.dataDir ? lockDataDir(opts.dataDir) : undefined;
   let client: PgliteWorkerClient;
   try {
-    client = await PgliteWorkerClient.start(opts.dataDir ? { dataDir: path.join(path.resolve(opts.dataDir), 'pglite') } : {});
+    client = await PgliteWorkerClient.start(
+      opts.dataDir
+        ? { dataDir: path.join(path.resolve(opts.dataDir), 'pglite') }
+        : opts.template
+          ? { loadDataDir: opts.template.slice().buffer }
+          : {},
+    );
   } catch (e) {
     release?.();
     throw e;
@@ -203,6 +213,7 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
     exec: async (sql) => {
       await client.exec(sql);
     },
+    dump: () => client.dumpDataDir(),
     close: async () => {
       try {
         await client.close();

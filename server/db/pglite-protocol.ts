@@ -8,6 +8,8 @@
 export interface WorkerInit {
   /** PGlite data directory; absent for an in-memory database. */
   dataDir?: string;
+  /** An in-memory database's starting contents: a tarball from `dumpDataDir` (tests start from a migrated, seeded template). */
+  loadDataDir?: ArrayBuffer;
 }
 
 export type WorkerRequest =
@@ -54,6 +56,7 @@ export type WorkerRequest =
       /** Last text of the document; absent to abandon the stream (client gone). */
       tail?: string;
     }
+  | { id: number; op: 'dump' }
   | { id: number; op: 'close' };
 
 /** A PostgreSQL error's fields, as PGlite reports them. */
@@ -86,7 +89,7 @@ export interface WireResults {
 }
 
 export type WorkerReply =
-  | { id: number; ok: true; result: WireResults | WireResults[] | JsonArrayResult | null }
+  | { id: number; ok: true; result: WireResults | WireResults[] | JsonArrayResult | ArrayBuffer | null }
   | { id: number; ok: false; error: WireError };
 
 export interface JsonArrayWrap {

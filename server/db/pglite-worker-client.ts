@@ -148,6 +148,11 @@ export class PgliteWorkerClient implements ProxyTransaction {
     return client;
   }
 
+  /** The whole database as a tarball (PGlite `dumpDataDir`, uncompressed), for starting other in-memory databases from it. */
+  dumpDataDir(): Promise<Buffer> {
+    return this.exclusive(async () => Buffer.from((await this.send({ op: 'dump' })) as ArrayBuffer));
+  }
+
   /** True once closed (or the worker is gone). */
   get closed(): boolean {
     return this.exited || this.closing !== undefined;

@@ -178,7 +178,7 @@ async function main(): Promise<void> {
   lowerOwnPriority();
   let pg: PGlite;
   try {
-    pg = init.dataDir ? new PGlite(init.dataDir) : new PGlite();
+    pg = init.dataDir ? new PGlite(init.dataDir) : new PGlite(init.loadDataDir ? { loadDataDir: new Blob([init.loadDataDir]) } : {});
     await pg.waitReady;
   } catch (e) {
     port!.postMessage({ ready: false, error: toWireError(e) } satisfies WorkerHello);
@@ -235,6 +235,12 @@ async function main(): Promise<void> {
           const bytes = await gzipEnd(m.stream, m.tail);
           transfer.push(bytes);
           reply = { id: m.id, ok: true, result: { bytes, count: 0, more: false } };
+          break;
+        }
+        case 'dump': {
+          const bytes = await (await pg.dumpDataDir('none')).arrayBuffer();
+          transfer.push(bytes);
+          reply = { id: m.id, ok: true, result: bytes };
           break;
         }
         case 'close': {
