@@ -66,32 +66,33 @@ export async function startFakeSmtp(options: FakeSmtpOptions): Promise<FakeSmtp>
           return;
         }
         const raw = Buffer.concat(chunks);
-        let msg: StoredMail;
-        try {
-          const parsed = parseMail(raw);
-          const envelopeTo = session.envelope.rcptTo.map((r) => r.address);
-          msg = {
-            id: randomUUID(),
-            receivedAt: now().toISOString(),
-            from: parsed.from || (session.envelope.mailFrom ? session.envelope.mailFrom.address : ''),
-            to: envelopeTo.length > 0 ? envelopeTo : parsed.to,
-            subject: parsed.subject,
-            text: parsed.text,
-            ...(parsed.html !== undefined ? { html: parsed.html } : {}),
-            ...(parsed.messageId ? { messageId: parsed.messageId } : {}),
-            raw: raw.toString('utf8'),
-          };
-        } catch (err) {
-          callback(Object.assign(new Error(`Could not read the message: ${(err as Error).message}`), { responseCode: 554 }));
-          return;
-        }
-        Promise.resolve()
-          .then(() => options.onMessage(msg))
-          .then(
-            () => callback(null, `Queued as ${msg.id}`),
-            (err: unknown) =>
-              callback(Object.assign(new Error(`Could not store the message: ${String((err as Error)?.message ?? err)}`), { responseCode: 451 })),
-          );
+        void (async () => {
+          let msg: StoredMail;
+          try {
+            const parsed = await parseMail(raw);
+            const envelopeTo = session.envelope.rcptTo.map((r) => r.address);
+            msg = {
+              id: randomUUID(),
+              receivedAt: now().toISOString(),
+              from: parsed.from || (session.envelope.mailFrom ? session.envelope.mailFrom.address : ''),
+              to: envelopeTo.length > 0 ? envelopeTo : parsed.to,
+              subject: parsed.subject,
+              text: parsed.text,
+              ...(parsed.html !== undefined ? { html: parsed.html } : {}),
+              ...(parsed.messageId ? { messageId: parsed.messageId } : {}),
+              raw: raw.toString('utf8'),
+            };
+          } catch (err) {
+            callback(Object.assign(new Error(`Could not read the message: ${(err as Error).message}`), { responseCode: 554 }));
+            return;
+          }
+          try {
+            await options.onMessage(msg);
+            callback(null, `Queued as ${msg.id}`);
+          } catch (err) {
+            callback(Object.assign(new Error(`Could not store the message: ${String((err as Error)?.message ?? err)}`), { responseCode: 451 }));
+          }
+        })();
       });
     },
   });
