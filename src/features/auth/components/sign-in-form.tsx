@@ -64,7 +64,6 @@ export function SignInForm({ onSignedIn }: SignInFormProps) {
         type="email"
         autoComplete="username"
         inputMode="email"
-        autoFocus
         error={errors.email?.message}
         {...register('email')}
       />

@@ -38,6 +38,8 @@ export function ManualCaptureDialog({ open, pointLabel, onClose, onCapture, pend
         <textarea
           id="manual-reason"
           rows={3}
+          // The reason is what this dialog asks for: focus goes to it when the dialog opens (WAI-ARIA APG, modal dialog pattern).
+          // eslint-disable-next-line jsx-a11y/no-autofocus
           autoFocus
           aria-invalid={error ? true : undefined}
           aria-describedby={error ? 'manual-reason-error' : undefined}
