@@ -1,5 +1,5 @@
 import pg from 'pg';
-import { boot, type Running } from '../../server/boot';
+import { boot, type BootOptions, type Running } from '../../server/boot';
 import { parseEnv } from '../../server/env';
 import { createLogger } from '../../server/logger';
 
@@ -38,7 +38,7 @@ export interface TestServer extends Running {
 }
 
 /** Boots the real app on an ephemeral port with the demo site seeded. */
-export async function startTestServer(opts: { env?: Record<string, string> } = {}): Promise<TestServer> {
+export async function startTestServer(opts: { env?: Record<string, string>; boot?: Pick<BootOptions, 'wrapRunRepository'> } = {}): Promise<TestServer> {
   const pgdb = await freshPostgres();
   const env = parseEnv({
     NODE_ENV: 'test',
@@ -49,7 +49,7 @@ export async function startTestServer(opts: { env?: Record<string, string> } = {
     ...(pgdb ? { DATABASE_URL: pgdb.url } : {}),
     ...opts.env,
   });
-  const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true });
+  const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true, ...opts.boot });
   return {
     ...running,
     close: async () => {
