@@ -183,6 +183,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         const results = row ? (await computeResults(row)).results : null;
         await runsRepo.update(e.runId, { status: e.status, endedAt: new Date(), results });
         await audit.record(null, `run.${e.status === 'complete' ? 'completed' : 'aborted'}`, 'run', e.runId, undefined, { status: e.status });
+        for (const key of storedPoint.keys()) if (key.startsWith(`${e.runId}/`)) storedPoint.delete(key);
         return;
       }
       case 'run.warned':

@@ -6,7 +6,8 @@ import { PointCaptureSchema, PointFlagSchema, PointStateSchema, RunStatusSchema 
  * browser that applies it. The bench hub and the capture engine raise these events (unnumbered);
  * the run service stores what they change; the hub then numbers them (`seq`) into the stream that
  * `/ws` sends and the client applies. Types use the server's event names ('<noun>.<past-verb>').
- * Add an event by adding an entry here: the stream union and the types follow.
+ * Add an event by adding an entry here and its `numbered(...)` line to `StreamMessageSchema` below;
+ * the types follow.
  */
 export const DeviceSchema = z.enum(['pressure', 'current']);
 
@@ -70,7 +71,6 @@ export type StreamEvent = { [K in StreamEventType]: z.infer<EventSchemas[K]> }[S
 export type StreamEventOf<K extends StreamEventType> = z.infer<EventSchemas[K]>;
 /** What the capture engine raises about a run. */
 export type RunEvent = StreamEventOf<'point.changed' | 'run.warned' | 'point.captured' | 'run.changed'>;
-export const RUN_EVENT_TYPES = ['point.changed', 'run.warned', 'point.captured', 'run.changed'] as const satisfies readonly RunEvent['type'][];
 
 /**
  * WebSocket messages of `/ws` (server → browser): the events above, each with its sequence number,
