@@ -45,6 +45,10 @@ const rules = [
     check: (t) => (t && under(t, 'server/db') ? 'HTTP and WS reach data only through services' : null),
   },
   {
+    applies: (f) => under(f, 'server/services') || under(f, 'server/http') || under(f, 'server/ws'),
+    check: (t) => (t && under(t, 'simulators') ? 'services, HTTP and WS never import simulators/: the composition root (server/boot.ts) injects the rig' : null),
+  },
+  {
     applies: (f) => under(f, 'server/bench'),
     check: (t) =>
       t && (under(t, 'server/http') || under(t, 'server/ws') || under(t, 'server/db'))
