@@ -11,6 +11,7 @@ import type { DeviceKind } from '../shared/protocol';
 import type { ClientMessage } from '../shared/schemas/stream';
 import { BenchDevices } from './bench/bench-devices';
 import { defaultBinding } from './bench/transport';
+import { parseAgentEnv } from './env';
 import { SIM_PATHS, SimRig } from '../simulators/sim-rig';
 
 /** Options of {@link startAgent}. */
@@ -160,7 +161,7 @@ function arg(name: string): string | undefined {
 async function main(): Promise<void> {
   const server = arg('server');
   const email = arg('email');
-  const password = arg('password') ?? process.env.AGENT_PASSWORD;
+  const password = arg('password') ?? parseAgentEnv().AGENT_PASSWORD;
   if (!server || !email || !password) {
     console.error('usage: npm run agent -- --server URL --email E --password P [--bench-id ID] [--sim | --pressure PATH --current PATH]');
     process.exitCode = 2;

@@ -6,7 +6,12 @@ import path from 'node:path';
 import type { AddressInfo, Socket } from 'node:net';
 import type { RequestHandler } from 'express';
 import type { Logger } from 'pino';
+import { SIM_PATHS, SimRig } from '../simulators/sim-rig';
 import { createApp } from './app';
+import { BenchHub } from './bench/hub';
+import { createSimControl, type SimController } from './bench/sim-control';
+import { defaultBinding } from './bench/transport';
+import type { LineProtocolProfile } from '../shared/protocol';
 import { openDatabase, type Database } from './db/client';
 import type { Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
@@ -21,9 +26,10 @@ import { createFileService, type FileService } from './services/file.service';
 import { createMailService, type MailService } from './services/mail.service';
 import { createFileStore } from './storage/file-store';
 import { createUploads } from './storage/upload';
-import { createBenchService, journalDirOf, type BenchService, type BenchServiceOptions } from './services/bench.service';
+import { createBenchService, journalDirOf, type BenchService } from './services/bench.service';
 import { seedDemo } from './services/demo-seed.service';
 import { createRunService, type RunService } from './services/run.service';
+import { runRepository, type RunRepository } from './db/repositories/run.repository';
 import { attachStreamServer, type StreamServer } from './ws/stream-server';
 
 export interface BootOptions {
@@ -37,7 +43,29 @@ export interface BootOptions {
   /** Sample journal directory in memory mode (tests); without it an in-memory server keeps no journal. */
   journalDir?: string;
   /** Bench runtime overrides (bench figures, special set-ups). */
-  bench?: Partial<Omit<BenchServiceOptions, 'logger'>>;
+  bench?: BenchOverrides;
+  /** Wraps the run repository the run service stores through (tests hold writes back with it). */
+  wrapRunRepository?: (repo: RunRepository) => RunRepository;
+}
+
+/** Bench runtime overrides of {@link BootOptions}. */
+export interface BenchOverrides {
+  /** Default: the env's BENCH. */
+  mode?: 'sim' | 'serial';
+  /** Serial paths of the local bench in 'serial' mode. Default: BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT. */
+  serialPaths?: { pressure: string; current: string };
+  journalDir?: string;
+  benchId?: string;
+  /** Rig seed in sim mode. Default 1. */
+  simSeed?: number;
+  /** Ring capacity, entries. Default 200 000. */
+  ringCapacity?: number;
+  /** Start no local devices (bench figures, agents-only servers). */
+  noLocalDevices?: boolean;
+  /** Sample writer interval, ms. Default 250. */
+  flushMs?: number;
+  /** Line protocol of the local pressure calibrator. */
+  profile?: LineProtocolProfile;
 }
 
 export interface Running {
@@ -47,6 +75,9 @@ export interface Running {
   services: Services;
   bench: BenchService;
   runs: RunService;
+  /** The simulated rig (BENCH=sim with local devices), else undefined. */
+  rig: SimRig | undefined;
+  sim: SimController;
   stream: StreamServer;
   files: FileService;
   /** Upload directories: the file store and multer's temp files (a temp dir for in-memory servers). */
@@ -73,22 +104,25 @@ function loadSecret(env: Env, memory: boolean): Uint8Array {
   return new TextEncoder().encode(fs.readFileSync(file, 'utf8').trim());
 }
 
-/** Serial ports of the local bench with BENCH=serial (site settings may name them too). */
-function serialPaths(): { pressure: string; current: string } | undefined {
-  const pressure = process.env.BENCH_PRESSURE_PORT;
-  const current = process.env.BENCH_CURRENT_PORT;
-  return pressure && current ? { pressure, current } : undefined;
+/** Serial ports of the local bench with BENCH=serial. */
+function serialPaths(env: Env): { pressure: string; current: string } | undefined {
+  return env.BENCH_PRESSURE_PORT && env.BENCH_CURRENT_PORT ? { pressure: env.BENCH_PRESSURE_PORT, current: env.BENCH_CURRENT_PORT } : undefined;
 }
 
 /**
- * Composition: db → services → seed → bench runtime → app → listen → WebSocket stream. Returns a
- * handle that closes it all in reverse: stream, HTTP, bench (flush writer, sync journal), db.
+ * Composition: db → services → seed → bench runtime → app → listen → WebSocket stream. The capture
+ * path is wired here: one hub; the run service's capture engines on it (engine event → stored →
+ * published on the hub); the bench service feeding the hub from the local devices on the binding
+ * chosen here (real ports, or the simulated rig built here) and from forwarded lines; the rig's
+ * control surface given the run service's run context. Returns a handle that closes it all in
+ * reverse: stream, HTTP, bench (flush writer, sync journal), db.
  */
 export async function boot(opts: BootOptions): Promise<Running> {
   const { env, logger } = opts;
   const memory = !!opts.memory && !env.DATABASE_URL;
   const database = await openDatabase({ ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }) });
   let benchToStop: BenchService | undefined;
+  let rig: SimRig | undefined;
   let fakeSmtp: FakeSmtp | undefined;
   let mailer: Mailer | undefined;
   let tmpRoot: string | undefined;
@@ -128,16 +162,38 @@ export async function boot(opts: BootOptions): Promise<Running> {
     hooks.onReview = mail.onReview;
 
     const allowedOrigins = env.ALLOWED_ORIGINS.split(',').map((s) => s.trim()).filter(Boolean);
+
+    // The bench: one hub; the capture engines (run service) and the sample writer (bench service) on it.
+    const o = opts.bench ?? {};
+    const mode = o.mode ?? env.BENCH;
+    const hub = new BenchHub({
+      ringCapacity: o.ringCapacity,
+      onConsumerError: (name, error) => logger.error({ err: error, consumer: name }, 'bench consumer failed'),
+    });
+    const runRepo = runRepository(database.db);
+    const runs = createRunService(
+      database.db,
+      { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo },
+      { envHoldSeconds: env.HOLD_SECONDS, logger },
+    );
+    // The local bench's devices: the simulated rig's binding, or real serial ports.
+    rig = mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
+    const paths = o.noLocalDevices ? undefined : rig ? SIM_PATHS : (o.serialPaths ?? serialPaths(env));
+    if (mode === 'serial' && !o.noLocalDevices && !paths) logger.warn('BENCH=serial without BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT: no local bench devices');
     const bench = createBenchService(database.db, {
-      mode: env.BENCH,
+      mode,
       logger,
-      journalDir: memory ? opts.journalDir : journalDirOf(env.DATA_DIR),
-      serialPaths: serialPaths(),
-      ...opts.bench,
+      hub,
+      engines: runs.engines,
+      journalDir: o.journalDir ?? (memory ? opts.journalDir : journalDirOf(env.DATA_DIR)),
+      local: paths ? { binding: rig ? rig.binding : defaultBinding(), paths } : undefined,
+      benchId: o.benchId,
+      flushMs: o.flushMs,
+      profile: o.profile,
     });
     benchToStop = bench;
+    const sim = createSimControl({ rig, hub, benchId: bench.benchId, runContext: () => runs.simContext(bench.benchId) });
     await bench.start();
-    const runs = createRunService(database.db, services.audit, services.jobs, bench, { envHoldSeconds: env.HOLD_SECONDS, logger });
     const restored = await runs.restoreActive();
     if (restored) logger.info({ restored }, 'restored active runs');
     const app = createApp({
@@ -147,7 +203,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(bench), ...uploadRoutes(files), outboxRoutes(mail)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -180,6 +236,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       services,
       bench,
       runs,
+      rig,
+      sim,
       stream,
       files,
       uploadDirs,
@@ -195,6 +253,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
             for (const s of sockets) s.destroy();
           });
           await bench.stop();
+          sim.close();
+          rig?.dispose();
           await runs.settle();
           // Mail before the database: let queued messages reach the fake server (which stores them), then stop both.
           await dueRun.catch(() => {});
@@ -206,6 +266,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
     };
   } catch (e) {
     await benchToStop?.stop().catch(() => {});
+    rig?.dispose();
     await mailer?.close({ timeoutMs: 1000 }).catch(() => {});
     await fakeSmtp?.close().catch(() => {});
     await database.close();

@@ -12,6 +12,9 @@ const EnvSchema = z.object({
     .regex(/^postgres(ql)?:\/\//, 'DATABASE_URL must be a postgres:// URL')
     .optional(),
   BENCH: z.enum(['sim', 'serial']).default('sim'),
+  /** Serial ports of the local bench with BENCH=serial: the pressure calibrator and the current meter (both or neither). */
+  BENCH_PRESSURE_PORT: z.string().min(1).optional(),
+  BENCH_CURRENT_PORT: z.string().min(1).optional(),
   /** Hold time in seconds before a stable point is captured (common practice: at least 30 s). */
   HOLD_SECONDS: z.coerce.number().positive().max(3600).default(30),
   /** SMTP URL for mail; unset starts a local fake SMTP server and the Outbox. */
@@ -24,15 +27,34 @@ const EnvSchema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Set to 0 to skip seeding the demo site into an empty database. */
   SEED_DEMO: z.enum(['0', '1']).default('1'),
+}).refine((e) => !e.BENCH_PRESSURE_PORT === !e.BENCH_CURRENT_PORT, {
+  message: 'set both BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT, or neither',
+  path: ['BENCH_CURRENT_PORT'],
 });
 
 export type Env = z.infer<typeof EnvSchema>;
 
-/** Parses the environment; on failure throws one readable message listing every bad variable. */
-export function parseEnv(source: Record<string, string | undefined> = process.env): Env {
+/** Environment of the bench agent (`npm run agent`); its other settings are command-line arguments. */
+const AgentEnvSchema = z.object({
+  /** Password of the agent's user when `--password` is not given. */
+  AGENT_PASSWORD: z.string().min(1).optional(),
+});
+export type AgentEnv = z.infer<typeof AgentEnvSchema>;
+
+function parseWith<S extends z.ZodType>(schema: S, source: Record<string, string | undefined>): z.infer<S> {
   const cleaned = Object.fromEntries(Object.entries(source).filter(([, v]) => v !== undefined && v !== ''));
-  const parsed = EnvSchema.safeParse(cleaned);
+  const parsed = schema.safeParse(cleaned);
   if (parsed.success) return parsed.data;
   const lines = parsed.error.issues.map((i) => `  - ${i.path.join('.') || '(env)'}: ${i.message}`);
   throw new Error(`Invalid environment:\n${lines.join('\n')}`);
+}
+
+/** Parses the environment; on failure throws one readable message listing every bad variable. */
+export function parseEnv(source: Record<string, string | undefined> = process.env): Env {
+  return parseWith(EnvSchema, source);
+}
+
+/** Parses the bench agent's environment, like {@link parseEnv}. */
+export function parseAgentEnv(source: Record<string, string | undefined> = process.env): AgentEnv {
+  return parseWith(AgentEnvSchema, source);
 }

@@ -3,7 +3,11 @@ import { createLogger } from './logger';
 import { boot } from './boot';
 import { DataDirLockedError } from './db/client';
 
-/** Composition root: env → db → app → listen; clean shutdown on SIGINT/SIGTERM. */
+/**
+ * Composition root: validated env → boot (server/boot.ts wires db → services → bench: hub, capture
+ * engines, serial binding or simulated rig → mail → app → listen → ws; the tests boot the same
+ * wiring) → clean shutdown on SIGINT/SIGTERM. Nothing else reads the environment.
+ */
 async function main() {
   let env;
   try {

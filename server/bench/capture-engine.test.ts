@@ -13,16 +13,19 @@ function plan(): PlanPoint[] {
   return r.value;
 }
 
+const PERFORMER = { id: 'u-tech', email: 'tech@example.test' };
+const AGENT = { kind: 'agent' as const, id: 'bench-t' };
+
 function run(dpAt: (tS: number) => number, seconds: number, holdSeconds = 5) {
   const engine = new CaptureEngine('bench-t');
   const events: EngineEvent[] = [];
   engine.on('event', (e) => events.push(e));
   const points = plan();
-  engine.start({ runId: 'r1', benchId: 'bench-t', unit: 'inH2O@68F', dpSpan: SPAN, holdSeconds }, points);
+  engine.start({ runId: 'r1', benchId: 'bench-t', unit: 'inH2O@68F', dpSpan: SPAN, holdSeconds, performer: PERFORMER }, points);
   let seq = 0;
   const entry = (device: 'pressure' | 'current', t: number, value: number): HubEntry => ({
     kind: 'sample', seq: ++seq, benchId: 'bench-t', device, raw: String(value), value, unit: device === 'pressure' ? 'inH2O@68F' : 'mA',
-    wallMs: 1_800_000_000_000 + t, monoMs: t, tMs: t,
+    wallMs: 1_800_000_000_000 + t, monoMs: t, tMs: t, source: AGENT, clientWallMs: null,
   }) as HubEntry;
   for (let i = 0; i <= seconds * 10; i++) {
     const t = i * 100;
@@ -43,6 +46,12 @@ describe('capture engine: settling is not a leak, a steady decay is', () => {
     expect(captured).toBeDefined();
     expect(captured!.type === 'point.captured' && captured!.flags).toEqual([]);
     expect(events.some((e) => e.type === 'run.warned' && e.kind === 'leak')).toBe(false);
+    // Hands-free: the capture names the bench, where its samples came from, and the run's performer.
+    if (captured?.type !== 'point.captured') throw new Error('no capture');
+    expect(captured.benchId).toBe('bench-t');
+    expect(captured.manual).toBe(false);
+    expect(captured.capture.capturedBy).toBeNull();
+    expect(captured.capture.by).toEqual({ kind: 'bench', benchId: 'bench-t', sources: { pressure: AGENT, current: AGENT }, performer: PERFORMER });
   });
 
   it('warns of a steady leak with its rate and does not capture', () => {

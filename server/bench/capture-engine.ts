@@ -2,7 +2,8 @@
  * Capture engine: the authority on holds and captures for the running run of one bench. Each
  * point goes `waiting → approaching → settling → holding → captured`; flags `leak`, `overshoot`,
  * `unstable`, `manual`. Uses shared/calc's ApproachTracker and HoldAnalyzer (O(1) per sample).
- * It keeps no storage: it emits events and the run service persists them.
+ * It keeps no storage: it raises the capture path's run events (shared/schemas/stream.ts) to its
+ * sink; the run service stores them and only then has the hub publish them.
  */
 import { EventEmitter } from 'node:events';
 import {
@@ -16,8 +17,9 @@ import {
   type HoldSettings,
   type PlanPoint,
 } from '../../shared/calc';
-import type { PointCapture, PointFlag, PointState } from '../../shared/schemas/runs';
-import type { HubEntry } from './hub';
+import type { CapturedBy, PointCapture, PointFlag, PointState, SampleSource } from '../../shared/schemas/runs';
+import type { RunEvent } from '../../shared/schemas/stream';
+import type { BenchHub, HubEntry } from './hub';
 
 /** Run settings frozen at start. */
 export interface EngineRunSettings {
@@ -34,6 +36,8 @@ export interface EngineRunSettings {
   unstableAfterHolds?: number;
   /** Least interval between hold-progress events, ms. Default 250 ms. */
   progressEveryMs?: number;
+  /** The technician who performs the run (named on every hands-free capture); null when unknown. */
+  performer?: { id: string; email: string } | null;
 }
 
 /** A point as the engine sees it. */
@@ -48,12 +52,8 @@ export interface EnginePoint {
 export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43';
 export type RunStatus = 'running' | 'paused' | 'complete' | 'aborted';
 
-/** Events of the engine; names and fields follow the stream messages (captures carry their data). */
-export type EngineEvent =
-  | { type: 'point.changed'; runId: string; index: number; state: PointState; flags: PointFlag[]; hold: { elapsedMs: number; requiredMs: number } | null; warning: string | null }
-  | { type: 'point.captured'; runId: string; index: number; manual: boolean; capture: PointCapture; flags: PointFlag[] }
-  | { type: 'run.warned'; runId: string; index: number; kind: WarningKind; message: string; ratePctSpanPerMin: number | null }
-  | { type: 'run.changed'; runId: string; status: RunStatus; currentIndex: number | null };
+/** Events of the engine: the run events of the capture path's event map, exactly as they are stored and sent. */
+export type EngineEvent = RunEvent;
 
 /** Why an engine command was refused. */
 export class EngineRefusal extends Error {
@@ -85,6 +85,8 @@ interface Active {
   ne43Warned: boolean;
   unitWarned: boolean;
   lastMa: number | undefined;
+  /** Source of the latest sample of each device taken into the hold. */
+  sources: { pressure: SampleSource | null; current: SampleSource | null };
 }
 
 const BAND_REASONS = ['applied DP outside the stability band', 'current outside the stability band'];
@@ -162,6 +164,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       ne43Warned: false,
       unitWarned: false,
       lastMa: undefined,
+      sources: { pressure: null, current: null },
     };
     const next = this.nextUncaptured(-1);
     if (next === null) this.finish('complete');
@@ -199,14 +202,14 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     this.finish('aborted');
   }
 
-  /** Manual capture of the current point with the hold means so far (flag `manual`). */
-  manualCapture(index: number, reason: string, by: string): PointCapture {
+  /** Manual capture of the current point with the hold means so far (flag `manual`), by `user`. */
+  manualCapture(index: number, reason: string, user: { id: string; email: string }): PointCapture {
     const r = this.need();
     if (r.status !== 'running' && r.status !== 'paused') throw new EngineRefusal(`The run is ${r.status}`);
     if (r.current !== index) throw new EngineRefusal(`Point ${index} is not the current point (${r.current ?? 'none'})`);
     const h = r.hold?.result();
     if (!h || h.dp.n < 2 || h.ma.n < 2) throw new EngineRefusal('No hold readings yet: bring the applied DP into the window first');
-    return this.capture(r, true, reason, by);
+    return this.capture(r, true, reason, user);
   }
 
   /** Clears a point's capture and flags and makes it the current point. */
@@ -238,6 +241,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       return;
     }
     if (e.benchId !== r.s.benchId || e.value === null) return;
+    r.sources[e.device] = e.source ?? null;
     if (e.device === 'pressure') this.onPressure(r, e.tMs, e.wallMs, e.value, e.unit);
     else this.onCurrent(r, e.tMs, e.wallMs, e.value);
   }
@@ -359,9 +363,12 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     }
   }
 
-  private capture(r: Active, manual: boolean, reason: string | null, by: string | null): PointCapture {
+  private capture(r: Active, manual: boolean, reason: string | null, user: { id: string; email: string } | null): PointCapture {
     const p = r.points[r.current!]!;
     const h = r.hold!.result();
+    const by: CapturedBy = user
+      ? { kind: 'user', benchId: r.s.benchId, user: { id: user.id, email: user.email } }
+      : { kind: 'bench', benchId: r.s.benchId, sources: { ...r.sources }, performer: r.s.performer ?? null };
     const capture: PointCapture = {
       appliedDp: h.dp.mean,
       appliedDpSd: h.dp.sd,
@@ -372,13 +379,14 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       endMs: r.holdEndWall ?? 0,
       leakRatePctSpanPerMin: Number.isFinite(h.leakRatePctSpanPerMin) ? h.leakRatePctSpanPerMin : null,
       manualReason: reason,
-      capturedBy: by,
+      capturedBy: user?.email ?? null,
+      by,
     };
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
     p.state = 'captured';
     this.emitPoint(r, p, null);
-    this.emit('event', { type: 'point.captured', runId: r.s.runId, index: p.plan.index, manual, capture, flags: [...p.flags] });
+    this.emit('event', { type: 'point.captured', runId: r.s.runId, benchId: r.s.benchId, index: p.plan.index, manual, capture, flags: [...p.flags] });
     const next = this.nextUncaptured(r.current!);
     if (next === null) this.finish('complete');
     else {
@@ -470,6 +478,44 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   private need(): Active {
     if (!this.run) throw new EngineRefusal('No run is active on this bench', 404);
     return this.run;
+  }
+}
+
+/**
+ * The capture engines of every bench, each created on first use and fed by the hub. Every run event
+ * of an engine goes to `sink` (the run service, which stores it and then has the hub publish it);
+ * the hub learns at once which run the bench's new samples belong to.
+ */
+export class CaptureEngines {
+  private readonly engines = new Map<string, CaptureEngine>();
+
+  constructor(
+    private readonly hub: BenchHub,
+    private readonly sink: (benchId: string, e: RunEvent) => void,
+  ) {}
+
+  /** The engine of a bench (created and subscribed to the hub on first use). */
+  get(benchId: string): CaptureEngine {
+    let e = this.engines.get(benchId);
+    if (!e) {
+      const engine = new CaptureEngine(benchId);
+      engine.on('event', (ev) => {
+        if (ev.type === 'run.changed') this.hub.setRun(benchId, ev.status === 'running' || ev.status === 'paused' ? ev.runId : null);
+        this.sink(benchId, ev);
+      });
+      this.hub.subscribe(`capture-engine:${benchId}`, engine.consume);
+      this.engines.set(benchId, (e = engine));
+    }
+    return e;
+  }
+
+  has(benchId: string): boolean {
+    return this.engines.has(benchId);
+  }
+
+  /** The running or paused run on a bench, if any. */
+  activeRunId(benchId: string): string | null {
+    return this.engines.get(benchId)?.activeRunId ?? null;
   }
 }
 

@@ -6,7 +6,7 @@
  * another and nothing on the ingest path awaits.
  */
 import type { DeviceKind } from '../../shared/protocol';
-import type { StreamMessage } from '../../shared/schemas/stream';
+import type { StreamEvent, StreamMessage } from '../../shared/schemas/stream';
 
 /**
  * Where a line came from: this server's own port (`id` the bench id), a registered bench agent
@@ -42,7 +42,7 @@ export interface SampleEntry {
   clientWallMs: number | null;
 }
 
-/** Any other stream message (device and run events), already numbered. */
+/** Any other event of the capture path (device and run events), numbered as its stream message. */
 export interface MessageEntry {
   kind: 'message';
   seq: number;
@@ -51,8 +51,8 @@ export interface MessageEntry {
 
 export type HubEntry = SampleEntry | MessageEntry;
 
-/** A stream message before it is numbered. */
-export type UnnumberedMessage = StreamMessage extends infer M ? (M extends StreamMessage ? Omit<M, 'seq'> : never) : never;
+/** A stream message before it is numbered: an event of the capture path's event map. */
+export type UnnumberedMessage = StreamEvent;
 
 /** What a consumer does with a batch; a returned promise holds back that consumer's next batch only. */
 export type ConsumerHandler = (batch: HubEntry[]) => void | Promise<void>;
@@ -250,8 +250,11 @@ export class BenchHub {
     return e;
   }
 
-  /** Any other stream message: numbered, kept and fanned out. Device events also update the counters. */
-  publish(message: UnnumberedMessage): MessageEntry {
+  /**
+   * Any other event: numbered, kept and fanned out. Device events also update the counters. Run
+   * events come here only from the run service, once what they change is stored.
+   */
+  publish(message: StreamEvent): MessageEntry {
     const seq = this.nextSeq++;
     const e: MessageEntry = { kind: 'message', seq, message: { ...message, seq } as StreamMessage };
     const m = e.message;

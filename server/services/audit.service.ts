@@ -8,6 +8,11 @@ export interface Actor {
   email: string;
 }
 
+/** Something other than a user acting on its own, named in the trail (a bench capturing hands-free); no user id. */
+export interface NonUserActor {
+  nonUser: string;
+}
+
 /** Canonical JSON (sorted keys) so a hash does not depend on key order. */
 export function canonical(value: unknown): string {
   if (value === null || typeof value !== 'object') return JSON.stringify(value ?? null);
@@ -48,14 +53,16 @@ export function createAuditService(db: Db) {
   const repo = auditRepository(db);
   return {
     /** Appends one event; the row is hash-linked to the one before it. */
-    async record(actor: Actor | null, action: string, entity: string, entityId: string | null, before?: unknown, after?: unknown): Promise<AuditRow> {
+    async record(actor: Actor | NonUserActor | null, action: string, entity: string, entityId: string | null, before?: unknown, after?: unknown): Promise<AuditRow> {
+      const user = actor && 'id' in actor ? actor : null;
       // JSON round-trip so what is hashed is exactly what jsonb stores back.
       const norm = (v: unknown) => (v === undefined ? null : JSON.parse(JSON.stringify(v)));
       return repo.append(
         {
           at: new Date(Math.floor(Date.now())),
-          actorId: actor?.id ?? null,
-          actorEmail: actor?.email ?? null,
+          actorId: user?.id ?? null,
+          // The actor column names a user by email, or a non-user actor by its description.
+          actorEmail: user ? user.email : actor && 'nonUser' in actor ? actor.nonUser : null,
           action,
           entity,
           entityId,

@@ -1,25 +1,21 @@
 /**
- * Bench runtime: the hub, the sample writer (journal + database), the capture engine per bench,
- * the local bench's devices (simulated rig or real serial ports), lines forwarded by agents and
- * browsers, and the simulated rig's control surface. Boot creates one and stops it before the
- * database closes.
+ * Bench runtime: the sample writer (journal + database) on the hub, the local bench's devices (on
+ * the serialport binding the composition root chose: real ports or the simulated rig), and lines
+ * forwarded by agents and browsers. The hub and the capture engines are built by the composition
+ * root and given to it. Boot creates one and stops it before the database closes.
  */
 import path from 'node:path';
 import type { Logger } from 'pino';
-import { convertPressure, isPressureUnitId, type OutputMode } from '../../shared/calc';
 import { checkEdgeLine, classifyScpiMeterLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
-import { CaptureEngine, type EngineEvent } from '../bench/capture-engine';
-import { BenchHub, type ConsumerHandler, type UnnumberedMessage } from '../bench/hub';
+import type { CaptureEngines } from '../bench/capture-engine';
+import type { BenchHub, ConsumerHandler } from '../bench/hub';
 import { SampleJournal } from '../bench/journal';
 import { SampleWriter, type SampleSink } from '../bench/sample-writer';
-import { defaultBinding } from '../bench/transport';
+import type { BindingInterface } from '../bench/transport';
 import type { Db } from '../db/client';
 import { sampleRepository } from '../db/repositories/sample.repository';
-import { conflict, notFound } from '../errors';
-import { SIM_PATHS, SimRig, type SimControl } from '../../simulators/sim-rig';
-import type { AutopilotPlan } from '../../simulators/autopilot';
 
 export const DEFAULT_BENCH_ID = 'bench-1';
 
@@ -27,46 +23,22 @@ export const DEFAULT_BENCH_ID = 'bench-1';
 export interface BenchServiceOptions {
   mode: 'sim' | 'serial';
   logger: Logger;
+  /** The hub every line and event goes through (built by the composition root). */
+  hub: BenchHub;
+  /** The capture engines of every bench (built by the run service over the same hub). */
+  engines: CaptureEngines;
   /** Directory of the sample journal; omit to store without one (in-memory tests). */
   journalDir?: string;
-  /** Serial paths of the local bench when `mode` is 'serial'. */
-  serialPaths?: { pressure: string; current: string };
+  /**
+   * The local bench's devices: the serialport binding (real, or the simulated rig's) and the two
+   * ports' paths. Omit for no local devices (agents-only servers, BENCH=serial without ports).
+   */
+  local?: { binding: BindingInterface; paths: { pressure: string; current: string } };
   benchId?: string;
-  /** Rig options in sim mode (tests). */
-  simSeed?: number;
-  /** Ring capacity, entries. Default 200 000. */
-  ringCapacity?: number;
-  /** Start no local devices (bench figures, agents-only servers). */
-  noLocalDevices?: boolean;
   /** Sample writer interval, ms. Default 250. */
   flushMs?: number;
   /** Line protocol of the local pressure calibrator. Default the simulated calibrator's (query mode). */
   profile?: LineProtocolProfile;
-}
-
-/** Transfer data a run gives the simulated transmitter when the autopilot drives it. */
-export interface SimRunContext {
-  unit: string;
-  lrv: number;
-  urv: number;
-  outputMode: OutputMode;
-  cutoff: { mode: 'none' } | { mode: 'clamp'; flowPct: number } | { mode: 'linear'; breakpointDpPct: number };
-  holdSeconds: number;
-  points: { targetDp: number; approach: 'up' | 'down' }[];
-}
-
-/** Body of `POST /api/sim` once validated (SimControl, with the autopilot tied to the current run). */
-export interface SimRequest extends Omit<SimControl, 'autopilot'> {
-  autopilot?:
-    | 'stop'
-    | {
-        speed?: number;
-        holdSeconds?: number;
-        overshoot?: { fraction: number; points?: number[] };
-        leak?: { perMin: number; points?: number[] };
-        /** Leave the transmitter's range and output mode alone (default: match the run's instrument). */
-        keepTransmitter?: boolean;
-      };
 }
 
 export function createBenchService(db: Db, o: BenchServiceOptions) {
@@ -77,39 +49,18 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     maxSeq: () => repo.maxSeq(),
     existingSeqs: (a, b) => repo.existingSeqs(a, b),
   };
-  const hub = new BenchHub({
-    ringCapacity: o.ringCapacity,
-    onConsumerError: (name, error) => o.logger.error({ err: error, consumer: name }, 'bench consumer failed'),
-  });
+  const hub = o.hub;
   const journal = o.journalDir ? new SampleJournal(o.journalDir) : undefined;
   const writer = new SampleWriter({ sink, journal, flushMs: o.flushMs, onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry') });
-  const engines = new Map<string, CaptureEngine>();
-  const engineListeners: ((e: EngineEvent) => void)[] = [];
-  const rig = o.mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
+  const engines = o.engines;
   let devices: BenchDevices | undefined;
-  let simContext: (() => SimRunContext | undefined) | undefined;
   const classifiers: Record<DeviceKind, LineClassifier> = { current: classifyScpiMeterLine, pressure: createCalibratorClassifier(o.profile ?? SIMCAL_PROFILE) };
 
-  function engine(id: string): CaptureEngine {
-    let e = engines.get(id);
-    if (!e) {
-      e = new CaptureEngine(id);
-      e.on('event', (ev) => {
-        hub.publish(toMessage(ev));
-        if (ev.type === 'run.changed') hub.setRun(id, ev.status === 'running' || ev.status === 'paused' ? ev.runId : null);
-        if (ev.type === 'point.captured' && id === benchId) rig?.releaseAutopilotPoint(ev.index);
-        for (const l of engineListeners) l(ev);
-      });
-      hub.subscribe(`capture-engine:${id}`, e.consume);
-      engines.set(id, e);
-    }
-    return e;
-  }
+  const engine = (id: string) => engines.get(id);
 
   return {
     hub,
     writer,
-    rig,
     benchId,
     mode: o.mode,
 
@@ -119,16 +70,11 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       hub.setNextSeq(next);
       hub.subscribe('sample-writer', writer.consume);
       engine(benchId);
-      if (o.noLocalDevices) return;
-      const paths = o.mode === 'sim' ? SIM_PATHS : o.serialPaths;
-      if (!paths) {
-        o.logger.warn('BENCH=serial without BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT: no local bench devices');
-        return;
-      }
+      if (!o.local) return;
       devices = new BenchDevices({
         benchId,
-        binding: rig ? rig.binding : defaultBinding(),
-        paths,
+        binding: o.local.binding,
+        paths: o.local.paths,
         profile: o.profile,
         onSample: (device, raw, value, unit) => hub.ingestSample({ benchId, device, raw, value, unit }),
         onStatus: (ev) =>
@@ -145,18 +91,12 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** Closes the devices, flushes the writer and syncs the journal. */
     async stop(): Promise<void> {
       await devices?.stop();
-      rig?.dispose();
       await hub.drain();
       await writer.stop();
     },
 
     /** The capture engine of a bench (created on first use). */
     engine,
-
-    /** Listens to every engine's events (the run service persists them). */
-    onEngineEvent(listener: (e: EngineEvent) => void): void {
-      engineListeners.push(listener);
-    },
 
     /** Adds a consumer of the hub (the stream server). */
     subscribe(name: string, handler: ConsumerHandler): () => void {
@@ -211,73 +151,15 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
         consumers: hub.consumerStats(),
         benches: hub.benches().map((b) => ({
           ...b,
-          activeRunId: engines.get(b.benchId)?.activeRunId ?? null,
+          activeRunId: engines.activeRunId(b.benchId),
           local: b.benchId === benchId && local ? local : null,
         })),
       };
     },
 
-    /** Gives the sim the current run's transfer data and plan (set by the run service). */
-    setSimContext(fn: () => SimRunContext | undefined): void {
-      simContext = fn;
-    },
-
-    /** Applies a sim control (BENCH=sim only). */
-    sim(req: SimRequest) {
-      if (!rig) throw conflict('The simulated rig is not running: this server uses real instruments (BENCH=serial)');
-      const { autopilot, ...rest } = req;
-      const control: SimControl = { ...rest };
-      if (autopilot === 'stop') control.autopilot = 'stop';
-      else if (autopilot) {
-        const ctx = simContext?.();
-        if (!ctx) throw notFound('No run is active on the bench: start a run before the autopilot');
-        const toRig = (v: number) => (ctx.unit !== rig.unit && isPressureUnitId(ctx.unit) && isPressureUnitId(rig.unit) ? convertPressure(v, ctx.unit, rig.unit) : v);
-        if (!autopilot.keepTransmitter) {
-          control.transmitter = {
-            lrv: toRig(ctx.lrv),
-            urv: toRig(ctx.urv),
-            outputMode: ctx.outputMode,
-            cutoff: ctx.cutoff.mode === 'linear' ? { mode: 'linear-below', breakpointDpPct: ctx.cutoff.breakpointDpPct } : ctx.cutoff,
-            ...req.transmitter,
-          };
-        }
-        const speed = autopilot.speed ?? 1;
-        // The autopilot moves on when the engine captures the point; this is only the longest it waits
-        // (in real time: the engine's hold is not sped up), so a point that cannot be captured is left.
-        const dwellS = autopilot.holdSeconds ?? ctx.holdSeconds * 4 + 10;
-        const plan: AutopilotPlan = {
-          points: ctx.points.map((p) => ({ targetDp: toRig(p.targetDp), direction: p.approach })),
-          holdSeconds: dwellS * speed,
-          speed,
-          ...(autopilot.overshoot ? { overshoot: autopilot.overshoot } : {}),
-          ...(autopilot.leak ? { leak: { perMin: toRig(autopilot.leak.perMin), points: autopilot.leak.points } } : {}),
-        };
-        control.autopilot = plan;
-      }
-      return rig.apply(control);
-    },
-
-    simSnapshot() {
-      if (!rig) throw conflict('The simulated rig is not running: this server uses real instruments (BENCH=serial)');
-      return rig.snapshot();
-    },
   };
 }
 export type BenchService = ReturnType<typeof createBenchService>;
-
-/** An engine event as the stream message it is sent as (captures carry no data on the stream). */
-function toMessage(e: EngineEvent): UnnumberedMessage {
-  switch (e.type) {
-    case 'point.changed':
-      return { type: 'point.changed', runId: e.runId, index: e.index, state: e.state, flags: e.flags, hold: e.hold };
-    case 'point.captured':
-      return { type: 'point.captured', runId: e.runId, index: e.index, manual: e.manual };
-    case 'run.warned':
-      return { type: 'run.warned', runId: e.runId, index: e.index, kind: e.kind, message: e.message, ratePctSpanPerMin: e.ratePctSpanPerMin };
-    case 'run.changed':
-      return { type: 'run.changed', runId: e.runId, status: e.status, currentIndex: e.currentIndex };
-  }
-}
 
 /** Journal directory inside a data directory. */
 export const journalDirOf = (dataDir: string) => path.join(dataDir, 'journal');

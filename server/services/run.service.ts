@@ -1,7 +1,10 @@
 /**
- * Runs: start (plan and settings frozen into the run), the capture engine's events persisted
- * (point states, flags, captures; captures audited), commands (manual capture, redo, pause,
- * resume, abort), results from shared/calc and the raw trace.
+ * Runs: start (plan and settings frozen into the run), the capture path (each bench's capture
+ * engine raises run events → this service stores what they change: point states, flags, captures
+ * with their audit event, run status → only then the hub numbers and publishes them to the stream),
+ * commands (manual capture, redo, pause, resume, abort), results from shared/calc and the raw trace.
+ * What `GET /api/runs/:id` says of points and status is read from the database, so it never shows
+ * a capture that is not stored; the current index and warnings come from the events published so far.
  */
 import type { Logger } from 'pino';
 import {
@@ -24,15 +27,18 @@ import {
 } from '../../shared/calc';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
-import { EngineRefusal, type EngineEvent, type EngineRunSettings } from '../bench/capture-engine';
+import type { RunEvent } from '../../shared/schemas/stream';
+import { CaptureEngines, EngineRefusal, type EngineRunSettings } from '../bench/capture-engine';
+import type { BenchHub } from '../bench/hub';
+import type { SimRunContext } from '../bench/sim-control';
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
-import { runRepository, type RunRow } from '../db/repositories/run.repository';
+import { runRepository, type RunRepository, type RunRow } from '../db/repositories/run.repository';
 import { sampleRepository } from '../db/repositories/sample.repository';
-import { siteRepository } from '../db/repositories/user.repository';
+import { siteRepository, userRepository } from '../db/repositories/user.repository';
 import { AppError, badRequest, conflict, forbidden, locked, notFound } from '../errors';
 import type { Actor, AuditService } from './audit.service';
-import { DEFAULT_BENCH_ID, type BenchService } from './bench.service';
+import { DEFAULT_BENCH_ID } from './bench.service';
 import type { SessionUser } from './auth.service';
 
 /** What the run service needs of the job service: `detail(id)` with `blockers` (see JobDetailSchema). */
@@ -52,6 +58,24 @@ interface FrozenPlan {
   standardIds: string[];
   points: PlanPoint[];
   warnings: string[];
+  /** The technician who started the run (absent on runs started before it was recorded: see `runs.started_by`). */
+  performer?: { id: string; email: string };
+}
+
+/** What the run service is given by the composition root. */
+export interface RunServiceDeps {
+  audit: AuditService;
+  jobs: JobDetailSource;
+  /** The hub that numbers and publishes run events once they are stored. */
+  hub: BenchHub;
+  /** Run and point storage (default over `db`; the composition root may wrap it). */
+  runs?: RunRepository;
+}
+
+/** Run events as published so far (not stored: the current point, its hold progress and warnings). */
+interface PublishedView {
+  currentIndex: number | null;
+  warnings: Map<number, string | null>;
 }
 
 export interface RunServiceOptions {
@@ -94,45 +118,61 @@ export function currentSpecOf(s: StandardRow): CurrentMeterSpec {
   return { pctOfReading: a.pctReading ?? 0, floorMa: (a.floor ?? 0) + ((a.pctFullScale ?? 0) / 100) * fullScale, resolutionMa: s.resolution };
 }
 
-export function createRunService(db: Db, audit: AuditService, jobsSource: JobDetailSource, bench: BenchService, o: RunServiceOptions) {
-  const runsRepo = runRepository(db);
+export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOptions) {
+  const { audit, hub } = deps;
+  const jobsSource = deps.jobs;
+  const runsRepo = deps.runs ?? runRepository(db);
   const samples = sampleRepository(db);
   const jobsRepo = jobRepository(db);
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
   const sites = siteRepository(db);
+  const users = userRepository(db);
   /** Frozen plans of runs loaded in an engine. */
   const loaded = new Map<string, FrozenPlan>();
+  /** Per run, what the published events say beyond the stored rows. */
+  const published = new Map<string, PublishedView>();
+  /** State and flags last stored per point (`runId/index`), so repeated hold progress costs no write. */
+  const storedPoint = new Map<string, string>();
+  /** The capture path, one event at a time in the engines' order: store, then publish. */
   let chain: Promise<void> = Promise.resolve();
-
-  bench.onEngineEvent((e) => {
-    chain = chain.then(() => persist(e)).catch((err: unknown) => o.logger.error({ err, runId: e.runId }, 'persisting a run event failed'));
-  });
-  bench.setSimContext(() => {
-    const id = bench.engine(bench.benchId).activeRunId;
-    const p = id ? loaded.get(id) : undefined;
-    if (!p) return undefined;
-    return {
-      unit: p.unit,
-      lrv: p.instrument.lrv,
-      urv: p.instrument.urv,
-      outputMode: p.instrument.outputMode,
-      cutoff: cutoffOf(p.instrument),
-      holdSeconds: p.holdSeconds,
-      points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach })),
-    };
+  const engines = new CaptureEngines(hub, (_benchId, e) => {
+    chain = chain.then(() => commit(e)).catch((err: unknown) => o.logger.error({ err, runId: e.runId, event: e.type }, 'storing a run event failed; it was not published'));
   });
 
-  async function persist(e: EngineEvent): Promise<void> {
+  /** Stores what an event changes, then has the hub number and publish it. */
+  async function commit(e: RunEvent): Promise<void> {
+    await store(e);
+    hub.publish(e);
+    const v = published.get(e.runId) ?? { currentIndex: null, warnings: new Map<number, string | null>() };
+    published.set(e.runId, v);
+    if (e.type === 'run.changed') v.currentIndex = e.currentIndex;
+    else if (e.type === 'point.changed' && e.warning !== undefined) v.warnings.set(e.index, e.warning);
+  }
+
+  async function store(e: RunEvent): Promise<void> {
     switch (e.type) {
-      case 'point.changed':
+      case 'point.changed': {
+        const key = `${e.runId}/${e.index}`;
+        const value = JSON.stringify([e.state, e.flags]);
+        if (storedPoint.get(key) === value) return;
         await runsRepo.updatePoint(e.runId, e.index, { state: e.state, flags: e.flags });
+        storedPoint.set(key, value);
         return;
-      case 'point.captured':
+      }
+      case 'point.captured': {
         await runsRepo.updatePoint(e.runId, e.index, { state: 'captured', flags: e.flags, capture: e.capture, reason: e.capture.manualReason });
-        // Manual captures are audited with their actor by manualCapture().
-        if (!e.manual) await audit.record(null, 'run.point-captured', 'run', e.runId, undefined, { index: e.index, flags: e.flags, capture: e.capture });
+        storedPoint.set(`${e.runId}/${e.index}`, JSON.stringify(['captured', e.flags]));
+        const by = e.capture.by;
+        if (e.manual && by?.kind === 'user') {
+          await audit.record(by.user, 'run.point-captured-manually', 'run', e.runId, undefined, { index: e.index, reason: e.capture.manualReason, flags: e.flags, capture: e.capture, by });
+        } else {
+          // Hands-free: the bench captured it after the hold, for the run's performer, from the samples' sources.
+          const performer = by?.kind === 'bench' && by.performer ? `; run performed by ${by.performer.email}` : '';
+          await audit.record({ nonUser: `bench ${e.benchId} (hands-free capture${performer})` }, 'run.point-captured', 'run', e.runId, undefined, { index: e.index, flags: e.flags, capture: e.capture, by });
+        }
         return;
+      }
       case 'run.changed': {
         const ended = e.status === 'complete' || e.status === 'aborted';
         if (!ended) {
@@ -143,6 +183,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         const results = row ? (await computeResults(row)).results : null;
         await runsRepo.update(e.runId, { status: e.status, endedAt: new Date(), results });
         await audit.record(null, `run.${e.status === 'complete' ? 'completed' : 'aborted'}`, 'run', e.runId, undefined, { status: e.status });
+        for (const key of storedPoint.keys()) if (key.startsWith(`${e.runId}/`)) storedPoint.delete(key);
         return;
       }
       case 'run.warned':
@@ -184,8 +225,15 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
     return { points: r.value, warnings: [] };
   }
 
-  function engineSettings(row: RunRow, p: FrozenPlan): EngineRunSettings {
-    return { runId: row.id, benchId: p.benchId, unit: p.unit, dpSpan: Math.abs(span(specOf(p.instrument).range)), holdSeconds: p.holdSeconds };
+  function engineSettings(row: RunRow, p: FrozenPlan, performer: { id: string; email: string } | null): EngineRunSettings {
+    return { runId: row.id, benchId: p.benchId, unit: p.unit, dpSpan: Math.abs(span(specOf(p.instrument).range)), holdSeconds: p.holdSeconds, performer };
+  }
+
+  /** The run's performer: frozen in the plan, or (older runs) the user who started it. */
+  async function performerOf(row: RunRow, p: FrozenPlan): Promise<{ id: string; email: string } | null> {
+    if (p.performer) return p.performer;
+    const u = row.startedBy ? await users.findById(row.startedBy) : undefined;
+    return u ? { id: u.id, email: u.email } : null;
   }
 
   async function computeResults(row: RunRow): Promise<{ results: EvaluateOutput | null; problem: string | null; modeCheck: Run['modeCheck'] }> {
@@ -232,17 +280,23 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
     return r.ok ? { results: r.value, problem: null, modeCheck } : { results: null, problem: r.reason, modeCheck };
   }
 
-  /** Points of a run: the engine's live view when it is loaded, else the stored rows. */
+  /**
+   * Points of a run as stored (never the engine's memory, which may be ahead of the database);
+   * the warning text is the latest one published.
+   */
   async function currentPoints(row: RunRow): Promise<RunPoint[]> {
     const p = row.plan as FrozenPlan;
-    const snap = bench.engine(p.benchId).snapshot();
-    if (snap && snap.runId === row.id) {
-      return snap.points.map((x) => ({ ...planFields(x.plan), state: x.state, flags: x.flags, capture: x.capture, warning: x.warning }));
-    }
     const rows = await runsRepo.points(row.id);
+    const warnings = published.get(row.id)?.warnings;
     return p.points.map((pp, i) => {
       const r = rows[i];
-      return { ...planFields(pp), state: (r?.state ?? 'waiting') as PointState, flags: (r?.flags ?? []) as PointFlag[], capture: (r?.capture ?? null) as PointCapture | null, warning: null };
+      return {
+        ...planFields(pp),
+        state: (r?.state ?? 'waiting') as PointState,
+        flags: (r?.flags ?? []) as PointFlag[],
+        capture: (r?.capture ?? null) as PointCapture | null,
+        warning: warnings?.get(pp.index) ?? null,
+      };
     });
   }
 
@@ -253,18 +307,17 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
   async function toRun(row: RunRow): Promise<Run> {
     const p = row.plan as FrozenPlan;
     const points = await currentPoints(row);
-    const snap = bench.engine(p.benchId).snapshot();
-    const live = snap && snap.runId === row.id ? snap : undefined;
     const { results, problem, modeCheck } = await computeResults(row);
+    const active = row.status === 'running' || row.status === 'paused';
     return {
       id: row.id,
       jobId: row.jobId,
       kind: row.kind,
       trim: p.trim,
-      status: live ? live.status : row.status,
+      status: row.status,
       unit: p.unit,
       holdSeconds: p.holdSeconds,
-      currentIndex: live ? live.currentIndex : null,
+      currentIndex: active ? (published.get(row.id)?.currentIndex ?? null) : null,
       points,
       results,
       modeCheck,
@@ -291,7 +344,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
   /** The engine holding this run, loading a stored run into it when asked to (redo of a finished run). */
   function engineOf(row: RunRow) {
     const p = row.plan as FrozenPlan;
-    const engine = bench.engine(p.benchId);
+    const engine = engines.get(p.benchId);
     const snap = engine.snapshot();
     if (!snap || snap.runId !== row.id) throw conflict(`The run is ${row.status} and not loaded on ${p.benchId}`);
     return engine;
@@ -310,19 +363,39 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
     const p = row.plan as FrozenPlan;
     const rows = await runsRepo.points(row.id);
     loaded.set(row.id, p);
-    bench.engine(p.benchId).start(engineSettings(row, p), p.points, {
+    for (const r of rows) storedPoint.set(`${row.id}/${r.index}`, JSON.stringify([r.state, r.flags]));
+    engines.get(p.benchId).start(engineSettings(row, p, await performerOf(row, p)), p.points, {
       status: row.status === 'paused' ? 'paused' : 'running',
       points: rows.map((r) => ({ state: r.state as PointState, flags: r.flags as PointFlag[], capture: r.capture as PointCapture | null })),
     });
   }
 
   return {
+    /** The capture engines of every bench (the bench service feeds forwarded benches' lines to them). */
+    engines,
+
+    /** The transfer data and plan of the run active on a bench, for the simulated rig's autopilot. */
+    simContext(benchId: string): SimRunContext | undefined {
+      const id = engines.activeRunId(benchId);
+      const p = id ? loaded.get(id) : undefined;
+      if (!p) return undefined;
+      return {
+        unit: p.unit,
+        lrv: p.instrument.lrv,
+        urv: p.instrument.urv,
+        outputMode: p.instrument.outputMode,
+        cutoff: cutoffOf(p.instrument),
+        holdSeconds: p.holdSeconds,
+        points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach })),
+      };
+    },
+
     /** After a restart: loads the runs that were running or paused back into their engines. */
     async restoreActive(): Promise<number> {
       let n = 0;
       for (const row of await runsRepo.active()) {
         const p = row.plan as FrozenPlan;
-        if (bench.engine(p.benchId).activeRunId) {
+        if (engines.activeRunId(p.benchId)) {
           await runsRepo.update(row.id, { status: 'aborted', endedAt: new Date() });
           continue;
         }
@@ -338,7 +411,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       if (job.status === 'submitted' || job.status === 'approved') throw conflict(`The job is ${job.status}; no more runs may start`);
       if (job.blockers.length) throw conflict(`The run cannot start: ${job.blockers.join('; ')}`, { blockers: job.blockers });
       const benchId = body.benchId ?? DEFAULT_BENCH_ID;
-      const engine = bench.engine(benchId);
+      const engine = engines.get(benchId);
       if (engine.activeRunId) throw conflict(`Another run is active on ${benchId}; pause is not enough, finish or abort it first`);
       const inst: InstrumentRow | undefined = await instruments.get(job.instrumentId);
       if (!inst) throw notFound('The job\u2019s instrument no longer exists');
@@ -359,12 +432,14 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         tolerancePct: inst.tolerancePct,
       };
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
-      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings };
+      const performer = { id: actor.id, email: actor.email };
+      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, performer };
       const row = await runsRepo.create({ jobId, kind: body.kind, status: 'running', plan: frozen, startedBy: actor.id }, points.length);
       await audit.record(actor, 'run.started', 'run', row.id, undefined, { jobId, kind: body.kind, trim: frozen.trim, holdSeconds, points: points.length, benchId });
       loaded.set(row.id, frozen);
-      refusal(() => engine.start(engineSettings(row, frozen), points));
-      return toRun(row);
+      refusal(() => engine.start(engineSettings(row, frozen, performer), points));
+      await chain;
+      return toRun(await loadRun(row.id));
     },
 
     async get(id: string): Promise<Run> {
@@ -375,17 +450,17 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       const row = await loadRun(id);
       await mustPerform(actor, row);
       const engine = engineOf(row);
-      const capture = refusal(() => engine.manualCapture(index, reason, actor.email));
-      await audit.record(actor as Actor, 'run.point-captured-manually', 'run', id, undefined, { index, reason, capture });
+      // Stored and audited (with the user) on the capture path before this answers.
+      refusal(() => engine.manualCapture(index, reason, { id: actor.id, email: actor.email }));
       await chain;
-      return toRun(row);
+      return toRun(await loadRun(id));
     },
 
     async redo(actor: SessionUser, id: string, index: number): Promise<Run> {
       const row = await loadRun(id);
       await mustPerform(actor, row);
       const p = row.plan as FrozenPlan;
-      const engine = bench.engine(p.benchId);
+      const engine = engines.get(p.benchId);
       const snap = engine.snapshot();
       if ((!snap || snap.runId !== id) && row.status === 'complete') {
         if (engine.activeRunId) throw conflict(`Another run is active on ${p.benchId}`);
@@ -396,7 +471,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       refusal(() => engineOf(row).redo(index));
       await audit.record(actor as Actor, 'run.point-redone', 'run', id, { index, state: before.state, flags: before.flags, capture: before.capture }, { index, state: 'approaching' });
       await chain;
-      return toRun(row);
+      return toRun(await loadRun(id));
     },
 
     async control(actor: SessionUser, id: string, what: 'pause' | 'resume' | 'abort'): Promise<Run> {
@@ -423,7 +498,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       return samples.traceJson(id, q, opts);
     },
 
-    /** Waits for every engine event so far to be persisted (tests, shutdown). */
+    /** Waits for every engine event so far to be stored and published (tests, shutdown). */
     async settle(): Promise<void> {
       await chain;
     },

@@ -39,6 +39,29 @@ export const TraceQuerySchema = z.object({
   limit: z.coerce.number().int().min(1).max(500_000).default(100_000),
 });
 
+/** Where a bench's samples came from: its own serial port, a registered bench agent, or a browser forwarding Web Serial (`id` the user). */
+export const SampleSourceSchema = z.object({ kind: z.enum(['port', 'agent', 'browser']), id: z.string() });
+export type SampleSource = z.infer<typeof SampleSourceSchema>;
+
+/** A signed-in user, as named on a record. */
+export const PersonRefSchema = z.object({ id: z.string(), email: z.string() });
+
+/**
+ * Who or what captured a point. `user`: a manual capture by that user. `bench`: a hands-free capture
+ * by the bench's capture engine after the hold, with the source of the samples per device and the
+ * run's performer (the technician who started the run).
+ */
+export const CapturedBySchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('user'), benchId: z.string(), user: PersonRefSchema }),
+  z.object({
+    kind: z.literal('bench'),
+    benchId: z.string(),
+    sources: z.object({ pressure: SampleSourceSchema.nullable(), current: SampleSourceSchema.nullable() }),
+    performer: PersonRefSchema.nullable(),
+  }),
+]);
+export type CapturedBy = z.infer<typeof CapturedBySchema>;
+
 /** What a captured point holds: means over the hold window and how the hold went. */
 export const PointCaptureSchema = z.object({
   appliedDp: z.number(),
@@ -51,7 +74,10 @@ export const PointCaptureSchema = z.object({
   endMs: z.number(),
   leakRatePctSpanPerMin: z.number().nullable(),
   manualReason: z.string().nullable(),
+  /** Email of the user of a manual capture; null for a hands-free one (see `by`). */
   capturedBy: z.string().nullable(),
+  /** Who or what captured the point (absent on captures stored before it was recorded). */
+  by: CapturedBySchema.optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

@@ -1,20 +1,22 @@
 import { z } from 'zod';
-import { PointFlagSchema, PointStateSchema, RunStatusSchema } from './runs';
+import { PointCaptureSchema, PointFlagSchema, PointStateSchema, RunStatusSchema } from './runs';
 
 /**
- * WebSocket messages of `/ws` (server → browser), a union discriminated on `type`. Types
- * use the same strings as the server's events ('<noun>.<past-verb>'). Every message has a
- * sequence number; `GET /ws?since=SEQ` resumes after SEQ without gaps.
+ * The capture path's event map: one shape per event, from the source that raises it to the
+ * browser that applies it. The bench hub and the capture engine raise these events (unnumbered);
+ * the run service stores what they change; the hub then numbers them (`seq`) into the stream that
+ * `/ws` sends and the client applies. Types use the server's event names ('<noun>.<past-verb>').
+ * Add an event by adding an entry here and its `numbered(...)` line to `StreamMessageSchema` below;
+ * the types follow.
  */
-const base = { seq: z.number().int().nonnegative() };
-
 export const DeviceSchema = z.enum(['pressure', 'current']);
 
-export const StreamMessageSchema = z.discriminatedUnion('type', [
-  z.object({ type: z.literal('stream.opened'), ...base, latestSeq: z.number().int(), heartbeatMs: z.number() }),
-  z.object({
+const HoldProgressSchema = z.object({ elapsedMs: z.number(), requiredMs: z.number() });
+
+export const StreamEventSchemas = {
+  'stream.opened': z.object({ type: z.literal('stream.opened'), latestSeq: z.number().int(), heartbeatMs: z.number() }),
+  'sample.received': z.object({
     type: z.literal('sample.received'),
-    ...base,
     benchId: z.string(),
     device: DeviceSchema,
     value: z.number().nullable(),
@@ -23,21 +25,22 @@ export const StreamMessageSchema = z.discriminatedUnion('type', [
     wallMs: z.number(),
     runId: z.string().nullable(),
   }),
-  z.object({ type: z.literal('device.connected'), ...base, benchId: z.string(), device: DeviceSchema, path: z.string(), at: z.number() }),
-  z.object({ type: z.literal('device.disconnected'), ...base, benchId: z.string(), device: DeviceSchema, path: z.string(), at: z.number(), reason: z.string() }),
-  z.object({
+  'device.connected': z.object({ type: z.literal('device.connected'), benchId: z.string(), device: DeviceSchema, path: z.string(), at: z.number() }),
+  'device.disconnected': z.object({ type: z.literal('device.disconnected'), benchId: z.string(), device: DeviceSchema, path: z.string(), at: z.number(), reason: z.string() }),
+  /** A point's state or flags changed (stored), or hold progress (live only, not stored). */
+  'point.changed': z.object({
     type: z.literal('point.changed'),
-    ...base,
     runId: z.string(),
     index: z.number().int(),
     state: PointStateSchema,
     flags: z.array(PointFlagSchema),
-    /** Hold progress while holding: elapsed and required ms. */
-    hold: z.object({ elapsedMs: z.number(), requiredMs: z.number() }).nullable(),
+    /** Hold progress while holding: elapsed and required ms (live, never stored). */
+    hold: HoldProgressSchema.nullable(),
+    /** The point's latest warning text, if any (live). */
+    warning: z.string().nullable().optional(),
   }),
-  z.object({
+  'run.warned': z.object({
     type: z.literal('run.warned'),
-    ...base,
     runId: z.string(),
     index: z.number().int(),
     kind: z.enum(['leak', 'overshoot', 'unstable', 'disconnect', 'ne43']),
@@ -45,13 +48,52 @@ export const StreamMessageSchema = z.discriminatedUnion('type', [
     /** Leak rate, % of span per minute, for a leak. */
     ratePctSpanPerMin: z.number().nullable(),
   }),
-  z.object({ type: z.literal('point.captured'), ...base, runId: z.string(), index: z.number().int(), manual: z.boolean() }),
-  z.object({ type: z.literal('run.changed'), ...base, runId: z.string(), status: RunStatusSchema, currentIndex: z.number().int().nullable() }),
+  /** A point was captured; sent only once the capture is stored. Carries the capture and who or what took it. */
+  'point.captured': z.object({
+    type: z.literal('point.captured'),
+    runId: z.string(),
+    benchId: z.string(),
+    index: z.number().int(),
+    manual: z.boolean(),
+    flags: z.array(PointFlagSchema),
+    capture: PointCaptureSchema,
+  }),
+  'run.changed': z.object({ type: z.literal('run.changed'), runId: z.string(), status: RunStatusSchema, currentIndex: z.number().int().nullable() }),
   /** Sent when `since` is older than anything kept: the client should refetch server state. */
-  z.object({ type: z.literal('stream.resynced'), ...base, fromSeq: z.number().int() }),
+  'stream.resynced': z.object({ type: z.literal('stream.resynced'), fromSeq: z.number().int() }),
+} as const;
+
+type EventSchemas = typeof StreamEventSchemas;
+export type StreamEventType = keyof EventSchemas;
+/** An event of the capture path before the hub numbers it. */
+export type StreamEvent = { [K in StreamEventType]: z.infer<EventSchemas[K]> }[StreamEventType];
+/** The event of one type. */
+export type StreamEventOf<K extends StreamEventType> = z.infer<EventSchemas[K]>;
+/** What the capture engine raises about a run. */
+export type RunEvent = StreamEventOf<'point.changed' | 'run.warned' | 'point.captured' | 'run.changed'>;
+
+/**
+ * WebSocket messages of `/ws` (server → browser): the events above, each with its sequence number,
+ * a union discriminated on `type`. `GET /ws?since=SEQ` resumes after SEQ without gaps.
+ */
+const seq = { seq: z.number().int().nonnegative() };
+const numbered = <K extends StreamEventType>(k: K) => StreamEventSchemas[k].extend(seq);
+
+export const StreamMessageSchema = z.discriminatedUnion('type', [
+  numbered('stream.opened'),
+  numbered('sample.received'),
+  numbered('device.connected'),
+  numbered('device.disconnected'),
+  numbered('point.changed'),
+  numbered('run.warned'),
+  numbered('point.captured'),
+  numbered('run.changed'),
+  numbered('stream.resynced'),
 ]);
 export type StreamMessage = z.infer<typeof StreamMessageSchema>;
 export type StreamMessageType = StreamMessage['type'];
+/** A numbered message of one type. */
+export type StreamMessageOf<K extends StreamMessageType> = Extract<StreamMessage, { type: K }>;
 
 /** Browser → server. */
 export const ClientMessageSchema = z.discriminatedUnion('type', [

@@ -154,7 +154,15 @@ describe('applyStreamMessage', () => {
     const s = useLiveRun.getState();
     expect(s.hold).toBeNull();
     expect(s.warnings).toEqual([expect.objectContaining({ kind: 'leak', ratePctSpanPerMin: 0.8, message: 'Pressure falling' })]);
-    applyStreamMessage({ type: 'point.captured', seq: 5, runId: 'r1', index: 0, manual: true }, qc, new LiveSampleStore(4, () => {}));
+    qc.setQueryData(queryKeys.run('r1'), run);
+    const capture = {
+      appliedDp: 1.001, appliedDpSd: 0.001, measuredMa: 5.6, measuredMaSd: 0.001, n: 20, startMs: 1, endMs: 2, leakRatePctSpanPerMin: null,
+      manualReason: 'steady by eye', capturedBy: 'tech@example.test', by: { kind: 'user' as const, benchId: 'bench-1', user: { id: 'u1', email: 'tech@example.test' } },
+    };
+    applyStreamMessage({ type: 'point.captured', seq: 5, runId: 'r1', benchId: 'bench-1', index: 0, manual: true, flags: ['manual'], capture }, qc, new LiveSampleStore(4, () => {}));
     expect(useLiveRun.getState().warnings).toEqual([]);
+    // The stored capture reaches the run cache with the message itself.
+    const p = qc.getQueryData<Run>(queryKeys.run('r1'))!.points[0]!;
+    expect(p).toMatchObject({ state: 'captured', flags: ['manual'], capture });
   });
 });

@@ -247,8 +247,10 @@ export class LiveStream {
 }
 
 /**
- * Applies stream messages to the client's state: samples to the ring buffers, warnings and hold
- * progress to the live-run store, point and run events to the TanStack Query caches.
+ * Applies stream messages (shared/schemas/stream.ts, the capture path's event map) to the client's
+ * state: samples to the ring buffers, warnings and hold progress to the live-run store, point and
+ * run events to the TanStack Query caches. A `point.captured` arrives only once the capture is stored,
+ * with the capture itself.
  */
 export function applyStreamMessage(m: StreamMessage, queryClient: QueryClient, samples: LiveSampleStore = liveSamples): void {
   const live = useLiveRun.getState();
@@ -264,13 +266,17 @@ export function applyStreamMessage(m: StreamMessage, queryClient: QueryClient, s
           ? {
               ...run,
               currentIndex: m.state === 'captured' ? run.currentIndex : m.index,
-              points: run.points.map((p) => (p.index === m.index ? { ...p, state: m.state, flags: m.flags } : p)),
+              points: run.points.map((p) => (p.index === m.index ? { ...p, state: m.state, flags: m.flags, ...(m.warning !== undefined ? { warning: m.warning } : {}) } : p)),
             }
           : run,
       );
       return;
     case 'point.captured':
       live.captured(m.runId, m.index);
+      queryClient.setQueryData<Run>(queryKeys.run(m.runId), (run) =>
+        run ? { ...run, points: run.points.map((p) => (p.index === m.index ? { ...p, state: 'captured', flags: m.flags, capture: m.capture } : p)) } : run,
+      );
+      // Results depend on every captured point: read them again.
       void queryClient.invalidateQueries({ queryKey: queryKeys.run(m.runId) });
       return;
     case 'run.warned':

@@ -2,7 +2,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
-import { boot, type Running } from '../../server/boot';
+import { boot, type BootOptions, type Running } from '../../server/boot';
 import { openDatabase } from '../../server/db/client';
 import { parseEnv, type Env } from '../../server/env';
 import { createLogger } from '../../server/logger';
@@ -86,7 +86,7 @@ export interface TestServer extends Running {
 }
 
 /** Boots the real app on an ephemeral port with the demo site seeded. */
-export async function startTestServer(opts: { env?: Record<string, string> } = {}): Promise<TestServer> {
+export async function startTestServer(opts: { env?: Record<string, string>; boot?: Pick<BootOptions, 'wrapRunRepository'> } = {}): Promise<TestServer> {
   const pgdb = await freshPostgres();
   const env = parseEnv({
     NODE_ENV: 'test',
@@ -98,7 +98,7 @@ export async function startTestServer(opts: { env?: Record<string, string> } = {
     ...opts.env,
   });
   const template = !pgdb && env.SEED_DEMO === '1' ? await demoTemplate(env) : undefined;
-  const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true, ...(template ? { template } : {}) });
+  const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true, ...(template ? { template } : {}), ...opts.boot });
   return {
     ...running,
     close: async () => {

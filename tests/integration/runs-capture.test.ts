@@ -91,7 +91,7 @@ describe('capture engine with the autopilot', () => {
     const captured = ws.messages.filter((m) => m.type === 'point.captured' && m.runId === run.id).map((m) => (m as { index: number }).index);
     expect(captured).toEqual([0, 1, 2]);
     // The autopilot dwells at the point for the hold time and more: the engine must not capture it.
-    await until(() => (srv.bench.rig!.snapshot().autopilot?.index ?? 0) > 3, 30_000, 'autopilot moved on');
+    await until(() => (srv.rig!.snapshot().autopilot?.index ?? 0) > 3, 30_000, 'autopilot moved on');
     const r = await getRun(run.id);
     expect(r.points[3]!.state).not.toBe('captured');
     expect(r.points[3]!.flags).toContain('leak');
@@ -118,7 +118,7 @@ describe('capture engine with the autopilot', () => {
 
   it('a meter disconnect during the hold invalidates it; the point is captured only after reconnecting', async () => {
     await sim({ autopilot: 'stop', source: { timeConstantS: 0.1 }, setpoint: { value: 0 } });
-    await until(() => Math.abs(srv.bench.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
+    await until(() => Math.abs(srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
     const run = await startRun('as-left');
     const ws = streamClient(srv, tech);
     await ws.opened;
@@ -155,7 +155,7 @@ describe('capture engine with the autopilot', () => {
       setpoint: { value: 0 },
       transmitter: { lrv: 0, urv: 100, outputMode: 'sqrt-transmitter', cutoff: { mode: 'clamp', flowPct: 6 } },
     });
-    await until(() => Math.abs(srv.bench.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
+    await until(() => Math.abs(srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
     const run = await startRun('mode-check');
     expect(run.points).toHaveLength(1);
     expect(run.points[0]!.dpPct).toBe(25);

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import type { BenchService } from '../../../services/bench.service';
+import type { SimController } from '../../../bench/sim-control';
 import { input, validate } from '../../middleware/validate';
 import { routeTable } from '../../route-table';
 
@@ -23,7 +23,7 @@ const cutoff = z.discriminatedUnion('mode', [
   z.object({ mode: z.literal('linear-below'), breakpointDpPct: finite.positive().max(100) }),
 ]);
 
-/** Mirrors SimControl (simulators/sim-rig.ts); the autopilot follows the bench's current run. */
+/** Mirrors SimRequest (server/bench/sim-control.ts); the autopilot follows the bench's current run. */
 export const SimBodySchema = z
   .object({
     transmitter: z
@@ -74,14 +74,14 @@ export const SimBodySchema = z
   .strict();
 
 /** The simulated rig (BENCH=sim only): transmitter errors, noise, leak, overshoot, faults, autopilot. */
-export function simRoutes(bench: BenchService) {
+export function simRoutes(sim: SimController) {
   const t = routeTable('/api/sim');
   t.add('get', '/', 'sim.control', (_req, res) => {
-    res.json(bench.simSnapshot());
+    res.json(sim.snapshot());
   });
   const body = { body: SimBodySchema };
   t.add('post', '/', 'sim.control', validate(body), (_req, res) => {
-    res.json(bench.sim(input(res, body).body));
+    res.json(sim.apply(input(res, body).body));
   });
   return t;
 }
