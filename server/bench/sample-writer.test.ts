@@ -173,4 +173,26 @@ describe('SampleWriter', () => {
     expect(again.stats.replayed).toBe(100);
     await again.stop();
   });
+  it('whenAcked resolves once the seq is durable and rejects waiters left when the writer stops', async () => {
+    const sink = new GatedSink();
+    const w = new SampleWriter({ sink, journal: journalIn(), flushMs: 10_000 });
+    await w.start();
+    w.consume(entries(1, 10));
+    let acked = false;
+    const ten = w.whenAcked(10).then(() => (acked = true));
+    const later = w.whenAcked(11).then(
+      () => 'resolved',
+      (e: Error) => e.message,
+    );
+    await tick();
+    expect(acked).toBe(false);
+    const f = w.flush();
+    await ten; // journaled and synced: acknowledged before the held database write
+    expect(w.stats.storedSeq).toBe(0);
+    await expect(w.whenAcked(5)).resolves.toBeUndefined();
+    await sink.releaseUntil(() => w.stats.storedSeq === 10, 'the write');
+    await f;
+    await w.stop();
+    expect(await later).toMatch(/stopped/);
+  });
 });

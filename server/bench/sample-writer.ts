@@ -78,6 +78,8 @@ export class SampleWriter {
   private dbTail: Promise<void> = Promise.resolve();
   private lastFailureMs = -Infinity;
   private stopped = false;
+  /** Waiters of {@link whenAcked}, by the seq they wait for. */
+  private ackWaiters: { seq: number; resolve: () => void; reject: (e: Error) => void }[] = [];
   readonly stats: SampleWriterStats = { ackedSeq: 0, storedSeq: 0, pending: 0, written: 0, batches: 0, lastBatchMs: 0, failures: 0, replayed: 0 };
 
   constructor(options: SampleWriterOptions) {
@@ -119,6 +121,29 @@ export class SampleWriter {
     this.timer = setInterval(() => void this.flush(), this.flushMs);
     this.timer.unref();
     return max + 1;
+  }
+
+  /**
+   * Resolves once every sample up to `seq` is durably stored (`ackedSeq >= seq`); rejects when the
+   * writer stops first. For acknowledging forwarded batches to their sender.
+   */
+  whenAcked(seq: number): Promise<void> {
+    if (this.stats.ackedSeq >= seq) return Promise.resolve();
+    if (this.stopped) return Promise.reject(new Error('the sample writer has stopped'));
+    return new Promise<void>((resolve, reject) => this.ackWaiters.push({ seq, resolve, reject }));
+  }
+
+  /** Sets `ackedSeq` (never lowers it) and settles the waiters it satisfies. */
+  private advanceAcked(seq: number): void {
+    if (seq <= this.stats.ackedSeq) return;
+    this.stats.ackedSeq = seq;
+    if (!this.ackWaiters.length) return;
+    const still: typeof this.ackWaiters = [];
+    for (const w of this.ackWaiters) {
+      if (w.seq <= seq) w.resolve();
+      else still.push(w);
+    }
+    this.ackWaiters = still;
   }
 
   /** Hub consumer: keeps the samples of a batch for the next write. Never awaits. */
@@ -207,9 +232,7 @@ export class SampleWriter {
     };
     const journaled = this.journal
       ? (prepared?.csv ? this.journal.appendCsv(prepared.csv.slice(), rows.length) : this.journal.append(rows)).then(
-          () => {
-            this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
-          },
+          () => this.advanceAcked(top),
           fail,
         )
       : Promise.resolve();
@@ -223,7 +246,7 @@ export class SampleWriter {
         return;
       }
       this.stats.storedSeq = Math.max(this.stats.storedSeq, top);
-      if (!this.journal) this.stats.ackedSeq = this.stats.storedSeq;
+      if (!this.journal) this.advanceAcked(this.stats.storedSeq);
       this.stats.written += rows.length;
       this.stats.batches++;
       this.stats.lastBatchMs = performance.now() - t0;
@@ -241,6 +264,7 @@ export class SampleWriter {
     }
     await this.dbTail;
     this.stopped = true;
+    for (const w of this.ackWaiters.splice(0)) w.reject(new Error('the sample writer stopped before the sample was stored'));
     await this.journal?.close();
   }
 }
