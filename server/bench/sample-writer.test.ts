@@ -34,6 +34,8 @@ function entries(from: number, count: number): HubEntry[] {
     unit: 'mA',
     wallMs: 1.7e12 + from + i,
     monoMs: from + i,
+    source: { kind: 'port', id: 'b1' },
+    clientWallMs: null,
   })) as unknown as HubEntry[];
 }
 
@@ -78,6 +80,14 @@ class GatedSink implements SampleSink {
 }
 
 const tick = () => new Promise((r) => setTimeout(r, 20));
+/** Waits (polling) until `done()` holds; journal syncs take their time on a loaded machine. */
+async function until(done: () => boolean, what: string): Promise<void> {
+  const end = Date.now() + 5000;
+  while (!done()) {
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 2));
+  }
+}
 
 describe('SampleWriter', () => {
   it('acknowledges after the journal sync, before the database write, and bounds each batch', async () => {
@@ -87,6 +97,7 @@ describe('SampleWriter', () => {
     w.consume(entries(1, 1000));
     const done = w.flush();
     await tick();
+    await until(() => w.stats.ackedSeq === 300, 'the first batch journaled');
     // The first batch is journaled and acknowledged, but not stored: its database write is held.
     expect(w.stats.ackedSeq).toBe(300);
     expect(w.stats.storedSeq).toBe(0);

@@ -7,7 +7,7 @@
 import path from 'node:path';
 import type { Logger } from 'pino';
 import { convertPressure, isPressureUnitId, type OutputMode } from '../../shared/calc';
-import { checkEdgeLine, classifyScpiMeterLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
+import { checkEdgeLine, classifyScpiMeterLine, previewLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
 import { CaptureEngine, type EngineEvent } from '../bench/capture-engine';
@@ -76,13 +76,22 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     insertMany: (rows) => repo.insertMany(rows),
     maxSeq: () => repo.maxSeq(),
     existingSeqs: (a, b) => repo.existingSeqs(a, b),
+    quarantine: repo.quarantine,
   };
   const hub = new BenchHub({
     ringCapacity: o.ringCapacity,
     onConsumerError: (name, error) => o.logger.error({ err: error, consumer: name }, 'bench consumer failed'),
   });
   const journal = o.journalDir ? new SampleJournal(o.journalDir) : undefined;
-  const writer = new SampleWriter({ sink, journal, flushMs: o.flushMs, onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry') });
+  const writer = new SampleWriter({
+    sink,
+    journal,
+    flushMs: o.flushMs,
+    onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry'),
+    onQuarantine: (items) =>
+      o.logger.warn({ rows: items.map((i) => ({ seq: i.row.seq, benchId: i.row.benchId, device: i.row.device, raw: previewLine(i.row.raw), reason: i.reason })) }, 'samples the database refused were set aside in sample_quarantine; review them on the Bench page'),
+    onDamaged: (damaged) => o.logger.warn({ damaged }, 'damaged sample journal batches were set aside beside the journal; every intact batch was replayed; review them on the Bench page'),
+  });
   const engines = new Map<string, CaptureEngine>();
   const engineListeners: ((e: EngineEvent) => void)[] = [];
   const rig = o.mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
