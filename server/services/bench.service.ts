@@ -12,7 +12,7 @@ import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
 import { CaptureEngine, type EngineEvent } from '../bench/capture-engine';
 import { BenchHub, type ConsumerHandler, type UnnumberedMessage } from '../bench/hub';
-import { SampleJournal } from '../bench/journal';
+import { SampleJournal, type DamagedBatch } from '../bench/journal';
 import { SampleWriter, type SampleSink } from '../bench/sample-writer';
 import { defaultBinding } from '../bench/transport';
 import type { Db } from '../db/client';
@@ -88,10 +88,20 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     journal,
     flushMs: o.flushMs,
     onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry'),
-    onQuarantine: (items) =>
-      o.logger.warn({ rows: items.map((i) => ({ seq: i.row.seq, benchId: i.row.benchId, device: i.row.device, raw: previewLine(i.row.raw), reason: i.reason })) }, 'samples the database refused were set aside in sample_quarantine; review them on the Bench page'),
+    onQuarantine: (items) => {
+      storage.quarantine = { total: storage.quarantine.total + items.length, unacknowledged: storage.quarantine.unacknowledged + items.length };
+      o.logger.warn({ rows: items.map((i) => ({ seq: i.row.seq, benchId: i.row.benchId, device: i.row.device, raw: previewLine(i.row.raw), reason: i.reason })) }, 'samples the database refused were set aside in sample_quarantine; review them on the Bench page');
+    },
     onDamaged: (damaged) => o.logger.warn({ damaged }, 'damaged sample journal batches were set aside beside the journal; every intact batch was replayed; review them on the Bench page'),
   });
+  // Quarantined rows and damaged journal batches, as last read (status() is synchronous); refreshed
+  // at start, after each quarantine, on acknowledgement and by the health check.
+  const storage = { quarantine: { total: 0, unacknowledged: 0 }, damaged: [] as DamagedBatch[] };
+  async function refreshStorage(): Promise<typeof storage> {
+    storage.quarantine = await repo.quarantine.count();
+    storage.damaged = journal ? await journal.damagedBatches() : [];
+    return storage;
+  }
   const engines = new Map<string, CaptureEngine>();
   const engineListeners: ((e: EngineEvent) => void)[] = [];
   const rig = o.mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
@@ -125,6 +135,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** Replays the journal, continues the sequence, subscribes the consumers and opens the local devices. */
     async start(): Promise<void> {
       const next = await writer.start();
+      await refreshStorage();
       hub.setNextSeq(next);
       hub.subscribe('sample-writer', writer.consume);
       engine(benchId);
@@ -206,9 +217,33 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** Samples after a seq from the database (stream resume older than the ring, durability checks). */
     samplesAfter: (seq: number, limit: number, bench?: string) => repo.after(seq, limit, bench),
 
+    /** Re-reads the quarantine and damaged-batch counts (health check). */
+    refreshStorage,
+
+    /** Where samples are kept: the journal's directory (undefined without a journal). */
+    journalDir: journal?.dir,
+
+    /** Rows set aside by the writer (newest first) and damaged journal batches set aside, for review. */
+    async storageReview(limit: number) {
+      const [items] = await Promise.all([repo.quarantine.list(limit), refreshStorage()]);
+      return {
+        quarantine: { ...storage.quarantine, items: items.map((q) => ({ ...q, preview: previewLine(q.raw, 120) })) },
+        damaged: storage.damaged,
+      };
+    },
+
+    /** Marks every quarantined row and damaged batch as reviewed by `userId`; what it marked. */
+    async acknowledgeStorage(userId: string): Promise<{ rows: number[]; batches: number }> {
+      const rows = await repo.quarantine.acknowledge(userId);
+      const batches = journal ? await journal.acknowledgeDamaged(userId) : 0;
+      await refreshStorage();
+      return { rows, batches };
+    },
+
     /** Devices, counters and storage state. */
     status() {
       const local = devices?.status();
+      const hubBenches = hub.benches();
       return {
         mode: o.mode,
         benchId,
@@ -218,7 +253,12 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
         writer: { ...writer.stats },
         ring: { length: hub.ring.length, capacity: hub.ring.capacity, oldestSeq: hub.ring.oldestSeq ?? null },
         consumers: hub.consumerStats(),
-        benches: hub.benches().map((b) => ({
+        storage: {
+          quarantined: storage.quarantine,
+          damagedBatches: { total: storage.damaged.length, unacknowledged: storage.damaged.filter((d) => !d.acknowledgedAt).length },
+          edgeRefused: hubBenches.reduce((n, b) => n + Object.values(b.devices).reduce((m, d) => m + d.edgeRefused, 0), 0),
+        },
+        benches: hubBenches.map((b) => ({
           ...b,
           activeRunId: engines.get(b.benchId)?.activeRunId ?? null,
           local: b.benchId === benchId && local ? local : null,
