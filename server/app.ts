@@ -20,10 +20,18 @@ import { reviewRoutes, reviewTraceRoutes } from './http/routes/review/review.rou
 import { userRoutes } from './http/routes/users/users.routes';
 import type { Services } from './services';
 
+/** What `GET /api/health` answers at least. */
+export interface HealthLike {
+  ok: boolean;
+  db: 'pglite' | 'postgres';
+  bench: 'sim' | 'serial';
+}
+
 export interface AppDeps {
   services: Services;
   logger: Logger;
-  health: () => { ok: boolean; db: 'pglite' | 'postgres'; bench: 'sim' | 'serial' };
+  /** The health report; `ok: false` answers 503 (services/health.service.ts). */
+  health: () => HealthLike | Promise<HealthLike>;
   allowedOrigins: string[];
   /** Directory of the built client to serve (production); omitted in development and API tests. */
   clientDir?: string;
@@ -76,8 +84,9 @@ export function createApp(deps: AppDeps) {
     ...(deps.extraRoutes ?? []),
   ];
   const routes: RouteSpec[] = [{ method: 'get', path: '/api/health', action: null }];
-  app.get('/api/health', (_req, res) => {
-    res.json(deps.health());
+  app.get('/api/health', async (_req, res) => {
+    const h = await deps.health();
+    res.status(h.ok ? 200 : 503).set('Cache-Control', 'no-store').json(h);
   });
   for (const t of tables) {
     app.use(t.base, t.router);

@@ -15,6 +15,7 @@ import type { LineProtocolProfile } from '../shared/protocol';
 import { openDatabase, type Database } from './db/client';
 import type { Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
+import { storageRoutes } from './http/routes/bench/storage.routes';
 import { uploadRoutes } from './http/routes/files/files.routes';
 import { outboxRoutes } from './http/routes/outbox/outbox.routes';
 import { runRoutes } from './http/routes/runs/runs.routes';
@@ -28,6 +29,7 @@ import { createFileStore } from './storage/file-store';
 import { createUploads } from './storage/upload';
 import { createBenchService, journalDirOf, type BenchService } from './services/bench.service';
 import { seedDemo } from './services/demo-seed.service';
+import { createHealth } from './services/health.service';
 import { createRunService, type RunService } from './services/run.service';
 import { runRepository, type RunRepository } from './db/repositories/run.repository';
 import { attachStreamServer, type StreamServer } from './ws/stream-server';
@@ -199,11 +201,18 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const app = createApp({
       services,
       logger,
-      health: () => ({ ok: true, db: database.kind, bench: env.BENCH }),
+      health: createHealth({
+        ping: () => database.exec('SELECT 1'),
+        bench,
+        db: database.kind,
+        mode: env.BENCH,
+        dataDir: memory ? undefined : env.DATA_DIR,
+        ...(process.env.MIN_FREE_DISK_MB ? { minFreeBytes: Number(process.env.MIN_FREE_DISK_MB) * 1024 * 1024 } : {}),
+      }),
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();

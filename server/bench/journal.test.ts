@@ -7,7 +7,8 @@ import os from 'node:os';
 import path from 'node:path';
 import fc from 'fast-check';
 import { afterEach, describe, expect, it } from 'vitest';
-import { SampleJournal, type JournalRow } from './journal';
+import zlib from 'node:zlib';
+import { scanJournal, SampleJournal, type JournalRow } from './journal';
 import { parseSamplesCsv, samplesCsv } from './samples-csv';
 
 const dirs: string[] = [];
@@ -32,6 +33,9 @@ const row = (seq: number, over: Partial<JournalRow> = {}): JournalRow => ({
   unit: 'inH2O@68F',
   wallMs: 1.7e12 + seq + 0.125,
   monoMs: seq * 1.5,
+  sourceKind: 'port',
+  sourceId: 'b1',
+  clientWallMs: null,
   ...over,
 });
 
@@ -45,6 +49,9 @@ const arbRow = fc.record({
   unit: fc.option(fc.string(), { nil: null }),
   wallMs: fc.double({ noNaN: true, noDefaultInfinity: true }),
   monoMs: fc.double({ noNaN: true, noDefaultInfinity: true }),
+  sourceKind: fc.constantFrom('port' as const, 'agent' as const, 'browser' as const),
+  sourceId: fc.string(),
+  clientWallMs: fc.option(fc.double({ noNaN: true, noDefaultInfinity: true }), { nil: null }),
 });
 
 describe('samples CSV', () => {
@@ -81,22 +88,80 @@ describe('SampleJournal', () => {
     await j.close();
   });
 
-  it('ignores a batch cut short by a crash, and everything after a damaged header', async () => {
+  it('ignores a last batch cut short by a crash (bytes missing, or a block of zeros never written)', async () => {
     const j = await openJournal();
     await j.append([row(1), row(2)]);
     await j.close();
     const whole = fs.readFileSync(j.file);
     // A second batch whose bytes were only partly written.
-    const second = Buffer.concat([Buffer.from(`#batch 500 3\n`), Buffer.from(samplesCsv([row(3)]))]);
+    const second = Buffer.concat([Buffer.from(`#batch 500 3 00000000\n`), Buffer.from(samplesCsv([row(3)]))]);
     fs.writeFileSync(j.file, Buffer.concat([whole, second]));
-    expect((await j.read()).map((r) => r.seq)).toEqual([1, 2]);
-    // A header that is not one.
-    fs.writeFileSync(j.file, Buffer.concat([whole, Buffer.from('#bat'), whole]));
-    expect((await j.read()).map((r) => r.seq)).toEqual([1, 2]);
-    // A batch whose row count does not match its header.
+    expect(scanJournal(fs.readFileSync(j.file))).toMatchObject({ damaged: [], tornBytes: second.length });
+    // A header cut short.
+    fs.writeFileSync(j.file, Buffer.concat([whole, Buffer.from('#bat')]));
+    expect(scanJournal(fs.readFileSync(j.file))).toMatchObject({ damaged: [], tornBytes: 4 });
+    // The right length, but the end is zeros: the file grew before its block was written.
+    const csv = Buffer.from(samplesCsv([row(3)]));
+    const zeroed = Buffer.concat([Buffer.from(`#batch ${csv.length} 1 ${zlib.crc32(csv).toString(16).padStart(8, '0')}\n`), csv.subarray(0, 10), Buffer.alloc(csv.length - 10)]);
+    fs.writeFileSync(j.file, Buffer.concat([whole, zeroed]));
+    const scan = scanJournal(fs.readFileSync(j.file));
+    expect(scan.rows.map((r) => r.seq)).toEqual([1, 2]);
+    expect(scan).toMatchObject({ damaged: [], tornBytes: zeroed.length });
+    const rec = await j.recover();
+    expect(rec.damaged).toEqual([]);
+  });
+
+  it('sets a damaged batch in the middle aside into a named file and still reads every intact batch around it (finding 12)', async () => {
+    const j = await openJournal();
+    await j.append([row(1), row(2)]);
+    await j.append([row(3), row(4)]);
+    await j.append([row(5)]);
+    await j.close();
+    const buf = fs.readFileSync(j.file);
+    // Flip one byte inside the second batch's CSV: its checksum no longer matches.
+    const second = buf.indexOf('#batch', 1);
+    const at = buf.indexOf('DP +3', second) + 4;
+    const damagedBytes = Buffer.from(buf);
+    damagedBytes[at] = '9'.charCodeAt(0);
+    fs.writeFileSync(j.file, damagedBytes);
+    expect((await j.read()).map((r) => r.seq)).toEqual([1, 2, 5]);
+    const rec = await j.recover();
+    expect(rec.rows.map((r) => r.seq)).toEqual([1, 2, 5]);
+    expect(rec.damaged).toHaveLength(1);
+    expect(rec.damaged[0]!.reason).toMatch(/checksum mismatch/);
+    // The bytes set aside are exactly the damaged batch, in a file named after the journal.
+    const third = damagedBytes.indexOf('#batch', second + 1);
+    const aside = fs.readFileSync(path.join(path.dirname(j.file), rec.damaged[0]!.file));
+    expect(aside.equals(damagedBytes.subarray(second, third))).toBe(true);
+    expect(rec.damaged[0]!.file).toMatch(/^samples\.journal\.damaged-/);
+    expect(await j.damagedBatches()).toEqual(rec.damaged);
+    expect(await j.acknowledgeDamaged('user-1')).toBe(1);
+    expect((await j.damagedBatches())[0]).toMatchObject({ acknowledgedBy: 'user-1' });
+    expect(await j.acknowledgeDamaged('user-1')).toBe(0);
+  });
+
+  it('sets aside a header that is not one, a wrong row count and an over-long length in the middle, keeping what follows', async () => {
+    const j = await openJournal();
+    await j.append([row(1), row(2)]);
+    await j.close();
+    const whole = fs.readFileSync(j.file);
     const csv = samplesCsv([row(3)]);
-    fs.writeFileSync(j.file, Buffer.concat([whole, Buffer.from(`#batch ${Buffer.byteLength(csv)} 2\n${csv}`)]));
-    expect((await j.read()).map((r) => r.seq)).toEqual([1, 2]);
+    for (const bad of [Buffer.from('#bat garbage\n'), Buffer.from(`#batch ${Buffer.byteLength(csv)} 2\n${csv}`), Buffer.from(`#batch 99999 1\n${csv}`)]) {
+      fs.writeFileSync(j.file, Buffer.concat([whole, bad, whole]));
+      const scan = scanJournal(fs.readFileSync(j.file));
+      expect(scan.rows.map((r) => r.seq)).toEqual([1, 2, 1, 2]);
+      expect(scan.damaged.map((d) => d.bytes.toString())).toEqual([bad.toString()]);
+    }
+  });
+
+  it('reads the checksum-less #batch form of the journal before this one, and 9-column rows as a local port', async () => {
+    const j = await openJournal();
+    await j.close();
+    const csv = '7,"b1","pressure",,"DP +1",1,"inH2O",1700000000000,12\n';
+    fs.writeFileSync(j.file, `#batch ${Buffer.byteLength(csv)} 1\n${csv}`);
+    expect(await j.read()).toEqual([
+      { seq: 7, benchId: 'b1', device: 'pressure', runId: null, raw: 'DP +1', value: 1, unit: 'inH2O', wallMs: 1.7e12, monoMs: 12, sourceKind: 'port', sourceId: 'b1', clientWallMs: null },
+    ]);
   });
 
   it('still reads a journal of the older form (one JSON array per line), torn last line ignored', async () => {

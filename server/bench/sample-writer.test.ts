@@ -34,6 +34,8 @@ function entries(from: number, count: number): HubEntry[] {
     unit: 'mA',
     wallMs: 1.7e12 + from + i,
     monoMs: from + i,
+    source: { kind: 'port', id: 'b1' },
+    clientWallMs: null,
   })) as unknown as HubEntry[];
 }
 
@@ -78,6 +80,14 @@ class GatedSink implements SampleSink {
 }
 
 const tick = () => new Promise((r) => setTimeout(r, 20));
+/** Waits (polling) until `done()` holds; journal syncs take their time on a loaded machine. */
+async function until(done: () => boolean, what: string): Promise<void> {
+  const end = Date.now() + 5000;
+  while (!done()) {
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 2));
+  }
+}
 
 describe('SampleWriter', () => {
   it('acknowledges after the journal sync, before the database write, and bounds each batch', async () => {
@@ -87,6 +97,7 @@ describe('SampleWriter', () => {
     w.consume(entries(1, 1000));
     const done = w.flush();
     await tick();
+    await until(() => w.stats.ackedSeq === 300, 'the first batch journaled');
     // The first batch is journaled and acknowledged, but not stored: its database write is held.
     expect(w.stats.ackedSeq).toBe(300);
     expect(w.stats.storedSeq).toBe(0);
@@ -172,5 +183,27 @@ describe('SampleWriter', () => {
     expect(await started).toBe(201);
     expect(again.stats.replayed).toBe(100);
     await again.stop();
+  });
+  it('whenAcked resolves once the seq is durable and rejects waiters left when the writer stops', async () => {
+    const sink = new GatedSink();
+    const w = new SampleWriter({ sink, journal: journalIn(), flushMs: 10_000 });
+    await w.start();
+    w.consume(entries(1, 10));
+    let acked = false;
+    const ten = w.whenAcked(10).then(() => (acked = true));
+    const later = w.whenAcked(11).then(
+      () => 'resolved',
+      (e: Error) => e.message,
+    );
+    await tick();
+    expect(acked).toBe(false);
+    const f = w.flush();
+    await ten; // journaled and synced: acknowledged before the held database write
+    expect(w.stats.storedSeq).toBe(0);
+    await expect(w.whenAcked(5)).resolves.toBeUndefined();
+    await sink.releaseUntil(() => w.stats.storedSeq === 10, 'the write');
+    await f;
+    await w.stop();
+    expect(await later).toMatch(/stopped/);
   });
 });

@@ -8,7 +8,65 @@
  * backlog is written in steady pieces rather than one huge write at the end.
  */
 import type { HubEntry } from './hub';
-import type { JournalRow, SampleJournal } from './journal';
+import type { DamagedBatch, JournalRow, SampleJournal } from './journal';
+import { wellFormed } from './samples-csv';
+
+/** A row set aside, with why. */
+export interface QuarantineItem {
+  row: JournalRow;
+  reason: string;
+}
+
+/** SQLSTATE of an error or of any error it wraps (drizzle wraps the driver's), if it has one. */
+function sqlState(error: unknown): string | undefined {
+  for (let e = error, depth = 0; e && typeof e === 'object' && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+    const code = (e as { code?: unknown }).code;
+    if (typeof code === 'string' && /^[0-9A-Z]{5}$/.test(code)) return code;
+  }
+  return undefined;
+}
+
+/**
+ * Whether a failed write was the database refusing the rows themselves, which retrying can never
+ * change: SQLSTATE class 22 (data exception: an invalid byte such as NUL, a value out of range),
+ * class 23 (integrity constraint; a repeated seq, 23505, is skipped by the sink and never counts)
+ * and 54000 (program limit exceeded: a value too large to store). Anything else, and an error
+ * without a SQLSTATE (connection lost, worker gone, disk full: 53100), is transient. SQLSTATE
+ * classes from the PostgreSQL documentation, Appendix A "PostgreSQL Error Codes"; PGlite reports
+ * the same codes.
+ */
+export function isRowRefusal(error: unknown): boolean {
+  const code = sqlState(error);
+  if (!code) return false;
+  return code.startsWith('22') || (code.startsWith('23') && code !== '23505') || code === '54000';
+}
+
+/** A refusal's reason as stored beside the row: its SQLSTATE and message. */
+function refusalReason(error: unknown): string {
+  let e: unknown = error;
+  for (let depth = 0; e && typeof e === 'object' && !(e as { code?: unknown }).code && (e as { cause?: unknown }).cause && depth < 5; depth++) e = (e as { cause?: unknown }).cause;
+  const code = sqlState(error) ?? '';
+  const message = e instanceof Error ? e.message : String(e);
+  return `${code} ${message}`.trim().slice(0, 500);
+}
+
+/**
+ * Why a row cannot be stored unaltered although the database would take it: a lone UTF-16
+ * surrogate in a text is turned into U+FFFD by the UTF-8 encoding on the way in, so the stored line
+ * would differ from the one received.
+ */
+export function unstorableReason(r: JournalRow): string | undefined {
+  const texts: [string, string | null][] = [
+    ['raw', r.raw],
+    ['bench_id', r.benchId],
+    ['device', r.device],
+    ['run_id', r.runId],
+    ['unit', r.unit],
+    ['source_id', r.sourceId],
+  ];
+  for (const [name, t] of texts) if (t !== null && !wellFormed(t)) return `lone UTF-16 surrogate in ${name} (the database would store it altered)`;
+  return undefined;
+}
 
 /** A batch made ready on this thread; `csv`, when there, is the journal's and COPY's form of it. */
 export interface PreparedBatch {
@@ -26,10 +84,15 @@ export interface SampleSink {
    */
   prepare?(rows: JournalRow[]): PreparedBatch;
   insertPrepared?(prepared: PreparedBatch): Promise<void>;
-  /** Highest seq stored, or 0. */
+  /** Highest seq stored or quarantined, or 0. */
   maxSeq(): Promise<number>;
-  /** Which of the seqs in [from, to] are stored. */
+  /** Which of the seqs in [from, to] are stored or quarantined. */
   existingSeqs(from: number, to: number): Promise<Set<number>>;
+  /**
+   * Where rows the database refuses are set aside (idempotent per seq). Without it a refused row
+   * is retried like any failure.
+   */
+  quarantine?: { add(items: QuarantineItem[]): Promise<void> };
 }
 
 /** Options of {@link SampleWriter}. */
@@ -48,7 +111,15 @@ export interface SampleWriterOptions {
   maxBatchRows?: number;
   /** Journal size that triggers a truncate once its rows are in the database, bytes. Default 4 MiB. */
   rotateBytes?: number;
+  /** Longest wait between attempts after repeated failures, ms (the wait doubles from `flushMs`). Default 10 000. */
+  maxBackoffMs?: number;
   onError?: (error: unknown) => void;
+  /** Rows just set aside (the service logs them). */
+  onQuarantine?: (items: QuarantineItem[]) => void;
+  /** Damaged journal stretches just set aside at start-up. */
+  onDamaged?: (damaged: DamagedBatch[]) => void;
+  /** Wall clock (tests). */
+  wallNow?: () => number;
 }
 
 /** Counters of the writer. */
@@ -61,6 +132,16 @@ export interface SampleWriterStats {
   lastBatchMs: number;
   failures: number;
   replayed: number;
+  /** Rows set aside by this process (refused by the database or not storable unaltered). */
+  quarantined: number;
+  /** Damaged journal stretches set aside at this start. */
+  damagedBatches: number;
+  /** Failed attempts in a row (0 once a write succeeds). */
+  consecutiveFailures: number;
+  /** Wall-clock ms of the first failure of the current run of failures; null while writes succeed. */
+  failingSinceMs: number | null;
+  /** The last failure, however long ago. */
+  lastFailure: { message: string; atMs: number } | null;
 }
 
 export class SampleWriter {
@@ -71,6 +152,12 @@ export class SampleWriter {
   private readonly batchRows: number;
   private readonly maxBatchRows: number;
   private readonly onError: (error: unknown) => void;
+  private readonly onQuarantine: (items: QuarantineItem[]) => void;
+  private readonly onDamaged: (damaged: DamagedBatch[]) => void;
+  private readonly maxBackoffMs: number;
+  private readonly wallNow: () => number;
+  /** No timer-driven attempt before this (performance.now() ms): backoff after failures. */
+  private retryAt = 0;
   private pending: JournalRow[] = [];
   private timer: NodeJS.Timeout | undefined;
   private flushing: Promise<void> | undefined;
@@ -78,7 +165,23 @@ export class SampleWriter {
   private dbTail: Promise<void> = Promise.resolve();
   private lastFailureMs = -Infinity;
   private stopped = false;
-  readonly stats: SampleWriterStats = { ackedSeq: 0, storedSeq: 0, pending: 0, written: 0, batches: 0, lastBatchMs: 0, failures: 0, replayed: 0 };
+  /** Waiters of {@link whenAcked}, by the seq they wait for. */
+  private ackWaiters: { seq: number; resolve: () => void; reject: (e: Error) => void }[] = [];
+  readonly stats: SampleWriterStats = {
+    ackedSeq: 0,
+    storedSeq: 0,
+    pending: 0,
+    written: 0,
+    batches: 0,
+    lastBatchMs: 0,
+    failures: 0,
+    replayed: 0,
+    quarantined: 0,
+    damagedBatches: 0,
+    consecutiveFailures: 0,
+    failingSinceMs: null,
+    lastFailure: null,
+  };
 
   constructor(options: SampleWriterOptions) {
     this.sink = options.sink;
@@ -88,16 +191,23 @@ export class SampleWriter {
     this.batchRows = options.batchRows ?? 5000;
     this.maxBatchRows = Math.max(1, options.maxBatchRows ?? 20_000);
     this.onError = options.onError ?? (() => {});
+    this.onQuarantine = options.onQuarantine ?? (() => {});
+    this.onDamaged = options.onDamaged ?? (() => {});
+    this.maxBackoffMs = options.maxBackoffMs ?? 10_000;
+    this.wallNow = options.wallNow ?? Date.now;
   }
 
   /**
-   * Start-up: replays journal rows the database lacks, truncates the journal, opens it for
+   * Start-up: replays journal rows the database lacks (a row it refuses is quarantined, never
+   * blocking the start), sets damaged journal stretches aside, truncates the journal, opens it for
    * appending and returns the next free sequence number.
    */
   async start(): Promise<number> {
     let max = await this.sink.maxSeq();
     if (this.journal) {
-      const rows = await this.journal.read();
+      const { rows, damaged } = await this.journal.recover();
+      this.stats.damagedBatches = damaged.length;
+      if (damaged.length) this.onDamaged(damaged);
       if (rows.length) {
         let lo = Infinity;
         let hi = -Infinity;
@@ -108,7 +218,7 @@ export class SampleWriter {
         const have = await this.sink.existingSeqs(lo, hi);
         const seen = new Set<number>();
         const missing = rows.filter((r) => !have.has(r.seq) && !seen.has(r.seq) && seen.add(r.seq));
-        if (missing.length) await this.sink.insertMany(missing);
+        if (missing.length) await this.store(missing, undefined);
         this.stats.replayed = missing.length;
         max = Math.max(max, hi);
       }
@@ -116,9 +226,34 @@ export class SampleWriter {
       await this.journal.open();
     }
     this.stats.ackedSeq = this.stats.storedSeq = max;
-    this.timer = setInterval(() => void this.flush(), this.flushMs);
+    this.timer = setInterval(() => {
+      if (performance.now() >= this.retryAt) void this.flush();
+    }, this.flushMs);
     this.timer.unref();
     return max + 1;
+  }
+
+  /**
+   * Resolves once every sample up to `seq` is durably stored (`ackedSeq >= seq`); rejects when the
+   * writer stops first. For acknowledging forwarded batches to their sender.
+   */
+  whenAcked(seq: number): Promise<void> {
+    if (this.stats.ackedSeq >= seq) return Promise.resolve();
+    if (this.stopped) return Promise.reject(new Error('the sample writer has stopped'));
+    return new Promise<void>((resolve, reject) => this.ackWaiters.push({ seq, resolve, reject }));
+  }
+
+  /** Sets `ackedSeq` (never lowers it) and settles the waiters it satisfies. */
+  private advanceAcked(seq: number): void {
+    if (seq <= this.stats.ackedSeq) return;
+    this.stats.ackedSeq = seq;
+    if (!this.ackWaiters.length) return;
+    const still: typeof this.ackWaiters = [];
+    for (const w of this.ackWaiters) {
+      if (w.seq <= seq) w.resolve();
+      else still.push(w);
+    }
+    this.ackWaiters = still;
   }
 
   /** Hub consumer: keeps the samples of a batch for the next write. Never awaits. */
@@ -136,6 +271,9 @@ export class SampleWriter {
         unit: e.unit,
         wallMs: e.wallMs,
         monoMs: e.monoMs,
+        sourceKind: e.source.kind,
+        sourceId: e.source.id,
+        clientWallMs: e.clientWallMs,
       });
     }
     this.stats.pending = this.pending.length;
@@ -163,6 +301,11 @@ export class SampleWriter {
   private requeue(rows: JournalRow[], error: unknown): void {
     this.stats.failures++;
     this.lastFailureMs = performance.now();
+    const n = ++this.stats.consecutiveFailures;
+    this.stats.failingSinceMs ??= this.wallNow();
+    this.stats.lastFailure = { message: error instanceof Error ? error.message : String(error), atMs: this.wallNow() };
+    // Timer-driven retries back off: flushMs, then doubling up to maxBackoffMs.
+    this.retryAt = this.lastFailureMs + Math.min(this.maxBackoffMs, this.flushMs * 2 ** Math.min(n - 1, 20));
     // A journaled row may be written twice; the sink and the replay skip stored seqs.
     this.pending = rows.concat(this.pending);
     this.stats.pending = this.pending.length;
@@ -188,9 +331,11 @@ export class SampleWriter {
     let top = 0;
     for (const r of rows) if (r.seq > top) top = r.seq;
     const sink = this.sink;
+    // A row that cannot be stored unaltered is journaled with the rest and set aside at the database stage.
+    const clean = rows.some((r) => unstorableReason(r) !== undefined) ? undefined : rows;
     let prepared: PreparedBatch | undefined;
     try {
-      prepared = sink.prepare && sink.insertPrepared ? sink.prepare(rows) : undefined;
+      prepared = clean && sink.prepare && sink.insertPrepared ? sink.prepare(rows) : undefined;
     } catch (error) {
       this.requeue(rows, error);
       return;
@@ -207,28 +352,76 @@ export class SampleWriter {
     };
     const journaled = this.journal
       ? (prepared?.csv ? this.journal.appendCsv(prepared.csv.slice(), rows.length) : this.journal.append(rows)).then(
-          () => {
-            this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
-          },
+          () => this.advanceAcked(top),
           fail,
         )
       : Promise.resolve();
     const previous = this.dbTail;
     this.dbTail = previous.then(async () => {
       try {
-        if (prepared !== undefined) await sink.insertPrepared!(prepared);
-        else await sink.insertMany(rows);
+        await this.store(rows, prepared);
       } catch (error) {
         fail(error);
         return;
       }
+      this.stats.consecutiveFailures = 0;
+      this.stats.failingSinceMs = null;
+      this.retryAt = 0;
       this.stats.storedSeq = Math.max(this.stats.storedSeq, top);
-      if (!this.journal) this.stats.ackedSeq = this.stats.storedSeq;
+      if (!this.journal) this.advanceAcked(this.stats.storedSeq);
       this.stats.written += rows.length;
       this.stats.batches++;
       this.stats.lastBatchMs = performance.now() - t0;
     });
     await Promise.all([journaled, previous]);
+  }
+
+  /**
+   * Stores a batch in the database. Rows that cannot be stored unaltered, and rows the database
+   * refuses (found by halving the refused batch until each refused row stands alone), are set aside
+   * into the quarantine; every other row is stored. A transient failure throws (the caller retries
+   * the whole batch; stored and quarantined seqs are skipped then).
+   */
+  private async store(rows: JournalRow[], prepared: PreparedBatch | undefined): Promise<void> {
+    const aside: QuarantineItem[] = [];
+    let ok = rows;
+    if (prepared === undefined) {
+      ok = [];
+      for (const row of rows) {
+        const reason = unstorableReason(row);
+        if (reason) aside.push({ row, reason });
+        else ok.push(row);
+      }
+    }
+    try {
+      if (prepared !== undefined) await this.sink.insertPrepared!(prepared);
+      else if (ok.length) await this.sink.insertMany(ok);
+    } catch (error) {
+      if (!this.sink.quarantine || !isRowRefusal(error)) throw error;
+      await this.isolate(ok, error, aside);
+    }
+    if (!aside.length) return;
+    if (!this.sink.quarantine) throw new Error(`${aside.length} row(s) cannot be stored unaltered: ${aside[0]!.reason}`);
+    await this.sink.quarantine.add(aside);
+    this.stats.quarantined += aside.length;
+    this.onQuarantine(aside);
+  }
+
+  /** Stores every row of a refused batch that the database takes; the refused ones go into `aside`. */
+  private async isolate(rows: JournalRow[], refusal: unknown, aside: QuarantineItem[]): Promise<void> {
+    if (rows.length === 1) {
+      aside.push({ row: rows[0]!, reason: refusalReason(refusal) });
+      return;
+    }
+    const mid = rows.length >>> 1;
+    for (const half of [rows.slice(0, mid), rows.slice(mid)]) {
+      try {
+        await this.sink.insertMany(half);
+      } catch (error) {
+        if (!isRowRefusal(error)) throw error;
+        await this.isolate(half, error, aside);
+      }
+    }
   }
 
   /** Flushes everything pending and closes the journal. */
@@ -241,6 +434,7 @@ export class SampleWriter {
     }
     await this.dbTail;
     this.stopped = true;
+    for (const w of this.ackWaiters.splice(0)) w.reject(new Error('the sample writer stopped before the sample was stored'));
     await this.journal?.close();
   }
 }

@@ -17,6 +17,8 @@ export const POLICY = {
   'calc.evaluate': 'signed-in',
   'bench.read': 'signed-in',
   'bench.configure': ['admin', 'lead'],
+  /** Acknowledge quarantined samples and damaged journal batches after review (health stops failing on them). */
+  'storage.acknowledge': ['admin', 'lead'],
   'sim.control': ['admin'],
   'audit.read': ['lead', 'admin', 'auditor'],
   'settings.manage': ['admin'],

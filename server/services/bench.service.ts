@@ -6,12 +6,12 @@
  */
 import path from 'node:path';
 import type { Logger } from 'pino';
-import { checkEdgeLine, classifyScpiMeterLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
+import { checkEdgeLine, classifyScpiMeterLine, previewLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
 import type { CaptureEngines } from '../bench/capture-engine';
 import type { BenchHub, ConsumerHandler } from '../bench/hub';
-import { SampleJournal } from '../bench/journal';
+import { SampleJournal, type DamagedBatch } from '../bench/journal';
 import { SampleWriter, type SampleSink } from '../bench/sample-writer';
 import type { BindingInterface } from '../bench/transport';
 import type { Db } from '../db/client';
@@ -48,10 +48,29 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     insertMany: (rows) => repo.insertMany(rows),
     maxSeq: () => repo.maxSeq(),
     existingSeqs: (a, b) => repo.existingSeqs(a, b),
+    quarantine: repo.quarantine,
   };
   const hub = o.hub;
   const journal = o.journalDir ? new SampleJournal(o.journalDir) : undefined;
-  const writer = new SampleWriter({ sink, journal, flushMs: o.flushMs, onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry') });
+  const writer = new SampleWriter({
+    sink,
+    journal,
+    flushMs: o.flushMs,
+    onError: (e) => o.logger.error({ err: e }, 'sample write failed; will retry'),
+    onQuarantine: (items) => {
+      storage.quarantine = { total: storage.quarantine.total + items.length, unacknowledged: storage.quarantine.unacknowledged + items.length };
+      o.logger.warn({ rows: items.map((i) => ({ seq: i.row.seq, benchId: i.row.benchId, device: i.row.device, raw: previewLine(i.row.raw), reason: i.reason })) }, 'samples the database refused were set aside in sample_quarantine; review them on the Bench page');
+    },
+    onDamaged: (damaged) => o.logger.warn({ damaged }, 'damaged sample journal batches were set aside beside the journal; every intact batch was replayed; review them on the Bench page'),
+  });
+  // Quarantined rows and damaged journal batches, as last read (status() is synchronous); refreshed
+  // at start, after each quarantine, on acknowledgement and by the health check.
+  const storage = { quarantine: { total: 0, unacknowledged: 0 }, damaged: [] as DamagedBatch[] };
+  async function refreshStorage(): Promise<typeof storage> {
+    storage.quarantine = await repo.quarantine.count();
+    storage.damaged = journal ? await journal.damagedBatches() : [];
+    return storage;
+  }
   const engines = o.engines;
   let devices: BenchDevices | undefined;
   const classifiers: Record<DeviceKind, LineClassifier> = { current: classifyScpiMeterLine, pressure: createCalibratorClassifier(o.profile ?? SIMCAL_PROFILE) };
@@ -67,6 +86,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** Replays the journal, continues the sequence, subscribes the consumers and opens the local devices. */
     async start(): Promise<void> {
       const next = await writer.start();
+      await refreshStorage();
       hub.setNextSeq(next);
       hub.subscribe('sample-writer', writer.consume);
       engine(benchId);
@@ -137,9 +157,33 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** Samples after a seq from the database (stream resume older than the ring, durability checks). */
     samplesAfter: (seq: number, limit: number, bench?: string) => repo.after(seq, limit, bench),
 
+    /** Re-reads the quarantine and damaged-batch counts (health check). */
+    refreshStorage,
+
+    /** Where samples are kept: the journal's directory (undefined without a journal). */
+    journalDir: journal?.dir,
+
+    /** Rows set aside by the writer (newest first) and damaged journal batches set aside, for review. */
+    async storageReview(limit: number) {
+      const [items] = await Promise.all([repo.quarantine.list(limit), refreshStorage()]);
+      return {
+        quarantine: { ...storage.quarantine, items: items.map((q) => ({ ...q, preview: previewLine(q.raw, 120) })) },
+        damaged: storage.damaged,
+      };
+    },
+
+    /** Marks every quarantined row and damaged batch as reviewed by `userId`; what it marked. */
+    async acknowledgeStorage(userId: string): Promise<{ rows: number[]; batches: number }> {
+      const rows = await repo.quarantine.acknowledge(userId);
+      const batches = journal ? await journal.acknowledgeDamaged(userId) : 0;
+      await refreshStorage();
+      return { rows, batches };
+    },
+
     /** Devices, counters and storage state. */
     status() {
       const local = devices?.status();
+      const hubBenches = hub.benches();
       return {
         mode: o.mode,
         benchId,
@@ -149,7 +193,12 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
         writer: { ...writer.stats },
         ring: { length: hub.ring.length, capacity: hub.ring.capacity, oldestSeq: hub.ring.oldestSeq ?? null },
         consumers: hub.consumerStats(),
-        benches: hub.benches().map((b) => ({
+        storage: {
+          quarantined: storage.quarantine,
+          damagedBatches: { total: storage.damaged.length, unacknowledged: storage.damaged.filter((d) => !d.acknowledgedAt).length },
+          edgeRefused: hubBenches.reduce((n, b) => n + Object.values(b.devices).reduce((m, d) => m + d.edgeRefused, 0), 0),
+        },
+        benches: hubBenches.map((b) => ({
           ...b,
           activeRunId: engines.activeRunId(b.benchId),
           local: b.benchId === benchId && local ? local : null,

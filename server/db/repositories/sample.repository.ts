@@ -1,9 +1,10 @@
-import { and, asc, between, eq, gt, gte, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, between, count, desc, eq, gt, gte, isNull, lte, sql, type SQL } from 'drizzle-orm';
 import { pgliteWorkerOf, type Db } from '../client';
 import { GzipPages } from '../gzip-pages';
 import type { PgliteWorkerClient } from '../pglite-worker-client';
-import { samplesCsv } from '../../bench/samples-csv';
-import { samples } from '../schema';
+import type { JournalRow } from '../../bench/journal';
+import { samplesCsv, wellFormed } from '../../bench/samples-csv';
+import { sampleQuarantine, samples } from '../schema';
 
 export { samplesCsv };
 
@@ -11,15 +12,39 @@ export type SampleRow = typeof samples.$inferSelect;
 
 /** A batch made ready for storing on this thread: its rows and, on PGlite, its COPY input. */
 export interface PreparedSamples {
-  rows: SampleRow[];
+  rows: JournalRow[];
   csv?: Uint8Array<ArrayBuffer>;
 }
 
 /** Columns per row of `samples`; PostgreSQL allows at most 65 535 bind parameters per statement. */
-const COLUMNS = 9;
+const COLUMNS = 12;
 const MAX_ROWS_PER_INSERT = Math.floor(65_535 / COLUMNS) - 1;
 
-const COPY_SAMPLES = `COPY samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms) FROM '/dev/blob' WITH (FORMAT csv)`;
+const COPY_SAMPLES = `COPY samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms, source_kind, source_id, client_wall_ms) FROM '/dev/blob' WITH (FORMAT csv)`;
+
+/** A row set aside by the sample writer, as it is listed (texts decoded back from their stored forms). */
+export interface QuarantinedSample {
+  seq: number;
+  benchId: string;
+  device: string;
+  runId: string | null;
+  /** The raw line exactly as received (decoded from `rawJson`). */
+  raw: string;
+  /** The raw line as stored: a JSON string literal, control characters and lone surrogates escaped. */
+  rawJson: string;
+  wallMs: number;
+  reason: string;
+  at: Date;
+  acknowledgedAt: Date | null;
+  acknowledgedBy: string | null;
+}
+
+/**
+ * A text as a column can always hold it: unchanged when it is well-formed and free of control
+ * characters, else its JSON string form (escapes; lossless, and the whole row is kept as JSON too).
+ */
+// eslint-disable-next-line no-control-regex
+const storable = (t: string) => (wellFormed(t) && !/[\u0000-\u001f\u007f]/.test(t) ? t : JSON.stringify(t));
 
 /** A string literal for SQL that cannot take bind parameters (COPY); standard_conforming_strings is on. */
 const literal = (s: string) => `'${s.replaceAll("'", "''")}'`;
@@ -88,7 +113,7 @@ export function sampleRepository(db: Db) {
    * The part of an insert done on this thread (the COPY input, on PGlite), so a writer can make it
    * for the next batch while the database stores the previous one.
    */
-  function prepare(rows: SampleRow[]): PreparedSamples {
+  function prepare(rows: JournalRow[]): PreparedSamples {
     return { rows, ...(pglite && rows.length ? { csv: new TextEncoder().encode(samplesCsv(rows)) } : {}) };
   }
 
@@ -216,7 +241,9 @@ export function sampleRepository(db: Db) {
     const select =
       `SELECT wall_ms::text || ' ' || seq, '{"seq":' || seq || ',"device":' || to_json(device) || ',"wallMs":' || wall_ms ` +
       `|| ',"value":' || CASE WHEN value IS NULL OR value IN ('NaN', 'Infinity', '-Infinity') THEN 'null' ELSE value::text END ` +
-      `|| ',"unit":' || coalesce(to_json(unit)::text, 'null') || ',"raw":' || to_json(raw) || '}' ` +
+      `|| ',"unit":' || coalesce(to_json(unit)::text, 'null') || ',"raw":' || to_json(raw) ` +
+      `|| ',"source":{"kind":' || to_json(source_kind) || ',"id":' || to_json(coalesce(source_id, bench_id)) || '}' ` +
+      `|| ',"clientWallMs":' || CASE WHEN client_wall_ms IS NULL OR client_wall_ms IN ('NaN', 'Infinity', '-Infinity') THEN 'null' ELSE client_wall_ms::text END || '}' ` +
       `FROM samples WHERE ${where.join(' AND ')} ORDER BY wall_ms, seq LIMIT ${want + 1}`;
     const r = await pglite!.copyJsonPage(select, want, gzip);
     const [w, s] = (r.lastKey ?? '').split(' ');
@@ -231,14 +258,34 @@ export function sampleRepository(db: Db) {
     if (q.device) where.push(eq(samples.device, q.device));
     if (after) where.push(sql`(${samples.wallMs}, ${samples.seq}) > (${after.wallMs}, ${after.seq})`);
     const rows = await db
-      .select({ seq: samples.seq, device: samples.device, wallMs: samples.wallMs, value: samples.value, unit: samples.unit, raw: samples.raw })
+      .select({
+        seq: samples.seq,
+        device: samples.device,
+        wallMs: samples.wallMs,
+        value: samples.value,
+        unit: samples.unit,
+        raw: samples.raw,
+        sourceKind: samples.sourceKind,
+        sourceId: samples.sourceId,
+        benchId: samples.benchId,
+        clientWallMs: samples.clientWallMs,
+      })
       .from(samples)
       .where(and(...where))
       .orderBy(asc(samples.wallMs), asc(samples.seq))
       .limit(want + 1);
     const more = rows.length > want;
     if (more) rows.length = want;
-    const items = rows.map((r) => ({ ...r, seq: Number(r.seq) }));
+    const items = rows.map((r) => ({
+      seq: Number(r.seq),
+      device: r.device,
+      wallMs: r.wallMs,
+      value: r.value,
+      unit: r.unit,
+      raw: r.raw,
+      source: { kind: r.sourceKind, id: r.sourceId ?? r.benchId },
+      clientWallMs: r.clientWallMs,
+    }));
     const lastRow = items.at(-1);
     return {
       bytes: Buffer.from(items.length ? `,${JSON.stringify(items).slice(1, -1)}` : ''),
@@ -255,16 +302,79 @@ export function sampleRepository(db: Db) {
      * a failed write, a replay), COPY refuses it whole and the batch goes in as inserts that skip
      * the stored rows. On PostgreSQL multi-row inserts, chunked under the bind-parameter limit.
      */
-    insertMany: (rows: SampleRow[]): Promise<void> => insertPrepared(prepare(rows)),
+    insertMany: (rows: JournalRow[]): Promise<void> => insertPrepared(prepare(rows)),
     prepare,
     insertPrepared,
+    /** Highest seq handed out and kept: stored or quarantined (a seq never names two samples). */
     async maxSeq(): Promise<number> {
       const [r] = await db.select({ m: sql<string | null>`max(${samples.seq})` }).from(samples);
-      return r?.m == null ? 0 : Number(r.m);
+      const [q] = await db.select({ m: sql<string | null>`max(${sampleQuarantine.seq})` }).from(sampleQuarantine);
+      return Math.max(r?.m == null ? 0 : Number(r.m), q?.m == null ? 0 : Number(q.m));
     },
+    /** Which seqs in [from, to] are accounted for: stored, or quarantined. */
     async existingSeqs(from: number, to: number): Promise<Set<number>> {
       const rows = await db.select({ seq: samples.seq }).from(samples).where(between(samples.seq, from, to));
-      return new Set(rows.map((r) => Number(r.seq)));
+      const set = new Set(rows.map((r) => Number(r.seq)));
+      const q = await db.select({ seq: sampleQuarantine.seq }).from(sampleQuarantine).where(between(sampleQuarantine.seq, from, to));
+      for (const r of q) set.add(Number(r.seq));
+      return set;
+    },
+    /** Samples the writer set aside (see the sample_quarantine table). */
+    quarantine: {
+      /** Sets rows aside with their reasons; a seq already set aside is kept as it was. */
+      async add(items: { row: JournalRow; reason: string }[]): Promise<void> {
+        if (!items.length) return;
+        await db
+          .insert(sampleQuarantine)
+          .values(
+            items.map(({ row, reason }) => ({
+              seq: row.seq,
+              benchId: storable(row.benchId),
+              device: storable(row.device),
+              runId: row.runId === null ? null : storable(row.runId),
+              rawJson: JSON.stringify(row.raw),
+              rowJson: JSON.stringify(row),
+              wallMs: Number.isFinite(row.wallMs) ? row.wallMs : 0,
+              reason: storable(reason),
+            })),
+          )
+          .onConflictDoNothing({ target: sampleQuarantine.seq });
+      },
+      /** The newest rows set aside, newest first. */
+      async list(limit: number): Promise<QuarantinedSample[]> {
+        const rows = await db.select().from(sampleQuarantine).orderBy(desc(sampleQuarantine.seq)).limit(limit);
+        return rows.map((r) => {
+          const row = JSON.parse(r.rowJson) as JournalRow;
+          return {
+            seq: Number(r.seq),
+            benchId: row.benchId,
+            device: row.device,
+            runId: row.runId,
+            raw: row.raw,
+            rawJson: r.rawJson,
+            wallMs: r.wallMs,
+            reason: r.reason,
+            at: r.at,
+            acknowledgedAt: r.acknowledgedAt,
+            acknowledgedBy: r.acknowledgedBy,
+          };
+        });
+      },
+      async count(): Promise<{ total: number; unacknowledged: number }> {
+        const [r] = await db
+          .select({ total: count(), unacknowledged: sql<number>`count(*) FILTER (WHERE ${sampleQuarantine.acknowledgedAt} IS NULL)::int` })
+          .from(sampleQuarantine);
+        return { total: Number(r?.total ?? 0), unacknowledged: Number(r?.unacknowledged ?? 0) };
+      },
+      /** Marks every row not yet reviewed as reviewed by `userId`; returns their seqs. */
+      async acknowledge(userId: string): Promise<number[]> {
+        const rows = await db
+          .update(sampleQuarantine)
+          .set({ acknowledgedAt: new Date(), acknowledgedBy: userId })
+          .where(isNull(sampleQuarantine.acknowledgedAt))
+          .returning({ seq: sampleQuarantine.seq });
+        return rows.map((r) => Number(r.seq)).sort((a, b) => a - b);
+      },
     },
     /**
      * Samples of a run between two wall-clock times, in time order, as the UTF-8 JSON

@@ -51,6 +51,12 @@ export const samples = pgTable(
     wallMs: doublePrecision('wall_ms').notNull(),
     /** Monotonic arrival, ms (process clock). */
     monoMs: doublePrecision('mono_ms').notNull(),
+    /** Who delivered the line: this server's own port, a registered agent or a browser (Web Serial). */
+    sourceKind: text('source_kind', { enum: ['port', 'agent', 'browser'] }).notNull().default('port'),
+    /** The port's or agent's bench id, or the forwarding user's id; null on rows stored before it was kept (the bench's own port). */
+    sourceId: text('source_id'),
+    /** The sender's own wall clock for a forwarded line (metadata only), ms since epoch. */
+    clientWallMs: doublePrecision('client_wall_ms'),
   },
   // (run_id, wall_ms, seq) is the order a trace is read in, page by page (keyset on wall_ms, seq).
   (t) => [index('samples_run_time_idx').on(t.runId, t.wallMs, t.seq)],
