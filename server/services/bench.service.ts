@@ -4,6 +4,7 @@
  * browsers, and the simulated rig's control surface. Boot creates one and stops it before the
  * database closes.
  */
+import { randomBytes } from 'node:crypto';
 import path from 'node:path';
 import type { Logger } from 'pino';
 import { convertPressure, isPressureUnitId, type OutputMode } from '../../shared/calc';
@@ -13,6 +14,8 @@ import { BenchDevices } from '../bench/bench-devices';
 import { CaptureEngine, type EngineEvent } from '../bench/capture-engine';
 import { BenchHub, type ConsumerHandler, type UnnumberedMessage } from '../bench/hub';
 import { SampleJournal } from '../bench/journal';
+import { replayPages } from '../bench/replay';
+import { SeqReservation } from '../bench/seq-reservation';
 import { SampleWriter, type SampleSink } from '../bench/sample-writer';
 import { defaultBinding } from '../bench/transport';
 import type { Db } from '../db/client';
@@ -88,6 +91,9 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
   const rig = o.mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
   let devices: BenchDevices | undefined;
   let simContext: (() => SimRunContext | undefined) | undefined;
+  let seqs: SeqReservation | undefined;
+  /** This start's stream epoch: a resume that names another gets `stream.reset`. */
+  const epoch = randomBytes(6).toString('base64url');
   const classifiers: Record<DeviceKind, LineClassifier> = { current: classifyScpiMeterLine, pressure: createCalibratorClassifier(o.profile ?? SIMCAL_PROFILE) };
 
   function engine(id: string): CaptureEngine {
@@ -112,11 +118,20 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     rig,
     benchId,
     mode: o.mode,
+    epoch,
+    /** Last sequence number handed out. */
+    latestSeq: () => hub.latestSeq,
 
-    /** Replays the journal, continues the sequence, subscribes the consumers and opens the local devices. */
+    /**
+     * Replays the journal, continues the sequence after every number an earlier process reserved
+     * (seq-reservation.ts), subscribes the consumers and opens the local devices.
+     */
     async start(): Promise<void> {
       const next = await writer.start();
-      hub.setNextSeq(next);
+      seqs = o.journalDir ? new SeqReservation(o.journalDir) : undefined;
+      if (seqs?.damaged) o.logger.warn({ file: seqs.file }, 'sequence reservation unreadable: numbering continues after the stored samples only');
+      hub.setNextSeq(seqs ? seqs.start(next) : next);
+      if (seqs) hub.guardSeqs(seqs.ensure);
       hub.subscribe('sample-writer', writer.consume);
       engine(benchId);
       if (o.noLocalDevices) return;
@@ -148,6 +163,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       rig?.dispose();
       await hub.drain();
       await writer.stop();
+      seqs?.close();
     },
 
     /** The capture engine of a bench (created on first use). */
@@ -194,7 +210,14 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       return { accepted, rejected };
     },
 
-    /** Samples after a seq from the database (stream resume older than the ring, durability checks). */
+    /**
+     * Stream resume: the messages numbered in (`since`, `upTo`], in pages of at most `pageSize`, from
+     * the ring or, for what it has evicted, the stored samples (replay.ts).
+     */
+    replay: (since: number, upTo: number, pageSize: number) =>
+      replayPages({ ring: hub.ring, stored: (after, limit) => repo.after(after, limit), storedUpTo: () => writer.stats.storedSeq }, since, upTo, pageSize),
+
+    /** Samples after a seq from the database (durability checks). */
     samplesAfter: (seq: number, limit: number, bench?: string) => repo.after(seq, limit, bench),
 
     /** Devices, counters and storage state. */
