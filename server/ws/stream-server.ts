@@ -14,17 +14,19 @@ import type http from 'node:http';
 import type { Duplex } from 'node:stream';
 import type { Logger } from 'pino';
 import { WebSocketServer, type RawData, type WebSocket } from 'ws';
-import { STREAM_CLOSE, type StreamMessage, type StreamResetReason } from '../../shared/schemas/stream';
+import type { StreamMessage, StreamResetReason } from '../../shared/schemas/stream';
 import { toStreamMessage, type HubEntry } from '../bench/hub';
 import { ReplayGapError } from '../bench/replay';
 import type { AuthService, SessionUser } from '../services/auth.service';
 import type { BenchService } from '../services/bench.service';
-import { endsSession, type SessionEndReason, type SessionEvents } from '../services/session-events';
+import type { SessionEvents } from '../services/session-events';
 import { handleForwarded, parseClientMessage } from './client-messages';
 import { createReplaySlots } from './replay-slots';
+import { createSessionSockets } from './session-sockets';
 import { authenticateUpgrade } from './upgrade-auth';
 
 export { SESSION_COOKIE } from './upgrade-auth';
+export { SESSION_CLOSE_REASONS } from './session-sockets';
 
 /** Options of {@link attachStreamServer}. */
 export interface StreamServerOptions {
@@ -73,7 +75,7 @@ interface Client {
   skippedCount: number;
   /** Closed (or being closed) by the server: nothing more is sent or accepted. */
   ended: boolean;
-  expiry: NodeJS.Timeout | undefined;
+  end(code: number, reason: string): void;
 }
 
 function refuse(socket: Duplex, status: number, text: string, message: string): void {
@@ -83,19 +85,6 @@ function refuse(socket: Duplex, status: number, text: string, message: string): 
 
 const RUN_EVENTS = new Set(['point.changed', 'run.warned', 'point.captured', 'run.changed']);
 
-/** Close reasons the client shows (at most 123 bytes, RFC 6455 §5.5). */
-export const SESSION_CLOSE_REASONS: Record<SessionEndReason, string> = {
-  'signed-out': 'Signed out',
-  deactivated: 'Signed out: this account was deactivated',
-  'role-changed': 'Signed out: your role changed; sign in again',
-  revoked: 'Signed out: this session was ended',
-  'password-changed': 'Signed out: the password was changed; sign in again',
-  expired: 'Signed out: the session expired; sign in again',
-};
-
-/** Longest delay setTimeout takes (about 24.8 days). */
-const MAX_TIMER_MS = 2 ** 31 - 1;
-
 export function attachStreamServer(o: StreamServerOptions) {
   const heartbeatMs = o.heartbeatMs ?? 15_000;
   const highWater = o.highWaterBytes ?? 512 * 1024;
@@ -103,12 +92,11 @@ export function attachStreamServer(o: StreamServerOptions) {
   const pageSize = o.replayPageSize ?? 500;
   const lowWater = o.replayLowWaterBytes ?? 64 * 1024;
   const stallMs = o.replayStallMs ?? 30_000;
-  const maxPerUser = o.maxConnectionsPerUser ?? 10;
+  const sessions = createSessionSockets<Client>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
   const slots = createReplaySlots({ total: o.maxReplays ?? 4, perUser: o.maxReplaysPerUser ?? 2 });
   const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
   const clients = new Set<Client>();
-  const byUser = new Map<string, Set<Client>>();
-  const stats = { connected: 0, refused: 0, tooMany: 0, sessionClosed: 0, skippedSamples: 0, forwardedLines: 0, replayed: 0, resets: 0 };
+  const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0, replayed: 0, resets: 0 };
 
   const send = (c: Client, m: StreamMessage): void => {
     if (c.ended || c.ws.readyState !== c.ws.OPEN) return;
@@ -152,27 +140,8 @@ export function attachStreamServer(o: StreamServerOptions) {
   /** Takes a client out of every list and stops its timers (idempotent). */
   function forget(c: Client): void {
     clients.delete(c);
-    const mine = byUser.get(c.user.id);
-    mine?.delete(c);
-    if (mine && !mine.size) byUser.delete(c.user.id);
-    clearTimeout(c.expiry);
+    sessions.leave(c);
   }
-
-  /** Closes a client's socket with a code and reason the client shows. */
-  function end(c: Client, code: number, reason: string): void {
-    if (c.ended) return;
-    c.ended = true;
-    forget(c);
-    c.ws.close(code, reason);
-  }
-
-  const stopSessions = o.sessionEvents.onEnded((e) => {
-    for (const c of byUser.get(e.userId) ?? []) {
-      if (!endsSession(e, c.user.id, c.user.jti)) continue;
-      stats.sessionClosed++;
-      end(c, STREAM_CLOSE.sessionEnded, SESSION_CLOSE_REASONS[e.reason]);
-    }
-  });
 
   const onUpgrade = (req: http.IncomingMessage, socket: Duplex, head: Buffer): void => {
     const url = new URL(req.url ?? '/', 'http://localhost');
@@ -181,6 +150,7 @@ export function attachStreamServer(o: StreamServerOptions) {
       return;
     }
     socket.on('error', () => {});
+    const asked = performance.now();
     void (async () => {
       const origin = req.headers.origin;
       if (origin) {
@@ -201,11 +171,11 @@ export function attachStreamServer(o: StreamServerOptions) {
       const sinceRaw = url.searchParams.get('since');
       const since = sinceRaw !== null && /^\d{1,15}$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
       const epoch = url.searchParams.get('epoch');
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since, epoch));
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since, epoch, asked));
     })();
   };
 
-  function open(ws: WebSocket, user: SessionUser, since: number | undefined, epoch: string | null): void {
+  function open(ws: WebSocket, user: SessionUser, since: number | undefined, epoch: string | null, asked: number): void {
     const c: Client = {
       ws,
       user,
@@ -217,29 +187,19 @@ export function attachStreamServer(o: StreamServerOptions) {
       skipped: new Map(),
       skippedCount: 0,
       ended: false,
-      expiry: undefined,
+      end(code, reason) {
+        if (c.ended) return;
+        c.ended = true;
+        forget(c);
+        ws.close(code, reason);
+      },
     };
     ws.on('close', () => forget(c));
     ws.on('error', () => forget(c));
-    const mine = byUser.get(user.id) ?? new Set<Client>();
-    if (mine.size >= maxPerUser) {
-      stats.tooMany++;
-      c.ended = true;
-      ws.close(STREAM_CLOSE.tooManyConnections, `Too many live connections for this account (at most ${maxPerUser}); close another tab`);
-      return;
-    }
-    byUser.set(user.id, mine.add(c));
+    const refusal = sessions.admit(c, asked);
+    if (refusal) return c.end(refusal.code, refusal.reason);
     clients.add(c);
     stats.connected++;
-    if (user.expiresAtMs !== undefined) {
-      const left = user.expiresAtMs - Date.now();
-      if (left <= 0) {
-        end(c, STREAM_CLOSE.sessionEnded, SESSION_CLOSE_REASONS.expired);
-        return;
-      }
-      c.expiry = setTimeout(() => end(c, STREAM_CLOSE.sessionEnded, SESSION_CLOSE_REASONS.expired), Math.min(left, MAX_TIMER_MS));
-      c.expiry.unref();
-    }
     ws.on('pong', () => {
       c.alive = true;
     });
@@ -251,10 +211,10 @@ export function attachStreamServer(o: StreamServerOptions) {
       c.lastSent = seq;
     };
     if (since === undefined) return opened(latest);
-    const refusal: StreamResetReason | undefined = epoch !== o.bench.epoch ? 'epoch' : since > latest ? 'ahead' : latest - since > maxReplay ? 'behind' : undefined;
-    if (refusal) {
+    const notServed: StreamResetReason | undefined = epoch !== o.bench.epoch ? 'epoch' : since > latest ? 'ahead' : latest - since > maxReplay ? 'behind' : undefined;
+    if (notServed) {
       opened(latest);
-      return reset(c, refusal, since);
+      return reset(c, notServed, since);
     }
     opened(since);
     if (since < latest) void resume(c, since, latest);
@@ -347,19 +307,18 @@ export function attachStreamServer(o: StreamServerOptions) {
   o.server.on('upgrade', onUpgrade);
 
   return {
-    stats: () => ({ ...stats, clients: clients.size, users: byUser.size, replays: slots.stats() }),
+    stats: () => ({ ...stats, ...sessions.stats(), clients: clients.size, replays: slots.stats() }),
     /** Closes every client (1001 going away) and stops listening for upgrades. */
     async close(): Promise<void> {
       clearInterval(beat);
       o.server.off('upgrade', onUpgrade);
       unsubscribe();
-      stopSessions();
       const all = [...clients];
-      for (const c of all) end(c, 1001, 'server shutting down');
+      for (const c of all) c.end(1001, 'server shutting down');
+      sessions.close();
       await new Promise((r) => setTimeout(r, 50));
       for (const c of all) c.ws.terminate();
       clients.clear();
-      byUser.clear();
       await new Promise<void>((resolve) => wss.close(() => resolve()));
     },
   };
