@@ -48,7 +48,7 @@ export async function run(): Promise<BenchFigure[]> {
     const timers: ReturnType<typeof setInterval>[] = [];
     await page.routeWebSocket(/\/ws(\?.*)?$/, (ws) => {
       ws.onMessage(() => {});
-      ws.send(JSON.stringify({ type: 'stream.opened', seq: 0, latestSeq: seq, heartbeatMs: 15_000 }));
+      ws.send(JSON.stringify({ type: 'stream.opened', seq: 0, latestSeq: seq, heartbeatMs: 15_000, epoch: 'bench' }));
       const t0 = Date.now();
       let k = 0;
       timers.push(
@@ -67,7 +67,7 @@ export async function run(): Promise<BenchFigure[]> {
           }
           if (++k % RATE_HZ === 0) {
             ws.send(JSON.stringify({ type: 'point.changed', seq: ++seq, runId, index: 0, state: 'holding', flags: [], hold: { elapsedMs: (k * 50) % 30_000, requiredMs: 30_000 } }));
-            ws.send(JSON.stringify({ type: 'stream.opened', seq: 0, latestSeq: seq, heartbeatMs: 15_000 }));
+            ws.send(JSON.stringify({ type: 'stream.opened', seq: 0, latestSeq: seq, heartbeatMs: 15_000, epoch: 'bench' }));
           }
         }, 1000 / RATE_HZ),
       );

@@ -30,6 +30,7 @@ import { createUploads } from './storage/upload';
 import { createBenchService, journalDirOf, type BenchService } from './services/bench.service';
 import { seedDemo } from './services/demo-seed.service';
 import { createHealth } from './services/health.service';
+import { createSessionEvents } from './services/session-events';
 import { createRunService, type RunService } from './services/run.service';
 import { runRepository, type RunRepository } from './db/repositories/run.repository';
 import { attachStreamServer, type StreamServer } from './ws/stream-server';
@@ -130,7 +131,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
   let tmpRoot: string | undefined;
   try {
     const hooks: ServiceHooks = {};
-    const services = createServices(database, loadSecret(env, memory), hooks);
+    const sessionEvents = createSessionEvents();
+    const services = createServices(database, loadSecret(env, memory), hooks, sessionEvents);
     if (env.SEED_DEMO === '1' && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
       logger.info('seeded the demo site');
     }
@@ -224,7 +226,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       server.once('error', reject);
       server.listen(env.PORT, env.HOST, () => resolve());
     });
-    const stream = attachStreamServer({ server, auth: services.auth, bench, logger, allowedOrigins });
+    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 

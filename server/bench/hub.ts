@@ -145,6 +145,29 @@ export class RingBuffer {
     for (let k = lo; k < this.size; k++) out.push(this.items[(this.start + k) % this.capacity]!);
     return out;
   }
+
+  /**
+   * At most `limit` entries with `since` < seq ≤ `upTo`, oldest first (one page of a resume);
+   * undefined when entries after `since` have already been evicted.
+   */
+  page(since: number, limit: number, upTo = Infinity): HubEntry[] | undefined {
+    if (this.size === 0) return [];
+    if (since < this.items[this.start]!.seq - 1) return undefined;
+    let lo = 0;
+    let hi = this.size;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      if (this.items[(this.start + mid) % this.capacity]!.seq <= since) lo = mid + 1;
+      else hi = mid;
+    }
+    const out: HubEntry[] = [];
+    for (let k = lo; k < this.size && out.length < limit; k++) {
+      const e = this.items[(this.start + k) % this.capacity]!;
+      if (e.seq > upTo) break;
+      out.push(e);
+    }
+    return out;
+  }
 }
 
 /** Options of {@link BenchHub}. */
@@ -170,6 +193,7 @@ export class BenchHub {
   private readonly onConsumerError: (name: string, error: unknown) => void;
   private readonly runs = new Map<string, string | null>();
   private readonly devices = new Map<string, DeviceCounters>();
+  private seqGuard: ((seq: number) => void) | undefined;
 
   constructor(options: BenchHubOptions = {}) {
     this.ring = new RingBuffer(options.ringCapacity ?? 200_000);
@@ -182,6 +206,19 @@ export class BenchHub {
   /** Sets the next sequence number (start-up, after the journal and the database were read). */
   setNextSeq(seq: number): void {
     this.nextSeq = Math.max(this.nextSeq, seq);
+  }
+
+  /**
+   * Called with each sequence number before it is handed out (seq-reservation.ts: reserves the next
+   * block durably when the number is past the current one).
+   */
+  guardSeqs(guard: (seq: number) => void): void {
+    this.seqGuard = guard;
+  }
+
+  private takeSeq(): number {
+    this.seqGuard?.(this.nextSeq);
+    return this.nextSeq++;
   }
 
   /** Last sequence number handed out (0 before any). */
@@ -225,7 +262,7 @@ export class BenchHub {
     const wallMs = s.wallMs ?? this.wallNow();
     const e: SampleEntry = {
       kind: 'sample',
-      seq: this.nextSeq++,
+      seq: this.takeSeq(),
       benchId: s.benchId,
       device: s.device,
       raw: s.raw,
@@ -255,7 +292,7 @@ export class BenchHub {
    * events come here only from the run service, once what they change is stored.
    */
   publish(message: StreamEvent): MessageEntry {
-    const seq = this.nextSeq++;
+    const seq = this.takeSeq();
     const e: MessageEntry = { kind: 'message', seq, message: { ...message, seq } as StreamMessage };
     const m = e.message;
     if (m.type === 'device.connected' || m.type === 'device.disconnected') {

@@ -6,6 +6,7 @@ import { sessionRepository, siteRepository, userRepository, type UserRow } from 
 import { unauthenticated } from '../errors';
 import type { Role } from '../../shared/schemas/auth';
 import type { AuditService } from './audit.service';
+import { createSessionEvents, type SessionEndReason, type SessionEvents } from './session-events';
 
 /** bcrypt cost factor; 2^11 rounds (OWASP password storage guidance asks for at least 10). */
 export const BCRYPT_COST = 11;
@@ -21,6 +22,8 @@ export interface SessionUser {
   name: string;
   role: Role;
   jti: string;
+  /** When the session ends by itself, ms since the epoch (set by `verify`). */
+  expiresAtMs?: number;
 }
 
 // A hash to compare against when the email is unknown, so timing does not reveal accounts.
@@ -30,7 +33,7 @@ export function hashPassword(password: string): Promise<string> {
   return bcrypt.hash(password, BCRYPT_COST);
 }
 
-export function createAuthService(db: Db, secret: Uint8Array, audit: AuditService) {
+export function createAuthService(db: Db, secret: Uint8Array, audit: AuditService, sessionEvents: SessionEvents = createSessionEvents()) {
   const users = userRepository(db);
   const sessions = sessionRepository(db);
   const sites = siteRepository(db);
@@ -79,7 +82,8 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
       if (!session || session.expiresAt.getTime() < Date.now()) throw unauthenticated('Your session has ended; sign in again');
       const user = await users.findById(payload.sub);
       if (!user || !user.active) throw unauthenticated('This account is not active');
-      return { id: user.id, email: user.email, name: user.name, role: user.role, jti: payload.jti };
+      const expiresAtMs = Math.min(session.expiresAt.getTime(), payload.exp === undefined ? Infinity : payload.exp * 1000);
+      return { id: user.id, email: user.email, name: user.name, role: user.role, jti: payload.jti, expiresAtMs };
     },
 
     /** Checks a password again for an electronic signature (21 CFR Part 11 §11.200). */
@@ -90,7 +94,17 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
 
     async logout(user: SessionUser): Promise<void> {
       await sessions.revoke(user.jti);
+      sessionEvents.ended({ userId: user.id, jti: user.jti, reason: 'signed-out' });
       await audit.record({ id: user.id, email: user.email }, 'auth.signed-out', 'user', user.id);
+    },
+
+    /**
+     * Ends every session of a user (all but `except`, a jti, when given: a password change keeps
+     * the session that made it), and closes the sockets that ride on them.
+     */
+    async endSessions(userId: string, o: { except?: string; reason: SessionEndReason }): Promise<void> {
+      await sessions.revokeAllFor(userId, o.except);
+      sessionEvents.ended({ userId, reason: o.reason, ...(o.except === undefined ? {} : { except: o.except }) });
     },
 
     async me(user: SessionUser) {

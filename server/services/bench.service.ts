@@ -4,6 +4,7 @@
  * forwarded by agents and browsers. The hub and the capture engines are built by the composition
  * root and given to it. Boot creates one and stops it before the database closes.
  */
+import { randomBytes } from 'node:crypto';
 import path from 'node:path';
 import type { Logger } from 'pino';
 import { checkEdgeLine, classifyScpiMeterLine, previewLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
@@ -12,6 +13,8 @@ import { BenchDevices } from '../bench/bench-devices';
 import type { CaptureEngines } from '../bench/capture-engine';
 import type { BenchHub, ConsumerHandler } from '../bench/hub';
 import { SampleJournal, type DamagedBatch } from '../bench/journal';
+import { replayPages } from '../bench/replay';
+import { SeqReservation } from '../bench/seq-reservation';
 import { SampleWriter, type SampleSink } from '../bench/sample-writer';
 import type { BindingInterface } from '../bench/transport';
 import type { Db } from '../db/client';
@@ -73,6 +76,9 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
   }
   const engines = o.engines;
   let devices: BenchDevices | undefined;
+  let seqs: SeqReservation | undefined;
+  /** This start's stream epoch: a resume that names another gets `stream.reset`. */
+  const epoch = randomBytes(6).toString('base64url');
   const classifiers: Record<DeviceKind, LineClassifier> = { current: classifyScpiMeterLine, pressure: createCalibratorClassifier(o.profile ?? SIMCAL_PROFILE) };
 
   const engine = (id: string) => engines.get(id);
@@ -82,12 +88,21 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     writer,
     benchId,
     mode: o.mode,
+    epoch,
+    /** Last sequence number handed out. */
+    latestSeq: () => hub.latestSeq,
 
-    /** Replays the journal, continues the sequence, subscribes the consumers and opens the local devices. */
+    /**
+     * Replays the journal, continues the sequence after every number an earlier process reserved
+     * (seq-reservation.ts), subscribes the consumers and opens the local devices.
+     */
     async start(): Promise<void> {
       const next = await writer.start();
       await refreshStorage();
-      hub.setNextSeq(next);
+      seqs = o.journalDir ? new SeqReservation(o.journalDir) : undefined;
+      if (seqs?.damaged) o.logger.warn({ file: seqs.file }, 'sequence reservation unreadable: numbering continues after the stored samples only');
+      hub.setNextSeq(seqs ? seqs.start(next) : next);
+      if (seqs) hub.guardSeqs(seqs.ensure);
       hub.subscribe('sample-writer', writer.consume);
       engine(benchId);
       if (!o.local) return;
@@ -113,6 +128,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       await devices?.stop();
       await hub.drain();
       await writer.stop();
+      seqs?.close();
     },
 
     /** The capture engine of a bench (created on first use). */
@@ -154,7 +170,14 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       return { accepted, rejected };
     },
 
-    /** Samples after a seq from the database (stream resume older than the ring, durability checks). */
+    /**
+     * Stream resume: the messages numbered in (`since`, `upTo`], in pages of at most `pageSize`, from
+     * the ring or, for what it has evicted, the stored samples (replay.ts).
+     */
+    replay: (since: number, upTo: number, pageSize: number) =>
+      replayPages({ ring: hub.ring, stored: (after, limit) => repo.after(after, limit), storedUpTo: () => writer.stats.storedSeq }, since, upTo, pageSize),
+
+    /** Samples after a seq from the database (durability checks). */
     samplesAfter: (seq: number, limit: number, bench?: string) => repo.after(seq, limit, bench),
 
     /** Re-reads the quarantine and damaged-batch counts (health check). */

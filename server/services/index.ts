@@ -7,18 +7,19 @@ import { createDriftService } from './drift.service';
 import { createJobService, type JobNotice } from './job.service';
 import { createRegisterService } from './register.service';
 import { createReviewService, type ReviewNotice } from './review.service';
+import { createSessionEvents, type SessionEvents } from './session-events';
 import { createUserService } from './user.service';
 
 /** Builds every service over one database; the composition root and tests share this. */
-export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}) {
+export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}, sessionEvents: SessionEvents = createSessionEvents()) {
   const audit = createAuditService(database.db);
-  const auth = createAuthService(database.db, secret, audit);
+  const auth = createAuthService(database.db, secret, audit, sessionEvents);
   const registers = createRegisterService(database.db, audit);
   const jobs = createJobService(database.db, audit, (n) => hooks.onJob?.(n));
   return {
     audit,
     auth,
-    users: createUserService(database.db, audit),
+    users: createUserService(database.db, audit, auth),
     registers,
     jobs,
     review: createReviewService(database.db, { audit, auth, jobs, registers, notify: (n) => hooks.onReview?.(n) }),

@@ -1,18 +1,17 @@
 import type { Db } from '../db/client';
-import { sessionRepository, userRepository, type UserRow } from '../db/repositories/user.repository';
+import { userRepository, type UserRow } from '../db/repositories/user.repository';
 import { badRequest, conflict, notFound } from '../errors';
 import type { InviteUserBody, UpdateUserBody, User } from '../../shared/schemas/users';
 import type { Actor, AuditService } from './audit.service';
-import { hashPassword } from './auth.service';
+import { hashPassword, type AuthService } from './auth.service';
 import { isCommonPassword } from './common-passwords';
 
 export function toUser(r: UserRow): User {
   return { id: r.id, email: r.email, name: r.name, role: r.role, active: r.active, createdAt: r.createdAt.toISOString() };
 }
 
-export function createUserService(db: Db, audit: AuditService) {
+export function createUserService(db: Db, audit: AuditService, auth: Pick<AuthService, 'endSessions'>) {
   const users = userRepository(db);
-  const sessions = sessionRepository(db);
   return {
     async list(): Promise<User[]> {
       return (await users.list()).map(toUser);
@@ -33,7 +32,8 @@ export function createUserService(db: Db, audit: AuditService) {
         throw badRequest('You cannot change your own role or deactivate yourself', { role: ['Ask another admin'] });
       }
       const row = await users.update(id, body);
-      if (body.active === false || body.role) await sessions.revokeAllFor(id);
+      if (body.active === false) await auth.endSessions(id, { reason: 'deactivated' });
+      else if (body.role && body.role !== before.role) await auth.endSessions(id, { reason: 'role-changed' });
       await audit.record(actor, 'user.changed', 'user', id, toUser(before), toUser(row!));
       return toUser(row!);
     },

@@ -1,27 +1,40 @@
 /**
  * `/ws`: live samples and run events (shared/schemas/stream.ts) on the app's HTTP server.
- * Authenticated on upgrade from the session cookie, Origin checked, heartbeat, resume by sequence
- * number (`?since=SEQ`, from the ring buffer or the stored samples), per-client backpressure that
- * only ever skips samples for display, and client messages `watch` and `lines.forwarded`.
+ * Authenticated on upgrade from the session cookie, Origin checked, heartbeat, per-client
+ * backpressure that only ever skips samples for display, and client messages `watch` and
+ * `lines.forwarded`. Sockets follow their session: sign-out, deactivation, role change, revocation
+ * and expiry close them (code 4401 with the reason). Connections per account are bounded.
+ *
+ * Resume: `?since=SEQ&epoch=E` replays what was numbered after SEQ, through the bench service, in
+ * pages that wait for the socket to drain, a few resumes at a time (replay-slots.ts) and at most
+ * `maxReplay` messages each. A resume from another epoch (the server restarted), from beyond the
+ * latest seq, or from further back than one replay serves gets `stream.reset` and goes on live.
  */
 import type http from 'node:http';
 import type { Duplex } from 'node:stream';
 import type { Logger } from 'pino';
 import { WebSocketServer, type RawData, type WebSocket } from 'ws';
-import type { StreamMessage } from '../../shared/schemas/stream';
+import type { StreamMessage, StreamResetReason } from '../../shared/schemas/stream';
 import { toStreamMessage, type HubEntry } from '../bench/hub';
+import { ReplayGapError } from '../bench/replay';
 import type { AuthService, SessionUser } from '../services/auth.service';
-import { handleForwarded, parseClientMessage } from './client-messages';
-import { authenticateUpgrade } from './upgrade-auth';
 import type { BenchService } from '../services/bench.service';
+import type { SessionEvents } from '../services/session-events';
+import { handleForwarded, parseClientMessage } from './client-messages';
+import { createReplaySlots } from './replay-slots';
+import { createSessionSockets } from './session-sockets';
+import { authenticateUpgrade } from './upgrade-auth';
 
 export { SESSION_COOKIE } from './upgrade-auth';
+export { SESSION_CLOSE_REASONS } from './session-sockets';
 
 /** Options of {@link attachStreamServer}. */
 export interface StreamServerOptions {
   server: http.Server;
   auth: AuthService;
   bench: BenchService;
+  /** Ended sessions (sign-out, deactivation, role change, revocation): their sockets are closed. */
+  sessionEvents: SessionEvents;
   logger: Logger;
   /** Origins allowed besides the server's own. */
   allowedOrigins: string[];
@@ -31,8 +44,19 @@ export interface StreamServerOptions {
   maxPayload?: number;
   /** Above this many buffered bytes a client gets only the latest sample per device. Default 512 KiB. */
   highWaterBytes?: number;
-  /** Most stored samples replayed on a resume. Default 100 000. */
-  maxReplayFromDb?: number;
+  /** Most messages one resume replays; a client further behind gets `stream.reset`. Default 20 000. */
+  maxReplay?: number;
+  /** Messages per replay page. Default 500. */
+  replayPageSize?: number;
+  /** A replay sends its next page once the socket has fewer buffered bytes than this. Default 64 KiB. */
+  replayLowWaterBytes?: number;
+  /** A replay whose socket does not drain for this long is dropped, ms. Default 30 000. */
+  replayStallMs?: number;
+  /** Resumes replaying at once in the process, and per account. Defaults 4 and 2. */
+  maxReplays?: number;
+  maxReplaysPerUser?: number;
+  /** Open sockets per account; one more is closed with 4429. Default 10. */
+  maxConnectionsPerUser?: number;
 }
 
 interface Client {
@@ -41,12 +65,17 @@ interface Client {
   alive: boolean;
   /** Run filter for run events; null = all. */
   runId: string | null;
-  /** Live messages held while a resume is being read from the database. */
+  /** Live messages held while a resume is being replayed. */
   held: StreamMessage[] | undefined;
+  /** More live messages arrived during the resume than it may hold: it ends in `stream.reset`. */
+  overflow: boolean;
   lastSent: number;
   /** Latest skipped sample per bench/device while over the high-water mark. */
   skipped: Map<string, StreamMessage>;
   skippedCount: number;
+  /** Closed (or being closed) by the server: nothing more is sent or accepted. */
+  ended: boolean;
+  end(code: number, reason: string): void;
 }
 
 function refuse(socket: Duplex, status: number, text: string, message: string): void {
@@ -59,24 +88,35 @@ const RUN_EVENTS = new Set(['point.changed', 'run.warned', 'point.captured', 'ru
 export function attachStreamServer(o: StreamServerOptions) {
   const heartbeatMs = o.heartbeatMs ?? 15_000;
   const highWater = o.highWaterBytes ?? 512 * 1024;
+  const maxReplay = o.maxReplay ?? 20_000;
+  const pageSize = o.replayPageSize ?? 500;
+  const lowWater = o.replayLowWaterBytes ?? 64 * 1024;
+  const stallMs = o.replayStallMs ?? 30_000;
+  const sessions = createSessionSockets<Client>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
+  const slots = createReplaySlots({ total: o.maxReplays ?? 4, perUser: o.maxReplaysPerUser ?? 2 });
   const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
   const clients = new Set<Client>();
-  const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0 };
+  const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0, replayed: 0, resets: 0 };
 
   const send = (c: Client, m: StreamMessage): void => {
-    if (c.ws.readyState !== c.ws.OPEN) return;
+    if (c.ended || c.ws.readyState !== c.ws.OPEN) return;
     c.ws.send(JSON.stringify(m));
     if (m.seq > c.lastSent) c.lastSent = m.seq;
   };
 
+  const wanted = (c: Client, m: StreamMessage): boolean => !(RUN_EVENTS.has(m.type) && c.runId && 'runId' in m && m.runId !== c.runId);
+
   /** Sends a live message, or keeps only the latest sample for display while the client is behind. */
   const deliver = (c: Client, m: StreamMessage): void => {
     if (c.held) {
+      if (c.held.length >= maxReplay) {
+        c.overflow = true;
+        c.held.length = 0;
+      }
       c.held.push(m);
       return;
     }
-    if (m.seq <= c.lastSent) return;
-    if (RUN_EVENTS.has(m.type) && c.runId && 'runId' in m && m.runId !== c.runId) return;
+    if (m.seq <= c.lastSent || !wanted(c, m)) return;
     if (m.type === 'sample.received' && c.ws.bufferedAmount > highWater) {
       c.skipped.set(`${m.benchId}/${m.device}`, m);
       c.skippedCount++;
@@ -97,6 +137,12 @@ export function attachStreamServer(o: StreamServerOptions) {
     for (const c of clients) for (const m of msgs) deliver(c, m);
   });
 
+  /** Takes a client out of every list and stops its timers (idempotent). */
+  function forget(c: Client): void {
+    clients.delete(c);
+    sessions.leave(c);
+  }
+
   const onUpgrade = (req: http.IncomingMessage, socket: Duplex, head: Buffer): void => {
     const url = new URL(req.url ?? '/', 'http://localhost');
     if (url.pathname !== '/ws') {
@@ -104,6 +150,7 @@ export function attachStreamServer(o: StreamServerOptions) {
       return;
     }
     socket.on('error', () => {});
+    const asked = performance.now();
     void (async () => {
       const origin = req.headers.origin;
       if (origin) {
@@ -122,76 +169,118 @@ export function attachStreamServer(o: StreamServerOptions) {
       }
       const user = who.user;
       const sinceRaw = url.searchParams.get('since');
-      const since = sinceRaw !== null && /^\d+$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since));
+      const since = sinceRaw !== null && /^\d{1,15}$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
+      const epoch = url.searchParams.get('epoch');
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since, epoch, asked));
     })();
   };
 
-  function open(ws: WebSocket, user: SessionUser, since: number | undefined): void {
-    const hub = o.bench.hub;
-    const c: Client = { ws, user, alive: true, runId: null, held: undefined, lastSent: 0, skipped: new Map(), skippedCount: 0 };
+  function open(ws: WebSocket, user: SessionUser, since: number | undefined, epoch: string | null, asked: number): void {
+    const c: Client = {
+      ws,
+      user,
+      alive: true,
+      runId: null,
+      held: undefined,
+      overflow: false,
+      lastSent: 0,
+      skipped: new Map(),
+      skippedCount: 0,
+      ended: false,
+      end(code, reason) {
+        if (c.ended) return;
+        c.ended = true;
+        forget(c);
+        ws.close(code, reason);
+      },
+    };
+    ws.on('close', () => forget(c));
+    ws.on('error', () => forget(c));
+    const refusal = sessions.admit(c, asked);
+    if (refusal) return c.end(refusal.code, refusal.reason);
     clients.add(c);
     stats.connected++;
     ws.on('pong', () => {
       c.alive = true;
     });
-    ws.on('close', () => clients.delete(c));
-    ws.on('error', () => clients.delete(c));
     ws.on('message', (data: RawData, isBinary: boolean) => onMessage(c, data, isBinary));
-    const latest = hub.latestSeq;
-    if (since === undefined || since >= latest) {
-      send(c, { type: 'stream.opened', seq: since ?? latest, latestSeq: latest, heartbeatMs });
-      c.lastSent = since ?? latest;
-      return;
+
+    const latest = o.bench.latestSeq();
+    const opened = (seq: number) => {
+      send(c, { type: 'stream.opened', seq, latestSeq: latest, heartbeatMs, epoch: o.bench.epoch });
+      c.lastSent = seq;
+    };
+    if (since === undefined) return opened(latest);
+    const notServed: StreamResetReason | undefined = epoch !== o.bench.epoch ? 'epoch' : since > latest ? 'ahead' : latest - since > maxReplay ? 'behind' : undefined;
+    if (notServed) {
+      opened(latest);
+      return reset(c, notServed, since);
     }
-    send(c, { type: 'stream.opened', seq: since, latestSeq: latest, heartbeatMs });
-    c.lastSent = since;
-    // Everything live from here on is after `latest`: the replay covers (since, latest], in order.
-    const fromRing = hub.ring.since(since);
-    if (fromRing) {
-      for (const e of fromRing) send(c, toStreamMessage(e));
-      return;
+    opened(since);
+    if (since < latest) void resume(c, since, latest);
+  }
+
+  /** Tells the client its resume was not served; the stream goes on live after the latest seq. */
+  function reset(c: Client, reason: StreamResetReason, fromSeq: number): void {
+    stats.resets++;
+    const seq = Math.max(o.bench.latestSeq(), c.lastSent);
+    send(c, { type: 'stream.reset', seq, epoch: o.bench.epoch, fromSeq, reason });
+    c.lastSent = seq;
+  }
+
+  const gone = (c: Client) => c.ended || c.ws.readyState !== c.ws.OPEN;
+
+  /** Resolves once the socket has drained below the low-water mark (or closed); false when it stalled. */
+  async function drained(c: Client): Promise<boolean> {
+    const until = performance.now() + stallMs;
+    while (!gone(c) && c.ws.bufferedAmount > lowWater) {
+      if (performance.now() > until) return false;
+      await new Promise((r) => setTimeout(r, 5));
     }
+    // Let HTTP requests and live deliveries in between pages.
+    await new Promise((r) => setImmediate(r));
+    return true;
+  }
+
+  /** Replays (since, latest] in pages while live messages wait, then hands over to live delivery. */
+  async function resume(c: Client, since: number, latest: number): Promise<void> {
     c.held = [];
-    void (async () => {
-      try {
-        const oldest = hub.ring.oldestSeq ?? latest + 1;
-        const limit = o.maxReplayFromDb ?? 100_000;
-        const rows = await o.bench.samplesAfter(since, limit);
-        const stored = rows.filter((r) => Number(r.seq) < oldest);
-        const ring = hub.ring.since(oldest - 1);
-        const complete = rows.length < limit || Number(rows[rows.length - 1]!.seq) >= oldest - 1;
-        if (!ring || !complete) {
-          send(c, { type: 'stream.resynced', seq: hub.latestSeq, fromSeq: since });
-          c.lastSent = hub.latestSeq;
-        } else {
-          for (const r of stored) {
-            send(c, {
-              type: 'sample.received',
-              seq: Number(r.seq),
-              benchId: r.benchId,
-              device: r.device as 'pressure' | 'current',
-              value: r.value,
-              unit: r.unit,
-              raw: r.raw,
-              wallMs: r.wallMs,
-              runId: r.runId,
-            });
-          }
-          for (const e of ring) send(c, toStreamMessage(e));
+    const slot = slots.acquire(c.user.id);
+    const closed = () => slot.cancel();
+    c.ws.once('close', closed);
+    const release = await slot.ready;
+    c.ws.off('close', closed);
+    let failed: StreamResetReason | undefined;
+    try {
+      if (gone(c)) return;
+      for await (const page of o.bench.replay(since, latest, pageSize)) {
+        if (gone(c) || c.overflow) break;
+        for (const m of page) if (wanted(c, m)) send(c, m);
+        stats.replayed += page.length;
+        c.lastSent = Math.max(c.lastSent, page[page.length - 1]!.seq);
+        if (!(await drained(c))) {
+          o.logger.warn({ user: c.user.id }, 'stream resume stalled: the client does not read; dropped');
+          c.ws.terminate();
+          return;
         }
-      } catch (err) {
-        o.logger.warn({ err }, 'stream resume from storage failed');
-        send(c, { type: 'stream.resynced', seq: hub.latestSeq, fromSeq: since });
-        c.lastSent = hub.latestSeq;
       }
-      const held = c.held ?? [];
-      c.held = undefined;
-      for (const m of held) deliver(c, m);
-    })();
+    } catch (err) {
+      failed = err instanceof ReplayGapError ? 'behind' : 'unavailable';
+      if (failed === 'unavailable') o.logger.warn({ err }, 'stream resume from storage failed');
+    } finally {
+      release();
+    }
+    if (gone(c)) return;
+    if (c.overflow) failed = 'behind';
+    if (failed) reset(c, failed, since);
+    const held = c.held ?? [];
+    c.held = undefined;
+    c.overflow = false;
+    for (const m of held) deliver(c, m);
   }
 
   function onMessage(c: Client, data: RawData, isBinary: boolean): void {
+    if (c.ended) return;
     const m = parseClientMessage(data, isBinary);
     if (!m) return;
     if (m.type === 'watch') {
@@ -206,7 +295,7 @@ export function attachStreamServer(o: StreamServerOptions) {
     for (const c of clients) {
       if (!c.alive) {
         c.ws.terminate();
-        clients.delete(c);
+        forget(c);
         continue;
       }
       c.alive = false;
@@ -218,15 +307,17 @@ export function attachStreamServer(o: StreamServerOptions) {
   o.server.on('upgrade', onUpgrade);
 
   return {
-    stats: () => ({ ...stats, clients: clients.size }),
+    stats: () => ({ ...stats, ...sessions.stats(), clients: clients.size, replays: slots.stats() }),
     /** Closes every client (1001 going away) and stops listening for upgrades. */
     async close(): Promise<void> {
       clearInterval(beat);
       o.server.off('upgrade', onUpgrade);
       unsubscribe();
-      for (const c of clients) c.ws.close(1001, 'server shutting down');
+      const all = [...clients];
+      for (const c of all) c.end(1001, 'server shutting down');
+      sessions.close();
       await new Promise((r) => setTimeout(r, 50));
-      for (const c of clients) c.ws.terminate();
+      for (const c of all) c.ws.terminate();
       clients.clear();
       await new Promise<void>((resolve) => wss.close(() => resolve()));
     },

@@ -6,15 +6,40 @@ import { PointCaptureSchema, PointFlagSchema, PointStateSchema, RunStatusSchema 
  * browser that applies it. The bench hub and the capture engine raise these events (unnumbered);
  * the run service stores what they change; the hub then numbers them (`seq`) into the stream that
  * `/ws` sends and the client applies. Types use the server's event names ('<noun>.<past-verb>').
+ * Every server start opens a new stream epoch; `GET /ws?since=SEQ&epoch=E` resumes after SEQ
+ * without gaps within epoch E and answers anything else with `stream.reset`. Sequence numbers are
+ * never reused, across epochs either.
  * Add an event by adding an entry here and its `numbered(...)` line to `StreamMessageSchema` below;
  * the types follow.
  */
 export const DeviceSchema = z.enum(['pressure', 'current']);
 
+/** Stream epoch: a new one at every server start (`stream.opened`, `stream.reset`, `?epoch=`). */
+export const StreamEpochSchema = z.string().regex(/^[A-Za-z0-9_-]{1,40}$/);
+
+/**
+ * Why a resume was not served and the client must re-read server state over HTTP: `epoch` the
+ * server restarted (or the client named no epoch); `ahead` `since` is beyond the latest seq;
+ * `behind` more was missed than one resume replays (or than the server keeps); `unavailable`
+ * the stored samples could not be read.
+ */
+export const StreamResetReasonSchema = z.enum(['epoch', 'ahead', 'behind', 'unavailable']);
+export type StreamResetReason = z.infer<typeof StreamResetReasonSchema>;
+
+/**
+ * Close codes of `/ws` besides the standard ones (4000–4999 are the application's, RFC 6455
+ * §7.4.2), each with a reason the client shows. `sessionEnded`: the session is over (sign-out,
+ * deactivation, role change, revocation, expiry); the client stops reconnecting.
+ * `tooManyConnections`: the account has too many sockets open; the client retries later.
+ */
+export const STREAM_CLOSE = { sessionEnded: 4401, tooManyConnections: 4429 } as const;
+
+
 const HoldProgressSchema = z.object({ elapsedMs: z.number(), requiredMs: z.number() });
 
 export const StreamEventSchemas = {
-  'stream.opened': z.object({ type: z.literal('stream.opened'), latestSeq: z.number().int(), heartbeatMs: z.number() }),
+  /** First message: `seq` is where this connection starts (the resume point, or the latest seq). */
+  'stream.opened': z.object({ type: z.literal('stream.opened'), latestSeq: z.number().int(), heartbeatMs: z.number(), epoch: StreamEpochSchema }),
   'sample.received': z.object({
     type: z.literal('sample.received'),
     benchId: z.string(),
@@ -59,8 +84,11 @@ export const StreamEventSchemas = {
     capture: PointCaptureSchema,
   }),
   'run.changed': z.object({ type: z.literal('run.changed'), runId: z.string(), status: RunStatusSchema, currentIndex: z.number().int().nullable() }),
-  /** Sent when `since` is older than anything kept: the client should refetch server state. */
-  'stream.resynced': z.object({ type: z.literal('stream.resynced'), fromSeq: z.number().int() }),
+  /**
+   * The resume from `fromSeq` was not served (see {@link StreamResetReasonSchema}): the stream goes
+   * on live after `seq` in `epoch`, and the client re-reads runs, jobs and the bench over HTTP.
+   */
+  'stream.reset': z.object({ type: z.literal('stream.reset'), epoch: StreamEpochSchema, fromSeq: z.number().int(), reason: StreamResetReasonSchema }),
 } as const;
 
 type EventSchemas = typeof StreamEventSchemas;
@@ -74,7 +102,7 @@ export type RunEvent = StreamEventOf<'point.changed' | 'run.warned' | 'point.cap
 
 /**
  * WebSocket messages of `/ws` (server → browser): the events above, each with its sequence number,
- * a union discriminated on `type`. `GET /ws?since=SEQ` resumes after SEQ without gaps.
+ * a union discriminated on `type`.
  */
 const seq = { seq: z.number().int().nonnegative() };
 const numbered = <K extends StreamEventType>(k: K) => StreamEventSchemas[k].extend(seq);
@@ -88,7 +116,7 @@ export const StreamMessageSchema = z.discriminatedUnion('type', [
   numbered('run.warned'),
   numbered('point.captured'),
   numbered('run.changed'),
-  numbered('stream.resynced'),
+  numbered('stream.reset'),
 ]);
 export type StreamMessage = z.infer<typeof StreamMessageSchema>;
 export type StreamMessageType = StreamMessage['type'];

@@ -3,6 +3,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import type { Run } from '../../shared/schemas/runs';
 import { LiveSampleStore } from '../stores/live-samples';
 import { useLiveRun } from '../stores/live-run';
+import { STREAM_CLOSE } from '../../shared/schemas/stream';
 import { applyStreamMessage, backoffDelay, LiveStream, type SocketLike } from './live-stream';
 import { queryKeys } from './query-keys';
 
@@ -29,9 +30,9 @@ class FakeSocket implements SocketLike {
   emit(m: unknown) {
     this.onmessage?.({ data: JSON.stringify(m) });
   }
-  drop() {
+  drop(code = 1006, reason = '') {
     this.readyState = 3;
-    this.onclose?.({});
+    this.onclose?.({ code, reason });
   }
 }
 
@@ -78,16 +79,16 @@ describe('LiveStream', () => {
     const release = stream.acquire();
     expect(sockets[0]!.url).toBe('ws://bench.test/ws');
     sockets[0]!.open();
-    sockets[0]!.emit({ type: 'stream.opened', seq: 0, latestSeq: 0, heartbeatMs: 10_000 });
+    sockets[0]!.emit({ type: 'stream.opened', seq: 0, latestSeq: 0, heartbeatMs: 10_000, epoch: 'e1' });
     sockets[0]!.emit(sample(1));
     sockets[0]!.emit(sample(2));
     sockets[0]!.drop();
     expect(stream.getStatus()).toBe('reconnecting');
     expect(fireReconnect()).toBe(500);
-    expect(sockets[1]!.url).toBe('ws://bench.test/ws?since=2');
+    expect(sockets[1]!.url).toBe('ws://bench.test/ws?since=2&epoch=e1');
     sockets[1]!.drop();
     expect(fireReconnect()).toBe(1000);
-    expect(sockets[2]!.url).toBe('ws://bench.test/ws?since=2');
+    expect(sockets[2]!.url).toBe('ws://bench.test/ws?since=2&epoch=e1');
     sockets[2]!.open();
     expect(stream.getStatus()).toBe('open');
     sockets[2]!.emit(sample(2));
@@ -117,11 +118,62 @@ describe('LiveStream', () => {
     const { stream, sockets, timers } = harness();
     stream.acquire();
     sockets[0]!.open();
-    sockets[0]!.emit({ type: 'stream.opened', seq: 0, latestSeq: 5, heartbeatMs: 1000 });
+    sockets[0]!.emit({ type: 'stream.opened', seq: 0, latestSeq: 5, heartbeatMs: 1000, epoch: 'e1' });
     const hb = timers.filter((t) => !t.cleared && t.ms === 2500).at(-1)!;
     hb.cb();
     expect(sockets[0]!.closed).toBe(true);
     expect(stream.getStatus()).toBe('reconnecting');
+  });
+
+  it('after a server restart takes the new epoch and numbering from stream.reset and resumes in it', () => {
+    const { stream, sockets, fireReconnect } = harness();
+    const seen: string[] = [];
+    stream.subscribe((m) => seen.push(`${m.type}@${m.seq}`));
+    stream.acquire();
+    sockets[0]!.open();
+    sockets[0]!.emit({ type: 'stream.opened', seq: 40, latestSeq: 40, heartbeatMs: 10_000, epoch: 'old' });
+    sockets[0]!.emit(sample(41));
+    sockets[0]!.drop();
+    fireReconnect();
+    expect(sockets[1]!.url).toBe('ws://bench.test/ws?since=41&epoch=old');
+    sockets[1]!.open();
+    // The restarted server reserved numbers past everything the old one handed out.
+    sockets[1]!.emit({ type: 'stream.opened', seq: 50_001, latestSeq: 50_001, heartbeatMs: 10_000, epoch: 'new' });
+    sockets[1]!.emit({ type: 'stream.reset', seq: 50_001, epoch: 'new', fromSeq: 41, reason: 'epoch' });
+    sockets[1]!.emit(sample(50_001)); // a repeat of the reset point: dropped
+    sockets[1]!.emit(sample(50_002));
+    expect(seen).toEqual(['stream.opened@40', 'sample.received@41', 'stream.opened@50001', 'stream.reset@50001', 'sample.received@50002']);
+    sockets[1]!.drop();
+    fireReconnect();
+    expect(sockets[2]!.url).toBe('ws://bench.test/ws?since=50002&epoch=new');
+  });
+
+  it('stops reconnecting and keeps the reason when the server ends the session (4401)', () => {
+    const { stream, sockets, timers } = harness();
+    stream.acquire();
+    sockets[0]!.open();
+    sockets[0]!.emit({ type: 'stream.opened', seq: 0, latestSeq: 0, heartbeatMs: 10_000, epoch: 'e1' });
+    const pending = timers.filter((t) => !t.cleared).length;
+    sockets[0]!.drop(STREAM_CLOSE.sessionEnded, 'Signed out: your role changed; sign in again');
+    expect(stream.getStatus()).toBe('signed-out');
+    expect(stream.getNotice()).toBe('Signed out: your role changed; sign in again');
+    // No reconnect was scheduled (only the heartbeat timer was cleared).
+    expect(timers.filter((t) => !t.cleared && t.ms < 5000).length).toBe(0);
+    expect(timers.length).toBe(pending);
+    expect(sockets.length).toBe(1);
+  });
+
+  it('keeps reconnecting, with the reason shown, when the account has too many connections (4429)', () => {
+    const { stream, sockets, fireReconnect } = harness();
+    stream.acquire();
+    sockets[0]!.open();
+    sockets[0]!.drop(STREAM_CLOSE.tooManyConnections, 'Too many live connections for this account (at most 10); close another tab');
+    expect(stream.getStatus()).toBe('reconnecting');
+    expect(stream.getNotice()).toMatch(/Too many live connections/);
+    fireReconnect();
+    sockets[1]!.open();
+    expect(stream.getStatus()).toBe('open');
+    expect(stream.getNotice()).toBeNull();
   });
 
   it('caps the backoff', () => {
@@ -145,6 +197,17 @@ describe('applyStreamMessage', () => {
     expect(after.points[0]!.state).toBe('holding');
     expect(after.points[0]!.flags).toEqual(['overshoot']);
     expect(useLiveRun.getState().hold).toMatchObject({ runId: 'r1', index: 0, elapsedMs: 1000, requiredMs: 30_000 });
+  });
+
+  it('re-reads the runs, the jobs and the bench over HTTP on stream.reset', () => {
+    const qc = new QueryClient();
+    qc.setQueryData(queryKeys.run('r1'), run);
+    qc.setQueryData(queryKeys.jobs, []);
+    qc.setQueryData(queryKeys.bench, {});
+    applyStreamMessage({ type: 'stream.reset', seq: 9, epoch: 'e2', fromSeq: 3, reason: 'epoch' }, qc, new LiveSampleStore(4, () => {}));
+    expect(qc.getQueryState(queryKeys.run('r1'))!.isInvalidated).toBe(true);
+    expect(qc.getQueryState(queryKeys.jobs)!.isInvalidated).toBe(true);
+    expect(qc.getQueryState(queryKeys.bench)!.isInvalidated).toBe(true);
   });
 
   it('keeps a leak warning with its rate and drops the hold', () => {

@@ -1,18 +1,23 @@
 /**
  * The page's only WebSocket: `/ws` with the session cookie. Reconnects with exponential backoff
- * and resumes with `?since=<last seq>`, so no message is lost across a drop; drops duplicates by
- * sequence number; checks every message against `StreamMessageSchema`; pushes samples into the
+ * and resumes with `?since=<last seq>&epoch=<stream epoch>`, so no message is lost across a drop;
+ * after a server restart (or when the server cannot replay what was missed) it gets
+ * `stream.reset` and re-reads runs, jobs and the bench over HTTP. Drops duplicates by sequence
+ * number; checks every message against `StreamMessageSchema`; pushes samples into the
  * live-sample store and updates or invalidates TanStack Query caches on point and run events.
+ * When the server closes the socket because the session ended (code 4401) it shows the reason
+ * and stops reconnecting.
  */
 import type { QueryClient } from '@tanstack/react-query';
 import { useEffect, useSyncExternalStore } from 'react';
 import type { Run } from '../../shared/schemas/runs';
-import { StreamMessageSchema, type ClientMessage, type StreamMessage } from '../../shared/schemas/stream';
+import { STREAM_CLOSE, StreamMessageSchema, type ClientMessage, type StreamMessage } from '../../shared/schemas/stream';
 import { liveSamples, type LiveSampleStore } from '../stores/live-samples';
 import { useLiveRun } from '../stores/live-run';
 import { queryKeys } from './query-keys';
 
-export type LiveStatus = 'idle' | 'connecting' | 'open' | 'reconnecting' | 'closed';
+/** `signed-out`: the server closed the stream because the session ended; no reconnect until the next sign-in. */
+export type LiveStatus = 'idle' | 'connecting' | 'open' | 'reconnecting' | 'closed' | 'signed-out';
 
 /** The part of the browser WebSocket we use (a fake one in tests). */
 export interface SocketLike {
@@ -68,6 +73,10 @@ export class LiveStream {
   private readonly opts: Required<LiveStreamOptions>;
   /** Sequence number of the last message handled; the resume point. */
   lastSeq: number | null = null;
+  /** Stream epoch of `lastSeq` (a new one at each server start). */
+  epoch: string | null = null;
+  /** Why the server last closed the stream (its close reason), until the next open. */
+  private notice: string | null = null;
   /** Messages that failed the contract (counted, not thrown). */
   rejected = 0;
 
@@ -85,6 +94,9 @@ export class LiveStream {
   }
 
   getStatus = (): LiveStatus => this.status;
+
+  /** The server's reason for the last close it made (signed out, too many connections), or null. */
+  getNotice = (): string | null => this.notice;
 
   subscribeStatus = (l: () => void): (() => void) => {
     this.statusListeners.add(l);
@@ -123,10 +135,11 @@ export class LiveStream {
     return true;
   }
 
-  /** URL of the next connection: resumes after the last handled message. */
+  /** URL of the next connection: resumes after the last handled message of its epoch. */
   url(): string {
     const base = this.opts.baseUrl();
-    return this.lastSeq === null ? base : `${base}?since=${this.lastSeq}`;
+    if (this.lastSeq === null) return base;
+    return `${base}?since=${this.lastSeq}${this.epoch === null ? '' : `&epoch=${encodeURIComponent(this.epoch)}`}`;
   }
 
   private setStatus(s: LiveStatus): void {
@@ -137,6 +150,7 @@ export class LiveStream {
 
   private connect(): void {
     this.clearReconnect();
+    if (this.status === 'signed-out') this.notice = null;
     this.setStatus(this.failures > 0 ? 'reconnecting' : 'connecting');
     let socket: SocketLike;
     try {
@@ -149,6 +163,7 @@ export class LiveStream {
     socket.onopen = () => {
       if (this.socket !== socket) return;
       this.failures = 0;
+      this.notice = null;
       this.setStatus('open');
       if (this.watching) this.send({ type: 'watch', runId: this.watching });
     };
@@ -160,11 +175,17 @@ export class LiveStream {
     socket.onerror = () => {
       // onclose follows and schedules the reconnect.
     };
-    socket.onclose = () => {
+    socket.onclose = (ev) => {
       if (this.socket !== socket) return;
       this.socket = null;
       this.clearHeartbeat();
-      if (this.users > 0) this.scheduleReconnect();
+      const { code, reason } = (ev ?? {}) as { code?: number; reason?: string };
+      if (code === STREAM_CLOSE.sessionEnded || code === STREAM_CLOSE.tooManyConnections) this.notice = reason || null;
+      if (code === STREAM_CLOSE.sessionEnded) {
+        // The session is over: reconnecting would only be refused. The next sign-in starts afresh.
+        this.failures = 0;
+        this.setStatus('signed-out');
+      } else if (this.users > 0) this.scheduleReconnect();
       else this.setStatus('closed');
     };
   }
@@ -186,11 +207,15 @@ export class LiveStream {
     if (m.type === 'stream.opened') {
       this.heartbeatMs = m.heartbeatMs;
       this.armHeartbeat();
-    } else if (m.type !== 'stream.resynced') {
+      // A new epoch numbers afresh from where the server starts this connection.
+      if (this.lastSeq === null || m.epoch !== this.epoch) this.lastSeq = m.seq;
+      this.epoch = m.epoch;
+    } else if (m.type === 'stream.reset') {
+      this.lastSeq = m.seq;
+      this.epoch = m.epoch;
+    } else {
       // A resumed connection may repeat what we already have; keep order, drop repeats.
       if (this.lastSeq !== null && m.seq <= this.lastSeq) return;
-      this.lastSeq = m.seq;
-    } else {
       this.lastSeq = m.seq;
     }
     for (const l of [...this.listeners]) l(m);
@@ -242,7 +267,7 @@ export class LiveStream {
     this.socket = null;
     this.failures = 0;
     s?.close(1000, 'done');
-    this.setStatus('closed');
+    if (this.status !== 'signed-out') this.setStatus('closed');
   }
 }
 
@@ -298,8 +323,8 @@ export function applyStreamMessage(m: StreamMessage, queryClient: QueryClient, s
       live.device(m.device, { connected: false, path: m.path, reason: m.reason, at: m.at });
       void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
       return;
-    case 'stream.resynced':
-      // The server no longer has what we missed: refetch all live server state.
+    case 'stream.reset':
+      // The server restarted or cannot replay what we missed: re-read the runs and all live server state.
       void queryClient.invalidateQueries({ queryKey: queryKeys.runs });
       void queryClient.invalidateQueries({ queryKey: queryKeys.jobs });
       void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
@@ -324,7 +349,22 @@ function bindQueryClient(stream: LiveStream, queryClient: QueryClient): void {
   if (boundClient === queryClient) return;
   unbind?.();
   boundClient = queryClient;
-  unbind = stream.subscribe((m) => applyStreamMessage(m, queryClient));
+  const stopMessages = stream.subscribe((m) => applyStreamMessage(m, queryClient));
+  // Signed out by the server: re-check the session, whose 401 sends the page to sign in.
+  const stopStatus = stream.subscribeStatus(() => {
+    if (stream.getStatus() === 'signed-out') void queryClient.invalidateQueries({ queryKey: queryKeys.auth });
+  });
+  unbind = () => {
+    stopMessages();
+    stopStatus();
+  };
+}
+
+/** The server's reason for closing the stream (e.g. "Signed out: your role changed; sign in again"), or null. */
+export function useLiveStreamNotice(): string | null {
+  const stream = getLiveStream();
+  useSyncExternalStore(stream.subscribeStatus, stream.getStatus, stream.getStatus);
+  return stream.getNotice();
 }
 
 /**

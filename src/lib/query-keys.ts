@@ -3,6 +3,8 @@
  * these so that `lib/live-stream.ts` can reach their caches without importing features.
  */
 export const queryKeys = {
+  /** The session check (features/auth `meQueryKey` starts with it). */
+  auth: ['auth'] as const,
   jobs: ['jobs'] as const,
   job: (id: string) => ['jobs', id] as const,
   runs: ['runs'] as const,

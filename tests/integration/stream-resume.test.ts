@@ -1,6 +1,7 @@
 /**
  * The WebSocket stream on the booted app: refused without a session or from another site;
- * a client killed mid-stream that resumes with `since` sees every sequence number exactly once.
+ * a client killed mid-stream that resumes with `since` and its epoch sees every sequence number
+ * exactly once; a resume from another epoch or from beyond the latest seq gets `stream.reset`.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
@@ -13,12 +14,13 @@ beforeAll(async () => {
   srv = await startTestServer({ env: { HOLD_SECONDS: '1' } });
   tech = new ApiClient(srv.url);
   await tech.login(demoEmail('tech'));
-});
+}, 240_000);
 afterAll(async () => {
   await srv?.close();
 });
 
-const wsUrl = (since?: number) => `${srv.url.replace('http', 'ws')}/ws${since === undefined ? '' : `?since=${since}`}`;
+const wsUrl = (since?: number, epoch?: string) =>
+  `${srv.url.replace('http', 'ws')}/ws${since === undefined ? '' : `?since=${since}`}${epoch === undefined ? '' : `&epoch=${epoch}`}`;
 
 /** Opens a socket; resolves with the HTTP status when the upgrade is refused. */
 function tryOpen(headers: Record<string, string>): Promise<{ opened: boolean; status?: number }> {
@@ -37,8 +39,8 @@ function tryOpen(headers: Record<string, string>): Promise<{ opened: boolean; st
 }
 
 /** A client that records every message it gets. */
-function collect(since?: number) {
-  const ws = new WebSocket(wsUrl(since), { headers: { cookie: tech.cookie, origin: srv.url } });
+function collect(since?: number, epoch: string | null = srv.bench.epoch) {
+  const ws = new WebSocket(wsUrl(since, since === undefined || epoch === null ? undefined : epoch), { headers: { cookie: tech.cookie, origin: srv.url } });
   const messages: StreamMessage[] = [];
   ws.on('message', (d) => messages.push(StreamMessageSchema.parse(JSON.parse(String(d)))));
   const opened = new Promise<void>((resolve, reject) => {
@@ -89,7 +91,8 @@ describe('stream: resume by sequence number', () => {
     b.ws.terminate();
     const opened = b.messages[0]!;
     expect(opened.type).toBe('stream.opened');
-    expect(b.messages.some((m) => m.type === 'stream.resynced')).toBe(false);
+    expect(opened).toMatchObject({ seq: last, epoch: srv.bench.epoch });
+    expect(b.messages.some((m) => m.type === 'stream.reset')).toBe(false);
     const all = [...firstSeqs, ...b.messages.filter((m) => m.type !== 'stream.opened').map((m) => m.seq)];
     const first = firstSeqs[0]!;
     const end = Math.max(...all);
@@ -99,14 +102,55 @@ describe('stream: resume by sequence number', () => {
     expect(all).toEqual(Array.from({ length: end - first + 1 }, (_, i) => first + i));
   });
 
-  it('resumes from stored samples when the ring no longer holds them, or says resynced', async () => {
-    // seq 0 is older than anything: the server answers from storage without a gap or with stream.resynced.
-    const c = collect(0);
+  it('replays a few thousand messages in pages, in order, without a gap, then goes on live', async () => {
+    const latest = srv.bench.latestSeq();
+    const since = Math.max(0, latest - 3000);
+    const c = collect(since);
     await c.opened;
-    await until(() => c.messages.length > 5);
+    await until(() => c.messages.some((m) => m.seq >= latest + 5));
     c.ws.terminate();
-    expect(c.messages[0]!.type).toBe('stream.opened');
-    const seqs = c.messages.slice(1).filter((m) => m.type !== 'stream.resynced').map((m) => m.seq);
-    for (let i = 1; i < seqs.length; i++) expect(seqs[i]!).toBeGreaterThan(seqs[i - 1]!);
+    expect(c.messages[0]).toMatchObject({ type: 'stream.opened', seq: since, epoch: srv.bench.epoch });
+    const seqs = c.messages.slice(1).map((m) => m.seq);
+    expect(c.messages.some((m) => m.type === 'stream.reset')).toBe(false);
+    expect(seqs).toEqual(Array.from({ length: seqs.length }, (_, i) => since + 1 + i));
+  });
+});
+
+describe('stream: reset instead of a resume that cannot be trusted', () => {
+  async function firstTwo(since: number, epoch: string | null) {
+    const c = collect(since, epoch);
+    await c.opened;
+    await until(() => c.messages.length >= 2);
+    c.ws.terminate();
+    return c.messages;
+  }
+
+  it('a resume from another epoch (the server restarted) gets stream.reset and goes on live', async () => {
+    const [opened, reset] = await firstTwo(5, 'an-older-epoch');
+    expect(opened).toMatchObject({ type: 'stream.opened', epoch: srv.bench.epoch });
+    expect(reset).toMatchObject({ type: 'stream.reset', reason: 'epoch', fromSeq: 5, epoch: srv.bench.epoch });
+    expect(reset!.seq).toBeGreaterThanOrEqual(opened!.seq);
+  });
+
+  it('a resume that names no epoch is treated as another epoch', async () => {
+    const [, reset] = await firstTwo(5, null);
+    expect(reset).toMatchObject({ type: 'stream.reset', reason: 'epoch' });
+  });
+
+  it('a resume from further back than one replay serves (20 000 messages) gets stream.reset', async () => {
+    const since = srv.bench.latestSeq();
+    // More than a replay's worth after `since`, numbered at once.
+    for (let i = 0; i < 20_001; i++) srv.bench.hub.ingestSample({ benchId: 'bench-test', device: 'pressure', raw: `DP ${i}`, value: i, unit: 'kPa' });
+    const [opened, reset] = await firstTwo(since, srv.bench.epoch);
+    expect(reset).toMatchObject({ type: 'stream.reset', reason: 'behind', fromSeq: since });
+    expect(opened!.seq).toBeGreaterThanOrEqual(since + 20_001);
+  });
+
+  it('a since beyond the latest seq gets stream.reset (not silence)', async () => {
+    const ahead = srv.bench.latestSeq() + 1_000_000;
+    const [opened, reset] = await firstTwo(ahead, srv.bench.epoch);
+    expect(reset).toMatchObject({ type: 'stream.reset', reason: 'ahead', fromSeq: ahead });
+    expect(reset!.seq).toBeLessThan(ahead);
+    expect(opened!.seq).toBe(reset!.seq);
   });
 });

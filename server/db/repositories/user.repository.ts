@@ -1,4 +1,4 @@
-import { and, asc, eq, isNull } from 'drizzle-orm';
+import { and, asc, eq, isNull, ne } from 'drizzle-orm';
 import type { Db } from '../client';
 import { sessions, sites, users } from '../schema';
 
@@ -53,11 +53,12 @@ export function sessionRepository(db: Db) {
     async revoke(jti: string): Promise<void> {
       await db.update(sessions).set({ revokedAt: new Date() }).where(eq(sessions.jti, jti));
     },
-    async revokeAllFor(userId: string): Promise<void> {
+    /** Revokes every open session of a user, but `except` (a jti) when given. */
+    async revokeAllFor(userId: string, except?: string): Promise<void> {
       await db
         .update(sessions)
         .set({ revokedAt: new Date() })
-        .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)));
+        .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ...(except === undefined ? [] : [ne(sessions.jti, except)])));
     },
   };
 }

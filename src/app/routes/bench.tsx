@@ -8,7 +8,7 @@ import { benchQueryOptions, useBench } from '../../features/bench/api/get-bench'
 import { DevicePanels } from '../../features/bench/components/device-panels';
 import { SimControls } from '../../features/bench/components/sim-controls';
 import { WebSerialPanel } from '../../features/bench/components/web-serial-panel';
-import { useLiveStream } from '../../lib/live-stream';
+import { useLiveStream, useLiveStreamNotice } from '../../lib/live-stream';
 import { RouteErrorBoundary } from './route-error';
 
 export const createLoader = (queryClient: QueryClient) => () => {
@@ -19,6 +19,7 @@ export const createLoader = (queryClient: QueryClient) => () => {
 export function Component() {
   const queryClient = useQueryClient();
   const stream = useLiveStream(queryClient);
+  const notice = useLiveStreamNotice();
   const me = useMe().data;
   const bench = useBench();
   return (
@@ -31,7 +32,7 @@ export function Component() {
             <>
               <Badge tone={bench.data.mode === 'sim' ? 'info' : 'accent'}>{bench.data.mode === 'sim' ? 'Simulated instruments' : 'Serial instruments'}</Badge>
               <Badge tone={stream === 'open' ? 'ok' : 'warn'} dot>
-                {stream === 'open' ? 'Live' : 'Stream offline'}
+                {stream === 'open' ? 'Live' : (notice ?? 'Stream offline')}
               </Badge>
             </>
           )

@@ -10,7 +10,7 @@ import { Dialog } from '../../../components/ui/dialog';
 import { toast } from '../../../components/ui/toast';
 import { cn } from '../../../lib/cn';
 import { formatNumber, unitLabel as unitText } from '../../../lib/format';
-import { useLiveStream, type LiveStatus } from '../../../lib/live-stream';
+import { useLiveStream, useLiveStreamNotice, type LiveStatus } from '../../../lib/live-stream';
 import { liveSamples, useLatestSamples } from '../../../stores/live-samples';
 import { useLiveRun } from '../../../stores/live-run';
 import { useRunAction } from '../api/run-actions';
@@ -328,10 +328,11 @@ function RunStatusBadge({ status }: { status: Run['status'] }) {
 
 function StreamDot({ status }: { status: LiveStatus }) {
   const ok = status === 'open';
+  const notice = useLiveStreamNotice();
   return (
-    <span className="inline-flex items-center gap-1.5 text-xs text-ink-muted" data-testid="stream-status" data-status={status}>
+    <span className="inline-flex items-center gap-1.5 text-xs text-ink-muted" data-testid="stream-status" data-status={status} title={notice ?? undefined}>
       <span aria-hidden="true" className={cn('size-2 rounded-full', ok ? 'bg-ok' : status === 'reconnecting' ? 'animate-pulse bg-warn' : 'bg-ink-faint')} />
-      {ok ? 'Live' : status === 'reconnecting' ? 'Reconnecting…' : status === 'connecting' ? 'Connecting…' : 'Offline'}
+      {ok ? 'Live' : status === 'reconnecting' ? 'Reconnecting…' : status === 'connecting' ? 'Connecting…' : status === 'signed-out' ? (notice ?? 'Signed out') : 'Offline'}
     </span>
   );
 }

@@ -1,0 +1,171 @@
+/**
+ * Replay storm (issue 11, finding 5): `/api/health` response time while 100 sockets resume at
+ * once, against the same server idle. The server is the production process (`node --import tsx
+ * server/main.ts`, PGlite in a temporary DATA_DIR, simulated bench); the sockets and the health
+ * requests come from this process. Ten invited accounts hold ten sockets each (the per-account
+ * limit), so every socket is served. Two storms:
+ *  1. every socket resumes from seq 0 (what the finding did);
+ *  2. every socket resumes from as far back as one replay serves (20 000 messages, or the whole
+ *     history when the server has numbered fewer), the heaviest resume the bounds allow.
+ * Health is asked one request at a time during each storm (and for at most 60 s); the target is a
+ * p99 no more than twice the idle p99.
+ * Run: `npx tsx bench/replay-storm.bench.ts`, or `npm run bench -- replay`.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { pathToFileURL } from 'node:url';
+import WebSocket from 'ws';
+import type { StreamMessage } from '../shared/schemas/stream';
+import { randomPort, startServerProcess, waitHealthy } from '../tests/helpers/proof-process';
+import type { BenchFigure } from './bench.bench';
+
+const SOCKETS = 100;
+const ACCOUNTS = 10;
+const MAX_REPLAY = 20_000;
+const IDLE_REQUESTS = 300;
+const STORM_CAP_MS = 60_000;
+const PASSWORD = 'violet-harbour-71';
+
+function pct(values: number[], p: number): number {
+  if (!values.length) return NaN;
+  const s = [...values].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))]!;
+}
+
+async function signIn(base: string, email: string, password: string): Promise<string> {
+  const res = await fetch(`${base}/api/auth/login`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', origin: base },
+    body: JSON.stringify({ email, password }),
+  });
+  if (!res.ok) throw new Error(`sign-in ${email}: ${res.status}`);
+  return res.headers.getSetCookie().find((c) => c.startsWith('sp_session='))!.split(';')[0]!;
+}
+
+async function healthMs(base: string): Promise<number> {
+  const t = performance.now();
+  const r = await fetch(`${base}/api/health`);
+  await r.arrayBuffer();
+  if (!r.ok) throw new Error(`health answered ${r.status}`);
+  return performance.now() - t;
+}
+
+/** The stream's first message (epoch and latest seq). */
+function opened(base: string, cookie: string): Promise<Extract<StreamMessage, { type: 'stream.opened' }>> {
+  return new Promise((resolve, reject) => {
+    const ws = new WebSocket(`${base.replace('http', 'ws')}/ws`, { headers: { cookie, origin: base } });
+    ws.once('message', (d) => {
+      ws.terminate();
+      resolve(JSON.parse(String(d)));
+    });
+    ws.once('error', reject);
+  });
+}
+
+interface StormResult {
+  since: number;
+  latest: number;
+  health: number[];
+  served: number;
+  refused: number;
+  resets: number;
+  caughtUp: number;
+  replayed: number;
+  seconds: number;
+}
+
+/** Opens the sockets resuming from `since` and asks health one request at a time until they catch up (or the cap). */
+async function storm(base: string, cookies: string[], epoch: string, since: number, latest: number): Promise<StormResult> {
+  const t0 = performance.now();
+  const views = Array.from({ length: SOCKETS }, (_, i) => {
+    const ws = new WebSocket(`${base.replace('http', 'ws')}/ws?since=${since}&epoch=${epoch}`, { headers: { cookie: cookies[i % cookies.length]!, origin: base } });
+    const v = { ws, count: 0, reset: false, done: false, closed: false };
+    ws.on('message', (d) => {
+      const m = JSON.parse(String(d)) as StreamMessage;
+      if (m.type === 'stream.reset') v.reset = v.done = true;
+      else if (m.type !== 'stream.opened' && m.seq <= latest) v.count++;
+      if (m.seq >= latest && m.type !== 'stream.opened') v.done = true;
+    });
+    ws.on('close', () => (v.closed = true));
+    ws.on('error', () => {});
+    return v;
+  });
+  const health: number[] = [];
+  while (!views.every((v) => v.done || v.closed) && performance.now() - t0 < STORM_CAP_MS) health.push(await healthMs(base));
+  const seconds = (performance.now() - t0) / 1000;
+  const out: StormResult = {
+    since,
+    latest,
+    health,
+    served: views.filter((v) => !v.closed).length,
+    refused: views.filter((v) => v.closed).length,
+    resets: views.filter((v) => v.reset).length,
+    caughtUp: views.filter((v) => v.done && !v.reset).length,
+    replayed: views.reduce((n, v) => n + v.count, 0),
+    seconds,
+  };
+  for (const v of views) v.ws.terminate();
+  return out;
+}
+
+export async function run(): Promise<BenchFigure[]> {
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-replay-storm-'));
+  const s = startServerProcess({ dataDir, port: await randomPort(), env: { LOG_LEVEL: 'error' } });
+  try {
+    await waitHealthy(s, 600_000);
+    const base = s.base;
+    const admin = await signIn(base, 'admin@stillpoint-demo.test', 'stillpoint-demo');
+    const cookies: string[] = [];
+    for (let i = 1; i <= ACCOUNTS; i++) {
+      const email = `storm-${i}@stillpoint-demo.test`;
+      const r = await fetch(`${base}/api/users`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', origin: base, cookie: admin },
+        body: JSON.stringify({ email, name: `Storm Viewer ${i}`, role: 'auditor', password: PASSWORD }),
+      });
+      if (r.status !== 201) throw new Error(`invite ${email}: ${r.status} ${await r.text()}`);
+      cookies.push(await signIn(base, email, PASSWORD));
+    }
+    const first = await opened(base, admin);
+    for (let i = 0; i < 20; i++) await healthMs(base); // warm up
+    const idle: number[] = [];
+    for (let i = 0; i < IDLE_REQUESTS; i++) idle.push(await healthMs(base));
+
+    const fromZero = await storm(base, cookies, first.epoch, 0, (await opened(base, admin)).latestSeq);
+    const latest = (await opened(base, admin)).latestSeq;
+    const deepest = await storm(base, cookies, first.epoch, Math.max(0, latest - MAX_REPLAY), latest);
+
+    const idleP99 = pct(idle, 99);
+    const fig = (r: StormResult, label: string): BenchFigure[] => {
+      const p99 = pct(r.health, 99);
+      return [
+        {
+          name: `replay storm (${label}): /api/health p99 during it (${r.health.length} requests; idle p99 ${idleP99.toFixed(1)} ms)`,
+          value: p99,
+          unit: 'ms',
+          target: `<= 2x idle (${(2 * idleP99).toFixed(1)} ms)`,
+          ok: p99 <= 2 * idleP99,
+        },
+        { name: `replay storm (${label}): ratio to idle p99`, value: p99 / idleP99, unit: 'x', target: '<= 2', ok: p99 <= 2 * idleP99 },
+        { name: `replay storm (${label}): health p50 / max`, value: pct(r.health, 50), unit: `ms / ${pct(r.health, 100).toFixed(1)} ms` },
+        {
+          name: `replay storm (${label}): sockets served / caught up / reset / refused; messages replayed`,
+          value: r.served,
+          unit: `/ ${r.caughtUp} / ${r.resets} / ${r.refused}; ${r.replayed} replayed in ${r.seconds.toFixed(1)} s (since ${r.since}, latest ${r.latest})`,
+        },
+      ];
+    };
+    return [{ name: 'replay storm: /api/health p99 idle', value: idleP99, unit: 'ms' }, ...fig(fromZero, 'from seq 0'), ...fig(deepest, `from ${MAX_REPLAY} back`)];
+  } finally {
+    s.child.kill('SIGTERM');
+    await s.exited;
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  }
+}
+
+const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
+if (isMain) {
+  console.table(await run());
+  process.exit(0);
+}
