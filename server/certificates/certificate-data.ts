@@ -190,6 +190,7 @@ const DECISION_WORDS: Readonly<Record<Decision, string>> = {
   pass: 'pass',
   'conditional-pass': 'conditional pass',
   'conditional-fail': 'conditional fail',
+  undecided: 'undecided',
   fail: 'fail',
 };
 
@@ -224,9 +225,13 @@ function statementFor(label: 'As found' | 'As left', r: CertificateResults, tol:
       const k = count('conditional-pass');
       return `${label}, the instrument ${conforms} to ${spec} ${countText(n, n)}; ${countText(k, n)} the error ${lay} within the tolerance but closer to a limit than its expanded uncertainty (conditional pass).`;
     }
+    case 'undecided': {
+      const k = count('undecided');
+      return `${label}, no statement of conformity to ${spec} can be made: the decision rule could not decide ${countText(k, n)} (see the reason beside each point).`;
+    }
     case 'conditional-fail':
     case 'fail': {
-      const parts = (['fail', 'conditional-fail', 'conditional-pass'] as const)
+      const parts = (['fail', 'undecided', 'conditional-fail', 'conditional-pass'] as const)
         .map((d) => [d, count(d)] as const)
         .filter(([, k]) => k > 0)
         .map(([d, k]) => `${decisionText(d)} at ${k}`);

@@ -60,10 +60,14 @@ export interface HysteresisResult {
   nominalPct: number;
   basis: NominalBasis;
   /**
-   * |e_up − e_down|, % of output span: |I_up − I_down|/16 × 100 with each current first
-   * corrected to the nominal DP by its own expected current (identical when both sit on the nominal).
+   * e_up − e_down, % of output span (signed): the difference of the up and down errors at the same
+   * nominal point, each error already referred to its own applied value (the applied pressure is
+   * never exactly the same twice), not the raw mA difference (REFERENCE.md, common practice).
    */
   hysteresisPctSpan: number;
+  /** The error on the way up and on the way down, % of output span. */
+  upErrorPctSpan: number;
+  downErrorPctSpan: number;
 }
 
 /** Hysteresis per nominal that has both an up and a down reading (the last of each is used). */
@@ -78,7 +82,7 @@ export function hysteresis(points: readonly CapturedPoint[], errors: readonly nu
     const u = ups.get(k);
     const d = downs.get(k);
     if (u === undefined || d === undefined || out.some((h) => `${h.basis}:${h.nominalPct}` === k)) continue;
-    out.push({ nominalPct: p.nominalPct, basis: p.basis, hysteresisPctSpan: Math.abs(u - d) });
+    out.push({ nominalPct: p.nominalPct, basis: p.basis, hysteresisPctSpan: u - d, upErrorPctSpan: u, downErrorPctSpan: d });
   }
   return out;
 }
