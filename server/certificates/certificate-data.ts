@@ -4,7 +4,8 @@
  * standards registers, the runs' evaluated results and the signatures; the renderer only lays it
  * out.
  */
-import type { Decision, DecisionRule, EvaluatePoint, HysteresisResult, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
+import type { Decision, DecisionRule, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
+import type { ResultPoint, RunResults } from '../../shared/schemas/runs';
 
 /** A name with a postal address (laboratory, customer). */
 export interface CertificateParty {
@@ -15,9 +16,9 @@ export interface CertificateParty {
   contact?: string;
 }
 
-/** One results point, a subset of the calc engine's `EvaluatePoint`. */
+/** One results point, a subset of the results contract (shared/schemas/runs `ResultPointSchema`). */
 export type CertificatePoint = Pick<
-  EvaluatePoint,
+  ResultPoint,
   | 'nominalPct'
   | 'basis'
   | 'direction'
@@ -37,7 +38,7 @@ export type CertificatePoint = Pick<
  */
 export interface CertificateResults {
   points: CertificatePoint[];
-  hysteresis: HysteresisResult[];
+  hysteresis: RunResults['hysteresis'];
   maxHysteresisPctSpan: number | null;
   overallDecision: Decision;
 }
