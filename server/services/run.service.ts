@@ -24,6 +24,7 @@ import {
 } from '../../shared/calc';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
+import type { SiteSettings } from '../../shared/schemas/settings';
 import { EngineRefusal, type EngineEvent, type EngineRunSettings } from '../bench/capture-engine';
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
@@ -52,6 +53,8 @@ interface FrozenPlan {
   standardIds: string[];
   points: PlanPoint[];
   warnings: string[];
+  /** Coverage and decision settings frozen at start (site settings); absent on older runs (defaults). */
+  coverage?: { coverageProbability?: number; coverageFactor?: number; minimumTur?: number };
 }
 
 export interface RunServiceOptions {
@@ -150,13 +153,8 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
     }
   }
 
-  async function siteSettings(): Promise<{ holdSeconds?: number; decisionRule?: string; windowPctOfSpan?: number }> {
-    const site = await sites.get();
-    try {
-      return site ? (JSON.parse(site.settings) as Record<string, never>) : {};
-    } catch {
-      return {};
-    }
+  async function siteSettings(): Promise<SiteSettings> {
+    return sites.settings();
   }
 
   async function jobFacts(jobId: string): Promise<{ assigneeId: string | null; status: string; instrumentId: string; standardIds: string[]; blockers: string[] }> {
@@ -218,6 +216,9 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       },
       standards: { pressure, current: currentSpecOf(cs) },
       decisionRule: p.decisionRule,
+      coverageProbability: p.coverage?.coverageProbability,
+      coverageFactor: p.coverage?.coverageFactor,
+      minimumTur: p.coverage?.minimumTur,
       readings: captured.map((x) => ({
         nominalPct: x.nominalPct,
         basis: x.basis,
@@ -359,7 +360,8 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         tolerancePct: inst.tolerancePct,
       };
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
-      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings };
+      const coverage = { coverageProbability: site.coverageProbability, coverageFactor: site.coverageFactor, minimumTur: site.minimumTur };
+      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, coverage };
       const row = await runsRepo.create({ jobId, kind: body.kind, status: 'running', plan: frozen, startedBy: actor.id }, points.length);
       await audit.record(actor, 'run.started', 'run', row.id, undefined, { jobId, kind: body.kind, trim: frozen.trim, holdSeconds, points: points.length, benchId });
       loaded.set(row.id, frozen);
