@@ -4,7 +4,8 @@
  * standards registers, the runs' evaluated results and the signatures; the renderer only lays it
  * out.
  */
-import type { Decision, DecisionRule, EvaluatePoint, HysteresisResult, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
+import type { Decision, DecisionRule, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
+import type { ResultPoint, RunResults } from '../../shared/schemas/runs';
 
 /** A name with a postal address (laboratory, customer). */
 export interface CertificateParty {
@@ -15,9 +16,9 @@ export interface CertificateParty {
   contact?: string;
 }
 
-/** One results point, a subset of the calc engine's `EvaluatePoint`. */
+/** One results point, a subset of the results contract (shared/schemas/runs `ResultPointSchema`). */
 export type CertificatePoint = Pick<
-  EvaluatePoint,
+  ResultPoint,
   | 'nominalPct'
   | 'basis'
   | 'direction'
@@ -37,7 +38,7 @@ export type CertificatePoint = Pick<
  */
 export interface CertificateResults {
   points: CertificatePoint[];
-  hysteresis: HysteresisResult[];
+  hysteresis: RunResults['hysteresis'];
   maxHysteresisPctSpan: number | null;
   overallDecision: Decision;
 }
@@ -190,6 +191,7 @@ const DECISION_WORDS: Readonly<Record<Decision, string>> = {
   pass: 'pass',
   'conditional-pass': 'conditional pass',
   'conditional-fail': 'conditional fail',
+  undecided: 'undecided',
   fail: 'fail',
 };
 
@@ -224,9 +226,13 @@ function statementFor(label: 'As found' | 'As left', r: CertificateResults, tol:
       const k = count('conditional-pass');
       return `${label}, the instrument ${conforms} to ${spec} ${countText(n, n)}; ${countText(k, n)} the error ${lay} within the tolerance but closer to a limit than its expanded uncertainty (conditional pass).`;
     }
+    case 'undecided': {
+      const k = count('undecided');
+      return `${label}, no statement of conformity to ${spec} can be made: the decision rule could not decide ${countText(k, n)} (see the reason beside each point).`;
+    }
     case 'conditional-fail':
     case 'fail': {
-      const parts = (['fail', 'conditional-fail', 'conditional-pass'] as const)
+      const parts = (['fail', 'undecided', 'conditional-fail', 'conditional-pass'] as const)
         .map((d) => [d, count(d)] as const)
         .filter(([, k]) => k > 0)
         .map(([d, k]) => `${decisionText(d)} at ${k}`);

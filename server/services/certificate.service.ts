@@ -24,9 +24,9 @@ interface FrozenPlanLike {
 }
 
 function resultsOf(run: RunWithPoints | undefined): CertificateResults | undefined {
-  const r = run?.results as CertificateResults | null | undefined;
-  if (!r || !Array.isArray(r.points)) return undefined;
-  return { points: r.points, hysteresis: r.hysteresis ?? [], maxHysteresisPctSpan: r.maxHysteresisPctSpan ?? null, overallDecision: r.overallDecision };
+  const r = run?.results;
+  if (!r) return undefined;
+  return { points: r.points, hysteresis: r.hysteresis, maxHysteresisPctSpan: r.maxHysteresisPctSpan, overallDecision: r.overallDecision };
 }
 
 /** Trim adjustments from completed trim runs: target and the reading after the trim, before from the as-found pass at the same DP. */

@@ -29,14 +29,9 @@ interface PointResult {
   errorPctSpan: number;
 }
 
-/** Per-point errors from a run's stored results (shared/calc EvaluateOutput), if any. */
+/** Per-point errors from a run's results (parsed against RunResultsSchema in the repository). */
 function pointsOf(run: RunRow | undefined): PointResult[] {
-  const pts = (run?.results as { points?: unknown } | null | undefined)?.points;
-  if (!Array.isArray(pts)) return [];
-  return pts.filter(
-    (p): p is PointResult =>
-      !!p && typeof p === 'object' && typeof (p as PointResult).nominalPct === 'number' && Number.isFinite((p as PointResult).errorPctSpan),
-  );
+  return run?.results?.points ?? [];
 }
 
 const keyOf = (p: PointResult) => `${p.nominalPct}${p.basis === 'flow' ? 'F' : 'D'}-${p.direction}`;

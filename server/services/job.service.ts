@@ -133,7 +133,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (!checklist.vented) blockers.push('Confirm the transmitter is vented and drained');
 
       const results = (kind: string) => runs.filter((x) => x.kind === kind && x.status === 'complete');
-      const decisionOf = (x: (typeof runs)[number]) => ((x.results as { overallDecision?: string } | null)?.overallDecision ?? null);
+      const decisionOf = (x: (typeof runs)[number]) => (x.results?.overallDecision ?? null);
       const submitBlockers: string[] = [];
       const asFound = results('as-found').at(-1);
       if (!asFound) submitBlockers.push('Complete the as-found run');

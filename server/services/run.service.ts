@@ -27,6 +27,7 @@ import {
 } from '../../shared/calc';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
+import type { SiteSettings } from '../../shared/schemas/settings';
 import type { RunEvent } from '../../shared/schemas/stream';
 import { CaptureEngines, EngineRefusal, type EngineRunSettings } from '../bench/capture-engine';
 import type { BenchHub } from '../bench/hub';
@@ -58,6 +59,8 @@ interface FrozenPlan {
   standardIds: string[];
   points: PlanPoint[];
   warnings: string[];
+  /** Coverage and decision settings frozen at start (site settings); absent on older runs (defaults). */
+  coverage?: { coverageProbability?: number; coverageFactor?: number; minimumTur?: number };
   /** The technician who started the run (absent on runs started before it was recorded: see `runs.started_by`). */
   performer?: { id: string; email: string };
 }
@@ -191,13 +194,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
     }
   }
 
-  async function siteSettings(): Promise<{ holdSeconds?: number; decisionRule?: string; windowPctOfSpan?: number }> {
-    const site = await sites.get();
-    try {
-      return site ? (JSON.parse(site.settings) as Record<string, never>) : {};
-    } catch {
-      return {};
-    }
+  async function siteSettings(): Promise<SiteSettings> {
+    return sites.settings();
   }
 
   async function jobFacts(jobId: string): Promise<{ assigneeId: string | null; status: string; instrumentId: string; standardIds: string[]; blockers: string[] }> {
@@ -266,6 +264,9 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       },
       standards: { pressure, current: currentSpecOf(cs) },
       decisionRule: p.decisionRule,
+      coverageProbability: p.coverage?.coverageProbability,
+      coverageFactor: p.coverage?.coverageFactor,
+      minimumTur: p.coverage?.minimumTur,
       readings: captured.map((x) => ({
         nominalPct: x.nominalPct,
         basis: x.basis,
@@ -433,7 +434,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       };
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
       const performer = { id: actor.id, email: actor.email };
-      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, performer };
+      const coverage = { coverageProbability: site.coverageProbability, coverageFactor: site.coverageFactor, minimumTur: site.minimumTur };
+      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, performer, coverage };
       const row = await runsRepo.create({ jobId, kind: body.kind, status: 'running', plan: frozen, startedBy: actor.id }, points.length);
       await audit.record(actor, 'run.started', 'run', row.id, undefined, { jobId, kind: body.kind, trim: frozen.trim, holdSeconds, points: points.length, benchId });
       loaded.set(row.id, frozen);

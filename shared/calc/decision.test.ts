@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { applyDecisionRule, conformanceProbability, dobbertMultiplier, testUncertaintyRatio, worstDecision } from './decision';
+import fc from 'fast-check';
+import { DECISION_RULES, applyDecisionRule, conformanceProbability, dobbertMultiplier, testUncertaintyRatio, worstDecision } from './decision';
 
 describe('TUR (ANSI/NCSL Z540.3 §3.11)', () => {
   it('(T_U − T_L)/(2·U95)', () => {
@@ -51,7 +52,40 @@ describe('decision rules (ILAC-G8:09/2019)', () => {
     // TUR 5 ≥ 4.59: no guard band, A = T
     expect(applyDecisionRule('managed-guard-band', 1, -1, 1, 0.2).decision).toBe('pass');
   });
+  it('undecided with its reason: U unknown for a rule that needs it; TUR below the minimum', () => {
+    for (const rule of ['guard-band', 'non-binary', 'managed-guard-band'] as const) {
+      const r = applyDecisionRule(rule, 0, -T, T, undefined);
+      expect(r.decision).toBe('undecided');
+      expect(r.undecided?.reason).toBe('uncertainty-unknown');
+      expect(r.acceptanceUpper).toBeNull();
+    }
+    // Simple acceptance does not use U.
+    expect(applyDecisionRule('simple', 0.5, -T, T, null).decision).toBe('pass');
+    // TUR = 2/(2·0.5) = 2 < 4 (Z540.3 customary fallback used as the site's minimum).
+    const low = applyDecisionRule('simple', 0, -T, T, 0.5, { minimumTur: 4 });
+    expect(low.decision).toBe('undecided');
+    expect(low.undecided?.reason).toBe('tur-below-minimum');
+    expect(applyDecisionRule('simple', 0, -T, T, 0.25, { minimumTur: 4 }).decision).toBe('pass');
+    expect(applyDecisionRule('simple', 0, -T, T, null, { minimumTur: 4 }).decision).toBe('undecided');
+  });
+  it('property: a guard-banded rule never reports pass (or any decision) when U is unknown', () => {
+    fc.assert(
+      fc.property(
+        fc.constantFrom(...DECISION_RULES.filter((r) => r !== 'simple')),
+        fc.double({ min: -10, max: 10, noNaN: true }),
+        fc.double({ min: 0.001, max: 5, noNaN: true }),
+        fc.constantFrom(undefined, null),
+        (rule, y, t, u) => {
+          const r = applyDecisionRule(rule, y, -t, t, u);
+          expect(r.decision).toBe('undecided');
+          expect(r.undecided?.reason).toBe('uncertainty-unknown');
+        },
+      ),
+    );
+  });
   it('worst decision', () => {
+    expect(worstDecision(['pass', 'undecided', 'conditional-fail'])).toBe('undecided');
+    expect(worstDecision(['undecided', 'fail'])).toBe('fail');
     expect(worstDecision(['pass', 'conditional-fail', 'conditional-pass'])).toBe('conditional-fail');
     expect(worstDecision([])).toBeUndefined();
   });

@@ -4,11 +4,12 @@
  * non-linearity, worst error and the overall decision. Input and output are plain JSON-friendly
  * types (no Infinity: unbounded degrees of freedom are reported as null).
  */
-import { applyDecisionRule, conformanceProbability, testUncertaintyRatio, worstDecision, type Decision, type DecisionRule } from './decision';
+import { applyDecisionRule, conformanceProbability, testUncertaintyRatio, worstDecision, type Decision, type DecisionRule, type UndecidedReason } from './decision';
 import type { Direction, NominalBasis } from './plan';
 import { hysteresis, nonLinearity, pointResult, worstError, type HysteresisResult, type NonLinearity } from './results';
 import { classifyNe43, isRootedOutput, type Cutoff, type Ne43Class, type OutputMode, type TransferSpec } from './transfer';
-import { pointBudget, type CurrentMeterSpec, type PressureReferenceSpec } from './uncertainty';
+import { DEFAULT_COVERAGE_PROBABILITY, type CoveragePolicy } from './student-t';
+import { pointBudget, type CurrentMeterSpec, type PressureReferenceSpec, type TypeAInput } from './uncertainty';
 import { isPressureUnitId, type PressureUnitId } from './units';
 
 /** Instrument data for an evaluation. */
@@ -41,6 +42,11 @@ export interface EvaluateReading {
   measuredMaSd?: number;
   /** Samples over the hold. */
   n?: number;
+  /**
+   * Type A standard uncertainty of the mean of the per-reading error series, mA, with its degrees
+   * of freedom, from the capture (hold.ts); replaces the two channel SD terms when given.
+   */
+  typeA?: TypeAInput | null;
 }
 
 /** Input of {@link evaluateCalibration}. */
@@ -49,8 +55,15 @@ export interface EvaluateInput {
   standards: { pressure: PressureReferenceSpec; current: CurrentMeterSpec };
   decisionRule: DecisionRule;
   readings: EvaluateReading[];
-  /** Coverage factor; default 2. */
+  /**
+   * A coverage factor the site fixes (e.g. 2 by its procedure). When absent, k = t_p(ν_eff) for
+   * `coverageProbability` (GUM G.3–G.4).
+   */
   coverageFactor?: number;
+  /** Coverage probability for k from ν_eff, 0–1; default 0.9545 (95.45 %). */
+  coverageProbability?: number;
+  /** Minimum TUR for a decision (site setting; none by default); below it a point is undecided. */
+  minimumTur?: number;
 }
 
 /** Per-point output. */
@@ -65,28 +78,43 @@ export interface EvaluatePoint {
   appliedFlowPct: number | null;
   expectedMa: number;
   measuredMa: number;
+  /** (I_meas − I_exp)/16 mA × 100, % of the output span named by `errorBasis`. */
   errorPctSpan: number;
+  /** What `errorPctSpan` is a percentage of: the flow span for a rooted output, else the DP span. */
+  errorBasis: ErrorBasis;
   /** DP-equivalent error, instrument unit; null inside a clamp cutoff. */
   dpEquivalentError: number | null;
-  /** Expanded uncertainty (k = coverageFactor), % of output span; null when it cannot be computed. */
+  /** Expanded uncertainty U = k·u_c, % of output span; null when it cannot be computed. */
   expandedUncertaintyPctSpan: number | null;
   expandedUncertaintyMa: number | null;
-  coverageFactor: number;
+  /** Coverage factor k used for U; null when U cannot be computed. */
+  coverageFactor: number | null;
+  /** Coverage probability k was computed for (0–1); null when the site fixes k or U is unknown. */
+  coverageProbability: number | null;
   /** Welch–Satterthwaite ν_eff; null when infinite or not computed. */
   effectiveDof: number | null;
   tur: number | null;
   decision: Decision;
-  /** Acceptance limit (tolerance minus guard band), ± % of span. */
-  acceptanceLimitPctSpan: number;
+  /** Why the point is undecided (null otherwise). */
+  undecided: { reason: UndecidedReason; message: string } | null;
+  /** Acceptance limit (tolerance minus guard band), ± % of span; null when the guard band is unknown. */
+  acceptanceLimitPctSpan: number | null;
   /** JCGM 106 conformance probability, 0–1; null without an uncertainty. */
   conformanceProbability: number | null;
   ne43: Ne43Class;
 }
 
+/** Basis of an error in % of output span. */
+export type ErrorBasis = 'flow-span' | 'dp-span';
+
 /** Output of {@link evaluateCalibration}. */
 export interface EvaluateOutput {
   points: EvaluatePoint[];
+  /** Basis of every % of span figure below (flow span for a rooted output, else DP span). */
+  errorBasis: ErrorBasis;
+  /** Per nominal: error up minus error down, % of output span (signed). */
   hysteresis: HysteresisResult[];
+  /** Largest |hysteresis|, % of output span; null without an up/down pair. */
   maxHysteresisPctSpan: number | null;
   nonLinearity: NonLinearity | null;
   worstError: { index: number; errorPctSpan: number } | null;
@@ -113,8 +141,16 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
   if (input.readings.length === 0) return { ok: false, reason: 'no readings' };
   const cutoff = cutoffOf(ins);
   if (typeof cutoff === 'string') return { ok: false, reason: cutoff };
-  const k = input.coverageFactor ?? 2;
-  if (!(k > 0)) return { ok: false, reason: 'coverage factor must be > 0' };
+  let coverage: CoveragePolicy;
+  if (input.coverageFactor !== undefined) {
+    if (!(input.coverageFactor > 0)) return { ok: false, reason: 'coverage factor must be > 0' };
+    coverage = { mode: 'fixed', k: input.coverageFactor };
+  } else {
+    const p = input.coverageProbability ?? DEFAULT_COVERAGE_PROBABILITY;
+    if (!(p > 0.5 && p < 1)) return { ok: false, reason: 'coverage probability must be between 0.5 and 1' };
+    coverage = { mode: 'probability', probability: p };
+  }
+  const errorBasis: ErrorBasis = ins.outputMode === 'sqrt-transmitter' ? 'flow-span' : 'dp-span';
   const spec: TransferSpec = { range: { lrv: ins.lrv, urv: ins.urv, unit: ins.unit }, mode: ins.outputMode, cutoff };
   const T = ins.tolerancePctSpan;
   const defaultBasis: NominalBasis = isRootedOutput(ins.outputMode) ? 'flow' : 'dp';
@@ -124,14 +160,24 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
   }
   const points: EvaluatePoint[] = captured.map((r, index) => {
     const res = pointResult(spec, r);
-    const budget = pointBudget(spec, r, input.standards.pressure, input.standards.current, k);
-    // The decision rules are defined for U95; with k ≠ 2 the expanded value given is used as is.
+    const budget = pointBudget(spec, r, input.standards.pressure, input.standards.current, coverage);
+    // U is for the site's coverage probability (95.45 % by default), the coverage the rules and
+    // TUR are defined for. Without U a rule that needs it says undecided (never U = 0).
     const U = budget?.expandedPctSpan;
-    const dec = applyDecisionRule(input.decisionRule, res.errorPctSpan, -T, T, U ?? 0);
+    const dec = applyDecisionRule(input.decisionRule, res.errorPctSpan, -T, T, U, { minimumTur: input.minimumTur });
     const tur = U === undefined ? undefined : testUncertaintyRatio(-T, T, U);
     const ne43 = classifyNe43(r.measuredMa);
-    // An NE 43 failure current is a failed point whatever the arithmetic says.
-    const decision = ne43.isFailure ? 'fail' : dec.decision;
+    // An NE 43 failure current is a failed point whatever the arithmetic says; a current in a band
+    // NE 43 leaves undefined (3.6–3.8 mA, 20.5–21.0 mA) is neither a reading nor a failure signal.
+    let decision: Decision = dec.decision;
+    let undecided = dec.undecided;
+    if (ne43.isFailure) {
+      decision = 'fail';
+      undecided = null;
+    } else if (ne43.class === 'undefined-low' || ne43.class === 'undefined-high') {
+      decision = 'undecided';
+      undecided = { reason: 'reading-out-of-range', message: `${r.measuredMa} mA lies in a band NAMUR NE 43 leaves undefined (3.6–3.8 mA, 20.5–21.0 mA)` };
+    }
     const u = budget && budget.ucMa > 0 ? (budget.ucMa / 16) * 100 : undefined;
     return {
       index,
@@ -144,13 +190,16 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
       expectedMa: res.expectedMa,
       measuredMa: r.measuredMa,
       errorPctSpan: res.errorPctSpan,
+      errorBasis,
       dpEquivalentError: res.dpEquivalentError ?? null,
       expandedUncertaintyPctSpan: U ?? null,
       expandedUncertaintyMa: budget?.expandedMa ?? null,
-      coverageFactor: k,
+      coverageFactor: budget?.k ?? null,
+      coverageProbability: budget?.coverageProbability ?? null,
       effectiveDof: budget && Number.isFinite(budget.effectiveDof) ? budget.effectiveDof : null,
       tur: tur ?? null,
       decision,
+      undecided,
       acceptanceLimitPctSpan: dec.acceptanceUpper,
       conformanceProbability: u === undefined ? null : conformanceProbability(res.errorPctSpan, -T, T, u),
       ne43: ne43.class,
@@ -163,8 +212,9 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
     ok: true,
     value: {
       points,
+      errorBasis,
       hysteresis: hyst,
-      maxHysteresisPctSpan: hyst.length ? Math.max(...hyst.map((h) => h.hysteresisPctSpan)) : null,
+      maxHysteresisPctSpan: hyst.length ? Math.max(...hyst.map((h) => Math.abs(h.hysteresisPctSpan))) : null,
       nonLinearity: nonLinearity(spec, captured, errors) ?? null,
       worstError: worstError(errors) ?? null,
       overallDecision: overall,

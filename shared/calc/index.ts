@@ -8,6 +8,7 @@ export * from './hold';
 export * from './mode-check';
 export * from './trims';
 export * from './results';
+export * from './student-t';
 export * from './uncertainty';
 export * from './decision';
 export * from './evaluate';

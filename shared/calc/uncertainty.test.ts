@@ -11,6 +11,7 @@ describe('GUM budget (JCGM 100:2008)', () => {
       { appliedDp: 50, measuredMa: 12, measuredMaSd: 0.002, n: 10 },
       { kind: 'spec', unit: 'kPa', pctOfReading: 0.02, pctOfFullScale: 0.01, fullScale: 200 },
       { pctOfReading: 0.01, floorMa: 0.001, resolutionMa: 0.001 },
+      2,
     )!;
     // Pressure reference: a = 0.02 % × 50 kPa + 0.01 % × 200 kPa = 0.010 + 0.020 = 0.030 kPa
     //   rectangular u = 0.030/√3 = 0.0173205 kPa (GUM 4.3.7); c = 16 mA/100 kPa = 0.16 mA/kPa
@@ -29,6 +30,30 @@ describe('GUM budget (JCGM 100:2008)', () => {
     expect(b.expandedPctSpan).toBeCloseTo(0.03908458, 7);
     expect(b.effectiveDof).toBeCloseTo((ucExpected ** 4 * 9) / 4e-7 ** 2, 6);
     expect(b.effectiveDof).toBeCloseTo(5376.6, 0);
+    expect(b.k).toBe(2);
+    expect(b.coverageProbability).toBeNull();
+  });
+
+  it('default coverage: k = t_95.45(ν_eff) (JCGM 100:2008 G.3–G.4, Table G.2)', () => {
+    // Only the current meter (Type B, tiny) and a Type A term with n = 3 (ν = 2): ν_eff ≈ 2, so
+    // k ≈ t_95.45(2) = 4.53 (Table G.2) and not 2.
+    const b = pointBudget(spec, { appliedDp: 50, measuredMa: 12, measuredMaSd: 0.01, n: 3 }, { kind: 'certificate', unit: 'kPa', expandedU: 0, k: 2 }, { pctOfReading: 0, floorMa: 0 })!;
+    expect(b.effectiveDof).toBeCloseTo(2, 12);
+    expect(b.k).toBeCloseTo(4.53, 2);
+    expect(b.coverageProbability).toBe(0.9545);
+    expect(b.expandedMa).toBeCloseTo(b.k * (0.01 / Math.sqrt(3)), 12);
+  });
+
+  it('Type A of the per-reading error series replaces the two channel terms; floored at the resolution term', () => {
+    const ref = { kind: 'certificate', unit: 'kPa', expandedU: 0.002, k: 2 } as const;
+    const meter = { pctOfReading: 0, floorMa: 0, resolutionMa: 0.001 };
+    const b = pointBudget(spec, { appliedDp: 50, measuredMa: 12, measuredMaSd: 0.01, appliedDpSd: 0.05, n: 300, typeA: { uMa: 0.0005, dof: 20 } }, ref, meter)!;
+    expect(b.components.map((c) => c.name)).toEqual(['pressure-reference', 'current-meter', 'current-resolution', 'repeatability-error']);
+    expect(b.components[3]!.u).toBe(0.0005);
+    expect(b.components[3]!.dof).toBe(20);
+    // A Type A below the resolution term δ/(2√3) = 0.000288675 mA is raised to it (GUM F.2.2.1).
+    const f = pointBudget(spec, { appliedDp: 50, measuredMa: 12, typeA: { uMa: 1e-6, dof: 50 } }, ref, meter)!;
+    expect(f.components[3]!.u).toBeCloseTo(0.001 / (2 * Math.sqrt(3)), 15);
   });
 
   it('certificate U/k, unit conversion and the root sensitivity', () => {

@@ -6,9 +6,23 @@
  * U/k, §4.3.3), its resolution δ/(2√3) (§F.2.2.1), current meter spec (% of reading + floor,
  * rectangular) and resolution, repeatability of both channels over the hold (Type A s/√n with
  * n − 1 degrees of freedom, §4.2), all DP terms carried to mA by the sensitivity dI/dP through the
- * root (§5.1.3). Combined u_c = √Σ(c_i·u_i)², expanded U = k·u_c (k = 2 default), effective
- * degrees of freedom by Welch–Satterthwaite (§G.4.1).
+ * root (§5.1.3). Combined u_c = √Σ(c_i·u_i)², effective degrees of freedom by Welch–Satterthwaite
+ * (§G.4.1), expanded U = k·u_c with k = t_p(ν_eff) for the coverage probability p (default
+ * 95.45 %, §G.3–G.4), or a k the site fixes.
+ *
+ * Repeatability. When the capture supplies the Type A standard uncertainty of the mean of the
+ * per-reading error series (`typeA`, see hold.ts: current minus the expected current at the
+ * concurrent applied DP, with the effective number of observations of an autocorrelated series),
+ * that one term replaces the two channel terms: the current follows the applied DP, so their
+ * scatters are correlated (GUM 5.2) and adding them as independent double-counts the common part,
+ * while s/√n of each channel ignores the autocorrelation of consecutive readings (GUM 4.2.7).
+ * Without it (manual entry, older records) the two channels are taken as independent with
+ * s/√n and n − 1 degrees of freedom, as before. Either way the Type A term of the current is not
+ * taken below the current meter's resolution term δ/(2√3): averaging cannot resolve below the
+ * display step when the scatter is smaller than it (GUM F.2.2.1). This is conservative: the
+ * resolution term also stays in the budget as its own Type B line.
  */
+import { coverageFactor, DEFAULT_COVERAGE_POLICY, type CoveragePolicy } from './student-t';
 import { sensitivityMaPerUnit, SIGNAL_SPAN_MA, type TransferSpec } from './transfer';
 import { convertPressure, type PressureUnitId } from './units';
 
@@ -47,7 +61,14 @@ export interface CurrentMeterSpec {
 
 /** One line of the budget. */
 export interface BudgetComponent {
-  name: 'pressure-reference' | 'pressure-resolution' | 'current-meter' | 'current-resolution' | 'repeatability-current' | 'repeatability-pressure';
+  name:
+    | 'pressure-reference'
+    | 'pressure-resolution'
+    | 'current-meter'
+    | 'current-resolution'
+    | 'repeatability-current'
+    | 'repeatability-pressure'
+    | 'repeatability-error';
   /** Standard uncertainty in the input's own unit (instrument DP unit or mA). */
   u: number;
   /** Sensitivity coefficient to mA (mA per input unit; 1 for mA inputs). */
@@ -67,9 +88,23 @@ export interface PointBudget {
   expandedMa: number;
   /** Expanded uncertainty, % of output span (of flow span for a rooted output). */
   expandedPctSpan: number;
+  /** Coverage factor used: t_p(ν_eff), or the site's fixed k. */
   k: number;
+  /** Coverage probability p that k was computed for; null when the site fixes k. */
+  coverageProbability: number | null;
   /** Welch–Satterthwaite effective degrees of freedom (Infinity when every term is Type B). */
   effectiveDof: number;
+}
+
+/**
+ * Type A standard uncertainty of the mean of a hold's per-reading error series, from the capture
+ * (hold.ts `TypeAOfMean`).
+ */
+export interface TypeAInput {
+  /** Standard uncertainty of the mean error, mA. */
+  uMa: number;
+  /** Degrees of freedom of that estimate (ν = n_eff − 1). */
+  dof: number;
 }
 
 /** What the budget needs from the captured point. */
@@ -84,6 +119,8 @@ export interface BudgetPoint {
   measuredMaSd?: number;
   /** Number of samples over the hold (both channels). */
   n?: number;
+  /** Type A of the mean of the per-reading error series; replaces the two channel terms when given. */
+  typeA?: TypeAInput | null;
 }
 
 const SQRT3 = Math.sqrt(3);
@@ -101,15 +138,16 @@ export function welchSatterthwaite(contributions: readonly { value: number; dof:
 
 /**
  * Budget for one point. `undefined` when the sensitivity cannot be computed (0 % DP on a pure root).
- * @param k coverage factor, default 2
+ * @param coverage how k is chosen (default p = 95.45 %, k = t_p(ν_eff)); a number fixes k
  */
 export function pointBudget(
   spec: TransferSpec,
   point: BudgetPoint,
   reference: PressureReferenceSpec,
   meter: CurrentMeterSpec,
-  k = 2,
+  coverage: CoveragePolicy | number = DEFAULT_COVERAGE_POLICY,
 ): PointBudget | undefined {
+  const policy: CoveragePolicy = typeof coverage === 'number' ? { mode: 'fixed', k: coverage } : coverage;
   const c = sensitivityMaPerUnit(spec, point.appliedDp);
   if (c === undefined) return undefined;
   const unit = spec.range.unit;
@@ -134,12 +172,18 @@ export function pointBudget(
   const aMeter = (meter.pctOfReading / 100) * Math.abs(point.measuredMa) + meter.floorMa;
   add('current-meter', aMeter / SQRT3, 1, Infinity);
   if (meter.resolutionMa && meter.resolutionMa > 0) add('current-resolution', meter.resolutionMa / (2 * SQRT3), 1, Infinity);
+  const resolutionFloorMa = meter.resolutionMa && meter.resolutionMa > 0 ? meter.resolutionMa / (2 * SQRT3) : 0;
   const n = point.n ?? 0;
-  if (n >= 2) {
-    if (point.measuredMaSd !== undefined) add('repeatability-current', point.measuredMaSd / Math.sqrt(n), 1, n - 1);
+  const typeA = point.typeA;
+  if (typeA && Number.isFinite(typeA.uMa) && typeA.uMa >= 0 && typeA.dof > 0) {
+    add('repeatability-error', Math.max(typeA.uMa, resolutionFloorMa), 1, typeA.dof);
+  } else if (n >= 2) {
+    if (point.measuredMaSd !== undefined) add('repeatability-current', Math.max(point.measuredMaSd / Math.sqrt(n), resolutionFloorMa), 1, n - 1);
     if (point.appliedDpSd !== undefined) add('repeatability-pressure', point.appliedDpSd / Math.sqrt(n), c, n - 1);
   }
   const ucMa = Math.sqrt(comps.reduce((s, x) => s + x.contributionMa ** 2, 0));
+  const effectiveDof = welchSatterthwaite(comps.map((x) => ({ value: x.contributionMa, dof: x.dof })));
+  const k = coverageFactor(policy, effectiveDof);
   const expandedMa = k * ucMa;
   return {
     components: comps,
@@ -147,6 +191,7 @@ export function pointBudget(
     expandedMa,
     expandedPctSpan: (expandedMa / SIGNAL_SPAN_MA) * 100,
     k,
-    effectiveDof: welchSatterthwaite(comps.map((x) => ({ value: x.contributionMa, dof: x.dof }))),
+    coverageProbability: policy.mode === 'probability' ? policy.probability : null,
+    effectiveDof,
   };
 }

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { InstrumentSchema } from './instruments';
 import { JobDetailSchema, JobSchema } from './jobs';
+import { RunResultsSchema } from './runs';
 
 /** Decisions a lead can sign (DESIGN.md §3.7). */
 export const REVIEW_DECISIONS = ['approve', 'return'] as const;
@@ -65,7 +66,7 @@ export const SnapshotRunSchema = z.object({
   kind: z.string(),
   status: z.string(),
   plan: z.unknown(),
-  results: z.unknown().nullable(),
+  results: RunResultsSchema.nullable(),
   startedBy: z.string().nullable(),
   startedAt: z.string(),
   endedAt: z.string().nullable(),

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { DECISIONS, type EvaluateOutput } from '../calc';
 
 /** Kinds of run within a job (DESIGN.md §3.5–6). */
 export const RUN_KINDS = ['mode-check', 'as-found', 'trim', 'as-left'] as const;
@@ -99,6 +100,124 @@ export const RunPointSchema = z.object({
 });
 export type RunPoint = z.infer<typeof RunPointSchema>;
 
+/* ---------- Evaluated results: the one contract for shared/calc `EvaluateOutput` ---------- */
+
+/** Decision per point or overall (ILAC-G8 rules; `undecided` when the rule cannot decide). */
+export const DecisionSchema = z.enum(DECISIONS);
+
+/** Why a point is undecided, with the message shown beside it. */
+export const UndecidedSchema = z.object({
+  reason: z.enum(['uncertainty-unknown', 'tur-below-minimum', 'reading-out-of-range']),
+  message: z.string(),
+});
+
+/** Basis of an error in % of output span: flow span for a rooted output, else DP span. */
+export const ErrorBasisSchema = z.enum(['flow-span', 'dp-span']);
+
+/** One evaluated point (shared/calc `EvaluatePoint`). % of span figures are on the run's `errorBasis`. */
+export const ResultPointSchema = z.object({
+  index: z.number().int(),
+  nominalPct: z.number(),
+  basis: z.enum(['flow', 'dp']),
+  direction: z.enum(['up', 'down']),
+  /** Mean applied DP, instrument unit. */
+  appliedDp: z.number(),
+  appliedDpPct: z.number(),
+  /** Flow % from the actual applied DP; null for a linear instrument. */
+  appliedFlowPct: z.number().nullable(),
+  expectedMa: z.number(),
+  measuredMa: z.number(),
+  /** (I_meas − I_exp)/16 mA × 100, % of output span. */
+  errorPctSpan: z.number(),
+  /** Absent on results computed before the basis was stored. */
+  errorBasis: ErrorBasisSchema.optional(),
+  /** DP-equivalent error, instrument unit; null inside a clamp cutoff. */
+  dpEquivalentError: z.number().nullable(),
+  /** Expanded uncertainty U = k·u_c, % of output span; null when it cannot be computed. */
+  expandedUncertaintyPctSpan: z.number().nullable(),
+  expandedUncertaintyMa: z.number().nullable(),
+  /** Coverage factor of U: t_p(ν_eff), or the site's fixed k; null without U. */
+  coverageFactor: z.number().nullable(),
+  /** Coverage probability k was computed for, 0–1; null when the site fixes k. */
+  coverageProbability: z.number().nullable().optional(),
+  /** Welch–Satterthwaite ν_eff; null when infinite (every term Type B) or without U. */
+  effectiveDof: z.number().nullable(),
+  tur: z.number().nullable(),
+  decision: DecisionSchema,
+  /** Set when `decision` is undecided; absent on results computed before it existed. */
+  undecided: UndecidedSchema.nullable().optional(),
+  /** Acceptance limit ± % of span (tolerance minus guard band); null when the guard band is unknown. */
+  acceptanceLimitPctSpan: z.number().nullable(),
+  conformanceProbability: z.number().nullable(),
+  ne43: z.enum(['failure-low', 'undefined-low', 'saturation-low', 'measurement', 'saturation-high', 'undefined-high', 'failure-high']),
+});
+export type ResultPoint = z.infer<typeof ResultPointSchema>;
+
+/** Hysteresis at one nominal: error up − error down, % of output span (signed). */
+export const HysteresisResultSchema = z.object({
+  nominalPct: z.number(),
+  basis: z.enum(['flow', 'dp']),
+  hysteresisPctSpan: z.number(),
+  upErrorPctSpan: z.number().optional(),
+  downErrorPctSpan: z.number().optional(),
+});
+
+const LinearityFigureSchema = z.object({
+  pctSpan: z.number(),
+  atOutputPct: z.number(),
+  atNominalPct: z.number(),
+  line: z.object({ offsetPctSpan: z.number(), slope: z.number() }),
+});
+
+/** ISA-51.1 non-linearity figures of the averaged error curve, and least squares under its own name. */
+export const NonLinearitySchema = z.object({
+  terminalBased: LinearityFigureSchema,
+  zeroBased: LinearityFigureSchema,
+  independent: LinearityFigureSchema,
+  leastSquares: LinearityFigureSchema,
+  anchorLowOutputPct: z.number(),
+  anchorHighOutputPct: z.number(),
+});
+
+/** Non-linearity as stored before the ISA-51.1 figures (unsigned terminal-based and least squares). */
+export const LegacyNonLinearitySchema = z.object({ terminalBasedPctSpan: z.number(), leastSquaresPctSpan: z.number() });
+
+/**
+ * Results of a run: shared/calc `evaluateCalibration` output, as stored and as served. Fields added
+ * later are optional so that parsing a stored row returns it unchanged (a signed record's hash is
+ * computed over what is stored).
+ */
+export const RunResultsSchema = z.object({
+  points: z.array(ResultPointSchema),
+  /** Absent on results computed before the basis was stored. */
+  errorBasis: ErrorBasisSchema.optional(),
+  hysteresis: z.array(HysteresisResultSchema),
+  maxHysteresisPctSpan: z.number().nullable(),
+  /** Null when fewer than two nominals; the legacy shape on results stored before the ISA-51.1 figures. */
+  nonLinearity: z.union([NonLinearitySchema, LegacyNonLinearitySchema]).nullable(),
+  worstError: z.object({ index: z.number().int(), errorPctSpan: z.number() }).nullable(),
+  overallDecision: DecisionSchema,
+});
+export type RunResults = z.infer<typeof RunResultsSchema>;
+
+/**
+ * Parse a stored or received results value: null stays null; anything else must match the
+ * contract (a mismatch throws, naming the first problem: stored results are never cast).
+ */
+export function parseRunResults(value: unknown): RunResults | null {
+  if (value === null || value === undefined) return null;
+  const r = RunResultsSchema.safeParse(value);
+  if (!r.success) {
+    const i = r.error.issues[0];
+    throw new TypeError(`Stored results do not match the results contract: ${i?.path.join('.') ?? ''} ${i?.message ?? ''}`.trim());
+  }
+  return r.data;
+}
+
+// The calc engine's output is a valid value of the contract, checked by the compiler.
+const _engineFitsContract = (v: EvaluateOutput): z.input<typeof RunResultsSchema> => v;
+void _engineFitsContract;
+
 export const RunSchema = z.object({
   id: z.string(),
   jobId: z.string(),
@@ -110,7 +229,7 @@ export const RunSchema = z.object({
   currentIndex: z.number().int().nullable(),
   points: z.array(RunPointSchema),
   /** Results of shared/calc `evaluateCalibration` over the captured points (null until any is captured). */
-  results: z.unknown().nullable(),
+  results: RunResultsSchema.nullable(),
   /** Mode-check finding. */
   modeCheck: z
     .object({ measuredMa: z.number(), finding: z.enum(['root-in-transmitter', 'linear-output', 'cannot-tell']), matchesRegister: z.boolean() })

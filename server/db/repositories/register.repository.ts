@@ -1,6 +1,7 @@
 import { asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
 import { instruments, jobs, runs, standards, users } from '../schema';
+import { parsedRun } from './run.repository';
 
 export type InstrumentRow = typeof instruments.$inferSelect;
 export type InstrumentInsert = typeof instruments.$inferInsert;
@@ -154,7 +155,7 @@ export function jobRepository(db: Db) {
       return row!;
     },
     async runs(jobId: string): Promise<(typeof runs.$inferSelect)[]> {
-      return db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(asc(runs.startedAt));
+      return (await db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(asc(runs.startedAt))).map(parsedRun);
     },
     async update(id: string, values: Partial<typeof jobs.$inferInsert>): Promise<typeof jobs.$inferSelect | undefined> {
       const [row] = await db

@@ -1,6 +1,7 @@
 import { and, asc, desc, eq, inArray, or, sql, ilike, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
 import { instruments, jobRevisions, jobs, points, runs, samples, signatures, standards, users } from '../schema';
+import { parsedRun } from './run.repository';
 
 export type SignatureRow = typeof signatures.$inferSelect;
 export type SignatureInsert = typeof signatures.$inferInsert;
@@ -27,7 +28,7 @@ export function reviewRepository(db: Db) {
           ),
         )
         .orderBy(asc(points.index));
-      return rs.map((r) => ({ ...r, points: ps.filter((p) => p.runId === r.id) }));
+      return rs.map((r) => ({ ...parsedRun(r), points: ps.filter((p) => p.runId === r.id) }));
     },
 
     async signatures(jobId: string): Promise<SignatureRow[]> {
@@ -141,7 +142,7 @@ export function reviewRepository(db: Db) {
           ),
         )
         .orderBy(asc(runs.startedAt));
-      return js.map((j) => ({ ...j, runs: rs.filter((r) => r.jobId === j.id) }));
+      return js.map((j) => ({ ...j, runs: rs.filter((r) => r.jobId === j.id).map(parsedRun) }));
     },
 
     /** Job ids that are open (not approved) per instrument. */

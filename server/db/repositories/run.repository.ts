@@ -1,9 +1,15 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
+import { parseRunResults } from '../../../shared/schemas/runs';
 import type { Db } from '../client';
 import { points, runs } from '../schema';
 
 export type RunRow = typeof runs.$inferSelect;
 export type PointRow = typeof points.$inferSelect;
+
+/** A run row with its `results` JSON parsed against the results contract (never cast). */
+export function parsedRun<R extends { results: unknown }>(row: R): R & { results: ReturnType<typeof parseRunResults> } {
+  return { ...row, results: parseRunResults(row.results) };
+}
 
 export function runRepository(db: Db) {
   return {
@@ -19,17 +25,18 @@ export function runRepository(db: Db) {
     },
     async get(id: string): Promise<RunRow | undefined> {
       const [row] = await db.select().from(runs).where(eq(runs.id, id)).limit(1);
-      return row;
+      return row ? parsedRun(row) : undefined;
     },
     async forJob(jobId: string): Promise<RunRow[]> {
-      return db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(desc(runs.startedAt));
+      return (await db.select().from(runs).where(eq(runs.jobId, jobId)).orderBy(desc(runs.startedAt))).map(parsedRun);
     },
     async active(): Promise<RunRow[]> {
-      return db
+      const rows = await db
         .select()
         .from(runs)
         .where(inArray(runs.status, ['running', 'paused']))
         .orderBy(asc(runs.startedAt));
+      return rows.map(parsedRun);
     },
     async points(runId: string): Promise<PointRow[]> {
       return db.select().from(points).where(eq(points.runId, runId)).orderBy(asc(points.index));

@@ -1,5 +1,6 @@
 import { and, asc, eq, isNull, ne } from 'drizzle-orm';
 import type { Db } from '../client';
+import { parseSiteSettings, type SiteSettings } from '../../../shared/schemas/settings';
 import { sessions, sites, users } from '../schema';
 
 export type UserRow = typeof users.$inferSelect;
@@ -72,6 +73,11 @@ export function siteRepository(db: Db) {
     async create(values: typeof sites.$inferInsert): Promise<SiteRow> {
       const [row] = await db.insert(sites).values(values).returning();
       return row!;
+    },
+    /** The site's settings parsed with SiteSettingsSchema (defaults where absent or invalid). */
+    async settings(): Promise<SiteSettings> {
+      const [row] = await db.select({ settings: sites.settings }).from(sites).limit(1);
+      return parseSiteSettings(row?.settings);
     },
     async updateSettings(id: string, settings: string): Promise<void> {
       await db.update(sites).set({ settings }).where(eq(sites.id, id));

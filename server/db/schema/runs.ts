@@ -1,4 +1,5 @@
 import { bigint, doublePrecision, index, integer, jsonb, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import type { RunResults } from '../../../shared/schemas/runs';
 import { jobs } from './registers';
 
 export const runs = pgTable(
@@ -12,7 +13,8 @@ export const runs = pgTable(
     status: text('status', { enum: ['running', 'paused', 'complete', 'aborted'] }).notNull().default('running'),
     /** Plan and settings frozen at start (points, window, hold time, limits). */
     plan: jsonb('plan').notNull(),
-    results: jsonb('results'),
+    /** shared/calc EvaluateOutput; read through `parseRunResults` in the repositories. */
+    results: jsonb('results').$type<RunResults | null>(),
     startedBy: uuid('started_by'),
     startedAt: timestamp('started_at', { withTimezone: true }).notNull().defaultNow(),
     endedAt: timestamp('ended_at', { withTimezone: true }),

@@ -14,6 +14,7 @@ export const DECISION_LABEL: Record<string, { label: string; tone: BadgeTone }> 
   pass: { label: 'Pass', tone: 'ok' },
   'conditional-pass': { label: 'Conditional pass', tone: 'warn' },
   'conditional-fail': { label: 'Conditional fail', tone: 'danger' },
+  undecided: { label: 'Undecided', tone: 'warn' },
   fail: { label: 'Fail', tone: 'danger' },
 };
 

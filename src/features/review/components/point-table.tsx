@@ -23,7 +23,7 @@ export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
             <th className="px-3 py-2 text-right">Current (mA)</th>
             <th className="px-3 py-2 text-right">Expected (mA)</th>
             <th className="px-3 py-2 text-right">Error (% span)</th>
-            <th className="px-3 py-2 text-right">U, k=2 (% span)</th>
+            <th className="px-3 py-2 text-right">U (% span; k, ν<sub>eff</sub>)</th>
             <th className="px-3 py-2 text-right">TUR</th>
             <th className="px-3 py-2">Decision</th>
             <th className="px-3 py-2">Flags</th>
@@ -53,9 +53,19 @@ export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
               <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}</td>
               <td className="num px-3 py-2 text-right">{formatNumber(r?.expectedMa ?? p.expectedMa, 4)}</td>
               <td className="num px-3 py-2 text-right">{r ? formatNumber(r.errorPctSpan, 3) : '—'}</td>
-              <td className="num px-3 py-2 text-right">{r?.expandedUncertaintyPctSpan != null ? formatNumber(r.expandedUncertaintyPctSpan, 3) : '—'}</td>
+              <td className="num px-3 py-2 text-right">
+                {r?.expandedUncertaintyPctSpan != null ? formatNumber(r.expandedUncertaintyPctSpan, 3) : '—'}
+                {r?.coverageFactor != null && (
+                  <span className="ml-1 text-xs text-ink-muted">
+                    (k {formatNumber(r.coverageFactor, 2)}, ν {r.effectiveDof == null ? '∞' : formatNumber(r.effectiveDof, 1)})
+                  </span>
+                )}
+              </td>
               <td className="num px-3 py-2 text-right">{r?.tur != null ? formatNumber(r.tur, 1) : '—'}</td>
-              <td className="px-3 py-2">{r ? <Badge tone={DECISION_TONES[r.decision] ?? 'neutral'}>{DECISION_LABELS[r.decision] ?? r.decision}</Badge> : '—'}</td>
+              <td className="px-3 py-2">
+                {r ? <Badge tone={DECISION_TONES[r.decision] ?? 'neutral'}>{DECISION_LABELS[r.decision] ?? r.decision}</Badge> : '—'}
+                {r?.undecided && <span className="ml-1 text-xs text-ink-muted">{r.undecided.message}</span>}
+              </td>
               <td className="px-3 py-2">
                 <div className="flex flex-wrap gap-1">
                   {p.flags.map((f) => (

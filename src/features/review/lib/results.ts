@@ -1,29 +1,11 @@
-import { z } from 'zod';
-import type { Run, RunPoint } from '../../../../shared/schemas/runs';
+import { RunResultsSchema, type ResultPoint, type Run, type RunPoint, type RunResults } from '../../../../shared/schemas/runs';
 
-/** The parts of shared/calc's EvaluateOutput the review shows; anything else is ignored. */
-const PointResultSchema = z.object({
-  nominalPct: z.number(),
-  direction: z.enum(['up', 'down']),
-  appliedDp: z.number(),
-  measuredMa: z.number(),
-  expectedMa: z.number(),
-  errorPctSpan: z.number(),
-  expandedUncertaintyPctSpan: z.number().nullable(),
-  tur: z.number().nullable(),
-  decision: z.string(),
-  acceptanceLimitPctSpan: z.number(),
-});
-const ResultsSchema = z.object({
-  points: z.array(PointResultSchema),
-  maxHysteresisPctSpan: z.number().nullable().optional(),
-  overallDecision: z.string(),
-});
-export type PointResult = z.infer<typeof PointResultSchema>;
-export type RunResults = z.infer<typeof ResultsSchema>;
+export type PointResult = ResultPoint;
+export type { RunResults };
 
+/** A run's results through the one results contract (shared/schemas/runs `RunResultsSchema`). */
 export function parseResults(run: Run): RunResults | null {
-  const r = ResultsSchema.safeParse(run.results);
+  const r = RunResultsSchema.safeParse(run.results);
   return r.success ? r.data : null;
 }
 
@@ -38,12 +20,14 @@ export const DECISION_LABELS: Record<string, string> = {
   pass: 'Pass',
   'conditional-pass': 'Conditional pass',
   'conditional-fail': 'Conditional fail',
+  undecided: 'Undecided',
   fail: 'Fail',
 };
 export const DECISION_TONES: Record<string, 'ok' | 'warn' | 'danger' | 'neutral'> = {
   pass: 'ok',
   'conditional-pass': 'warn',
   'conditional-fail': 'warn',
+  undecided: 'warn',
   fail: 'danger',
 };
 

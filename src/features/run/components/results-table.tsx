@@ -7,6 +7,7 @@ export const DECISION: Record<string, { label: string; tone: BadgeTone }> = {
   pass: { label: 'Pass', tone: 'ok' },
   'conditional-pass': { label: 'Conditional pass', tone: 'warn' },
   'conditional-fail': { label: 'Conditional fail', tone: 'danger' },
+  undecided: { label: 'Undecided', tone: 'warn' },
   fail: { label: 'Fail', tone: 'danger' },
 };
 
@@ -30,7 +31,7 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
               <th scope="col" className="px-3 py-2 text-right">Measured mA</th>
               <th scope="col" className="px-3 py-2 text-right">Error % {rooted ? 'flow span' : 'span'}</th>
               <th scope="col" className="px-3 py-2 text-right">Hysteresis %</th>
-              <th scope="col" className="px-3 py-2 text-right">U (k=2) %</th>
+              <th scope="col" className="px-3 py-2 text-right">U % (k, ν<sub>eff</sub>)</th>
               <th scope="col" className="px-3 py-2 text-right">TUR</th>
               <th scope="col" className="px-3 py-2 text-left">Decision</th>
             </tr>
@@ -49,11 +50,19 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
                   <td className="num px-3 py-2 text-right">{plain(p.expectedMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-ma-${p.index}`}>{plain(p.measuredMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-error-${p.index}`}>{signed(p.errorPctSpan, 3)}</td>
-                  <td className="num px-3 py-2 text-right">{plain(h, 3)}</td>
-                  <td className="num px-3 py-2 text-right">{plain(p.expandedUncertaintyPctSpan, 3)}</td>
+                  <td className="num px-3 py-2 text-right">{signed(h, 3)}</td>
+                  <td className="num px-3 py-2 text-right" data-testid={`result-u-${p.index}`}>
+                    {plain(p.expandedUncertaintyPctSpan, 3)}
+                    {p.coverageFactor != null && (
+                      <span className="ml-1 text-xs text-ink-muted">
+                        (k {formatNumber(p.coverageFactor, 2)}, ν {p.effectiveDof == null ? '∞' : formatNumber(p.effectiveDof, 1)})
+                      </span>
+                    )}
+                  </td>
                   <td className="num px-3 py-2 text-right">{p.tur === null || p.tur === undefined ? '—' : `${formatNumber(p.tur, 1)}:1`}</td>
                   <td className="px-3 py-2" data-testid={`result-decision-${p.index}`} data-decision={p.decision}>
                     <Badge tone={d.tone}>{d.label}</Badge>
+                    {p.undecided && <span className="ml-1 text-xs text-ink-muted">{p.undecided.message}</span>}
                   </td>
                 </tr>
               );

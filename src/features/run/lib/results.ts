@@ -1,53 +1,25 @@
 /**
- * Reading a run's `results` (shared/calc `evaluateCalibration` output, typed `unknown` in the
- * contract) defensively: only the fields the screens show, every one optional or nullable.
+ * A run's `results`, read through the one results contract (shared/schemas/runs
+ * `RunResultsSchema`): the server parses stored results against it, and the client checks again
+ * so that a screen never shows a value of the wrong shape.
  */
-import { z } from 'zod';
+import { RunResultsSchema, type ResultPoint, type RunResults } from '../../../../shared/schemas/runs';
 
-const num = z.number().nullable().optional();
+export { ResultPointSchema, RunResultsSchema } from '../../../../shared/schemas/runs';
+export type { ResultPoint, RunResults };
 
-export const ResultPointSchema = z.object({
-  index: z.number(),
-  nominalPct: z.number(),
-  basis: z.enum(['flow', 'dp']).optional(),
-  direction: z.enum(['up', 'down']),
-  appliedDp: z.number(),
-  appliedDpPct: num,
-  appliedFlowPct: num,
-  expectedMa: z.number(),
-  measuredMa: z.number(),
-  errorPctSpan: z.number(),
-  dpEquivalentError: num,
-  expandedUncertaintyPctSpan: num,
-  tur: num,
-  decision: z.string(),
-  acceptanceLimitPctSpan: num,
-  conformanceProbability: num,
-});
-export type ResultPoint = z.infer<typeof ResultPointSchema>;
-
-export const RunResultsSchema = z.object({
-  points: z.array(ResultPointSchema),
-  hysteresis: z.array(z.object({ nominalPct: z.number().optional(), hysteresisPctSpan: z.number().nullable().optional() }).passthrough()).optional(),
-  maxHysteresisPctSpan: num,
-  worstError: z.object({ index: z.number(), errorPctSpan: z.number() }).nullable().optional(),
-  overallDecision: z.string().nullable().optional(),
-});
-export type RunResults = z.infer<typeof RunResultsSchema>;
-
-/** Results of a run, or null when there are none or they do not have the expected shape. */
+/** Results of a run, or null when there are none or they do not match the contract. */
 export function parseResults(results: unknown): RunResults | null {
   if (results === null || results === undefined) return null;
-  // The server may wrap the calc union ({ ok, value }) or store the value itself.
-  const value = typeof results === 'object' && results !== null && 'ok' in results && 'value' in results ? (results as { value: unknown }).value : results;
-  const parsed = RunResultsSchema.safeParse(value);
+  const parsed = RunResultsSchema.safeParse(results);
   return parsed.success ? parsed.data : null;
 }
 
-/** Hysteresis at a point's nominal, % of span, from the paired up/down readings. */
+/**
+ * Hysteresis at a point's nominal, % of output span: error up − error down at that nominal, as the
+ * calc engine computed it (REFERENCE.md: the errors, each referred to its own applied value, not
+ * the raw mA difference).
+ */
 export function hysteresisAt(results: RunResults, nominalPct: number): number | null {
-  const ups = results.points.filter((p) => p.nominalPct === nominalPct && p.direction === 'up');
-  const downs = results.points.filter((p) => p.nominalPct === nominalPct && p.direction === 'down');
-  if (!ups[0] || !downs[0]) return null;
-  return Math.abs(ups[0].measuredMa - downs[0].measuredMa) / 0.16;
+  return results.hysteresis.find((h) => h.nominalPct === nominalPct)?.hysteresisPctSpan ?? null;
 }
