@@ -156,7 +156,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         const key = `${e.runId}/${e.index}`;
         const value = JSON.stringify([e.state, e.flags]);
         if (storedPoint.get(key) === value) return;
-        await runsRepo.updatePoint(e.runId, e.index, { state: e.state, flags: e.flags });
+        // A point that is not captured holds no capture (a redo clears it); a captured one was stored by point.captured.
+        await runsRepo.updatePoint(e.runId, e.index, e.state === 'captured' ? { state: e.state, flags: e.flags } : { state: e.state, flags: e.flags, capture: null, reason: null });
         storedPoint.set(key, value);
         return;
       }
