@@ -72,7 +72,7 @@ export interface RunServiceDeps {
   runs?: RunRepository;
 }
 
-/** Run events as published so far (not stored: the current point, its hold progress and warnings). */
+/** What the published run events say that is not stored: the current point and the points' latest warnings (live values). */
 interface PublishedView {
   currentIndex: number | null;
   warnings: Map<number, string | null>;
