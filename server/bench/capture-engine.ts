@@ -385,8 +385,9 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
     p.state = 'captured';
-    this.emitPoint(r, p, null);
+    // The capture first: it is stored with the state, so nothing says 'captured' before the capture is stored.
     this.emit('event', { type: 'point.captured', runId: r.s.runId, benchId: r.s.benchId, index: p.plan.index, manual, capture, flags: [...p.flags] });
+    this.emitPoint(r, p, null);
     const next = this.nextUncaptured(r.current!);
     if (next === null) this.finish('complete');
     else {

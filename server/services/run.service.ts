@@ -75,7 +75,7 @@ export interface RunServiceDeps {
   runs?: RunRepository;
 }
 
-/** Run events as published so far (not stored: the current point, its hold progress and warnings). */
+/** What the published run events say that is not stored: the current point and the points' latest warnings (live values). */
 interface PublishedView {
   currentIndex: number | null;
   warnings: Map<number, string | null>;
@@ -159,7 +159,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         const key = `${e.runId}/${e.index}`;
         const value = JSON.stringify([e.state, e.flags]);
         if (storedPoint.get(key) === value) return;
-        await runsRepo.updatePoint(e.runId, e.index, { state: e.state, flags: e.flags });
+        // A point that is not captured holds no capture (a redo clears it); a captured one was stored by point.captured.
+        await runsRepo.updatePoint(e.runId, e.index, e.state === 'captured' ? { state: e.state, flags: e.flags } : { state: e.state, flags: e.flags, capture: null, reason: null });
         storedPoint.set(key, value);
         return;
       }

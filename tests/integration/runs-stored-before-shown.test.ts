@@ -86,6 +86,7 @@ describe('stored before shown', () => {
     const mark = srv.bench.hub.latestSeq;
     await until(() => ws.messages.some((m) => m.type === 'sample.received' && m.seq > mark), 5_000, 'a later sample');
     expect(ws.messages.filter((m) => m.type === 'point.captured' && m.runId === run.id)).toEqual([]);
+    expect(ws.messages.filter((m) => m.type === 'point.changed' && m.runId === run.id && m.state === 'captured')).toEqual([]);
     const meanwhile = await getRun(run.id);
     expect(meanwhile.points[0]!.state).not.toBe('captured');
     expect(meanwhile.points[0]!.capture).toBeNull();
