@@ -206,4 +206,61 @@ describe('SampleWriter', () => {
     await w.stop();
     expect(await later).toMatch(/stopped/);
   });
+  it('sets a damaged journal batch aside at start-up and still replays the intact batches around it', async () => {
+    const journal = journalIn();
+    await journal.open();
+    const rows = (from: number, n: number): JournalRow[] =>
+      Array.from({ length: n }, (_, i) => ({
+        seq: from + i,
+        benchId: 'b1',
+        device: 'current',
+        runId: null,
+        raw: `+${from + i}`,
+        value: from + i,
+        unit: 'mA',
+        wallMs: 1.7e12 + from + i,
+        monoMs: from + i,
+        sourceKind: 'port',
+        sourceId: 'b1',
+        clientWallMs: null,
+      }));
+    await journal.append(rows(1, 3));
+    await journal.append(rows(4, 3));
+    await journal.append(rows(7, 3));
+    await journal.close();
+    const buf = fs.readFileSync(journal.file);
+    const second = buf.indexOf('#batch', 1);
+    buf[buf.indexOf('"+4"', second) + 2] = '9'.charCodeAt(0); // one byte of batch 2 changed
+    fs.writeFileSync(journal.file, buf);
+    const sink = new GatedSink();
+    const damaged: unknown[] = [];
+    const w = new SampleWriter({ sink, journal: new SampleJournal(path.dirname(journal.file)), flushMs: 10_000, onDamaged: (d) => damaged.push(...d) });
+    const started = w.start();
+    await sink.releaseUntil(() => sink.stored.size === 6, 'the replay');
+    expect(await started).toBe(10);
+    expect([...sink.stored.keys()].sort((a, b) => a - b)).toEqual([1, 2, 3, 7, 8, 9]);
+    expect(w.stats.damagedBatches).toBe(1);
+    expect(damaged).toHaveLength(1);
+    expect(fs.readdirSync(path.dirname(journal.file)).filter((f) => f.includes('.damaged-'))).toHaveLength(2); // the bytes and their description
+    await w.stop();
+  });
+
+  it('backs off between timer-driven retries and reports how long it has been failing', async () => {
+    const sink = new GatedSink();
+    let wall = 1_000_000;
+    const w = new SampleWriter({ sink, journal: journalIn(), flushMs: 10, maxBackoffMs: 80, wallNow: () => wall });
+    await w.start();
+    sink.failNext = 3;
+    w.consume(entries(1, 5));
+    await sink.releaseUntil(() => w.stats.failures === 1, 'the first failure');
+    expect(w.stats.failingSinceMs).toBe(1_000_000);
+    wall += 5000;
+    // Without backoff the 10 ms timer would try about 30 times in 300 ms; doubling to 80 ms allows a handful.
+    const t0 = performance.now();
+    await sink.releaseUntil(() => w.stats.storedSeq === 5, 'the retries');
+    expect(w.stats.failures).toBe(3);
+    expect(performance.now() - t0).toBeGreaterThanOrEqual(20 + 40 - 5);
+    expect(w.stats).toMatchObject({ consecutiveFailures: 0, failingSinceMs: null, lastFailure: { message: 'disk full (test)', atMs: 1_005_000 } });
+    await w.stop();
+  });
 });

@@ -14,6 +14,8 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
 import { SampleJournal, type JournalRow } from '../../server/bench/journal';
+import { BenchStatusSchema } from '../../src/features/bench/api/get-bench';
+import { StorageReviewSchema } from '../../src/features/bench/api/storage';
 import { journalDirOf } from '../../server/services/bench.service';
 import { startServerProcess, randomPort, type ServerProcess } from '../helpers/proof-process';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
@@ -99,7 +101,10 @@ describe('storage edges on one server (in-process)', () => {
     expect(h.body).toMatchObject({ ok: false, status: 'degraded', writer: { ok: false, quarantined: { unacknowledged: 1 } } });
     expect((h.body.reasons as string[]).join(' ')).toMatch(/quarantined/);
 
-    const review = (await tech.get('/api/bench/storage')).body as { quarantine: { unacknowledged: number; items: { seq: number; reason: string; preview: string; raw: string }[] } };
+    const reviewBody = (await tech.get('/api/bench/storage')).body;
+    expect(StorageReviewSchema.safeParse(reviewBody).success).toBe(true); // the Bench page's contract
+    expect(BenchStatusSchema.parse((await tech.get('/api/bench')).body).storage?.quarantined.unacknowledged).toBe(1);
+    const review = reviewBody as { quarantine: { unacknowledged: number; items: { seq: number; reason: string; preview: string; raw: string }[] } };
     expect(review.quarantine.unacknowledged).toBe(1);
     expect(review.quarantine.items[0]).toMatchObject({ seq: bad.seq, raw: 'A\u0000B', preview: 'A\\x00B' });
     expect(review.quarantine.items[0]!.reason).toMatch(/22021/);

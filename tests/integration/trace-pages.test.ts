@@ -20,6 +20,8 @@ interface Item {
   value: number | null;
   unit: string | null;
   raw: string;
+  source: { kind: string; id: string };
+  clientWallMs: number | null;
 }
 
 let srv: TestServer;
@@ -39,10 +41,16 @@ beforeAll(async () => {
     const value = i === 7 ? 'NaN' : i === 8 ? null : String(i / 3);
     const raw = i === 5 ? 'quote " back\\slash tab\t' : `DP +${i}`;
     const unit = i === 9 ? null : 'mA';
-    values.push(`(${seq}, 'bench-t', '${device}', '${RUN}', '${raw.replaceAll("'", "''")}', ${value === null ? 'NULL' : `'${value}'::float8`}, ${unit === null ? 'NULL' : `'${unit}'`}, ${wallMs}, ${i})`);
-    expected.push({ seq, device, wallMs, value: value === null || value === 'NaN' ? null : Number(value), unit, raw });
+    // Every fifth line forwarded by a browser (the user's id, the sender's clock); the rest from the
+    // bench's own port, some as stored before the source was kept (no source id: the bench's).
+    const browser = i % 5 === 0;
+    const source = browser ? { kind: 'browser', id: 'user-7' } : { kind: 'port', id: 'bench-t' };
+    const clientWallMs = browser ? wallMs - 12.5 : null;
+    const sourceSql = browser ? `'browser', 'user-7', ${clientWallMs}` : i % 5 === 1 ? `'port', NULL, NULL` : `'port', 'bench-t', NULL`;
+    values.push(`(${seq}, 'bench-t', '${device}', '${RUN}', '${raw.replaceAll("'", "''")}', ${value === null ? 'NULL' : `'${value}'::float8`}, ${unit === null ? 'NULL' : `'${unit}'`}, ${wallMs}, ${i}, ${sourceSql})`);
+    expected.push({ seq, device, wallMs, value: value === null || value === 'NaN' ? null : Number(value), unit, raw, source, clientWallMs });
   }
-  await srv.database.exec(`INSERT INTO samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms) VALUES ${values.join(',')}`);
+  await srv.database.exec(`INSERT INTO samples (seq, bench_id, device, run_id, raw, value, unit, wall_ms, mono_ms, source_kind, source_id, client_wall_ms) VALUES ${values.join(',')}`);
   expected.sort((a, b) => a.wallMs - b.wallMs || a.seq - b.seq);
 }, 60_000);
 

@@ -7,6 +7,7 @@ import { useMe } from '../../features/auth/api/get-me';
 import { benchQueryOptions, useBench } from '../../features/bench/api/get-bench';
 import { DevicePanels } from '../../features/bench/components/device-panels';
 import { SimControls } from '../../features/bench/components/sim-controls';
+import { StoragePanel } from '../../features/bench/components/storage-panel';
 import { WebSerialPanel } from '../../features/bench/components/web-serial-panel';
 import { useLiveStream, useLiveStreamNotice } from '../../lib/live-stream';
 import { RouteErrorBoundary } from './route-error';
@@ -45,6 +46,7 @@ export function Component() {
       ) : (
         <div className="flex flex-col gap-6">
           <DevicePanels status={bench.data} />
+          <StoragePanel status={bench.data} canAcknowledge={me?.role === 'admin' || me?.role === 'lead'} />
           <p className="text-sm text-ink-muted">
             Sequence <span className="num text-ink">{bench.data.latestSeq}</span>, stored up to <span className="num text-ink">{bench.data.storedSeq ?? '—'}</span>. Port roles and protocol
             profiles are set in the server&apos;s configuration (<span className="num">BENCH_PRESSURE_PORT</span>, <span className="num">BENCH_CURRENT_PORT</span>); this server offers no

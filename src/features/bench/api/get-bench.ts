@@ -6,6 +6,8 @@ import { queryKeys } from '../../../lib/query-keys';
 const Counters = z.object({
   samples: z.number(),
   badLines: z.number(),
+  /** Forwarded lines refused at the edge (control characters, overlong); absent from older servers. */
+  edgeRefused: z.number().optional(),
   lastWallMs: z.number().nullable(),
   lastValue: z.number().nullable(),
   lastUnit: z.string().nullable(),
@@ -41,6 +43,14 @@ export const BenchStatusSchema = z
     latestSeq: z.number(),
     ackedSeq: z.number().nullable().optional(),
     storedSeq: z.number().nullable().optional(),
+    /** Samples not stored as received: refused at the edge, quarantined by the writer, damaged journal batches set aside. */
+    storage: z
+      .object({
+        edgeRefused: z.number(),
+        quarantined: z.object({ total: z.number(), unacknowledged: z.number() }),
+        damagedBatches: z.object({ total: z.number(), unacknowledged: z.number() }),
+      })
+      .optional(),
     benches: z.array(
       z
         .object({

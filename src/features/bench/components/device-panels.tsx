@@ -56,6 +56,12 @@ export function DevicePanels({ status }: { status: BenchStatus }) {
                     <dd className="num text-ink">{c?.samples ?? 0}</dd>
                     <dt className="text-ink-muted">Bad lines</dt>
                     <dd className={cn('num', (c?.badLines ?? 0) > 0 ? 'text-warn' : 'text-ink')}>{c?.badLines ?? 0}</dd>
+                    {(c?.edgeRefused ?? 0) > 0 && (
+                      <>
+                        <dt className="text-ink-muted">Refused at the edge</dt>
+                        <dd className="num text-warn">{c?.edgeRefused}</dd>
+                      </>
+                    )}
                     {q && (
                       <>
                         <dt className="text-ink-muted">Timeouts</dt>
