@@ -3,7 +3,9 @@
  * autopilot driving a capture, is killed with SIGKILL `kills` times and started again on the same
  * data directory. A viewer records every (epoch, seq, message) it sees, resumes with its last seq
  * and epoch once within each epoch (which must be served without a reset) and after every restart
- * (which must be answered with `stream.reset`, reason `epoch`). Nothing here asserts: it returns
+ * (which must be answered with `stream.reset`, reason `epoch`); after each restart it also
+ * re-reads the stored samples over HTTP from a little before the last seq it saw, and resumes in
+ * the new epoch from there. Nothing here asserts: it returns
  * what it saw, and the callers (tests/proof/stream-epochs.test.ts, 20 kills;
  * tests/integration/stream-epochs-sigkill.test.ts, 2 kills) check that no seq ever named two
  * different messages.
@@ -42,6 +44,8 @@ export interface EpochsOutcome {
   restartAnswers: string[];
   /** Resumes within an epoch answered with a reset (should be none). */
   resetsWithinEpoch: number;
+  /** Resumes in a new epoch from before its start that were answered with a reset (more than one replay back). */
+  deepResets: number;
   /** The first seq of each epoch was above every seq seen before it. */
   numberingRose: boolean;
   minutes: number;
@@ -88,12 +92,23 @@ export async function killAndResume(o: { kills: number; seed: number; log?: (lin
   const restartAnswers: string[] = [];
   let sightings = 0;
   let resetsWithinEpoch = 0;
+  let deepResets = 0;
   let numberingRose = true;
   let last: { since: number; epoch: string } | undefined;
   let maxSeen = 0;
   /** Every seq of a new epoch must be above `floor`, the highest seen before it started. */
   let floor = { epoch: '', seq: 0, pending: false };
-  const record = (m: StreamMessage) => {
+  /** Records a message; `side` messages (a second look) leave the viewer's resume point alone. */
+  const record = (m: StreamMessage, side?: { epoch: string }) => {
+    if (side) {
+      if (m.type === 'stream.opened' || m.type === 'stream.reset') return;
+      sightings++;
+      const what = identity(m);
+      const before = seen.get(m.seq);
+      if (!before) seen.set(m.seq, { epoch: side.epoch, what });
+      else if (before.what !== what) clashes.push({ seq: m.seq, first: before, then: { epoch: side.epoch, what } });
+      return;
+    }
     if (m.type === 'stream.opened' || m.type === 'stream.reset') {
       last = { since: m.seq, epoch: m.epoch };
       if (floor.pending) floor = { epoch: m.epoch, seq: floor.seq, pending: false };
@@ -142,6 +157,27 @@ export async function killAndResume(o: { kills: number; seed: number; log?: (lin
       if (round > 0) {
         const answer = v.first[1];
         restartAnswers.push(answer?.type === 'stream.reset' ? `reset:${answer.reason}` : (answer?.type ?? 'nothing'));
+        // After the reset the client re-reads over HTTP: the stored samples from a little before the
+        // last seq it saw must say what the stream said for every seq it had seen.
+        const back = Math.max(0, floor.seq - 2000);
+        let after = back;
+        for (let page = 0; page < 4; page++) {
+          const items = (await t.get(`/api/bench/samples?after=${after}&limit=5000`)).body.items as { seq: number; benchId: string; device: 'pressure' | 'current'; wallMs: number; raw: string }[];
+          for (const r of items) record({ type: 'sample.received', seq: r.seq, benchId: r.benchId, device: r.device, wallMs: r.wallMs, raw: r.raw, value: null, unit: null, runId: null }, { epoch: `${opened.epoch}/http` });
+          if (items.length < 5000) break;
+          after = items[items.length - 1]!.seq;
+        }
+        // And a resume in the new epoch from there (served if within one replay, else reset): the same holds.
+        const latestNow = ((await t.get('/api/bench')).body as { latestSeq: number }).latestSeq;
+        let caughtUp = false;
+        const deep = openViewer(s.base, tech, { since: back, epoch: opened.epoch }, (m) => {
+          if (m.type === 'stream.reset' || (m.type !== 'stream.opened' && m.seq >= latestNow)) caughtUp = true;
+          record(m, { epoch: `${opened.epoch}/resume` });
+        });
+        await deep.opened;
+        for (let i = 0; i < 500 && !caughtUp; i++) await sleep(20);
+        if (deep.first[1]?.type === 'stream.reset') deepResets++;
+        deep.ws.terminate();
       }
       if (round === o.kills) {
         v.ws.terminate();
@@ -187,6 +223,7 @@ export async function killAndResume(o: { kills: number; seed: number; log?: (lin
     clashes,
     restartAnswers,
     resetsWithinEpoch,
+    deepResets,
     numberingRose,
     minutes: Number(((Date.now() - t0) / 60_000).toFixed(1)),
   };
