@@ -15,6 +15,7 @@ import {
   SLOPE_SIGNIFICANCE,
   type HoldSettings,
   type PlanPoint,
+  type TypeAOfMean,
 } from '../../shared/calc';
 import type { PointCapture, PointFlag, PointState } from '../../shared/schemas/runs';
 import type { HubEntry } from './hub';
@@ -286,7 +287,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     }
     if (p.state === 'approaching' || p.state === 'waiting') {
       this.invalidateHold(r);
-      r.hold = new HoldAnalyzer(r.holdSettings);
+      r.hold = new HoldAnalyzer({ ...r.holdSettings, maPerDpUnit: p.plan.maPerDpUnit });
       r.settlingSinceMs = tMs;
       this.setState(r, p, 'settling');
     }
@@ -373,6 +374,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       leakRatePctSpanPerMin: Number.isFinite(h.leakRatePctSpanPerMin) ? h.leakRatePctSpanPerMin : null,
       manualReason: reason,
       capturedBy: by,
+      typeA: typeAOfCapture(r.hold!.typeA()),
     };
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
@@ -475,4 +477,9 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
 
 function round(x: number): number {
   return Math.round(x * 1e4) / 1e4;
+}
+
+/** The hold's Type A of the mean error as the capture stores it (mA). */
+function typeAOfCapture(a: TypeAOfMean | undefined): PointCapture['typeA'] {
+  return a ? { uMa: a.u, sdMa: a.sd, n: a.n, nEff: a.nEff, dof: a.dof, method: a.method } : null;
 }

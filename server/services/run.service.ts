@@ -228,6 +228,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         appliedDpSd: x.capture!.appliedDpSd,
         measuredMaSd: x.capture!.measuredMaSd,
         n: x.capture!.n,
+        typeA: x.capture!.typeA ? { uMa: x.capture!.typeA.uMa, dof: x.capture!.typeA.dof } : null,
       })),
     });
     return r.ok ? { results: r.value, problem: null, modeCheck } : { results: null, problem: r.reason, modeCheck };

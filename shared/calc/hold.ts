@@ -98,6 +98,116 @@ export class ChannelAccumulator {
   }
 }
 
+/**
+ * Type A standard uncertainty of the mean of an autocorrelated series.
+ *
+ * Method: the effective number of observations from the sample autocorrelation, after N. F. Zhang,
+ * "Calculation of the uncertainty of the mean of autocorrelated measurements", Metrologia 43
+ * (2006) S276–S281. For a stationary series, Var(ȳ) = (σ²/n)·γ with
+ * γ = 1 + 2·Σ_{k=1}^{n−1}(1 − k/n)·ρ_k and E[s²] = σ²·(n − γ)/(n − 1); so with n_eff = n/γ the
+ * unbiased estimate is u²(ȳ) = s²·(n − 1)/(n·(n_eff − 1)), which is s²/n for independent readings
+ * (these two identities are derived in the paper and can be checked by hand). The sum uses the
+ * sample autocorrelations ρ̂_k up to the first lag that is not significant, |ρ̂_k| ≤ 2·√(v_k) with
+ * Bartlett's variance v_k = (1 + 2·Σ_{i<k} ρ̂_i²)/n (Box & Jenkins), and at most n/4 lags; the cut
+ * and the degrees of freedom ν = n_eff − 1 are our reading of the paper, stated from memory.
+ * n_eff is kept within [2, n].
+ */
+export interface TypeAOfMean {
+  /** Standard uncertainty of the mean, unit of the series. */
+  u: number;
+  /** Sample standard deviation of the series. */
+  sd: number;
+  /** Observations used. */
+  n: number;
+  /** Effective number of observations (n for independent readings). */
+  nEff: number;
+  /** Degrees of freedom, n_eff − 1. */
+  dof: number;
+  /** Lags summed in γ. */
+  lags: number;
+  method: 'zhang-2006-effective-n';
+}
+
+/** {@link TypeAOfMean} of a series (≥ 3 values); `undefined` for fewer. O(n·lags). */
+export function typeAOfMean(y: ArrayLike<number>, length = y.length): TypeAOfMean | undefined {
+  const n = length;
+  if (n < 3) return undefined;
+  let mean = 0;
+  for (let i = 0; i < n; i++) mean += y[i]!;
+  mean /= n;
+  let c0 = 0;
+  for (let i = 0; i < n; i++) c0 += (y[i]! - mean) ** 2;
+  const sd = Math.sqrt(c0 / (n - 1));
+  if (c0 === 0) return { u: 0, sd: 0, n, nEff: n, dof: n - 1, lags: 0, method: 'zhang-2006-effective-n' };
+  let gamma = 1;
+  let sumSq = 0;
+  let lags = 0;
+  const maxLag = Math.floor(n / 4);
+  for (let k = 1; k <= maxLag; k++) {
+    let ck = 0;
+    for (let i = 0; i + k < n; i++) ck += (y[i]! - mean) * (y[i + k]! - mean);
+    const rho = ck / c0;
+    if (Math.abs(rho) <= 2 * Math.sqrt((1 + 2 * sumSq) / n)) break;
+    gamma += 2 * (1 - k / n) * rho;
+    sumSq += rho * rho;
+    lags = k;
+  }
+  const nEff = Math.min(n, Math.max(2, n / Math.max(gamma, 1e-12)));
+  const u = sd * Math.sqrt((n - 1) / (n * (nEff - 1)));
+  return { u, sd, n, nEff, dof: nEff - 1, lags, method: 'zhang-2006-effective-n' };
+}
+
+/**
+ * A series kept in bounded memory, O(1) amortised per value: values are stored as they come until
+ * `capacity`, then adjacent pairs are averaged and later values go in blocks twice as long (block
+ * means of a stationary series are again stationary, so the Type A of the mean can be evaluated
+ * on them; the incomplete last block is left out of that evaluation).
+ */
+export class BoundedSeries {
+  private buf: Float64Array;
+  private len = 0;
+  private block = 1;
+  private partialSum = 0;
+  private partialN = 0;
+
+  constructor(private readonly capacity = 1 << 16) {
+    this.buf = new Float64Array(Math.min(capacity, 1024));
+  }
+
+  push(v: number): void {
+    this.partialSum += v;
+    if (++this.partialN < this.block) return;
+    const m = this.partialSum / this.block;
+    this.partialSum = 0;
+    this.partialN = 0;
+    if (this.len === this.buf.length) {
+      const next = new Float64Array(Math.min(this.capacity, this.buf.length * 2));
+      next.set(this.buf);
+      this.buf = next;
+    }
+    this.buf[this.len++] = m;
+    if (this.len === this.capacity) {
+      // Full: average adjacent pairs; later values go in blocks twice as long.
+      const half = this.len >> 1;
+      for (let i = 0; i < half; i++) this.buf[i] = 0.5 * (this.buf[2 * i]! + this.buf[2 * i + 1]!);
+      this.len = half;
+      this.block *= 2;
+    }
+  }
+
+  clear(): void {
+    this.len = 0;
+    this.block = 1;
+    this.partialSum = 0;
+    this.partialN = 0;
+  }
+
+  /** Stored values (block means once the capacity was reached) and the block length. */
+  get values(): { data: Float64Array; length: number; block: number } {
+    return { data: this.buf, length: this.len, block: this.block };
+  }
+}
+
 /** Hold settings. Defaults are product defaults / common practice. */
 export interface HoldSettings {
   /** |URV − LRV| of the DP channel, instrument unit. Required. */
@@ -118,6 +228,12 @@ export interface HoldSettings {
   minSamples?: number;
   /** Minimum DP duration before a leak is called, ms (the slope is too noisy before). Default 5 000. */
   leakMinDurationMs?: number;
+  /**
+   * Sensitivity dI/dP at the point, mA per instrument unit (shared/calc `sensitivityMaPerUnit`).
+   * When given, the analyser keeps the per-reading error series e = I − c·(P − P₀), each current
+   * paired with the latest applied DP, for {@link HoldAnalyzer.typeA}.
+   */
+  maPerDpUnit?: number;
 }
 
 /** Default hold settings (product defaults / common practice). */
@@ -163,27 +279,52 @@ export const SLOPE_SIGNIFICANCE = 2;
 export class HoldAnalyzer {
   readonly dp = new ChannelAccumulator();
   readonly ma = new ChannelAccumulator();
-  private readonly s: Required<Omit<HoldSettings, 'leakLimitUnitPerMin'>> & { leakLimitUnitPerMin: number | undefined };
+  private readonly s: Required<Omit<HoldSettings, 'leakLimitUnitPerMin' | 'maPerDpUnit'>> & { leakLimitUnitPerMin: number | undefined; maPerDpUnit: number | undefined };
+  private readonly errors = new BoundedSeries();
+  private lastDp: number | undefined;
+  private dp0 = 0;
 
   constructor(settings: HoldSettings) {
     if (!(settings.dpSpan > 0)) throw new RangeError('dpSpan must be > 0');
-    this.s = { ...DEFAULT_HOLD_SETTINGS, ...settings, leakLimitUnitPerMin: settings.leakLimitUnitPerMin };
+    this.s = { ...DEFAULT_HOLD_SETTINGS, ...settings, leakLimitUnitPerMin: settings.leakLimitUnitPerMin, maPerDpUnit: settings.maPerDpUnit };
   }
 
   /** Add an applied-DP sample (ms, instrument unit). */
   pushDp(tMs: number, value: number): void {
+    if (this.lastDp === undefined) this.dp0 = value;
+    this.lastDp = value;
     this.dp.push(tMs, value);
   }
 
   /** Add a current sample (ms, mA). */
   pushMa(tMs: number, value: number): void {
     this.ma.push(tMs, value);
+    const c = this.s.maPerDpUnit;
+    if (c !== undefined && this.lastDp !== undefined) this.errors.push(value - c * (this.lastDp - this.dp0));
   }
 
   /** Restart the hold (stability lost, device reconnected, new point). */
   reset(): void {
     this.dp.reset();
     this.ma.reset();
+    this.errors.clear();
+    this.lastDp = undefined;
+  }
+
+  /**
+   * Type A standard uncertainty of the mean error over the hold, mA, from the per-reading error
+   * series (Zhang 2006 effective n, see {@link TypeAOfMean}); `undefined` without `maPerDpUnit`
+   * or with fewer than three readings. Why the error series: the current follows the applied DP,
+   * so the scatter of the two channels is correlated (GUM 5.2); the error series carries exactly
+   * the part of the scatter that is the instrument's, and its autocorrelation is what GUM 4.2.7
+   * warns of. Call it once, at capture: it is O(n·lags).
+   */
+  typeA(): TypeAOfMean | undefined {
+    const { data, length, block } = this.errors.values;
+    const r = typeAOfMean(data, length);
+    if (!r || block === 1) return r;
+    // Block means: the readings behind them are `block` times as many.
+    return { ...r, n: r.n * block, nEff: r.nEff };
   }
 
   /** Verdict from the samples so far. */
