@@ -210,3 +210,65 @@ describe('Type A of the mean of autocorrelated readings (Zhang, Metrologia 43 (2
     expect(Array.from(v.data.slice(0, v.length))).toEqual([1.5, 5.5, 9.5, 13.5, 17.5]);
   });
 });
+
+describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)', () => {
+  // Synthetic traces, 10 Hz, 0–100 kPa span, leak limit 0.1 % of span/min = 0.1 kPa/min (the
+  // default), white noise σ = 0.001 kPa (seeded). Relaxation after a step: 50 + A·exp(−t/τ) with
+  // A = 0.5 kPa; thermal relaxation with τ of tens of seconds is common practice.
+  function noise(seed: number) {
+    let a = seed >>> 0;
+    const u = () => {
+      a = (a + 0x6d2b79f5) >>> 0;
+      let t = a;
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    };
+    return () => 0.001 * Math.sqrt(-2 * Math.log(u() + 1e-300)) * Math.cos(2 * Math.PI * u());
+  }
+  const LIMIT = 0.1; // kPa/min
+  function run(trace: (tS: number) => number, seconds: number, seed: number, check: (r: ReturnType<HoldAnalyzer['result']>, tS: number) => void) {
+    const h = new HoldAnalyzer({ dpSpan: 100 });
+    const e = noise(seed);
+    for (let i = 0; i <= seconds * 10; i++) {
+      const tS = i / 10;
+      h.pushDp(i * 100, trace(tS) + e());
+      h.pushMa(i * 100, 12);
+      check(h.result(), tS);
+    }
+  }
+  for (const tau of [1, 5, 10, 30, 60]) {
+    it(`relaxation τ = ${tau} s is never flagged as a leak`, () => {
+      let relaxationSeen = false;
+      run(
+        (t) => 50 + 0.5 * Math.exp(-t / tau),
+        300,
+        tau,
+        (r) => {
+          // Never flagged; a decay lost in the noise may read as a trend, but only below the limit.
+          expect(r.trend.leakBeyondLimit).toBe(false);
+          if (r.trend.kind === 'leak') expect(Math.abs(r.trend.ratePerMin)).toBeLessThanOrEqual(LIMIT);
+          if (r.trend.kind === 'relaxation') relaxationSeen = true;
+        },
+      );
+      // A slow relaxation is recognised as such while its slope is measurable.
+      if (tau >= 10) expect(relaxationSeen).toBe(true);
+    });
+  }
+  for (const f of [0.2, 0.5, 1, 2, 5]) {
+    it(`a leak of ${f} × the limit is always flagged once three sub-windows are in, rate within 10 %`, () => {
+      const rate = f * LIMIT; // kPa/min
+      run(
+        (t) => 50 - (rate * t) / 60,
+        120,
+        100 + f * 10,
+        (r, t) => {
+          if (t < 30.1) return; // three 10 s sub-windows
+          expect(r.trend.kind).toBe('leak');
+          expect(Math.abs(-r.trend.ratePerMin - rate) / rate).toBeLessThan(0.1);
+          if (f !== 1) expect(r.trend.leakBeyondLimit).toBe(f > 1);
+        },
+      );
+    });
+  }
+});

@@ -75,6 +75,11 @@ export class ChannelAccumulator {
     return this.n;
   }
 
+  /** Raw moments for merging windows (Chan et al.'s pairwise update): mean time is absolute, ms. */
+  moments(): { n: number; meanT: number; meanY: number; m2t: number; m2y: number; cty: number } {
+    return { n: this.n, meanT: this.t0 + this.meanT, meanY: this.meanY, m2t: this.m2t, m2y: this.m2y, cty: this.cty };
+  }
+
   /** Current statistics. */
   stats(): ChannelStats {
     const n = this.n;
@@ -234,7 +239,39 @@ export interface HoldSettings {
    * paired with the latest applied DP, for {@link HoldAnalyzer.typeA}.
    */
   maPerDpUnit?: number;
+  /** Length of each sub-window of the leak-versus-relaxation test, ms. Default 10 000 (product default). */
+  trendWindowMs?: number;
 }
+
+/**
+ * Leak versus relaxation, from the DP slopes of the last three completed sub-windows s₁, s₂, s₃
+ * (each fitted by least squares over `trendWindowMs`).
+ *
+ * A leak is a trend that persists at a near-constant rate; thermal relaxation of the gas in the
+ * tubing after a step decays exponentially, so its sub-window slopes fall geometrically,
+ * s₂/s₁ = s₃/s₂ = exp(−W/τ). Criterion (product choice, stated here): with S the least-squares
+ * slope over the three sub-windows together, the trend is `none` unless |S| exceeds 2 standard
+ * errors; it is `relaxation` when the rate decays both significantly (s₁ − s₃, in the direction of
+ * the trend, beyond 2 standard errors of the difference) and materially (s₃/s₁ < 0.8: a slower
+ * decay over 2W means τ > 2W/ln(1/0.8) ≈ 9·W, 90 s at the default W = 10 s, which no longer
+ * settles within a hold); otherwise it is a `leak` with rate S. A relaxation whose decay is lost
+ * in the noise reads as a leak at its current (small) rate; only a leak beyond the leak limit is
+ * flagged (`leakBeyondLimit`).
+ */
+export interface TrendVerdict {
+  kind: 'none' | 'relaxation' | 'leak' | 'undetermined';
+  /** Persistent rate for a leak (slope over the three sub-windows), else the latest sub-window slope; instrument unit per minute. */
+  ratePerMin: number;
+  /** The same, % of DP span per minute. */
+  ratePctSpanPerMin: number;
+  /** s₃/s₁; null before three sub-windows. */
+  decayRatio: number | null;
+  /** Completed sub-windows so far. */
+  windows: number;
+}
+
+/** The s₃/s₁ ratio at or above which a significant trend counts as persistent (a leak). */
+export const LEAK_PERSISTENCE_RATIO = 0.8;
 
 /** Default hold settings (product defaults / common practice). */
 export const DEFAULT_HOLD_SETTINGS = {
@@ -245,6 +282,7 @@ export const DEFAULT_HOLD_SETTINGS = {
   leakLimitPctSpanPerMin: 0.1,
   minSamples: 5,
   leakMinDurationMs: 5_000,
+  trendWindowMs: 10_000,
 } as const;
 
 /** Hold verdict. */
@@ -267,6 +305,11 @@ export interface HoldResult {
   capturable: boolean;
   /** Why not stable or capturable (empty when capturable). */
   reasons: string[];
+  /**
+   * Leak versus relaxation over the last three sub-windows (see {@link TrendVerdict}); `leakBeyondLimit`
+   * is a leak whose rate exceeds the leak limit.
+   */
+  trend: TrendVerdict & { leakBeyondLimit: boolean };
 }
 
 /**
@@ -281,6 +324,10 @@ export class HoldAnalyzer {
   readonly ma = new ChannelAccumulator();
   private readonly s: Required<Omit<HoldSettings, 'leakLimitUnitPerMin' | 'maPerDpUnit'>> & { leakLimitUnitPerMin: number | undefined; maPerDpUnit: number | undefined };
   private readonly errors = new BoundedSeries();
+  private readonly sub = new ChannelAccumulator();
+  private subStart = 0;
+  private subSlopes: { slope: number; se: number; m: ReturnType<ChannelAccumulator['moments']> }[] = [];
+  private subWindows = 0;
   private lastDp: number | undefined;
   private dp0 = 0;
 
@@ -294,6 +341,16 @@ export class HoldAnalyzer {
     if (this.lastDp === undefined) this.dp0 = value;
     this.lastDp = value;
     this.dp.push(tMs, value);
+    if (this.sub.count === 0) this.subStart = tMs;
+    else if (tMs - this.subStart >= this.s.trendWindowMs) {
+      const st = this.sub.stats();
+      if (this.subSlopes.length === 3) this.subSlopes.shift();
+      this.subSlopes.push({ slope: st.slopePerMin, se: st.slopeSePerMin, m: this.sub.moments() });
+      this.subWindows++;
+      this.sub.reset();
+      this.subStart = tMs;
+    }
+    this.sub.push(tMs, value);
   }
 
   /** Add a current sample (ms, mA). */
@@ -309,6 +366,50 @@ export class HoldAnalyzer {
     this.ma.reset();
     this.errors.clear();
     this.lastDp = undefined;
+    this.sub.reset();
+    this.subSlopes = [];
+    this.subWindows = 0;
+  }
+
+  /** Leak versus relaxation from the last three sub-window slopes (see {@link TrendVerdict}). */
+  trend(): TrendVerdict {
+    const pct = (x: number) => (x / this.s.dpSpan) * 100;
+    const w = this.subSlopes;
+    const last = w[w.length - 1];
+    if (w.length < 3 || !last) {
+      const r = last?.slope ?? 0;
+      return { kind: 'undetermined', ratePerMin: r, ratePctSpanPerMin: pct(r), decayRatio: null, windows: this.subWindows };
+    }
+    const [a, , c] = w as [(typeof w)[number], (typeof w)[number], (typeof w)[number]];
+    // Least-squares slope over the three sub-windows together (moments merged pairwise).
+    let n = 0;
+    let mt = 0;
+    let my = 0;
+    let m2t = 0;
+    let m2y = 0;
+    let cty = 0;
+    for (const x of w) {
+      const nb = x.m.n;
+      const N = n + nb;
+      const dt = x.m.meanT - mt;
+      const dy = x.m.meanY - my;
+      m2t += x.m.m2t + (dt * dt * n * nb) / N;
+      m2y += x.m.m2y + (dy * dy * n * nb) / N;
+      cty += x.m.cty + (dt * dy * n * nb) / N;
+      mt += (dt * nb) / N;
+      my += (dy * nb) / N;
+      n = N;
+    }
+    const slope = m2t > 0 ? (cty / m2t) * MS_PER_MIN : 0;
+    const se = n > 2 && m2t > 0 ? Math.sqrt(Math.max(0, m2y - (cty * cty) / m2t) / (n - 2) / m2t) * MS_PER_MIN : Infinity;
+    const ratio = a.slope !== 0 ? c.slope / a.slope : 0;
+    // Decay: the first sub-window slope exceeds the last, in the direction of the trend, by more
+    // than SLOPE_SIGNIFICANCE standard errors of their difference.
+    const decaying = Math.sign(slope) * (a.slope - c.slope) > SLOPE_SIGNIFICANCE * Math.hypot(a.se, c.se);
+    let kind: TrendVerdict['kind'] = 'none';
+    if (Number.isFinite(se) && Math.abs(slope) > SLOPE_SIGNIFICANCE * se) kind = decaying && ratio < LEAK_PERSISTENCE_RATIO ? 'relaxation' : 'leak';
+    const rate = kind === 'leak' ? slope : c.slope;
+    return { kind, ratePerMin: rate, ratePctSpanPerMin: pct(rate), decayRatio: ratio, windows: this.subWindows };
   }
 
   /**
@@ -352,7 +453,9 @@ export class HoldAnalyzer {
     const durationMs = Math.min(dp.durationMs, ma.durationMs);
     const holdComplete = durationMs >= s.holdTimeMs;
     if (!holdComplete) reasons.push('hold time not reached');
+    const trend = this.trend();
     return {
+      trend: { ...trend, leakBeyondLimit: trend.kind === 'leak' && Math.abs(trend.ratePerMin) > leakLimit },
       dp,
       ma,
       durationMs,
