@@ -29,7 +29,9 @@ export async function run(): Promise<BenchFigure[]> {
     dp[i] = 50 + (seed / 4294967296 - 0.5) * 0.01;
     ma[i] = 12 + (seed / 4294967296 - 0.5) * 0.002;
   }
-  const h = new HoldAnalyzer({ dpSpan: 100 });
+  // With the sensitivity set, every current sample also feeds the per-reading error series, and the
+  // Type A of the mean (Zhang 2006 effective n) and the leak/relaxation verdict are evaluated at the end.
+  const h = new HoldAnalyzer({ dpSpan: 100, maPerDpUnit: 0.16 });
   // warm-up
   for (let i = 0; i < 200_000; i++) h.pushDp(i * 100, dp[i & (n - 1)]!);
   h.reset();
@@ -40,8 +42,10 @@ export async function run(): Promise<BenchFigure[]> {
     h.pushMa(t, ma[i & (n - 1)]!);
   }
   const r = h.result();
+  const typeA = h.typeA();
   const seconds = (performance.now() - t0) / 1000;
   if (r.dp.n !== SAMPLES) throw new Error('sample count mismatch');
+  if (!typeA) throw new Error('no Type A from the hold');
   const rate = SAMPLES / seconds;
   return [
     {

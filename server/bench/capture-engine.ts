@@ -16,6 +16,7 @@ import {
   SLOPE_SIGNIFICANCE,
   type HoldSettings,
   type PlanPoint,
+  type TypeAOfMean,
 } from '../../shared/calc';
 import type { CapturedBy, PointCapture, PointFlag, PointState, SampleSource } from '../../shared/schemas/runs';
 import type { RunEvent } from '../../shared/schemas/stream';
@@ -290,7 +291,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     }
     if (p.state === 'approaching' || p.state === 'waiting') {
       this.invalidateHold(r);
-      r.hold = new HoldAnalyzer(r.holdSettings);
+      r.hold = new HoldAnalyzer({ ...r.holdSettings, maPerDpUnit: p.plan.maPerDpUnit });
       r.settlingSinceMs = tMs;
       this.setState(r, p, 'settling');
     }
@@ -381,6 +382,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       manualReason: reason,
       capturedBy: user?.email ?? null,
       by,
+      typeA: typeAOfCapture(r.hold!.typeA()),
     };
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
@@ -522,4 +524,9 @@ export class CaptureEngines {
 
 function round(x: number): number {
   return Math.round(x * 1e4) / 1e4;
+}
+
+/** The hold's Type A of the mean error as the capture stores it (mA). */
+function typeAOfCapture(a: TypeAOfMean | undefined): PointCapture['typeA'] {
+  return a ? { uMa: a.u, sdMa: a.sd, n: a.n, nEff: a.nEff, dof: a.dof, method: a.method } : null;
 }

@@ -277,6 +277,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         appliedDpSd: x.capture!.appliedDpSd,
         measuredMaSd: x.capture!.measuredMaSd,
         n: x.capture!.n,
+        typeA: x.capture!.typeA ? { uMa: x.capture!.typeA.uMa, dof: x.capture!.typeA.dof } : null,
       })),
     });
     return r.ok ? { results: r.value, problem: null, modeCheck } : { results: null, problem: r.reason, modeCheck };

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { analyzeHold, ChannelAccumulator, HoldAnalyzer, type HoldSample } from './hold';
+import { analyzeHold, BoundedSeries, ChannelAccumulator, HoldAnalyzer, typeAOfMean, type HoldSample } from './hold';
 
 /** mulberry32 PRNG (public-domain algorithm), uniform in [0, 1). */
 function mulberry32(seed: number): () => number {
@@ -119,4 +119,156 @@ describe('hold analysis', () => {
     c.push(5000, 2);
     expect(c.stats()).toMatchObject({ n: 1, mean: 2, band: 0, durationMs: 0 });
   });
+});
+
+describe('Type A of the mean of autocorrelated readings (Zhang, Metrologia 43 (2006) S276–S281)', () => {
+  // Seeded generator (mulberry32) and Box–Muller normals, so the test is repeatable.
+  function rng(seed: number) {
+    let a = seed >>> 0;
+    const u = () => {
+      a = (a + 0x6d2b79f5) >>> 0;
+      let t = a;
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    };
+    return () => Math.sqrt(-2 * Math.log(u() + 1e-300)) * Math.cos(2 * Math.PI * u());
+  }
+  function ar1(n: number, phi: number, sigmaE: number, normal: () => number): Float64Array {
+    const y = new Float64Array(n);
+    let x = (normal() * sigmaE) / Math.sqrt(1 - phi * phi); // start in the stationary distribution
+    for (let i = 0; i < n; i++) {
+      y[i] = x;
+      x = phi * x + sigmaE * normal();
+    }
+    return y;
+  }
+  it('AR(1): the estimate matches the closed-form variance of the mean, where s²/n understates it', () => {
+    // AR(1) x_t = φ·x_{t−1} + ε_t: σ² = σ_ε²/(1 − φ²), ρ_k = φ^k, and
+    // Var(ȳ) = (σ²/n)·[1 + 2·Σ_{k=1}^{n−1}(1 − k/n)·φ^k] (closed form; e.g. Zhang 2006 eq. for a stationary series).
+    const n = 300;
+    const phi = 0.7;
+    const sigmaE = 0.002;
+    const s2 = sigmaE ** 2 / (1 - phi * phi);
+    let g = 1;
+    for (let k = 1; k < n; k++) g += 2 * (1 - k / n) * phi ** k;
+    const trueVar = (s2 / n) * g;
+    const normal = rng(20260612);
+    const M = 400;
+    let sumU2 = 0;
+    let sumNaive = 0;
+    const means: number[] = [];
+    for (let m = 0; m < M; m++) {
+      const y = ar1(n, phi, sigmaE, normal);
+      const r = typeAOfMean(y)!;
+      sumU2 += r.u ** 2;
+      sumNaive += r.sd ** 2 / n;
+      means.push(y.reduce((a, b) => a + b, 0) / n);
+    }
+    const mm = means.reduce((a, b) => a + b, 0) / M;
+    const empirical = means.reduce((a, b) => a + (b - mm) ** 2, 0) / (M - 1);
+    // The simulation itself agrees with the closed form (sampling error of a variance from 400 draws ≈ 7 %).
+    expect(empirical / trueVar).toBeGreaterThan(0.8);
+    expect(empirical / trueVar).toBeLessThan(1.2);
+    // Zhang's estimate, averaged, within 20 %; s²/n is (1 − φ)/(1 + φ) ≈ 0.18 of the truth.
+    expect(sumU2 / M / trueVar).toBeGreaterThan(0.8);
+    expect(sumU2 / M / trueVar).toBeLessThan(1.2);
+    expect(sumNaive / M / trueVar).toBeLessThan(0.25);
+  });
+  it('independent readings: n_eff ≈ n and u ≈ s/√n', () => {
+    const normal = rng(7);
+    const y = Float64Array.from({ length: 500 }, () => normal());
+    const r = typeAOfMean(y)!;
+    expect(r.nEff).toBeGreaterThan(400);
+    expect(r.u).toBeGreaterThan((0.95 * r.sd) / Math.sqrt(500));
+    expect(r.u).toBeLessThan((1.15 * r.sd) / Math.sqrt(500));
+    expect(typeAOfMean([1, 2])).toBeUndefined();
+  });
+  it('the hold analyser evaluates the error series: DP noise the current follows does not count', () => {
+    // Linear 0–100 kPa: c = 0.16 mA/kPa. The DP wanders (AR(1)) and the current follows it exactly,
+    // plus small independent meter noise; the error series holds only the meter noise.
+    const normal = rng(99);
+    const dp = ar1(600, 0.9, 0.02, normal);
+    const h = new HoldAnalyzer({ dpSpan: 100, maPerDpUnit: 0.16 });
+    for (let i = 0; i < 600; i++) {
+      h.pushDp(i * 100, 50 + dp[i]!);
+      h.pushMa(i * 100 + 50, 12 + 0.16 * dp[i]! + 0.0001 * normal());
+    }
+    const a = h.typeA()!;
+    expect(a.sd).toBeLessThan(0.0002);
+    expect(a.u).toBeLessThan(0.00002);
+    // s/√n of the current alone (the old treatment) is far larger: the DP scatter carried through.
+    expect(h.ma.stats().sd / Math.sqrt(600)).toBeGreaterThan(5 * a.u);
+    expect(new HoldAnalyzer({ dpSpan: 100 }).typeA()).toBeUndefined();
+  });
+  it('bounded memory: past the capacity the series is kept as block means', () => {
+    const b = new BoundedSeries(8);
+    for (let i = 0; i < 20; i++) b.push(i);
+    const v = b.values;
+    // 0…7 stored, then averaged in pairs; 8…15 in pairs, then averaged again (blocks of 4); 16…19 one block.
+    expect(v.block).toBe(4);
+    expect(Array.from(v.data.slice(0, v.length))).toEqual([1.5, 5.5, 9.5, 13.5, 17.5]);
+  });
+});
+
+describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)', () => {
+  // Synthetic traces, 10 Hz, 0–100 kPa span, leak limit 0.1 % of span/min = 0.1 kPa/min (the
+  // default), white noise σ = 0.001 kPa (seeded). Relaxation after a step: 50 + A·exp(−t/τ) with
+  // A = 0.5 kPa; thermal relaxation with τ of tens of seconds is common practice.
+  function noise(seed: number) {
+    let a = seed >>> 0;
+    const u = () => {
+      a = (a + 0x6d2b79f5) >>> 0;
+      let t = a;
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    };
+    return () => 0.001 * Math.sqrt(-2 * Math.log(u() + 1e-300)) * Math.cos(2 * Math.PI * u());
+  }
+  const LIMIT = 0.1; // kPa/min
+  function run(trace: (tS: number) => number, seconds: number, seed: number, check: (r: ReturnType<HoldAnalyzer['result']>, tS: number) => void) {
+    const h = new HoldAnalyzer({ dpSpan: 100 });
+    const e = noise(seed);
+    for (let i = 0; i <= seconds * 10; i++) {
+      const tS = i / 10;
+      h.pushDp(i * 100, trace(tS) + e());
+      h.pushMa(i * 100, 12);
+      check(h.result(), tS);
+    }
+  }
+  for (const tau of [1, 5, 10, 30, 60]) {
+    it(`relaxation τ = ${tau} s is never flagged as a leak`, () => {
+      let relaxationSeen = false;
+      run(
+        (t) => 50 + 0.5 * Math.exp(-t / tau),
+        300,
+        tau,
+        (r) => {
+          // Never flagged; a decay lost in the noise may read as a trend, but only below the limit.
+          expect(r.trend.leakBeyondLimit).toBe(false);
+          if (r.trend.kind === 'leak') expect(Math.abs(r.trend.ratePerMin)).toBeLessThanOrEqual(LIMIT);
+          if (r.trend.kind === 'relaxation') relaxationSeen = true;
+        },
+      );
+      // A slow relaxation is recognised as such while its slope is measurable.
+      if (tau >= 10) expect(relaxationSeen).toBe(true);
+    });
+  }
+  for (const f of [0.2, 0.5, 1, 2, 5]) {
+    it(`a leak of ${f} × the limit is always flagged once three sub-windows are in, rate within 10 %`, () => {
+      const rate = f * LIMIT; // kPa/min
+      run(
+        (t) => 50 - (rate * t) / 60,
+        120,
+        100 + f * 10,
+        (r, t) => {
+          if (t < 30.1) return; // three 10 s sub-windows
+          expect(r.trend.kind).toBe('leak');
+          expect(Math.abs(-r.trend.ratePerMin - rate) / rate).toBeLessThan(0.1);
+          if (f !== 1) expect(r.trend.leakBeyondLimit).toBe(f > 1);
+        },
+      );
+    });
+  }
 });

@@ -8,6 +8,7 @@ import {
   dpPctFromFlowPct,
   isRootedOutput,
   maFromDp,
+  sensitivityMaPerUnit,
   span,
   type TransferSpec,
 } from './transfer';
@@ -35,6 +36,12 @@ export interface PlanPoint {
   approach: Direction;
   /** Capture window half-width, in the instrument's unit (always positive). */
   window: number;
+  /**
+   * Sensitivity dI/dP at the target, mA per instrument unit, for the hold's per-reading error
+   * series (hold.ts); absent where it cannot be computed (0 % DP on a pure root) and on plans
+   * frozen before it existed.
+   */
+  maPerDpUnit?: number;
 }
 
 /** Plan kinds. `standard` picks the list for the output mode. */
@@ -86,6 +93,11 @@ export function planPointList(kind: Exclude<PlanKind, 'custom'>, spec: TransferS
 /** Plan build failure reasons. */
 export type PlanResult = { ok: true; value: PlanPoint[] } | { ok: false; reason: string };
 
+function maPerDp(spec: TransferSpec, dp: number): { maPerDpUnit?: number } {
+  const c = sensitivityMaPerUnit(spec, dp);
+  return c !== undefined && Number.isFinite(c) ? { maPerDpUnit: c } : {};
+}
+
 /**
  * Build a plan: target DP, expected mA, approach and window for each point. The expected current
  * follows the instrument's transfer function (root and cutoff when the root is in the transmitter).
@@ -112,6 +124,7 @@ export function buildPlan(spec: TransferSpec, options: PlanOptions): PlanResult 
       expectedMa: maFromDp(spec, targetDp),
       approach: p.approach,
       window,
+      ...maPerDp(spec, targetDp),
     });
   }
   return { ok: true, value: out };

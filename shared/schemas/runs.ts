@@ -79,6 +79,15 @@ export const PointCaptureSchema = z.object({
   capturedBy: z.string().nullable(),
   /** Who or what captured the point (absent on captures stored before it was recorded). */
   by: CapturedBySchema.optional(),
+  /**
+   * Type A standard uncertainty of the mean error over the hold, mA, from the per-reading error
+   * series with Zhang's (2006) effective number of observations (shared/calc hold.ts). Additive;
+   * absent on captures made before it, and null where it could not be computed.
+   */
+  typeA: z
+    .object({ uMa: z.number(), sdMa: z.number(), n: z.number(), nEff: z.number(), dof: z.number(), method: z.literal('zhang-2006-effective-n') })
+    .nullable()
+    .optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

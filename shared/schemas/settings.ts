@@ -36,7 +36,7 @@ export type SiteSettings = z.infer<typeof SiteSettingsSchema>;
 
 /** Parse stored settings JSON text; unreadable text gives the defaults (an empty object). */
 export function parseSiteSettings(text: string | null | undefined): SiteSettings {
-  let raw: unknown = {};
+  let raw: unknown;
   try {
     raw = text ? JSON.parse(text) : {};
   } catch {
