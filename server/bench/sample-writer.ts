@@ -6,6 +6,13 @@
  * The stages overlap: a batch is appended to the journal while it (or the batch before it) goes
  * into the database, at most one database write in flight. Batches are bounded (`maxBatchRows`), so a
  * backlog is written in steady pieces rather than one huge write at the end.
+ *
+ * A failed write is one of two kinds. The database refusing rows (a data exception such as a NUL
+ * byte; {@link isRowRefusal}) never changes on retry: the refused rows are found by halving the
+ * batch and set aside into the quarantine with their reason, and every other row is stored, so one
+ * bad row never holds up the rows after it, the journal's truncation or a start-up replay. Any
+ * other failure (connection lost, worker gone, disk full) is retried, the timer's attempts backing
+ * off from `flushMs` up to `maxBackoffMs`; `stats` says since when the writer has been failing.
  */
 import type { HubEntry } from './hub';
 import type { DamagedBatch, JournalRow, SampleJournal } from './journal';
@@ -277,7 +284,7 @@ export class SampleWriter {
       });
     }
     this.stats.pending = this.pending.length;
-    if (this.pending.length >= this.batchRows && !this.flushing && this.timer) void this.flush();
+    if (this.pending.length >= this.batchRows && !this.flushing && this.timer && performance.now() >= this.retryAt) void this.flush();
   };
 
   /**
