@@ -98,9 +98,13 @@ export function attachStreamServer(o: StreamServerOptions) {
   const clients = new Set<Client>();
   const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0, replayed: 0, resets: 0 };
 
-  const send = (c: Client, m: StreamMessage): void => {
-    if (c.ended || c.ws.readyState !== c.ws.OPEN) return;
-    c.ws.send(JSON.stringify(m));
+  /** Sends one message; `written`, when given, is called once it has been handed to the OS (or failed). */
+  const send = (c: Client, m: StreamMessage, written?: () => void): void => {
+    if (c.ended || c.ws.readyState !== c.ws.OPEN) {
+      written?.();
+      return;
+    }
+    c.ws.send(JSON.stringify(m), written && (() => written()));
     if (m.seq > c.lastSent) c.lastSent = m.seq;
   };
 
@@ -231,11 +235,25 @@ export function attachStreamServer(o: StreamServerOptions) {
   const gone = (c: Client) => c.ended || c.ws.readyState !== c.ws.OPEN;
 
   /** Resolves once the socket has drained below the low-water mark (or closed); false when it stalled. */
-  async function drained(c: Client): Promise<boolean> {
-    const until = performance.now() + stallMs;
-    while (!gone(c) && c.ws.bufferedAmount > lowWater) {
-      if (performance.now() > until) return false;
-      await new Promise((r) => setTimeout(r, 5));
+  /**
+   * Resolves once a page has been handed to the OS (`written`: the write callback of its last
+   * message, which waits while the socket's kernel buffer is full) and the socket holds no more than
+   * the low-water mark; false when that took longer than the stall limit (the client does not read).
+   */
+  async function drained(c: Client, written: Promise<void>): Promise<boolean> {
+    let timer: NodeJS.Timeout | undefined;
+    const stalled = new Promise<boolean>((resolve) => {
+      timer = setTimeout(() => resolve(true), stallMs);
+    });
+    try {
+      if (await Promise.race([written.then(() => false), stalled])) return false;
+      const until = performance.now() + stallMs;
+      while (!gone(c) && c.ws.bufferedAmount > lowWater) {
+        if (performance.now() > until) return false;
+        await new Promise((r) => setTimeout(r, 5));
+      }
+    } finally {
+      clearTimeout(timer);
     }
     // Let HTTP requests and live deliveries in between pages.
     await new Promise((r) => setImmediate(r));
@@ -255,10 +273,15 @@ export function attachStreamServer(o: StreamServerOptions) {
       if (gone(c)) return;
       for await (const page of o.bench.replay(since, latest, pageSize)) {
         if (gone(c) || c.overflow) break;
-        for (const m of page) if (wanted(c, m)) send(c, m);
+        const toSend = page.filter((m) => wanted(c, m));
+        let written = Promise.resolve();
+        toSend.forEach((m, i) => {
+          if (i < toSend.length - 1) send(c, m);
+          else written = new Promise<void>((resolve) => send(c, m, resolve));
+        });
         stats.replayed += page.length;
         c.lastSent = Math.max(c.lastSent, page[page.length - 1]!.seq);
-        if (!(await drained(c))) {
+        if (!(await drained(c, written))) {
           o.logger.warn({ user: c.user.id }, 'stream resume stalled: the client does not read; dropped');
           c.ws.terminate();
           return;
