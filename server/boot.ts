@@ -209,7 +209,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
         db: database.kind,
         mode: env.BENCH,
         dataDir: memory ? undefined : env.DATA_DIR,
-        ...(process.env.MIN_FREE_DISK_MB ? { minFreeBytes: Number(process.env.MIN_FREE_DISK_MB) * 1024 * 1024 } : {}),
+        minFreeBytes: env.MIN_FREE_DISK_MB * 1024 * 1024,
       }),
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),

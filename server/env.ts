@@ -27,6 +27,8 @@ const EnvSchema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Set to 0 to skip seeding the demo site into an empty database. */
   SEED_DEMO: z.enum(['0', '1']).default('1'),
+  /** Free disk in DATA_DIR below which /api/health answers 503 (the product could not store what it acknowledges), MiB. */
+  MIN_FREE_DISK_MB: z.coerce.number().positive().default(256),
 }).refine((e) => !e.BENCH_PRESSURE_PORT === !e.BENCH_CURRENT_PORT, {
   message: 'set both BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT, or neither',
   path: ['BENCH_CURRENT_PORT'],

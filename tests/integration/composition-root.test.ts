@@ -32,11 +32,12 @@ describe('composition root', () => {
   });
 
   it('lint refuses a service, route or socket module importing the simulators', async () => {
-    const eslint = new ESLint({ cwd: root });
+    // The probe files do not exist on disk, so the type-aware rules are off for them.
+    const eslint = new ESLint({ cwd: root, overrideConfig: { languageOptions: { parserOptions: { projectService: false } }, rules: { '@typescript-eslint/no-floating-promises': 'off', '@typescript-eslint/no-misused-promises': 'off' } } });
     for (const file of ['server/services/probe.ts', 'server/http/routes/probe.ts', 'server/ws/probe.ts']) {
       const up = file.split('/').length - 1;
       const [r] = await eslint.lintText(`import { SimRig } from '${'../'.repeat(up)}simulators/sim-rig';\nexport const y = SimRig;\n`, { filePath: file });
-      expect(r!.messages.filter((m) => m.ruleId === 'stillpoint/imports').map((m) => m.message)).toEqual([expect.stringContaining('never import simulators/')]);
+      expect(r!.messages.filter((m) => m.ruleId === 'import-x/no-restricted-paths').map((m) => m.message)).toEqual([expect.stringContaining('Only the composition root (server/boot.ts) wires the simulators in')]);
     }
   });
 
