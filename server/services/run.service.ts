@@ -381,7 +381,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       return toRun(row);
     },
 
-    async redo(actor: SessionUser, id: string, index: number): Promise<Run> {
+    async redo(actor: SessionUser, id: string, index: number, reason?: string): Promise<Run> {
       const row = await loadRun(id);
       await mustPerform(actor, row);
       const p = row.plan as FrozenPlan;
@@ -394,7 +394,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       const before = (await currentPoints(row))[index];
       if (!before) throw notFound(`No point ${index}`);
       refusal(() => engineOf(row).redo(index));
-      await audit.record(actor as Actor, 'run.point-redone', 'run', id, { index, state: before.state, flags: before.flags, capture: before.capture }, { index, state: 'approaching' });
+      await audit.record(actor as Actor, 'run.point-redone', 'run', id, { index, state: before.state, flags: before.flags, capture: before.capture }, { index, state: 'approaching', reason: reason ?? null });
       await chain;
       return toRun(row);
     },
