@@ -4,6 +4,7 @@ import type { Run, RunPoint } from '../../../../shared/schemas/runs';
 /** The parts of shared/calc's EvaluateOutput the review shows; anything else is ignored. */
 const PointResultSchema = z.object({
   nominalPct: z.number(),
+  basis: z.enum(['flow', 'dp']).optional(),
   direction: z.enum(['up', 'down']),
   appliedDp: z.number(),
   measuredMa: z.number(),
@@ -14,8 +15,10 @@ const PointResultSchema = z.object({
   decision: z.string(),
   acceptanceLimitPctSpan: z.number(),
 });
+const HysteresisSchema = z.object({ nominalPct: z.number(), basis: z.enum(['flow', 'dp']).optional(), hysteresisPctSpan: z.number().nullable() });
 const ResultsSchema = z.object({
   points: z.array(PointResultSchema),
+  hysteresis: z.array(HysteresisSchema).optional(),
   maxHysteresisPctSpan: z.number().nullable().optional(),
   overallDecision: z.string(),
 });
@@ -25,6 +28,20 @@ export type RunResults = z.infer<typeof ResultsSchema>;
 export function parseResults(run: Run): RunResults | null {
   const r = ResultsSchema.safeParse(run.results);
   return r.success ? r.data : null;
+}
+
+/**
+ * Hysteresis at a result's nominal, % of span, as the API evaluated it (the difference of the up
+ * and down errors at that nominal); null when it was not read both ways. Never recomputed here.
+ */
+export function hysteresisAt(results: RunResults, point: Pick<PointResult, 'nominalPct' | 'basis'>): number | null {
+  const h = results.hysteresis?.find((x) => x.nominalPct === point.nominalPct && (x.basis === undefined || point.basis === undefined || x.basis === point.basis));
+  return h?.hysteresisPctSpan ?? null;
+}
+
+/** What errors are a percentage of: flow span for a root in the transmitter, else output span (REFERENCE.md). */
+export function spanWords(outputMode: string | undefined): 'flow span' | 'span' {
+  return outputMode === 'sqrt-transmitter' ? 'flow span' : 'span';
 }
 
 /** Each planned point with its result (results are computed over the captured points, in order). */

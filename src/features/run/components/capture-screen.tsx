@@ -259,7 +259,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
           <h2 id="run-results" className="mb-2 text-lg font-semibold text-ink">
             Results
           </h2>
-          <ResultsTable results={results} unitLabel={unitLabel} rooted={rooted} dpDecimals={dpDecimals} caption={`${RUN_KIND_LABEL[run.kind]} results`} testId="run-results" />
+          <ResultsTable results={results} unitLabel={unitLabel} rooted={rooted} outputMode={instrument?.outputMode} dpDecimals={dpDecimals} caption={`${RUN_KIND_LABEL[run.kind]} results`} testId="run-results" />
         </section>
       )}
       {!results && run.resultsProblem && <p className="text-sm text-warn">Results cannot be computed yet: {run.resultsProblem}</p>}
