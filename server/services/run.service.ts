@@ -200,6 +200,10 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
       const matches = finding === 'root-in-transmitter' ? p.instrument.outputMode === 'sqrt-transmitter' : finding === 'linear-output' ? p.instrument.outputMode !== 'sqrt-transmitter' : false;
       modeCheck = { measuredMa: ma, finding, matchesRegister: matches };
     }
+    // A finished run answers with the results stored when it completed — the ones a submission
+    // freezes into the record — so a later edit of a standard does not change what the API says.
+    const live = bench.engine(p.benchId).snapshot()?.runId === row.id;
+    if (row.status === 'complete' && !live && row.results) return { results: row.results as EvaluateOutput, problem: null, modeCheck };
     const chosen = (await Promise.all(p.standardIds.map((id) => standards.get(id)))).filter((s): s is StandardRow => !!s);
     const ps = chosen.find((s) => s.kind === 'pressure');
     const cs = chosen.find((s) => s.kind === 'current');

@@ -94,6 +94,10 @@ describe('a signed record is frozen', () => {
     expect(before.hash).toBe(signedHash);
     expect(before.signatures.map((s) => s.valid)).toEqual([true]);
     const textBefore = await pdfText(first, 'before.pdf');
+    const runIds = ((await c.auditor.get(`/api/jobs/${jobId}`)).body.runs as Array<{ id: string }>).map((r) => r.id);
+    const runResults = async () => Promise.all(runIds.map(async (id) => (await c.auditor.get(`/api/runs/${id}`)).body.results as unknown));
+    const resultsBefore = await runResults();
+    expect(resultsBefore.every((r) => r !== null)).toBe(true);
 
     // The register: range and tolerance.
     const inst = (await c.lead.get(`/api/instruments/${instrumentId}`)).body;
@@ -132,6 +136,8 @@ describe('a signed record is frozen', () => {
     expect(rec.storedHashMatches).toBe(true);
     expect(rec.signatures.map((x) => x.valid)).toEqual([true]);
     expect(rec.record!.instrument.urv).toBe(inst.urv);
+    // GET /api/runs/:id answers with the results the record froze, not ones recomputed from the edited standards.
+    expect(await runResults()).toEqual(resultsBefore);
     // What the certificate says is what was signed (the edited values appear nowhere).
     const textAfter = await pdfText(after, 'after.pdf');
     expect(textAfter).toBe(textBefore);
