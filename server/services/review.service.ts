@@ -213,12 +213,16 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
     /** The review page's data: job, instrument, signatures, revisions, audit trail and who may sign. */
     async bundle(user: SessionUser, jobId: string): Promise<ReviewBundle> {
       const job = await jobs.detail(jobId);
-      const [instrument, runs, sigs, revs] = await Promise.all([
+      const [live, runs, sigs, revs, kept] = await Promise.all([
         deps.registers.getInstrument(job.instrumentId),
         repo.runsWithPoints(jobId),
         repo.signatures(jobId),
         repo.revisions(jobId),
+        freezer.stored(jobId, job.revision),
       ]);
+      // A submitted or signed revision is reviewed against the instrument as it was used, not as the register stands now.
+      const { id: _id, ...asUsed } = kept?.record.instrument ?? { id: '' };
+      const instrument = { ...live, ...asUsed } as typeof live;
       const performed = performerIds(job, runs);
       const no = cannotSign(user, job, performed);
       const bundle: ReviewBundle = {
