@@ -15,10 +15,11 @@ const PointResultSchema = z.object({
   decision: z.string(),
   acceptanceLimitPctSpan: z.number(),
 });
-const HysteresisSchema = z.object({ nominalPct: z.number(), basis: z.enum(['flow', 'dp']).optional(), hysteresisPctSpan: z.number().nullable() });
+const HysteresisSchema = z.object({ nominalPct: z.number(), basis: z.enum(['flow', 'dp']).optional(), hysteresisPctSpan: z.number().nullable() }).passthrough();
 const ResultsSchema = z.object({
   points: z.array(PointResultSchema),
-  hysteresis: z.array(HysteresisSchema).optional(),
+  // A hysteresis list of another shape hides the column's values, never the whole table.
+  hysteresis: z.array(HysteresisSchema).optional().catch(undefined),
   maxHysteresisPctSpan: z.number().nullable().optional(),
   overallDecision: z.string(),
 });

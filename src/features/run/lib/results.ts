@@ -27,10 +27,12 @@ export const ResultPointSchema = z.object({
 export type ResultPoint = z.infer<typeof ResultPointSchema>;
 
 const HysteresisSchema = z.object({ nominalPct: z.number(), basis: z.enum(['flow', 'dp']).optional(), hysteresisPctSpan: z.number().nullable() }).passthrough();
+/** A hysteresis list of another shape hides the column's values, never the whole table. */
+const HysteresisListSchema = z.array(HysteresisSchema).optional().catch(undefined);
 
 export const RunResultsSchema = z.object({
   points: z.array(ResultPointSchema),
-  hysteresis: z.array(HysteresisSchema).optional(),
+  hysteresis: HysteresisListSchema,
   maxHysteresisPctSpan: num,
   worstError: z.object({ index: z.number(), errorPctSpan: z.number() }).nullable().optional(),
   overallDecision: z.string().nullable().optional(),
