@@ -73,7 +73,7 @@ async function until<T>(what: string, read: () => Promise<T>, check: (v: T) => b
   for (;;) {
     const v = await read();
     if (check(v)) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}: ${JSON.stringify(v).slice(0, 400)}`);
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}: ${JSON.stringify(v).slice(0, 1500)}`);
     await new Promise((r) => setTimeout(r, 150));
   }
 }
@@ -156,7 +156,7 @@ describe('the record says what happened, with one definition of error and hyster
     const leakTrimId = await start('trim', 'lower-trim');
     const target = (await getRun(leakTrimId)).points[0]!.targetDp;
     // The leak acts once the source is isolated at the target.
-    await sim({ source: { leakPerMin: 3 }, setpoint: { value: target, overshoot: 0 } });
+    await sim({ source: { leakPerMin: 0.5 }, setpoint: { value: target, overshoot: 0 } });
     await until('the leak to be flagged', () => getRun(leakTrimId), (r) => r.points[0]!.flags.includes('leak') || r.status === 'complete', 60_000);
     await sim({ source: { leakPerMin: 0 } });
     const leakTrim = await until('the leaky trim reading', () => getRun(leakTrimId), (r) => r.status === 'complete', 120_000);
