@@ -39,7 +39,7 @@ beforeAll(async () => {
   const cur = stds.find((s: { kind: string }) => s.kind === 'current');
   const r = await c.tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, cur.id], permitNo: 'PTW-4410', operatorsInformed: true, isolated: true, vented: true });
   expect(r.body.blockers).toEqual([]);
-}, 180_000);
+}, 600_000);
 
 afterAll(async () => {
   await browser?.close();
