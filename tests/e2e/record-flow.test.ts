@@ -203,7 +203,8 @@ describe('the record says what happened, with one definition of error and hyster
     // Acceptance 8: the remarks and the method name each event.
     expect(flat).toContain('As-found point 1 (10 % flow, up) was captured manually by');
     expect(flat).toContain(`“${MANUAL_REASON}”`);
-    expect(flat).toMatch(/Lower trim \(reading 1 of 2, before the trim\) point 1 \(10 % flow, up\): leak flagged/);
+    // A trim point is planned in % DP (1 % DP = 10 % flow on a rooted output).
+    expect(flat).toMatch(/Lower trim \(reading 1 of 2, before the trim\) point 1 \(1 % DP, up\): leak flagged/);
     expect(flat).toContain('As-left point 8 (25 % flow, down): overshoot on the approach');
     expect(flat).toMatch(/As-left point 8 \(25 % flow, down\) was measured again \(redo\) by .* reason: “Approached from the wrong side after an overshoot”/);
     expect(flat).not.toContain('No point carried a leak');
@@ -225,11 +226,11 @@ describe('the record says what happened, with one definition of error and hyster
       expect(beforeErr).toBeCloseTo(leakTrim.results!.points[0]!.errorPctSpan, 3);
       const lowerRow = lines.find((l) => /^\s*Lower trim\s/.test(l));
       expect(lowerRow, 'adjustment row for the lower trim').toBeDefined();
-      const cells = lowerRow!.trim().split(/\s{2,}/);
-      // Trim, applied DP, target, before, before error, after, after error.
-      expect(cells[3]).toBe(printed(before, 4));
-      expect(cells[4]).toBe(printed(leakTrim.results!.points[0]!.errorPctSpan, 3, true));
-      expect(cells[5]).toBe(printed(after, 4));
+      // Applied DP, target, before, before error, after, after error.
+      const cells = lowerRow!.match(/[+-]?\d+\.\d+/g) ?? [];
+      expect(cells[2]).toBe(printed(before, 4));
+      expect(cells[3]).toBe(printed(leakTrim.results!.points[0]!.errorPctSpan, 3, true));
+      expect(cells[4]).toBe(printed(after, 4));
 
       // Acceptance 9: error and hysteresis of the same as-left points on every screen.
       const api = await getRun(asLeftId);
@@ -264,6 +265,7 @@ describe('the record says what happened, with one definition of error and hyster
       // Certificate: the as-left results rows carry the same errors, the hysteresis table the same values.
       const asLeftAt = lines.findIndex((l) => /Results as left/.test(l));
       const hystAt = lines.findIndex((l, i) => i > asLeftAt && /^\s*Hysteresis\s*$/.test(l));
+      expect(hystAt, 'the hysteresis heading after the as-left results').toBeGreaterThan(asLeftAt);
       expect(asLeftAt).toBeGreaterThan(0);
       const asLeftBlock = lines.slice(asLeftAt, hystAt > 0 ? hystAt : undefined).join('\n');
       for (const p of pts) expect(asLeftBlock, `certificate error ${p.index}`).toContain(printed(p.errorPctSpan, 3, true));
@@ -272,7 +274,7 @@ describe('the record says what happened, with one definition of error and hyster
         const row = hystBlock.split('\n').find((l) => new RegExp(`^\\s*${h.nominalPct} % flow\\s`).test(l));
         expect(row, `certificate hysteresis row at ${h.nominalPct} %`).toBeDefined();
         // As found, then as left: the as-left value is the row's last number.
-        expect(row!.trim().split(/\s{2,}/).at(-1)).toBe(printed(h.hysteresisPctSpan, 3));
+        expect(row!.match(/\d+\.\d+/g)?.at(-1)).toBe(printed(h.hysteresisPctSpan, 3));
       }
       expect(pageErrors).toEqual([]);
     } finally {
