@@ -57,17 +57,31 @@ export interface CertificateStandard {
   dueDate: string;
 }
 
-/** One trim performed between as-found and as-left. */
+/**
+ * One trim performed between as-found and as-left: the reading of its first trim run (before the
+ * adjustment) and of its last (after it), as the job page shows them.
+ */
 export interface CertificateTrim {
   kind: TrimKind;
-  /** Applied DP during the trim, instrument unit, optional. */
+  /** DP applied for the trim (the plan's target), instrument unit, optional. */
   appliedDp?: number;
   /** Current the trim aimed at, mA. */
   targetMa: number;
-  /** Current read before the trim, mA. */
+  /** Current read before the trim (first trim run), mA. */
   beforeMa: number;
-  /** Current read after the trim, mA. */
-  afterMa: number;
+  /** Its error as evaluated for the run, % of output span (flow span for a rooted output). */
+  beforeErrorPctSpan?: number | null;
+  /** Current read after the trim (last trim run), mA; absent when the trim was read only once. */
+  afterMa?: number;
+  afterErrorPctSpan?: number | null;
+}
+
+/** How the points were captured: hands-free after the hold, or manually (each listed in the method). */
+export interface CertificateCaptures {
+  /** Points captured hands-free, over all runs shown. */
+  handsFree: number;
+  /** One sentence per manual capture: which point, who, and the reason given. */
+  manual: string[];
 }
 
 /** An electronic signature on the record (21 CFR 11.50: name, date and time, meaning). */
@@ -86,6 +100,11 @@ export interface CertificateSignature {
 export interface CertificateData {
   certificateNumber: string;
   issueDate: string;
+  /**
+   * Date-time of issue (the approval signature), ISO 8601: the PDF's creation and modification
+   * dates, so the same record gives the same bytes. Default: midnight UTC of `issueDate`.
+   */
+  issuedAt?: string;
   /** 1 for the first issue; each correction issues the next revision. */
   revision: number;
   /** Required when `revision` > 1: why this revision replaces the previous one. */
@@ -125,6 +144,8 @@ export interface CertificateData {
     holdSeconds: number;
     /** Deviations from, additions to or exclusions from the method. */
     deviations?: string[];
+    /** How the points were captured; absent: every point hands-free (sample data). */
+    captures?: CertificateCaptures;
   };
   /** When the calibration was performed (ISO date-times). */
   performed: { start: string; end?: string };

@@ -25,7 +25,7 @@ export function createServices(database: Database, secret: Uint8Array, hooks: Se
     review: createReviewService(database.db, { audit, auth, jobs, registers, notify: (n) => hooks.onReview?.(n) }),
     csv: createCsvService(database.db, audit),
     drift: createDriftService(database.db, audit, jobs),
-    certificates: createCertificateService(database.db, { jobs, registers }),
+    certificates: createCertificateService(database.db, { jobs, audit }),
   };
 }
 

@@ -1,12 +1,14 @@
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type JobRow } from '../db/repositories/register.repository';
 import { userRepository } from '../db/repositories/user.repository';
-import { badRequest, forbidden, locked, notFound } from '../errors';
+import { badRequest, conflict, forbidden, locked, notFound } from '../errors';
 import { convertPressure, isPressureUnitId } from '../../shared/calc';
 import type { Checklist, ChecklistPatch, Job, JobDetail } from '../../shared/schemas/jobs';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
 import { dueState, isoDate } from './dates';
+import { reviewRepository } from '../db/repositories/review.repository';
+import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
 
 export function toJob(r: JobRow, today = isoDate(new Date())): Job {
   return {
@@ -60,6 +62,8 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
   const users = userRepository(db);
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
+  const records = reviewRepository(db);
+  const freezer = createRecordFreezer(db, audit);
 
   async function assignable(assigneeId: string) {
     const u = await users.findById(assigneeId);
@@ -220,9 +224,14 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (r.assigneeId !== actor.id) throw forbidden('Only the assigned technician submits this job');
       const d = await service.detail(id);
       if (d.submitBlockers.length) throw badRequest(`Not ready to submit: ${d.submitBlockers.join('; ')}`, { submit: d.submitBlockers });
-      await jobs.update(id, { status: 'submitted' });
-      await audit.record(actor, 'job.submitted', 'job', id, { status: r.status }, { status: 'submitted' });
-      tell({ kind: 'submitted', jobId: id, byName: actor.name, at: new Date().toISOString() });
+      // Everything the record and its certificate say is frozen with the submission (DESIGN.md §4).
+      const at = new Date();
+      const snapshot = await freezer.build(d, { id: actor.id, name: actor.name }, at);
+      const hash = frozenRecordHash(snapshot);
+      const moved = await records.submitWithSnapshot({ jobId: id, revision: d.revision, snapshot, hash, frozenAt: at }, ['open', 'in-progress', 'returned']);
+      if (!moved) throw conflict('The job changed while it was being submitted; reload it');
+      await audit.record(actor, 'job.submitted', 'job', id, { status: r.status }, { status: 'submitted', revision: d.revision, recordHash: hash });
+      tell({ kind: 'submitted', jobId: id, byName: actor.name, at: at.toISOString() });
       return service.detail(id);
     },
   };

@@ -5,6 +5,7 @@ import { AppError, conflict, forbidden, locked, notFound } from '../errors';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type {
   AuditEntry,
+  FrozenRecord,
   RecordItem,
   Revision,
   RevisionSummary,
@@ -19,6 +20,7 @@ import { isoDate } from './dates';
 import type { JobService } from './job.service';
 import { toJob } from './job.service';
 import type { RegisterService } from './register.service';
+import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
 
 /** Something the review flow tells the team about (mail); never allowed to block or fail the action. */
 export type ReviewNotice =
@@ -65,7 +67,11 @@ export function toSnapshotRun(r: RunWithPoints): SnapshotRun {
   };
 }
 
-/** sha256 over the canonical JSON of what is being signed. */
+/**
+ * sha256 over the canonical JSON of a job detail and its runs: the record hash of records signed
+ * before submissions were frozen (the demo history still writes these). New signatures carry
+ * `frozenRecordHash` of the frozen record instead (record-snapshot.ts).
+ */
 export function recordHash(job: JobDetail, runs: SnapshotRun[]): string {
   // Volatile fields (blockers depend on today's date) are left out of what is signed.
   const { blockers: _b, submitBlockers: _s, overdue: _o, updatedAt: _u, ...stable } = job;
@@ -96,6 +102,22 @@ function calibrationDate(runs: RunWithPoints[], fallback: string): string {
 export function createReviewService(db: Db, deps: ReviewServiceDeps) {
   const repo = reviewRepository(db);
   const { audit, auth, jobs } = deps;
+  const freezer = createRecordFreezer(db, audit);
+
+  /**
+   * The frozen record of the job's current revision and its hash. A job submitted before records
+   * were frozen is frozen now, by the signer, from what stands (said so in the audit trail).
+   */
+  async function frozen(user: SessionUser, job: JobDetail) {
+    const kept = await freezer.stored(job.id, job.revision);
+    if (kept) return { record: kept.record, hash: frozenRecordHash(kept.record) };
+    const at = new Date();
+    const record = await freezer.build(job, { id: user.id, name: user.name }, at);
+    const hash = frozenRecordHash(record);
+    await repo.saveSnapshot({ jobId: job.id, revision: job.revision, snapshot: record, hash, frozenAt: at });
+    await audit.record(user, 'job.record-frozen', 'job', job.id, undefined, { revision: job.revision, recordHash: hash, reason: 'submitted before records were frozen' });
+    return { record, hash };
+  }
 
   const tell = (n: ReviewNotice) => {
     try {
@@ -191,12 +213,16 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
     /** The review page's data: job, instrument, signatures, revisions, audit trail and who may sign. */
     async bundle(user: SessionUser, jobId: string): Promise<ReviewBundle> {
       const job = await jobs.detail(jobId);
-      const [instrument, runs, sigs, revs] = await Promise.all([
+      const [live, runs, sigs, revs, kept] = await Promise.all([
         deps.registers.getInstrument(job.instrumentId),
         repo.runsWithPoints(jobId),
         repo.signatures(jobId),
         repo.revisions(jobId),
+        freezer.stored(jobId, job.revision),
       ]);
+      // A submitted or signed revision is reviewed against the instrument as it was used, not as the register stands now.
+      const { id: _id, ...asUsed } = kept?.record.instrument ?? { id: '' };
+      const instrument = { ...live, ...asUsed } as typeof live;
       const performed = performerIds(job, runs);
       const no = cannotSign(user, job, performed);
       const bundle: ReviewBundle = {
@@ -252,8 +278,7 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
         });
         throw new AppError(401, 'unauthenticated', 'The password is not right; nothing was signed', { password: ['The password is not right'] });
       }
-      const snapshotRuns = runs.map(toSnapshotRun);
-      const hash = recordHash(job, snapshotRuns);
+      const { hash } = await frozen(user, job);
       const signedAt = new Date();
       const approve = body.decision === 'approve';
       const calibratedOn = approve ? calibrationDate(runs, isoDate(signedAt)) : null;
@@ -298,10 +323,12 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       const job = await jobs.detail(jobId);
       if (job.status !== 'approved') throw conflict(`The job is ${job.status}; only an approved record is corrected by a revision`);
       const [runs, sigs] = await Promise.all([repo.runsWithPoints(jobId), repo.signatures(jobId)]);
+      const kept = await freezer.stored(jobId, job.revision);
       const snapshot = {
         job,
         runs: runs.map(toSnapshotRun),
         signatures: sigs.filter((s) => s.revision === job.revision).map(toSignature),
+        ...(kept ? { record: kept.record } : {}),
       };
       const row = await repo.openRevision({ jobId, revision: job.revision, reason, snapshot, createdBy: user.id, createdByName: user.name });
       if (!row) throw conflict('The job changed meanwhile; reload it');
@@ -326,6 +353,27 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       const row = await repo.revision(jobId, revision);
       if (!row) throw notFound(`Revision ${revision} of this job is not kept (only superseded revisions are)`);
       return { ...summary(row), snapshot: row.snapshot as Revision['snapshot'] };
+    },
+
+    /**
+     * The frozen record of a revision (default the current one), its hash recomputed now, and
+     * each signature of that revision with whether its record hash still matches.
+     */
+    async record(jobId: string, revision?: number): Promise<RecordCheck> {
+      const job = await jobs.get(jobId);
+      const rev = revision ?? job.revision;
+      const kept = await freezer.stored(jobId, rev);
+      const sigs = (await repo.signatures(jobId)).filter((s) => s.revision === rev).map(toSignature);
+      const hash = kept ? frozenRecordHash(kept.record) : null;
+      return {
+        jobId,
+        revision: rev,
+        record: kept?.record ?? null,
+        frozenAt: kept?.frozenAt.toISOString() ?? null,
+        hash,
+        storedHashMatches: kept ? kept.hash === hash : null,
+        signatures: sigs.map((s) => ({ ...s, valid: hash !== null && s.recordHash === hash })),
+      };
     },
 
     async signatures(jobId: string): Promise<Signature[]> {
@@ -382,6 +430,19 @@ function summary(r: { revision: number; reason: string; createdAt: Date; created
 }
 
 export type ReviewService = ReturnType<typeof createReviewService>;
+
+/** `GET /api/jobs/:id/record`: the frozen record of a revision and whether its signatures still match it. */
+export interface RecordCheck {
+  jobId: string;
+  revision: number;
+  record: FrozenRecord | null;
+  frozenAt: string | null;
+  /** sha256 of the stored record, recomputed now; null when the revision has no frozen record. */
+  hash: string | null;
+  /** Whether the hash stored beside the record equals the recomputed one. */
+  storedHashMatches: boolean | null;
+  signatures: Array<Signature & { valid: boolean }>;
+}
 
 /** Whole-run traces kept in memory (a few runs under review at once). */
 const OVERVIEW_CACHE = 16;

@@ -247,6 +247,10 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const matches = finding === 'root-in-transmitter' ? p.instrument.outputMode === 'sqrt-transmitter' : finding === 'linear-output' ? p.instrument.outputMode !== 'sqrt-transmitter' : false;
       modeCheck = { measuredMa: ma, finding, matchesRegister: matches };
     }
+    // A finished run answers with the results stored when it completed — the ones a submission
+    // freezes into the record — so a later edit of a standard does not change what the API says.
+    const live = engines.activeRunId(p.benchId) === row.id;
+    if (row.status === 'complete' && !live && row.results) return { results: row.results as EvaluateOutput, problem: null, modeCheck };
     const chosen = (await Promise.all(p.standardIds.map((id) => standards.get(id)))).filter((s): s is StandardRow => !!s);
     const ps = chosen.find((s) => s.kind === 'pressure');
     const cs = chosen.find((s) => s.kind === 'current');
@@ -460,7 +464,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       return toRun(await loadRun(id));
     },
 
-    async redo(actor: SessionUser, id: string, index: number): Promise<Run> {
+    async redo(actor: SessionUser, id: string, index: number, reason?: string): Promise<Run> {
       const row = await loadRun(id);
       await mustPerform(actor, row);
       const p = row.plan as FrozenPlan;
@@ -473,7 +477,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const before = (await currentPoints(row))[index];
       if (!before) throw notFound(`No point ${index}`);
       refusal(() => engineOf(row).redo(index));
-      await audit.record(actor as Actor, 'run.point-redone', 'run', id, { index, state: before.state, flags: before.flags, capture: before.capture }, { index, state: 'approaching' });
+      await audit.record(actor as Actor, 'run.point-redone', 'run', id, { index, state: before.state, flags: before.flags, capture: before.capture }, { index, state: 'approaching', reason: reason ?? null });
       await chain;
       return toRun(await loadRun(id));
     },

@@ -76,11 +76,97 @@ export const SnapshotRunSchema = z.object({
 });
 export type SnapshotRun = z.infer<typeof SnapshotRunSchema>;
 
+/** A change to a point after it was first reached: a manual capture or a redo, from the audit trail. */
+export const PointEventSchema = z.object({
+  kind: z.enum(['captured-manually', 'redone']),
+  index: z.number().int(),
+  /** ISO date-time of the audit event. */
+  at: z.string(),
+  byId: z.string().nullable(),
+  byName: z.string().nullable(),
+  /** The reason given (manual capture: required; redo: optional). */
+  reason: z.string().nullable(),
+  /** Redo: the flags and capture that were set aside. */
+  before: z.object({ flags: z.array(z.string()), capture: z.unknown().nullable() }).nullable(),
+});
+export type PointEvent = z.infer<typeof PointEventSchema>;
+
+/** A run as frozen at submission: the stored run, its trim kind, and its point events. */
+export const FrozenRunSchema = SnapshotRunSchema.extend({
+  trim: z.string().nullable(),
+  events: z.array(PointEventSchema),
+});
+export type FrozenRun = z.infer<typeof FrozenRunSchema>;
+
+/**
+ * Everything a record and its certificate say, frozen at submission (DESIGN.md §4 "Frozen at
+ * signing"): the instrument's register entry as used, the standards with their certificates,
+ * ranges, accuracy and due dates, the site's settings and decision rule, every run with its plan,
+ * results, flags and point events. Signatures hash it (`recordHash`); the certificate of a signed
+ * revision is built only from it.
+ */
+export const FrozenRecordSchema = z.object({
+  version: z.literal(1),
+  /** ISO date-time of the submission that froze it. */
+  frozenAt: z.string(),
+  frozenBy: z.object({ id: z.string(), name: z.string() }),
+  job: z.object({
+    id: z.string(),
+    revision: z.number().int(),
+    dueOn: z.string(),
+    permitNo: z.string().nullable(),
+    notes: z.string(),
+    assigneeId: z.string().nullable(),
+    assigneeName: z.string().nullable(),
+    createdAt: z.string(),
+    checklist: z.unknown(),
+  }),
+  instrument: z.object({
+    id: z.string(),
+    tag: z.string(),
+    kind: z.string(),
+    service: z.string(),
+    location: z.string(),
+    lrv: z.number(),
+    urv: z.number(),
+    unit: z.string(),
+    outputMode: z.enum(['linear', 'sqrt-transmitter', 'sqrt-host']),
+    cutoffMode: z.enum(['none', 'clamp', 'linear']),
+    cutoffValue: z.number(),
+    tolerancePct: z.number(),
+    intervalDays: z.number(),
+    primaryElement: z.unknown().nullable(),
+  }),
+  standards: z.array(
+    z.object({
+      id: z.string(),
+      kind: z.string(),
+      description: z.string(),
+      serial: z.string(),
+      rangeMin: z.number(),
+      rangeMax: z.number(),
+      unit: z.string(),
+      accuracy: z.unknown(),
+      resolution: z.number(),
+      certificateNo: z.string(),
+      calibratedOn: z.string(),
+      dueOn: z.string(),
+      certificateFileId: z.string().nullable(),
+    }),
+  ),
+  site: z.object({ name: z.string(), domain: z.string(), settings: z.record(z.string(), z.unknown()) }),
+  runs: z.array(FrozenRunSchema),
+  performers: z.array(z.object({ id: z.string(), name: z.string() })),
+});
+export type FrozenRecord = z.infer<typeof FrozenRecordSchema>;
+
 export const RevisionSchema = RevisionSummarySchema.extend({
   snapshot: z.object({
     job: JobDetailSchema,
     runs: z.array(SnapshotRunSchema),
     signatures: z.array(SignatureSchema),
+    /** The frozen record of this revision, when it was submitted with one. Additive. */
+    record: FrozenRecordSchema.optional(),
   }),
 });
 export type Revision = z.infer<typeof RevisionSchema>;

@@ -32,6 +32,11 @@ export const ManualCaptureBodySchema = z.object({
   reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500),
 });
 
+/** Body of `POST /api/runs/:id/points/:index/redo`: why the point is measured again (optional; kept in the audit trail and on the certificate). */
+export const RedoBodySchema = z.object({
+  reason: z.string().trim().max(500).optional(),
+});
+
 export const TraceQuerySchema = z.object({
   /** Wall-clock ms since epoch, inclusive. */
   from: z.coerce.number().finite().optional(),

@@ -18,6 +18,24 @@ function ensureChromium(): void {
   if (!existsSync(CHROMIUM)) throw new Error(`e2e: apt-get finished but ${CHROMIUM} is still missing.`);
 }
 
+/** pdftotext (poppler-utils) reads the certificate's text in the record e2e tests. */
+function ensurePoppler(): void {
+  const has = () => {
+    try {
+      execFileSync('sh', ['-c', 'command -v pdftotext'], { stdio: 'ignore' });
+      return true;
+    } catch {
+      return false;
+    }
+  };
+  if (has()) return;
+  const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
+  if (!isRoot) throw new Error('e2e: pdftotext is missing and this is not root. Install poppler-utils (sudo apt-get install -y poppler-utils) and run again.');
+  console.log('[e2e] pdftotext not found: installing poppler-utils with apt-get (one time)…');
+  execFileSync('sh', ['-c', 'apt-get install -y poppler-utils || (apt-get update && apt-get install -y poppler-utils)'], { stdio: 'inherit' });
+  if (!has()) throw new Error('e2e: apt-get finished but pdftotext is still missing.');
+}
+
 /** Newest modification time (ms) of a file or of any file under a folder. */
 function newest(p: string): number {
   if (!existsSync(p)) return 0;
@@ -43,5 +61,6 @@ function ensureClientBuild(): void {
 
 export default function setup(): void {
   ensureChromium();
+  ensurePoppler();
   ensureClientBuild();
 }

@@ -1,11 +1,12 @@
 import { and, asc, desc, eq, inArray, or, sql, ilike, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
-import { instruments, jobRevisions, jobs, points, runs, samples, signatures, standards, users } from '../schema';
+import { instruments, jobRevisions, jobs, points, recordSnapshots, runs, samples, signatures, sites, standards, users } from '../schema';
 import { parsedRun } from './run.repository';
 
 export type SignatureRow = typeof signatures.$inferSelect;
 export type SignatureInsert = typeof signatures.$inferInsert;
 export type RevisionRow = typeof jobRevisions.$inferSelect;
+export type SnapshotRow = typeof recordSnapshots.$inferSelect;
 export type RunRow = typeof runs.$inferSelect;
 export type PointRow = typeof points.$inferSelect;
 export type RunWithPoints = RunRow & { points: PointRow[] };
@@ -29,6 +30,72 @@ export function reviewRepository(db: Db) {
         )
         .orderBy(asc(points.index));
       return rs.map((r) => ({ ...parsedRun(r), points: ps.filter((p) => p.runId === r.id) }));
+    },
+
+    // ---- the frozen record (record_snapshots) and what it is built from ----
+
+    /** The frozen record of one revision of a job, if it was submitted with one. */
+    async snapshot(jobId: string, revision: number): Promise<SnapshotRow | undefined> {
+      const [row] = await db
+        .select()
+        .from(recordSnapshots)
+        .where(and(eq(recordSnapshots.jobId, jobId), eq(recordSnapshots.revision, revision)))
+        .limit(1);
+      return row;
+    },
+
+    /**
+     * Submits a job and stores its frozen record in one transaction: the job moves to `submitted`
+     * only from one of `fromStatus` at the same revision, and the snapshot of that revision is
+     * written (a resubmission after a return replaces the earlier one). Returns false when the job
+     * moved on meanwhile.
+     */
+    async submitWithSnapshot(values: { jobId: string; revision: number; snapshot: unknown; hash: string; frozenAt: Date }, fromStatus: readonly string[]): Promise<boolean> {
+      return db.transaction(async (tx) => {
+        const [moved] = await tx
+          .update(jobs)
+          .set({ status: 'submitted', updatedAt: values.frozenAt })
+          .where(and(eq(jobs.id, values.jobId), eq(jobs.revision, values.revision), inArray(jobs.status, [...fromStatus] as Array<typeof jobs.$inferSelect.status>)))
+          .returning({ id: jobs.id });
+        if (!moved) return false;
+        await tx
+          .insert(recordSnapshots)
+          .values(values)
+          .onConflictDoUpdate({ target: [recordSnapshots.jobId, recordSnapshots.revision], set: { snapshot: values.snapshot, hash: values.hash, frozenAt: values.frozenAt } });
+        return true;
+      });
+    },
+
+    /** Stores the frozen record of a revision that was submitted before records were frozen (signed at review). */
+    async saveSnapshot(values: { jobId: string; revision: number; snapshot: unknown; hash: string; frozenAt: Date }): Promise<void> {
+      await db
+        .insert(recordSnapshots)
+        .values(values)
+        .onConflictDoUpdate({ target: [recordSnapshots.jobId, recordSnapshots.revision], set: { snapshot: values.snapshot, hash: values.hash, frozenAt: values.frozenAt } });
+    },
+
+    async instrumentRow(id: string): Promise<typeof instruments.$inferSelect | undefined> {
+      const [row] = await db.select().from(instruments).where(eq(instruments.id, id)).limit(1);
+      return row;
+    },
+    async standardRows(ids: string[]): Promise<Array<typeof standards.$inferSelect>> {
+      if (!ids.length) return [];
+      return db.select().from(standards).where(inArray(standards.id, ids));
+    },
+    async site(): Promise<typeof sites.$inferSelect | undefined> {
+      const [row] = await db.select().from(sites).limit(1);
+      return row;
+    },
+    async userNames(ids: string[]): Promise<Map<string, string>> {
+      const real = ids.filter((id) => /^[0-9a-f-]{36}$/i.test(id));
+      if (!real.length) return new Map();
+      const rows = await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, real));
+      return new Map(rows.map((r) => [r.id, r.name]));
+    },
+    async userNamesByEmail(emails: string[]): Promise<Map<string, string>> {
+      if (!emails.length) return new Map();
+      const rows = await db.select({ email: users.email, name: users.name }).from(users).where(inArray(users.email, emails));
+      return new Map(rows.map((r) => [r.email, r.name]));
     },
 
     async signatures(jobId: string): Promise<SignatureRow[]> {

@@ -55,3 +55,26 @@ export const jobRevisions = pgTable(
   },
   (t) => [unique('job_revisions_job_revision_uq').on(t.jobId, t.revision)],
 );
+
+/**
+ * The record as submitted, frozen: the instrument's register entry as used, the standards with
+ * their certificates, the site's settings, the plan, every run's results and flags, and how each
+ * point was captured (shared/schemas/records `FrozenRecordSchema`). One row per job revision; a
+ * resubmission after a return replaces it. Signatures hash it; the certificate of a signed
+ * revision is built only from it.
+ */
+export const recordSnapshots = pgTable(
+  'record_snapshots',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    jobId: uuid('job_id')
+      .notNull()
+      .references(() => jobs.id),
+    revision: integer('revision').notNull(),
+    snapshot: jsonb('snapshot').notNull(),
+    /** sha256 of the canonical JSON of `snapshot` (what a signature's record hash must equal). */
+    hash: text('hash').notNull(),
+    frozenAt: timestamp('frozen_at', { withTimezone: true }).notNull(),
+  },
+  (t) => [unique('record_snapshots_job_revision_uq').on(t.jobId, t.revision)],
+);

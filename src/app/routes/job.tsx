@@ -173,7 +173,7 @@ export function Component() {
         <StepSection step={step('decision')} index={indexOf('decision')} description="Results per point with uncertainty and decision under the site's rule; as-found and as-left together once both exist.">
           {asFound ? (
             <div className="flex flex-col gap-4">
-              <ResultsTable results={asFound} unitLabel={uLabel} rooted={rooted} dpDecimals={dpDecimals} caption="As-found results" testId="as-found-results" />
+              <ResultsTable results={asFound} unitLabel={uLabel} rooted={rooted} outputMode={ins?.outputMode} dpDecimals={dpDecimals} caption="As-found results" testId="as-found-results" />
               {ins && <ErrorChart asFound={asFound} asLeft={asLeft} tolerancePct={ins.tolerancePct} labels={pointLabels} rooted={rooted} />}
               <p className="text-sm text-ink-muted">
                 {asFound.overallDecision === 'pass'
@@ -206,7 +206,7 @@ export function Component() {
         <StepSection step={step('as-left')} index={indexOf('as-left')} description="The transmitter as it is left: the same points again after the trims.">
           <div className="flex flex-col gap-4">
             <RunLauncher runs={runsOf('as-left')} label="As-left runs" startLabel="Start the as-left run" canStart={canRun && !!asFoundRun} onStart={() => startRun('as-left')} starting={starting === 'as-left'} testId="start-as-left" />
-            {asLeft && <ResultsTable results={asLeft} unitLabel={uLabel} rooted={rooted} dpDecimals={dpDecimals} caption="As-left results" testId="as-left-results" />}
+            {asLeft && <ResultsTable results={asLeft} unitLabel={uLabel} rooted={rooted} outputMode={ins?.outputMode} dpDecimals={dpDecimals} caption="As-left results" testId="as-left-results" />}
           </div>
         </StepSection>
 

@@ -19,7 +19,7 @@ import { AuditTrailList, ChecklistSummary, Panel, RevisionList, SignatureList, S
 import { RevisionDialog } from '../../features/review/components/revision-dialog';
 import { SignDialog } from '../../features/review/components/sign-dialog';
 import { TraceChart } from '../../features/review/components/trace-chart';
-import { DECISION_LABELS, DECISION_TONES, defaultRunId, parseResults, pointWindow, RUN_KIND_LABELS } from '../../features/review/lib/results';
+import { DECISION_LABELS, DECISION_TONES, defaultRunId, parseResults, pointWindow, RUN_KIND_LABELS, spanWords } from '../../features/review/lib/results';
 import { formatNumber, formatRange, unitLabel } from '../../lib/format';
 import { requireMe } from '../auth-guard';
 import { RouteErrorBoundary } from './route-error';
@@ -165,13 +165,13 @@ export function Component() {
                   {results.maxHysteresisPctSpan != null && (
                     <>
                       {' '}
-                      · largest hysteresis <span className="num">{formatNumber(results.maxHysteresisPctSpan, 3)}</span> % of span
+                      · largest hysteresis <span className="num">{formatNumber(results.maxHysteresisPctSpan, 3)}</span> % of {spanWords(instrument.outputMode)}
                     </>
                   )}{' '}
                   · hold <span className="num">{run.holdSeconds}</span> s
                 </p>
               )}
-              <PointTable run={run} selectedIndex={selected} onSelect={choosePoint} />
+              <PointTable run={run} selectedIndex={selected} onSelect={choosePoint} outputMode={instrument.outputMode} />
             </>
           )}
           <Panel title="Audit trail of this job">

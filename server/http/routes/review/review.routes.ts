@@ -23,6 +23,11 @@ export function reviewRoutes(review: ReviewService) {
   t.add('get', '/:id/signatures', 'jobs.read', validate(one), async (_req, res) => {
     res.json({ items: await review.signatures(input(res, one).params.id) });
   });
+  const record = { params: IdParamSchema, query: z.object({ revision: z.coerce.number().int().min(1).max(10_000).optional() }) };
+  t.add('get', '/:id/record', 'jobs.read', validate(record), async (_req, res) => {
+    const { params, query } = input(res, record);
+    res.json(await review.record(params.id, query.revision));
+  });
   t.add('get', '/:id/revisions', 'jobs.read', validate(one), async (_req, res) => {
     res.json({ items: await review.revisions(input(res, one).params.id) });
   });

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { ManualCaptureBodySchema, StartRunBodySchema, TraceQuerySchema } from '../../../../shared/schemas/runs';
+import { ManualCaptureBodySchema, RedoBodySchema, StartRunBodySchema, TraceQuerySchema } from '../../../../shared/schemas/runs';
 import { IdParamSchema } from '../../../../shared/schemas/users';
 import type { RunService } from '../../../services/run.service';
 import { currentUser } from '../../middleware/auth';
@@ -26,10 +26,10 @@ export function runRoutes(runs: RunService) {
     const { params, body } = input(res, capture);
     res.json(await runs.manualCapture(currentUser(res), params.id, params.index, body.reason));
   });
-  const redo = { params: PointParamsSchema };
+  const redo = { params: PointParamsSchema, body: RedoBodySchema };
   t.add('post', '/runs/:id/points/:index/redo', 'jobs.perform', validate(redo), async (_req, res) => {
-    const { params } = input(res, redo);
-    res.json(await runs.redo(currentUser(res), params.id, params.index));
+    const { params, body } = input(res, redo);
+    res.json(await runs.redo(currentUser(res), params.id, params.index, body.reason || undefined));
   });
   for (const what of ['pause', 'resume', 'abort'] as const) {
     t.add('post', `/runs/:id/${what}`, 'jobs.perform', validate(one), async (_req, res) => {

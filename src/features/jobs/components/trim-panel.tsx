@@ -7,10 +7,28 @@ import { formatNumber } from '../../../lib/format';
 
 const TRIM_LABEL: Record<string, string> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
 
-/** Captured readings of the trim runs of one kind, in order: the first is "before", the last "after". */
-export function trimReadings(runs: readonly Run[], kind: string): { before: Run['points'][number] | undefined; after: Run['points'][number] | undefined; runs: Run[] } {
+/** A trim reading: the captured point and its error as the API evaluated it for its run. */
+export interface TrimReading {
+  point: Run['points'][number];
+  /** % of output span (flow span for a root in the transmitter), from the run's `results`; null without results. */
+  errorPctSpan: number | null;
+}
+
+/** The API's evaluated error of a run's point: results cover the captured points in plan order. */
+function evaluatedError(run: Run, index: number): number | null {
+  const results = run.results as { points?: Array<{ errorPctSpan?: unknown }> } | null;
+  const k = run.points.filter((p) => p.capture && p.index < index).length;
+  const e = results?.points?.[k]?.errorPctSpan;
+  return typeof e === 'number' ? e : null;
+}
+
+/**
+ * Captured readings of the trim runs of one kind, in order: the first is "before", the last
+ * "after" (the certificate's adjustment table pairs them the same way).
+ */
+export function trimReadings(runs: readonly Run[], kind: string): { before: TrimReading | undefined; after: TrimReading | undefined; runs: Run[] } {
   const mine = runs.filter((r) => r.kind === 'trim' && r.trim === kind).sort((a, b) => a.startedAt.localeCompare(b.startedAt));
-  const captured = mine.flatMap((r) => r.points.filter((p) => p.capture));
+  const captured = mine.flatMap((r) => r.points.filter((p) => p.capture).map((point) => ({ point, errorPctSpan: evaluatedError(r, point.index) })));
   return { before: captured[0], after: captured.length > 1 ? captured.at(-1) : undefined, runs: mine };
 }
 
@@ -55,7 +73,8 @@ export function TrimPanel({
           const r = trimReadings(runs, s.kind);
           const open = r.runs.find((x) => x.status === 'running' || x.status === 'paused');
           const done = r.runs.some((x) => x.status === 'complete');
-          const err = (ma: number) => ((ma - s.expectedMa) / 16) * 100;
+          const span = rooted ? 'flow span' : 'span';
+          const err = (e: number | null) => (e === null ? '—' : `${e >= 0 ? '+' : '−'}${formatNumber(Math.abs(e), 3)} % ${span}`);
           return (
             <li key={s.kind} className="rounded-md border border-line p-4" data-testid={`trim-${s.kind}`}>
               <div className="flex items-start justify-between gap-2">
@@ -77,16 +96,24 @@ export function TrimPanel({
                 <div className="rounded bg-sunken px-3 py-2">
                   <dt className="text-xs text-ink-muted">Before</dt>
                   <dd className="num text-lg text-ink" data-testid={`trim-before-${s.kind}`}>
-                    {r.before?.capture ? `${formatNumber(r.before.capture.measuredMa, 4)} mA` : '—'}
+                    {r.before?.point.capture ? `${formatNumber(r.before.point.capture.measuredMa, 4)} mA` : '—'}
                   </dd>
-                  {r.before?.capture && <dd className="num text-xs text-ink-muted">{formatNumber(err(r.before.capture.measuredMa), 3)} % span</dd>}
+                  {r.before?.point.capture && (
+                    <dd className="num text-xs text-ink-muted" data-testid={`trim-before-error-${s.kind}`}>
+                      {err(r.before.errorPctSpan)}
+                    </dd>
+                  )}
                 </div>
                 <div className="rounded bg-sunken px-3 py-2">
                   <dt className="text-xs text-ink-muted">After</dt>
                   <dd className="num text-lg text-ink" data-testid={`trim-after-${s.kind}`}>
-                    {r.after?.capture ? `${formatNumber(r.after.capture.measuredMa, 4)} mA` : '—'}
+                    {r.after?.point.capture ? `${formatNumber(r.after.point.capture.measuredMa, 4)} mA` : '—'}
                   </dd>
-                  {r.after?.capture && <dd className="num text-xs text-ink-muted">{formatNumber(err(r.after.capture.measuredMa), 3)} % span</dd>}
+                  {r.after?.point.capture && (
+                    <dd className="num text-xs text-ink-muted" data-testid={`trim-after-error-${s.kind}`}>
+                      {err(r.after.errorPctSpan)}
+                    </dd>
+                  )}
                 </div>
               </dl>
               <div className="mt-3">

@@ -2,17 +2,23 @@ import type { Run } from '../../../../shared/schemas/runs';
 import { Badge } from '../../../components/ui/badge';
 import { cn } from '../../../lib/cn';
 import { formatNumber } from '../../../lib/format';
-import { DECISION_LABELS, DECISION_TONES, pointsWithResults } from '../lib/results';
+import { DECISION_LABELS, DECISION_TONES, hysteresisAt, parseResults, pointsWithResults, spanWords } from '../lib/results';
 
 export interface PointTableProps {
   run: Run;
   selectedIndex: number | null;
   onSelect: (index: number) => void;
+  /** The instrument's output mode: errors are % of flow span for a root in the transmitter. */
+  outputMode?: string;
 }
 
 /** Every point of a run with its capture, result, uncertainty and decision; a row opens its trace. */
-export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
+const hyst = (h: number | null) => (h === null ? '—' : formatNumber(h, 3));
+
+export function PointTable({ run, selectedIndex, onSelect, outputMode }: PointTableProps) {
   const rows = pointsWithResults(run);
+  const results = parseResults(run);
+  const span = spanWords(outputMode);
   return (
     <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full border-collapse text-sm" aria-label={`Points of the ${run.kind} run`}>
@@ -22,8 +28,9 @@ export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
             <th className="px-3 py-2 text-right">Applied ({run.unit})</th>
             <th className="px-3 py-2 text-right">Current (mA)</th>
             <th className="px-3 py-2 text-right">Expected (mA)</th>
-            <th className="px-3 py-2 text-right">Error (% span)</th>
-            <th className="px-3 py-2 text-right">U (% span; k, ν<sub>eff</sub>)</th>
+            <th className="px-3 py-2 text-right">Error (% {span})</th>
+            <th className="px-3 py-2 text-right">Hysteresis (% {span})</th>
+            <th className="px-3 py-2 text-right">U (% {span}; k, ν<sub>eff</sub>)</th>
             <th className="px-3 py-2 text-right">TUR</th>
             <th className="px-3 py-2">Decision</th>
             <th className="px-3 py-2">Flags</th>
@@ -52,7 +59,12 @@ export function PointTable({ run, selectedIndex, onSelect }: PointTableProps) {
               <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.appliedDp, 4) : '—'}</td>
               <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}</td>
               <td className="num px-3 py-2 text-right">{formatNumber(r?.expectedMa ?? p.expectedMa, 4)}</td>
-              <td className="num px-3 py-2 text-right">{r ? formatNumber(r.errorPctSpan, 3) : '—'}</td>
+              <td className="num px-3 py-2 text-right" data-testid={`review-error-${p.index}`}>
+                {r ? formatNumber(r.errorPctSpan, 3) : '—'}
+              </td>
+              <td className="num px-3 py-2 text-right" data-testid={`review-hyst-${p.index}`}>
+                {hyst(r && results ? hysteresisAt(results, r) : null)}
+              </td>
               <td className="num px-3 py-2 text-right">
                 {r?.expandedUncertaintyPctSpan != null ? formatNumber(r.expandedUncertaintyPctSpan, 3) : '—'}
                 {r?.coverageFactor != null && (

@@ -9,6 +9,20 @@ export function parseResults(run: Run): RunResults | null {
   return r.success ? r.data : null;
 }
 
+/**
+ * Hysteresis at a result's nominal, % of span, as the API evaluated it (the difference of the up
+ * and down errors at that nominal); null when it was not read both ways. Never recomputed here.
+ */
+export function hysteresisAt(results: RunResults, point: Pick<PointResult, 'nominalPct' | 'basis'>): number | null {
+  const h = results.hysteresis?.find((x) => x.nominalPct === point.nominalPct && (x.basis === undefined || point.basis === undefined || x.basis === point.basis));
+  return h?.hysteresisPctSpan ?? null;
+}
+
+/** What errors are a percentage of: flow span for a root in the transmitter, else output span (REFERENCE.md). */
+export function spanWords(outputMode: string | undefined): 'flow span' | 'span' {
+  return outputMode === 'sqrt-transmitter' ? 'flow span' : 'span';
+}
+
 /** Each planned point with its result (results are computed over the captured points, in order). */
 export function pointsWithResults(run: Run): Array<{ point: RunPoint; result: PointResult | null }> {
   const results = parseResults(run);

@@ -14,21 +14,21 @@ async function post(path: string, body: unknown): Promise<Run | undefined> {
 
 /** POST /api/runs/:id/points/:index/capture { reason } — manual capture. */
 export const captureManually = (runId: string, index: number, reason: string) => post(`${runPath(runId)}/points/${index}/capture`, { reason });
-/** POST /api/runs/:id/points/:index/redo — measure the point again. */
-export const redoPoint = (runId: string, index: number) => post(`${runPath(runId)}/points/${index}/redo`, {});
+/** POST /api/runs/:id/points/:index/redo { reason? } — measure the point again. */
+export const redoPoint = (runId: string, index: number, reason?: string) => post(`${runPath(runId)}/points/${index}/redo`, reason ? { reason } : {});
 /** POST /api/runs/:id/pause|resume|abort. */
 export const controlRun = (runId: string, action: 'pause' | 'resume' | 'abort') => post(`${runPath(runId)}/${action}`, {});
 
 export type RunAction =
   | { type: 'capture'; index: number; reason: string }
-  | { type: 'redo'; index: number }
+  | { type: 'redo'; index: number; reason?: string }
   | { type: 'pause' | 'resume' | 'abort' };
 
 export function useRunAction(runId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (a: RunAction) =>
-      a.type === 'capture' ? captureManually(runId, a.index, a.reason) : a.type === 'redo' ? redoPoint(runId, a.index) : controlRun(runId, a.type),
+      a.type === 'capture' ? captureManually(runId, a.index, a.reason) : a.type === 'redo' ? redoPoint(runId, a.index, a.reason) : controlRun(runId, a.type),
     onSuccess: (run) => {
       if (run) qc.setQueryData(queryKeys.run(runId), run);
       void qc.invalidateQueries({ queryKey: queryKeys.run(runId) });

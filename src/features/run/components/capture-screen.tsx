@@ -75,6 +75,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
   const { muted, setMuted } = useSoundPref();
   const [manualFor, setManualFor] = useState<RunPoint | null>(null);
   const [redoFor, setRedoFor] = useState<RunPoint | null>(null);
+  const [redoReason, setRedoReason] = useState('');
   const [aborting, setAborting] = useState(false);
   const [flash, setFlash] = useState<{ index: number; at: number } | null>(null);
 
@@ -258,7 +259,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
           <h2 id="run-results" className="mb-2 text-lg font-semibold text-ink">
             Results
           </h2>
-          <ResultsTable results={results} unitLabel={unitLabel} rooted={rooted} dpDecimals={dpDecimals} caption={`${RUN_KIND_LABEL[run.kind]} results`} testId="run-results" />
+          <ResultsTable results={results} unitLabel={unitLabel} rooted={rooted} outputMode={instrument?.outputMode} dpDecimals={dpDecimals} caption={`${RUN_KIND_LABEL[run.kind]} results`} testId="run-results" />
         </section>
       )}
       {!results && run.resultsProblem && <p className="text-sm text-warn">Results cannot be computed yet: {run.resultsProblem}</p>}
@@ -288,14 +289,33 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
               loading={action.isPending}
               data-testid="confirm-redo"
               onClick={() => {
-                if (redoFor) void act({ type: 'redo', index: redoFor.index }, `Point ${redoFor.index + 1} will be measured again`).then(() => setRedoFor(null), () => {});
+                if (redoFor)
+                  void act({ type: 'redo', index: redoFor.index, reason: redoReason.trim() || undefined }, `Point ${redoFor.index + 1} will be measured again`).then(
+                    () => {
+                      setRedoFor(null);
+                      setRedoReason('');
+                    },
+                    () => {},
+                  );
               }}
             >
               Redo the point
             </Button>
           </>
         }
-      />
+      >
+        <label className="flex flex-col gap-1 text-sm font-medium text-ink">
+          Reason (optional; it goes on the certificate)
+          <textarea
+            value={redoReason}
+            onChange={(e) => setRedoReason(e.target.value)}
+            maxLength={500}
+            rows={2}
+            data-testid="redo-reason"
+            className="rounded-md border border-line-strong bg-surface px-3 py-2 text-sm font-normal text-ink focus-visible:outline-2 focus-visible:outline-focus"
+          />
+        </label>
+      </Dialog>
       <Dialog
         open={aborting}
         onClose={() => setAborting(false)}

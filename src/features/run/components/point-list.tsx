@@ -3,7 +3,7 @@ import { Badge } from '../../../components/ui/badge';
 import { cn } from '../../../lib/cn';
 import { formatNumber } from '../../../lib/format';
 import { nominalWords } from '../lib/live-values';
-import type { RunResults } from '../lib/results';
+import { resultsByPoint, type RunResults } from '../lib/results';
 import { STATE_LABEL } from './current-point';
 
 /** Every point of the run with its state, flags and captured values; redo on captured points. */
@@ -24,6 +24,7 @@ export function PointList({
   onRedo: (index: number) => void;
   rooted: boolean;
 }) {
+  const byPoint = resultsByPoint(points, results);
   return (
     <div className="overflow-hidden rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Points">
@@ -49,8 +50,9 @@ export function PointList({
         <tbody>
           {points.map((p) => {
             const current = p.index === currentIndex && p.state !== 'captured';
-            const r = results?.points.find((x) => x.index === p.index);
-            const err = r ? r.errorPctSpan : p.capture ? ((p.capture.measuredMa - p.expectedMa) / 16) * 100 : null;
+            // The API's evaluated error (at the DP actually applied), never one recomputed here.
+            const r = byPoint.get(p.index);
+            const err = r?.errorPctSpan ?? null;
             return (
               <tr
                 key={p.index}

@@ -1,7 +1,7 @@
 import { Badge, type BadgeTone } from '../../../components/ui/badge';
 import { formatNumber } from '../../../lib/format';
 import { nominalWords } from '../lib/live-values';
-import { hysteresisAt, type RunResults } from '../lib/results';
+import { hysteresisAt, spanWords, type RunResults } from '../lib/results';
 
 export const DECISION: Record<string, { label: string; tone: BadgeTone }> = {
   pass: { label: 'Pass', tone: 'ok' },
@@ -14,8 +14,29 @@ export const DECISION: Record<string, { label: string; tone: BadgeTone }> = {
 const signed = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : `${v >= 0 ? '+' : '−'}${formatNumber(Math.abs(v), d)}`);
 const plain = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : formatNumber(v, d));
 
-/** Per-point results of a run: applied DP and flow, expected and measured current, error, hysteresis, U, TUR, decision. */
-export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, testId }: { results: RunResults; unitLabel: string; rooted: boolean; dpDecimals: number; caption: string; testId?: string }) {
+/**
+ * Per-point results of a run: applied DP and flow, expected and measured current, error,
+ * hysteresis, U, TUR, decision — every value as the API evaluated it (`results`), none recomputed.
+ */
+export function ResultsTable({
+  results,
+  unitLabel,
+  rooted,
+  outputMode,
+  dpDecimals,
+  caption,
+  testId,
+}: {
+  results: RunResults;
+  unitLabel: string;
+  rooted: boolean;
+  /** The instrument's output mode: says whether errors are % of flow span or of span. */
+  outputMode?: string;
+  dpDecimals: number;
+  caption: string;
+  testId?: string;
+}) {
+  const span = spanWords(outputMode, rooted);
   const overall = results.overallDecision ? DECISION[results.overallDecision] : undefined;
   return (
     <div className="flex flex-col gap-2" data-testid={testId}>
@@ -29,9 +50,9 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
               {rooted && <th scope="col" className="px-3 py-2 text-right">Applied flow %</th>}
               <th scope="col" className="px-3 py-2 text-right">Expected mA</th>
               <th scope="col" className="px-3 py-2 text-right">Measured mA</th>
-              <th scope="col" className="px-3 py-2 text-right">Error % {rooted ? 'flow span' : 'span'}</th>
-              <th scope="col" className="px-3 py-2 text-right">Hysteresis %</th>
-              <th scope="col" className="px-3 py-2 text-right">U % (k, ν<sub>eff</sub>)</th>
+              <th scope="col" className="px-3 py-2 text-right">Error % {span}</th>
+              <th scope="col" className="px-3 py-2 text-right">Hysteresis % {span}</th>
+              <th scope="col" className="px-3 py-2 text-right">U % {span} (k, ν<sub>eff</sub>)</th>
               <th scope="col" className="px-3 py-2 text-right">TUR</th>
               <th scope="col" className="px-3 py-2 text-left">Decision</th>
             </tr>
@@ -39,7 +60,8 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
           <tbody>
             {results.points.map((p) => {
               const d = DECISION[p.decision] ?? { label: p.decision, tone: 'neutral' as const };
-              const h = p.direction === 'down' ? null : hysteresisAt(results, p.nominalPct);
+              // Shown on both readings of the nominal: one value per nominal, from the API.
+              const h = hysteresisAt(results, p);
               return (
                 <tr key={p.index} className="border-t border-line" data-testid={`result-row-${p.index}`}>
                   <td className="px-3 py-2 whitespace-nowrap">
@@ -50,7 +72,7 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
                   <td className="num px-3 py-2 text-right">{plain(p.expectedMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-ma-${p.index}`}>{plain(p.measuredMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-error-${p.index}`}>{signed(p.errorPctSpan, 3)}</td>
-                  <td className="num px-3 py-2 text-right">{signed(h, 3)}</td>
+                  <td className="num px-3 py-2 text-right" data-testid={`result-hyst-${p.index}`}>{plain(h, 3)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-u-${p.index}`}>
                     {plain(p.expandedUncertaintyPctSpan, 3)}
                     {p.coverageFactor != null && (
@@ -83,12 +105,12 @@ export function ResultsTable({ results, unitLabel, rooted, dpDecimals, caption, 
         </span>
         {results.worstError && (
           <span>
-            Worst error <span className="num text-ink">{signed(results.worstError.errorPctSpan, 3)} %</span> at point <span className="num">{results.worstError.index + 1}</span>
+            Worst error <span className="num text-ink">{signed(results.worstError.errorPctSpan, 3)} % {span}</span> at point <span className="num">{results.worstError.index + 1}</span>
           </span>
         )}
         {results.maxHysteresisPctSpan !== null && results.maxHysteresisPctSpan !== undefined && (
           <span>
-            Max hysteresis <span className="num text-ink">{formatNumber(results.maxHysteresisPctSpan, 3)} %</span>
+            Max hysteresis <span className="num text-ink" data-testid="max-hysteresis">{formatNumber(results.maxHysteresisPctSpan, 3)} % {span}</span>
           </span>
         )}
       </p>

@@ -16,10 +16,32 @@ export function parseResults(results: unknown): RunResults | null {
 }
 
 /**
- * Hysteresis at a point's nominal, % of output span: error up − error down at that nominal, as the
- * calc engine computed it (REFERENCE.md: the errors, each referred to its own applied value, not
- * the raw mA difference).
+ * Hysteresis at a result point's nominal, % of span, as the API evaluated it (shared/calc: the
+ * difference of the up and down errors at the same nominal, REFERENCE.md "Transfer functions");
+ * null when the nominal was not read both ways. Never recomputed here.
  */
-export function hysteresisAt(results: RunResults, nominalPct: number): number | null {
-  return results.hysteresis.find((h) => h.nominalPct === nominalPct)?.hysteresisPctSpan ?? null;
+export function hysteresisAt(results: RunResults, point: Pick<ResultPoint, 'nominalPct' | 'basis'>): number | null {
+  const h = results.hysteresis?.find((x) => x.nominalPct === point.nominalPct && (x.basis === undefined || point.basis === undefined || x.basis === point.basis));
+  return h?.hysteresisPctSpan ?? null;
+}
+
+/**
+ * The evaluated result of each point of a run, by plan index: the API evaluates the captured
+ * points in plan order, so the k-th result belongs to the k-th captured point.
+ */
+export function resultsByPoint(points: ReadonlyArray<{ index: number; capture: unknown }>, results: RunResults | null): Map<number, ResultPoint> {
+  const out = new Map<number, ResultPoint>();
+  if (!results) return out;
+  let k = 0;
+  for (const p of [...points].sort((a, b) => a.index - b.index)) {
+    if (!p.capture) continue;
+    const r = results.points[k++];
+    if (r) out.set(p.index, r);
+  }
+  return out;
+}
+
+/** What errors are a percentage of: flow span for a root in the transmitter, else output span (REFERENCE.md). */
+export function spanWords(outputMode: string | undefined, rooted: boolean): 'flow span' | 'span' {
+  return outputMode ? (outputMode === 'sqrt-transmitter' ? 'flow span' : 'span') : rooted ? 'flow span' : 'span';
 }
