@@ -10,6 +10,7 @@ import { createApp } from './app';
 import { openDatabase, type Database } from './db/client';
 import type { Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
+import { benchesRoutes } from './http/routes/benches/benches.routes';
 import { uploadRoutes } from './http/routes/files/files.routes';
 import { outboxRoutes } from './http/routes/outbox/outbox.routes';
 import { runRoutes } from './http/routes/runs/runs.routes';
@@ -22,6 +23,8 @@ import { createMailService, type MailService } from './services/mail.service';
 import { createFileStore } from './storage/file-store';
 import { createUploads } from './storage/upload';
 import { createBenchService, journalDirOf, type BenchService, type BenchServiceOptions } from './services/bench.service';
+import { createBenchRegistry, type BenchRegistry } from './services/bench-registry.service';
+import { createForwardService, type ForwardService } from './services/forward.service';
 import { seedDemo } from './services/demo-seed.service';
 import { createRunService, type RunService } from './services/run.service';
 import { attachStreamServer, type StreamServer } from './ws/stream-server';
@@ -44,6 +47,9 @@ export interface Running {
   database: Database;
   services: Services;
   bench: BenchService;
+  /** Registered benches (agents and their tokens). */
+  benches: BenchRegistry;
+  forward: ForwardService;
   runs: RunService;
   stream: StreamServer;
   files: FileService;
@@ -135,7 +141,11 @@ export async function boot(opts: BootOptions): Promise<Running> {
     });
     benchToStop = bench;
     await bench.start();
-    const runs = createRunService(database.db, services.audit, services.jobs, bench, { envHoldSeconds: env.HOLD_SECONDS, logger });
+    const benches = createBenchRegistry(database.db, services.audit, { localBenchId: bench.benchId });
+    await benches.load();
+    const forward = createForwardService(database.db, { bench, registry: benches, auth: services.auth }, { logger });
+    await forward.prune();
+    const runs = createRunService(database.db, services.audit, services.jobs, bench, { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn });
     const restored = await runs.restoreActive();
     if (restored) logger.info({ restored }, 'restored active runs');
     const app = createApp({
@@ -145,7 +155,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(bench), ...uploadRoutes(files), outboxRoutes(mail)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), simRoutes(bench), ...uploadRoutes(files), outboxRoutes(mail)],
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -157,7 +167,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       server.once('error', reject);
       server.listen(env.PORT, env.HOST, () => resolve());
     });
-    const stream = attachStreamServer({ server, auth: services.auth, bench, logger, allowedOrigins });
+    const stream = attachStreamServer({ server, auth: services.auth, bench, registry: benches, forward, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 
@@ -177,6 +187,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       database,
       services,
       bench,
+      benches,
+      forward,
       runs,
       stream,
       files,

@@ -40,6 +40,8 @@ export interface SampleEntry {
   source: SampleSource;
   /** The sender's own wall clock for a forwarded line (metadata only), ms since the epoch; null for local ports. */
   clientWallMs: number | null;
+  /** A forwarded line that was not live when sent (held through a dropped link): stored, never part of a hold. */
+  backlog?: boolean;
 }
 
 /** Any other stream message (device and run events), already numbered. */
@@ -220,6 +222,7 @@ export class BenchHub {
     wallMs?: number;
     source?: SampleSource;
     clientWallMs?: number | null;
+    backlog?: boolean;
   }): SampleEntry {
     const monoMs = this.monoNow();
     const wallMs = s.wallMs ?? this.wallNow();
@@ -237,6 +240,7 @@ export class BenchHub {
       runId: this.runs.get(s.benchId) ?? null,
       source: s.source ?? { kind: 'port', id: s.benchId },
       clientWallMs: s.clientWallMs ?? null,
+      ...(s.backlog ? { backlog: true } : {}),
     };
     const d = this.counters(s.benchId, s.device);
     if (s.value === null) d.badLines++;

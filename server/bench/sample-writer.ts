@@ -78,6 +78,7 @@ export class SampleWriter {
   private dbTail: Promise<void> = Promise.resolve();
   private lastFailureMs = -Infinity;
   private stopped = false;
+  private ackWaiters: { seq: number; resolve: () => void }[] = [];
   readonly stats: SampleWriterStats = { ackedSeq: 0, storedSeq: 0, pending: 0, written: 0, batches: 0, lastBatchMs: 0, failures: 0, replayed: 0 };
 
   constructor(options: SampleWriterOptions) {
@@ -209,6 +210,7 @@ export class SampleWriter {
       ? (prepared?.csv ? this.journal.appendCsv(prepared.csv.slice(), rows.length) : this.journal.append(rows)).then(
           () => {
             this.stats.ackedSeq = Math.max(this.stats.ackedSeq, top);
+            this.wakeAckWaiters();
           },
           fail,
         )
@@ -223,12 +225,32 @@ export class SampleWriter {
         return;
       }
       this.stats.storedSeq = Math.max(this.stats.storedSeq, top);
-      if (!this.journal) this.stats.ackedSeq = this.stats.storedSeq;
+      if (!this.journal) {
+        this.stats.ackedSeq = this.stats.storedSeq;
+        this.wakeAckWaiters();
+      }
       this.stats.written += rows.length;
       this.stats.batches++;
       this.stats.lastBatchMs = performance.now() - t0;
     });
     await Promise.all([journaled, previous]);
+  }
+
+  /** Resolves once every sample up to `seq` is durably stored (`stats.ackedSeq >= seq`). */
+  whenAcked(seq: number): Promise<void> {
+    if (this.stats.ackedSeq >= seq) return Promise.resolve();
+    return new Promise((resolve) => this.ackWaiters.push({ seq, resolve }));
+  }
+
+  private wakeAckWaiters(): void {
+    if (!this.ackWaiters.length) return;
+    const acked = this.stats.ackedSeq;
+    const still: { seq: number; resolve: () => void }[] = [];
+    for (const w of this.ackWaiters) {
+      if (w.seq <= acked) w.resolve();
+      else still.push(w);
+    }
+    this.ackWaiters = still;
   }
 
   /** Flushes everything pending and closes the journal. */

@@ -17,6 +17,8 @@ export const POLICY = {
   'calc.evaluate': 'signed-in',
   'bench.read': 'signed-in',
   'bench.configure': ['admin', 'lead'],
+  'benches.read': 'signed-in',
+  'benches.manage': ['lead', 'admin'],
   'sim.control': ['admin'],
   'audit.read': ['lead', 'admin', 'auditor'],
   'settings.manage': ['admin'],

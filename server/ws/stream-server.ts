@@ -12,8 +12,10 @@ import type { StreamMessage } from '../../shared/schemas/stream';
 import { toStreamMessage, type HubEntry } from '../bench/hub';
 import type { AuthService, SessionUser } from '../services/auth.service';
 import { handleForwarded, parseClientMessage } from './client-messages';
-import { authenticateUpgrade } from './upgrade-auth';
+import { authenticateUpgrade, type StreamPrincipal } from './upgrade-auth';
 import type { BenchService } from '../services/bench.service';
+import type { BenchRegistry } from '../services/bench-registry.service';
+import type { ForwardService } from '../services/forward.service';
 
 export { SESSION_COOKIE } from './upgrade-auth';
 
@@ -22,6 +24,9 @@ export interface StreamServerOptions {
   server: http.Server;
   auth: AuthService;
   bench: BenchService;
+  /** Registered benches (agent tokens) and forwarded lines. */
+  registry: BenchRegistry;
+  forward: ForwardService;
   logger: Logger;
   /** Origins allowed besides the server's own. */
   allowedOrigins: string[];
@@ -37,7 +42,9 @@ export interface StreamServerOptions {
 
 interface Client {
   ws: WebSocket;
-  user: SessionUser;
+  /** The signed-in user; null for a bench agent. */
+  user: SessionUser | null;
+  principal: StreamPrincipal;
   alive: boolean;
   /** Run filter for run events; null = all. */
   runId: string | null;
@@ -114,22 +121,22 @@ export function attachStreamServer(o: StreamServerOptions) {
           return;
         }
       }
-      const who = await authenticateUpgrade(req, o.auth);
+      const who = await authenticateUpgrade(req, o.auth, o.registry);
       if (!who.ok) {
         stats.refused++;
         refuse(socket, who.status, who.status === 401 ? 'Unauthorized' : 'Forbidden', who.message);
         return;
       }
-      const user = who.user;
+      const { user, principal } = who;
       const sinceRaw = url.searchParams.get('since');
       const since = sinceRaw !== null && /^\d+$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since));
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, principal, since));
     })();
   };
 
-  function open(ws: WebSocket, user: SessionUser, since: number | undefined): void {
+  function open(ws: WebSocket, user: SessionUser | null, principal: StreamPrincipal, since: number | undefined): void {
     const hub = o.bench.hub;
-    const c: Client = { ws, user, alive: true, runId: null, held: undefined, lastSent: 0, skipped: new Map(), skippedCount: 0 };
+    const c: Client = { ws, user, principal, alive: true, runId: null, held: undefined, lastSent: 0, skipped: new Map(), skippedCount: 0 };
     clients.add(c);
     stats.connected++;
     ws.on('pong', () => {
@@ -198,7 +205,12 @@ export function attachStreamServer(o: StreamServerOptions) {
       c.runId = m.runId;
       return;
     }
-    const r = handleForwarded(c.user, m, o.bench);
+    const r = handleForwarded(c.principal, m, o.forward, {
+      send: (ack) => {
+        if (c.ws.readyState === c.ws.OPEN) c.ws.send(JSON.stringify(ack));
+      },
+      close: (code, reason) => c.ws.close(code, reason),
+    });
     stats.forwardedLines += r.lines;
   }
 
@@ -216,6 +228,10 @@ export function attachStreamServer(o: StreamServerOptions) {
   beat.unref();
 
   o.server.on('upgrade', onUpgrade);
+  // A revoked bench's agent is disconnected at once.
+  o.registry.onRevoked((benchId) => {
+    for (const c of clients) if (c.principal.kind === 'agent' && c.principal.benchId === benchId) c.ws.close(4403, 'bench revoked');
+  });
 
   return {
     stats: () => ({ ...stats, clients: clients.size }),

@@ -52,6 +52,11 @@ export const PointCaptureSchema = z.object({
   leakRatePctSpanPerMin: z.number().nullable(),
   manualReason: z.string().nullable(),
   capturedBy: z.string().nullable(),
+  /**
+   * Where the hold's readings came from: `port:<bench>` (this server's ports), `agent:<bench>` (a
+   * registered bench agent), `browser:<user id>` (Web Serial), comma-separated. Absent on older captures.
+   */
+  capturedFrom: z.string().nullable().optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

@@ -4,3 +4,4 @@ export * from './runs';
 export * from './records';
 export * from './attachments';
 export * from './mail';
+export * from './benches';

@@ -9,6 +9,7 @@ import { DevicePanels } from '../../features/bench/components/device-panels';
 import { SimControls } from '../../features/bench/components/sim-controls';
 import { WebSerialPanel } from '../../features/bench/components/web-serial-panel';
 import { useLiveStream } from '../../lib/live-stream';
+import { browserBenchIdOf } from '../../../shared/schemas/benches';
 import { RouteErrorBoundary } from './route-error';
 
 export const createLoader = (queryClient: QueryClient) => () => {
@@ -50,7 +51,7 @@ export function Component() {
             port editing or connection test over the API yet.
           </p>
           {me?.role === 'admin' && bench.data.mode === 'sim' && <SimControls />}
-          <WebSerialPanel />
+          <WebSerialPanel ownBench={me?.role === 'technician' ? browserBenchIdOf(me.id) : null} />
         </div>
       )}
     </>
