@@ -3,8 +3,9 @@
  * and whether the sender's clock is believable. A batch arrives at one instant; its lines carry the
  * sender's wall clock (metadata only). A line is placed at the arrival time less its age by the
  * sender's own clock (how long before sending it was read), but never after its arrival, never
- * before the bench's previous line, and never more than `liveAgeMs` back: the sender's spacing may
- * order lines inside a batch, it cannot stretch a hold. A line older than that when sent (a backlog
+ * before the bench's previous line or the sender's previous batch's arrival (a first batch sits
+ * wholly at its arrival), and never more than `liveAgeMs` back: the sender's spacing may order
+ * lines between two arrivals, it cannot stretch a hold beyond the time that really passed. A line older than that when sent (a backlog
  * held through a dropped link, or a clock that claims more time than passed) is a backlog line: it
  * is stored, and the capture engine does not count it toward a hold.
  */
@@ -53,6 +54,7 @@ export class SenderClock {
   private readonly rateToleranceMs: number;
   private readonly rateToleranceFrac: number;
   private anchor: { skewMs: number; wallMs: number } | undefined;
+  private lastArrivalMonoMs: number | undefined;
   /** Latest skew, ms; null before the first batch. */
   skewMs: number | null = null;
 
@@ -72,7 +74,8 @@ export class SenderClock {
     const sent = batch.sentWallMs;
     const tMs: number[] = [];
     const backlog: boolean[] = [];
-    let prev = Math.min(floorMonoMs, arrivalMonoMs);
+    let prev = Math.min(Math.max(floorMonoMs, this.lastArrivalMonoMs ?? arrivalMonoMs), arrivalMonoMs);
+    this.lastArrivalMonoMs = arrivalMonoMs;
     for (const l of batch.lines) {
       // A line stamped after its own batch was sent is taken as read at the send.
       const age = Number.isFinite(l.wallMs) && l.wallMs < sent ? sent - l.wallMs : 0;

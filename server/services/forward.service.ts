@@ -60,6 +60,8 @@ interface SenderState {
   lastSeq: number;
   /** After a (re)load: the next batches may have been stored before their numbers were recorded. */
   recovering: boolean;
+  /** Settles once the last accepted batch is durable (a duplicate of it is acknowledged only then). */
+  durable: Promise<void>;
   clock: SenderClock;
   /** Clock warnings already given, per run and kind. */
   warned: Set<string>;
@@ -94,7 +96,7 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
         const idle = [...senders.values()].filter((x) => x.queued === 0).sort((a, b) => a.lastUsed - b.lastUsed);
         for (const x of idle.slice(0, Math.max(1, senders.size - maxSenders + 1))) senders.delete(x.key);
       }
-      s = { key, benchId, chain: Promise.resolve(), queued: 0, loaded: false, batchSeq: 0, lastSeq: 0, recovering: false, clock: new SenderClock(o.clock), warned: new Set(), lastUsed: 0 };
+      s = { key, benchId, chain: Promise.resolve(), queued: 0, loaded: false, batchSeq: 0, lastSeq: 0, recovering: false, durable: Promise.resolve(), clock: new SenderClock(o.clock), warned: new Set(), lastUsed: 0 };
       senders.set(key, s);
     }
     s.lastUsed = performance.now();
@@ -142,14 +144,18 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
     return { count: r === 0 ? 0 : i, lastSeq };
   }
 
-  async function process(p: ForwardPrincipal, m: LinesForwarded, s: SenderState, arrival: { mono: number; wall: number }, reply: ForwardReply): Promise<void> {
+  async function process(p: ForwardPrincipal, m: LinesForwarded, s: SenderState, reply: ForwardReply): Promise<void> {
     stats.batches++;
     const ack = (status: LinesAcked['status'], stored: number, reason: string | null) =>
       reply.send({ type: 'lines.acked', seq: 0, senderId: m.senderId, batchSeq: m.batchSeq, status, stored, reason });
+    // Acknowledgements settle every earlier batch at the sender, so even a refusal waits for the earlier batches to be durable.
     const refuse = (reason: string, close?: number) => {
       stats.refused++;
-      ack('refused', 0, reason);
-      if (close) reply.close(close, reason.slice(0, 120));
+      const earlier = s.durable;
+      s.durable = earlier.then(() => {
+        ack('refused', 0, reason);
+        if (close) reply.close(close, reason.slice(0, 120));
+      });
     };
     const auth = await authorize(p, m.benchId);
     if (!auth.ok) return refuse(auth.reason, auth.close);
@@ -168,6 +174,7 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
     }
     if (m.batchSeq <= s.batchSeq) {
       stats.duplicates++;
+      await s.durable;
       return ack('duplicate', 0, null);
     }
     let skip = 0;
@@ -199,7 +206,8 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
       break;
     }
     const batch = skip ? { ...m, lines: m.lines.slice(skip) } : m;
-    const r = deps.bench.ingestForwarded(batch, { source: auth.source, clock: s.clock, arrivalMonoMs: arrival.mono, arrivalWallMs: arrival.wall });
+    // Placed at the moment it is taken in, so a bench's lines never go back in time.
+    const r = deps.bench.ingestForwarded(batch, { source: auth.source, clock: s.clock });
     stats.backlogLines += r.backlog;
     const runId = hub.runOf(m.benchId);
     if (r.issues.length && runId) {
@@ -212,15 +220,18 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
         o.logger.warn({ sender: s.key, benchId: m.benchId, runId, skewMs: s.clock.skewMs, issue: issue.kind }, 'implausible sender clock');
       }
     }
-    if (r.lastSeq) {
-      await deps.bench.writer.whenAcked(r.lastSeq);
-      s.lastSeq = r.lastSeq;
-    }
+    // Accepted: later batches go on while this one becomes durable; its acknowledgement waits for that.
     s.batchSeq = m.batchSeq;
-    stats.stored += r.accepted + r.rejected;
-    // Recorded after the lines are durable; a crash before it is covered by the stored-lines check above.
-    void repo.markSender(s.key, s.benchId, s.batchSeq, s.lastSeq).catch((err: unknown) => o.logger.warn({ err }, 'recording a forwarding sender failed'));
-    ack('stored', r.accepted + r.rejected, null);
+    if (r.lastSeq) s.lastSeq = r.lastSeq;
+    const batchSeq = s.batchSeq;
+    const lastSeq = s.lastSeq;
+    const count = r.accepted + r.rejected;
+    stats.stored += count;
+    s.durable = (r.lastSeq ? deps.bench.writer.whenAcked(r.lastSeq) : s.durable).then(() => {
+      // Recorded after the lines are durable; a crash before it is covered by the stored-lines check above.
+      void repo.markSender(s.key, s.benchId, batchSeq, lastSeq).catch((err: unknown) => o.logger.warn({ err }, 'recording a forwarding sender failed'));
+      ack('stored', count, null);
+    });
   }
 
   return {
@@ -236,7 +247,6 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
      * in the order they arrived.
      */
     handle(p: ForwardPrincipal, m: LinesForwarded, reply: ForwardReply): void {
-      const arrival = { mono: performance.now(), wall: Date.now() };
       const key = p.kind === 'agent' ? `agent:${p.benchId}:${m.senderId}` : `browser:${p.user.id}:${m.senderId}`;
       const s = stateOf(key, m.benchId);
       if (s.benchId !== m.benchId) {
@@ -250,7 +260,7 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
       }
       s.queued++;
       s.chain = s.chain
-        .then(() => process(p, m, s, arrival, reply))
+        .then(() => process(p, m, s, reply))
         .catch((err: unknown) => {
           o.logger.error({ err, sender: key }, 'forwarded batch failed');
           // Not acknowledged: the sender keeps the batch and sends it again after reconnecting.

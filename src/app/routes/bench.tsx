@@ -6,6 +6,7 @@ import { ListSkeleton } from '../../components/ui/skeleton';
 import { useMe } from '../../features/auth/api/get-me';
 import { benchQueryOptions, useBench } from '../../features/bench/api/get-bench';
 import { DevicePanels } from '../../features/bench/components/device-panels';
+import { RegisteredBenches } from '../../features/bench/components/registered-benches';
 import { SimControls } from '../../features/bench/components/sim-controls';
 import { WebSerialPanel } from '../../features/bench/components/web-serial-panel';
 import { useLiveStream } from '../../lib/live-stream';
@@ -51,6 +52,7 @@ export function Component() {
             port editing or connection test over the API yet.
           </p>
           {me?.role === 'admin' && bench.data.mode === 'sim' && <SimControls />}
+          <RegisteredBenches canManage={me?.role === 'lead' || me?.role === 'admin'} />
           <WebSerialPanel ownBench={me?.role === 'technician' ? browserBenchIdOf(me.id) : null} />
         </div>
       )}
