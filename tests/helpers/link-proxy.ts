@@ -9,7 +9,7 @@ export interface LinkProxy {
   url: string;
   /** Drops every connection and refuses new ones until {@link LinkProxy.restore}. */
   cut(): void;
-  /** Lets bytes through to the server but swallows everything it sends back. */
+  /** Lets bytes through to the server but swallows everything it sends back after its HTTP answer (the WebSocket handshake completes). */
   muteReplies(on: boolean): void;
   restore(): void;
   /** Points new connections at another server (one restarted on another port). */
@@ -31,7 +31,23 @@ export async function startLinkProxy(target: string): Promise<LinkProxy> {
     const pair = { a, b };
     pairs.add(pair);
     a.on('data', (d) => b.write(d));
-    b.on('data', (d) => {
+    let head = '';
+    let answered = false;
+    b.on('data', (d: Buffer) => {
+      if (!answered) {
+        head += d.toString('latin1');
+        const i = head.indexOf('\r\n\r\n');
+        if (i < 0) {
+          a.write(d);
+          return;
+        }
+        answered = true;
+        // The HTTP answer goes through; anything after it in the same chunk is a WebSocket frame.
+        const cut = d.length - (head.length - (i + 4));
+        a.write(d.subarray(0, cut));
+        if (!mute && cut < d.length) a.write(d.subarray(cut));
+        return;
+      }
       if (!mute) a.write(d);
     });
     const end = () => {
