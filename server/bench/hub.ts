@@ -33,7 +33,10 @@ export interface SampleEntry {
   wallMs: number;
   /** Monotonic arrival, ms (`performance.now()` of this process). */
   monoMs: number;
-  /** Time base for analysis, ms: `monoMs` for local ports, the sender's wall clock for forwarded lines. */
+  /**
+   * Time base for analysis, ms, always this server's monotonic clock: `monoMs` for local ports; for
+   * forwarded lines the arrival, less the sender's spacing within the bounds of forward-clock.ts.
+   */
   tMs: number;
   runId: string | null;
   /** Who delivered the line. */
