@@ -260,7 +260,9 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       return;
     }
     if (e.value === null) return;
-    this.source = `${e.source.kind}:${e.source.id}`;
+    // Entries built without a source (older fixtures) count as the bench's own port.
+    const src = (e as { source?: { kind: string; id: string } }).source;
+    this.source = src ? `${src.kind}:${src.id}` : `port:${e.benchId}`;
     if (e.device === 'pressure') this.onPressure(r, e.tMs, e.wallMs, e.value, e.unit);
     else this.onCurrent(r, e.tMs, e.wallMs, e.value);
   }
