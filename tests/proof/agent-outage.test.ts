@@ -14,7 +14,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { startAgent, type Agent } from '../../server/agent';
 import { startLinkProxy, type LinkProxy } from '../helpers/link-proxy';
 import { sleep } from '../helpers/proof-helpers';
-import { freshPostgresUrl, startHealthy, type ServerProcess } from '../helpers/proof-process';
+import { freshPostgresUrl, randomPort, startServerProcess, waitHealthy, type ServerProcess } from '../helpers/proof-process';
 import { ApiClient, demoEmail } from '../helpers/test-server';
 
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-agent-outage-'));
@@ -42,8 +42,11 @@ async function waitFor(cond: () => boolean | Promise<boolean>, ms: number, what:
 describe('agent through ten minutes without the server, its own restart and a server kill', () => {
   it('ends with every line the agent read stored exactly once', async () => {
     pgdb = await freshPostgresUrl('sp_agent_outage');
+    // Start-up is slow on a busy machine (migrations, seed): wait up to five minutes for health.
     const start = async () => {
-      const s = await startHealthy({ dataDir, databaseUrl: pgdb?.url, env: { SEED_DEMO: '1' } }, (c) => children.push(c));
+      const s = startServerProcess({ port: await randomPort(), dataDir, databaseUrl: pgdb?.url, env: { SEED_DEMO: '1' } });
+      children.push(s);
+      await waitHealthy(s, 300_000);
       return s;
     };
     let server = await start();
@@ -108,5 +111,5 @@ describe('agent through ten minutes without the server, its own restart and a se
     console.log(`agent outage: ${fed.length} lines read, ${stored.length} stored, ${stats.duplicates} duplicate batches dropped by the server, ${stats.resent} batches resent`);
     expect(stored.length).toBe(fed.length);
     expect(stored).toEqual(fed);
-  }, 600_000);
+  }, 1_200_000);
 });
