@@ -159,6 +159,9 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
     };
     const auth = await authorize(p, m.benchId);
     if (!auth.ok) return refuse(auth.reason, auth.close);
+    // One numbered queue feeds one bench: the bench of its first accepted batch.
+    if (!s.loaded) s.benchId = m.benchId;
+    else if (s.benchId !== m.benchId) return refuse(`Sender ${m.senderId} feeds ${s.benchId}, not ${m.benchId}`);
     if (!s.loaded) {
       const row = await repo.sender(s.key);
       if (row) {
@@ -249,11 +252,6 @@ export function createForwardService(db: Db, deps: { bench: BenchService; regist
     handle(p: ForwardPrincipal, m: LinesForwarded, reply: ForwardReply): void {
       const key = p.kind === 'agent' ? `agent:${p.benchId}:${m.senderId}` : `browser:${p.user.id}:${m.senderId}`;
       const s = stateOf(key, m.benchId);
-      if (s.benchId !== m.benchId) {
-        stats.refused++;
-        reply.send({ type: 'lines.acked', seq: 0, senderId: m.senderId, batchSeq: m.batchSeq, status: 'refused', stored: 0, reason: `Sender ${m.senderId} feeds ${s.benchId}` });
-        return;
-      }
       if (s.queued >= maxQueued) {
         reply.close(1013, 'Too many batches waiting; send fewer at a time');
         return;
