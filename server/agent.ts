@@ -1,14 +1,19 @@
 /**
- * Bench agent: runs the bench's instruments on a bench PC (real serial ports or the simulated
- * rig) and forwards every raw line to a central Stillpoint server over the authenticated
- * WebSocket (`lines.forwarded`), buffering while the link is down.
+ * Bench agent: runs the bench's instruments on a bench PC (real serial ports or the simulated rig)
+ * and forwards every raw line to a central Stillpoint server over `/ws`, authenticated with the
+ * bench's own token (registered on the server's Bench page by a lead or an admin). Lines go through
+ * the shared line forwarder (numbered batches, resent until acknowledged as durably stored) and an
+ * on-disk store-and-forward queue, so neither a dropped link, hours without the server, nor the
+ * agent's own restart loses or doubles a line.
  *
- * `npm run agent -- --server URL --email E --password P [--bench-id ID] [--sim | --pressure PATH --current PATH]`
+ * `npm run agent -- --server URL --bench-id ID [--token TOKEN | AGENT_TOKEN=...] [--queue DIR] [--sim | --pressure PATH --current PATH]`
  */
+import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import WebSocket from 'ws';
-import type { DeviceKind } from '../shared/protocol';
-import type { ClientMessage } from '../shared/schemas/stream';
+import { LineForwarder, type DeviceKind } from '../shared/protocol';
+import { StreamMessageSchema } from '../shared/schemas/stream';
+import { AgentQueue } from './bench/agent-queue';
 import { BenchDevices } from './bench/bench-devices';
 import { defaultBinding } from './bench/transport';
 import { parseAgentEnv } from './env';
@@ -17,141 +22,167 @@ import { SIM_PATHS, SimRig } from '../simulators/sim-rig';
 /** Options of {@link startAgent}. */
 export interface AgentOptions {
   server: string;
-  email: string;
-  password: string;
-  benchId?: string;
+  /** The bench's token, as shown once when it was registered. */
+  token: string;
+  /** The registered bench's id. */
+  benchId: string;
+  /** Directory of the on-disk queue. Default `./agent-queue/<benchId>`. */
+  queueDir?: string;
   /** Use the simulated rig instead of serial ports. */
   sim?: boolean;
   paths?: { pressure: string; current: string };
-  /** Most lines buffered while the link is down; the oldest are dropped beyond it. Default 500 000. */
-  maxBuffered?: number;
+  /** Read no instruments: lines come only from {@link Agent.feed} (a fast simulated rig in tests). */
+  noDevices?: boolean;
+  /** Most lines kept while the server is unreachable; the oldest are dropped beyond it. Default 2 000 000. */
+  maxQueuedLines?: number;
   /** Send interval, ms. Default 100 ms. */
   sendEveryMs?: number;
+  /** Longest reconnect delay, ms. Default 10 000 (doubling from 500). */
+  maxBackoffMs?: number;
+  /** The agent's wall clock (tests). Default Date.now. */
+  now?: () => number;
   log?: (msg: string) => void;
-}
-
-type Line = { device: DeviceKind; raw: string; wallMs: number };
-
-/** Signs in and returns the session cookie (`sp_session=...`). */
-async function signIn(server: string, email: string, password: string): Promise<string> {
-  const res = await fetch(`${server}/api/auth/login`, {
-    method: 'POST',
-    headers: { 'content-type': 'application/json', origin: server },
-    body: JSON.stringify({ email, password }),
-  });
-  if (res.status !== 200) throw new Error(`sign-in to ${server} as ${email} failed: HTTP ${res.status}`);
-  const cookie = res.headers.getSetCookie().find((c) => c.startsWith('sp_session='));
-  if (!cookie) throw new Error('sign-in answered without a session cookie');
-  return cookie.split(';')[0]!;
 }
 
 export async function startAgent(o: AgentOptions) {
   const server = o.server.replace(/\/$/, '');
-  const benchId = o.benchId ?? 'agent-1';
+  const benchId = o.benchId;
   const log = o.log ?? (() => {});
-  const maxBuffered = o.maxBuffered ?? 500_000;
-  const stats = { read: 0, sent: 0, dropped: 0, reconnects: 0, buffered: 0 };
-  let buffer: Line[] = [];
-  let cookie = await signIn(server, o.email, o.password);
+  const queue = AgentQueue.open({ dir: o.queueDir ?? path.resolve('agent-queue', benchId) });
+  const link = { reconnects: 0, refusedUpgrades: 0, lastClose: null as string | null };
   let ws: WebSocket | undefined;
   let stopped = false;
   let retry: NodeJS.Timeout | undefined;
+  let failures = 0;
 
-  const rig = o.sim ? new SimRig({ seed: 7 }) : undefined;
-  const paths = rig ? SIM_PATHS : o.paths;
-  if (!paths) throw new Error('give --sim, or --pressure PATH and --current PATH');
-  const devices = new BenchDevices({
+  const forwarder = new LineForwarder({
     benchId,
-    binding: rig ? rig.binding : defaultBinding(),
-    paths,
-    onSample: (device, raw) => {
-      stats.read++;
-      buffer.push({ device, raw: raw.slice(0, 512), wallMs: Date.now() });
-      if (buffer.length > maxBuffered) {
-        const drop = buffer.length - maxBuffered;
-        buffer = buffer.slice(drop);
-        stats.dropped += drop;
-      }
+    senderId: queue.senderId,
+    now: o.now,
+    maxLines: o.maxQueuedLines ?? 2_000_000,
+    restore: queue.restore,
+    store: queue,
+    send: (m) => {
+      const socket = ws;
+      if (!socket || socket.readyState !== WebSocket.OPEN) return false;
+      socket.send(JSON.stringify(m));
+      return true;
     },
-    onStatus: (e) => log(`${e.device} ${e.type === 'device.connected' ? 'connected' : `disconnected (${e.reason})`} on ${e.path}`),
   });
+  if (queue.restore.batches.length || queue.restore.open.length) {
+    log(`resuming ${queue.restore.batches.length} unacknowledged batches and ${queue.restore.open.length} lines from ${o.queueDir ?? 'the queue'}`);
+  }
+
+  const rig = o.sim && !o.noDevices ? new SimRig({ seed: 7 }) : undefined;
+  const paths = rig ? SIM_PATHS : o.paths;
+  if (!o.noDevices && !paths) throw new Error('give --sim, or --pressure PATH and --current PATH');
+  const devices = o.noDevices
+    ? undefined
+    : new BenchDevices({
+        benchId,
+        binding: rig ? rig.binding : defaultBinding(),
+        paths: paths!,
+        onSample: (device, raw) => forwarder.push({ device, raw: raw.slice(0, 512), wallMs: (o.now ?? Date.now)() }),
+        onStatus: (e) => log(`${e.device} ${e.type === 'device.connected' ? 'connected' : `disconnected (${e.reason})`} on ${e.path}`),
+      });
 
   function connect(): void {
     if (stopped) return;
-    const socket = new WebSocket(`${server.replace(/^http/, 'ws')}/ws`, { headers: { cookie, origin: server } });
+    const socket = new WebSocket(`${server.replace(/^http/, 'ws')}/ws`, { headers: { authorization: `Bearer ${o.token}` } });
     socket.on('open', () => {
       ws = socket;
+      failures = 0;
       log(`linked to ${server} as bench ${benchId}`);
-      socket.send(JSON.stringify({ type: 'watch', runId: null } satisfies ClientMessage));
+      forwarder.linkUp();
     });
     socket.on('unexpected-response', (_req, res) => {
       res.resume();
-      if (res.statusCode === 401) {
-        // Session expired or revoked: sign in again before the next attempt.
-        signIn(server, o.email, o.password).then(
-          (c) => (cookie = c),
-          (e: Error) => log(e.message),
-        );
+      link.refusedUpgrades++;
+      if (res.statusCode === 401) log('the server refused the bench token (unknown or revoked); lines are kept and the agent keeps trying');
+    });
+    socket.on('message', (data) => {
+      let m;
+      try {
+        m = StreamMessageSchema.safeParse(JSON.parse(String(data)));
+      } catch {
+        return;
+      }
+      if (m.success && m.data.type === 'lines.acked') {
+        if (m.data.status === 'refused') log(`batch ${m.data.batchSeq} refused: ${m.data.reason}`);
+        forwarder.acked(m.data);
       }
     });
-    socket.on('message', () => {});
     socket.on('error', () => {});
-    socket.on('close', () => {
-      if (ws === socket) ws = undefined;
+    socket.on('close', (code, reason) => {
+      if (ws === socket) {
+        ws = undefined;
+        forwarder.linkDown();
+        link.lastClose = `${code} ${String(reason)}`;
+      }
       if (stopped) return;
-      stats.reconnects++;
-      retry = setTimeout(connect, 1000);
+      link.reconnects++;
+      failures++;
+      const delay = Math.min(o.maxBackoffMs ?? 10_000, 500 * 2 ** Math.min(failures - 1, 10));
+      retry = setTimeout(connect, delay);
     });
   }
 
-  /** Sends what is buffered, in batches of at most 500 lines (the server's limit). */
-  function flush(): void {
-    const socket = ws;
-    while (socket && socket.readyState === WebSocket.OPEN && buffer.length && socket.bufferedAmount < 1 << 20) {
-      const lines = buffer.slice(0, 500);
-      const msg: ClientMessage = { type: 'lines.forwarded', benchId, lines };
-      socket.send(JSON.stringify(msg));
-      buffer = buffer.slice(lines.length);
-      stats.sent += lines.length;
-    }
-    stats.buffered = buffer.length;
-  }
-
-  const timer = setInterval(flush, o.sendEveryMs ?? 100);
+  const timer = setInterval(() => forwarder.tick(), o.sendEveryMs ?? 100);
   connect();
-  devices.start();
+  devices?.start();
+
+  const halt = async (graceful: boolean): Promise<void> => {
+    stopped = true;
+    clearInterval(timer);
+    clearTimeout(retry);
+    await devices?.stop().catch(() => {});
+    rig?.dispose();
+    if (graceful) {
+      forwarder.tick();
+      queue.close();
+    } else queue.abandon();
+    const socket = ws;
+    if (!socket) return;
+    if (!graceful) {
+      socket.terminate();
+      return;
+    }
+    await new Promise<void>((resolve) => {
+      socket.once('close', () => resolve());
+      socket.close(1000, 'agent stopping');
+      setTimeout(resolve, 1000).unref();
+    });
+  };
 
   return {
     benchId,
     rig,
-    stats: () => ({ ...stats, buffered: buffer.length, linked: !!ws }),
+    senderId: queue.senderId,
+    stats: () => ({ ...forwarder.stats, ...link, linked: !!ws, queueBytes: queue.bytes() }),
+    /** A line as if read from an instrument (a fast simulated rig in tests). */
+    feed(device: DeviceKind, raw: string): void {
+      forwarder.push({ device, raw: raw.slice(0, 512), wallMs: (o.now ?? Date.now)() });
+    },
+    /** Seals and sends now, rather than at the next interval. */
+    tick(): void {
+      forwarder.tick();
+    },
     /** Drops the link as a network fault would (tests). */
     dropLink(): void {
       ws?.terminate();
     },
-    /** Stops reading the instruments; the rest of the buffer is sent if the link is up. */
+    /** Stops reading the instruments; what is queued is still sent. */
     async stopDevices(): Promise<void> {
-      await devices.stop();
+      await devices?.stop();
       rig?.dispose();
     },
-    async stop(): Promise<void> {
-      await devices.stop().catch(() => {});
-      rig?.dispose();
-      flush();
-      stopped = true;
-      clearInterval(timer);
-      clearTimeout(retry);
-      const socket = ws;
-      if (socket) {
-        await new Promise<void>((resolve) => {
-          socket.once('close', () => resolve());
-          socket.close(1000, 'agent stopping');
-          setTimeout(resolve, 1000).unref();
-        });
-      }
-    },
+    /** Stops: seals what is open, closes the queue (what is unacknowledged stays on disk) and the link. */
+    stop: () => halt(true),
+    /** Stops at once as a kill would: nothing more is sealed, synced or sent (tests). */
+    crash: () => halt(false),
   };
 }
+export type Agent = Awaited<ReturnType<typeof startAgent>>;
 
 function arg(name: string): string | undefined {
   const i = process.argv.indexOf(`--${name}`);
@@ -160,10 +191,11 @@ function arg(name: string): string | undefined {
 
 async function main(): Promise<void> {
   const server = arg('server');
-  const email = arg('email');
-  const password = arg('password') ?? parseAgentEnv().AGENT_PASSWORD;
-  if (!server || !email || !password) {
-    console.error('usage: npm run agent -- --server URL --email E --password P [--bench-id ID] [--sim | --pressure PATH --current PATH]');
+  const benchId = arg('bench-id');
+  const token = arg('token') ?? parseAgentEnv().AGENT_TOKEN;
+  if (!server || !benchId || !token) {
+    console.error('usage: npm run agent -- --server URL --bench-id ID [--token TOKEN | AGENT_TOKEN=...] [--queue DIR] [--sim | --pressure PATH --current PATH]');
+    console.error('Register the bench on the server first (Bench page, lead or admin): it shows the token once.');
     process.exitCode = 2;
     return;
   }
@@ -171,9 +203,9 @@ async function main(): Promise<void> {
   const current = arg('current');
   const agent = await startAgent({
     server,
-    email,
-    password,
-    benchId: arg('bench-id'),
+    token,
+    benchId,
+    queueDir: arg('queue'),
     sim: process.argv.includes('--sim') || !(pressure && current),
     paths: pressure && current ? { pressure, current } : undefined,
     log: (m) => console.log(`[agent] ${m}`),

@@ -16,6 +16,7 @@ import { openDatabase, type Database } from './db/client';
 import type { Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
 import { storageRoutes } from './http/routes/bench/storage.routes';
+import { benchesRoutes } from './http/routes/benches/benches.routes';
 import { uploadRoutes } from './http/routes/files/files.routes';
 import { outboxRoutes } from './http/routes/outbox/outbox.routes';
 import { runRoutes } from './http/routes/runs/runs.routes';
@@ -27,7 +28,9 @@ import { createFileService, type FileService } from './services/file.service';
 import { createMailService, type MailService } from './services/mail.service';
 import { createFileStore } from './storage/file-store';
 import { createUploads } from './storage/upload';
-import { createBenchService, journalDirOf, type BenchService } from './services/bench.service';
+import { createBenchService, DEFAULT_BENCH_ID, journalDirOf, type BenchService } from './services/bench.service';
+import { createBenchRegistry, type BenchRegistry } from './services/bench-registry.service';
+import { createForwardService, type ForwardService } from './services/forward.service';
 import { seedDemo } from './services/demo-seed.service';
 import { createHealth } from './services/health.service';
 import { createSessionEvents } from './services/session-events';
@@ -77,6 +80,9 @@ export interface Running {
   database: Database;
   services: Services;
   bench: BenchService;
+  /** Registered benches (agents and their tokens). */
+  benches: BenchRegistry;
+  forward: ForwardService;
   runs: RunService;
   /** The simulated rig (BENCH=sim with local devices), else undefined. */
   rig: SimRig | undefined;
@@ -174,11 +180,14 @@ export async function boot(opts: BootOptions): Promise<Running> {
       ringCapacity: o.ringCapacity,
       onConsumerError: (name, error) => logger.error({ err: error, consumer: name }, 'bench consumer failed'),
     });
+    // Registered benches (agents with their tokens, browsers' own benches): who may feed and run on which bench.
+    const benches = createBenchRegistry(database.db, services.audit, { localBenchId: o.benchId ?? DEFAULT_BENCH_ID });
+    await benches.load();
     const runRepo = runRepository(database.db);
     const runs = createRunService(
       database.db,
       { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo },
-      { envHoldSeconds: env.HOLD_SECONDS, logger },
+      { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn },
     );
     // The local bench's devices: the simulated rig's binding, or real serial ports.
     rig = mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
@@ -198,6 +207,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
     benchToStop = bench;
     const sim = createSimControl({ rig, hub, benchId: bench.benchId, runContext: () => runs.simContext(bench.benchId) });
     await bench.start();
+    const forward = createForwardService(database.db, { bench, registry: benches, auth: services.auth }, { logger });
+    await forward.prune();
     const restored = await runs.restoreActive();
     if (restored) logger.info({ restored }, 'restored active runs');
     const app = createApp({
@@ -214,7 +225,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -226,7 +237,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       server.once('error', reject);
       server.listen(env.PORT, env.HOST, () => resolve());
     });
-    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, logger, allowedOrigins });
+    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 
@@ -246,6 +257,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       database,
       services,
       bench,
+      benches,
+      forward,
       runs,
       rig,
       sim,

@@ -38,8 +38,8 @@ export type Env = z.infer<typeof EnvSchema>;
 
 /** Environment of the bench agent (`npm run agent`); its other settings are command-line arguments. */
 const AgentEnvSchema = z.object({
-  /** Password of the agent's user when `--password` is not given. */
-  AGENT_PASSWORD: z.string().min(1).optional(),
+  /** A bench agent's token (registered on the server's Bench page; shown once), when not given as --token. */
+  AGENT_TOKEN: z.string().min(1).optional(),
 });
 export type AgentEnv = z.infer<typeof AgentEnvSchema>;
 

@@ -50,7 +50,7 @@ export interface EnginePoint {
   warning: string | null;
 }
 
-export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43';
+export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock';
 export type RunStatus = 'running' | 'paused' | 'complete' | 'aborted';
 
 /** Events of the engine: the run events of the capture path's event map, exactly as they are stored and sent. */
@@ -88,6 +88,8 @@ interface Active {
   lastMa: number | undefined;
   /** Source of the latest sample of each device taken into the hold. */
   sources: { pressure: SampleSource | null; current: SampleSource | null };
+  /** Where the hold's readings came from (`kind:id` of each sample source), named by an automatic capture. */
+  holdSources: Set<string>;
 }
 
 const BAND_REASONS = ['applied DP outside the stability band', 'current outside the stability band'];
@@ -106,6 +108,8 @@ const LEAK_WINDOW_MIN_MS = 1000;
 export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   readonly benchId: string;
   private run: Active | undefined;
+  /** Source (`kind:id`) of the sample being handled. */
+  private source = '';
 
   constructor(benchId: string) {
     super();
@@ -166,6 +170,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       unitWarned: false,
       lastMa: undefined,
       sources: { pressure: null, current: null },
+      holdSources: new Set(),
     };
     const next = this.nextUncaptured(-1);
     if (next === null) this.finish('complete');
@@ -228,6 +233,13 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     this.emitRun();
   }
 
+  /** A warning about the bench from outside its samples (a forwarding sender's implausible clock); none without an active run. */
+  warnExternal(kind: 'clock', message: string): void {
+    const r = this.run;
+    if (!r || (r.status !== 'running' && r.status !== 'paused')) return;
+    this.warn(r, kind, message, null);
+  }
+
   /** Hub consumer. */
   readonly consume = (batch: HubEntry[]): void => {
     for (const e of batch) this.onEntry(e);
@@ -241,8 +253,21 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       if (m.type === 'device.disconnected' && m.benchId === r.s.benchId) this.onDisconnect(r, m.device, m.reason);
       return;
     }
-    if (e.benchId !== r.s.benchId || e.value === null) return;
+    if (e.benchId !== r.s.benchId) return;
+    if (e.backlog) {
+      // A line held by its sender through a dropped link is not live: the hold cannot count it, nor span the gap it fills.
+      const p = r.points[r.current]!;
+      if (p.state === 'settling' || p.state === 'holding') {
+        this.invalidateHold(r);
+        this.setState(r, p, 'approaching');
+      }
+      return;
+    }
+    if (e.value === null) return;
     r.sources[e.device] = e.source ?? null;
+    // Entries built without a source (older fixtures) count as the bench's own port.
+    const src = (e as { source?: { kind: string; id: string } }).source;
+    this.source = src ? `${src.kind}:${src.id}` : `port:${e.benchId}`;
     if (e.device === 'pressure') this.onPressure(r, e.tMs, e.wallMs, e.value, e.unit);
     else this.onCurrent(r, e.tMs, e.wallMs, e.value);
   }
@@ -317,6 +342,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   }
 
   private mark(r: Active, wallMs: number): void {
+    r.holdSources.add(this.source);
     if (r.holdStartWall === undefined) r.holdStartWall = wallMs;
     r.holdEndWall = wallMs;
   }
@@ -383,6 +409,8 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       capturedBy: user?.email ?? null,
       by,
       typeA: typeAOfCapture(r.hold!.typeA()),
+      // What fed the hold (a manual capture also names its person in capturedBy).
+      capturedFrom: [...r.holdSources].sort().join(', ') || null,
     };
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
@@ -431,12 +459,14 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   private restartWindow(r: Active, slopePctSpanPerMin: number | undefined): void {
     r.hold!.reset();
     r.holdStartWall = r.holdEndWall = undefined;
+    r.holdSources.clear();
     r.windowSlope = slopePctSpanPerMin;
   }
 
   private invalidateHold(r: Active): void {
     r.hold = undefined;
     r.holdStartWall = r.holdEndWall = undefined;
+    r.holdSources.clear();
     r.settlingSinceMs = undefined;
     r.leakWarned = false;
     r.windowSlope = undefined;

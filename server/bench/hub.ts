@@ -33,13 +33,18 @@ export interface SampleEntry {
   wallMs: number;
   /** Monotonic arrival, ms (`performance.now()` of this process). */
   monoMs: number;
-  /** Time base for analysis, ms: `monoMs` for local ports, the sender's wall clock for forwarded lines. */
+  /**
+   * Time base for analysis, ms, always this server's monotonic clock: `monoMs` for local ports; for
+   * forwarded lines the arrival, less the sender's spacing within the bounds of forward-clock.ts.
+   */
   tMs: number;
   runId: string | null;
   /** Who delivered the line. */
   source: SampleSource;
   /** The sender's own wall clock for a forwarded line (metadata only), ms since the epoch; null for local ports. */
   clientWallMs: number | null;
+  /** A forwarded line that was not live when sent (held through a dropped link): stored, never part of a hold. */
+  backlog?: boolean;
 }
 
 /** Any other event of the capture path (device and run events), numbered as its stream message. */
@@ -257,6 +262,7 @@ export class BenchHub {
     wallMs?: number;
     source?: SampleSource;
     clientWallMs?: number | null;
+    backlog?: boolean;
   }): SampleEntry {
     const monoMs = this.monoNow();
     const wallMs = s.wallMs ?? this.wallNow();
@@ -274,6 +280,7 @@ export class BenchHub {
       runId: this.runs.get(s.benchId) ?? null,
       source: s.source ?? { kind: 'port', id: s.benchId },
       clientWallMs: s.clientWallMs ?? null,
+      ...(s.backlog ? { backlog: true } : {}),
     };
     const d = this.counters(s.benchId, s.device);
     if (s.value === null) d.badLines++;

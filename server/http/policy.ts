@@ -19,6 +19,8 @@ export const POLICY = {
   'bench.configure': ['admin', 'lead'],
   /** Acknowledge quarantined samples and damaged journal batches after review (health stops failing on them). */
   'storage.acknowledge': ['admin', 'lead'],
+  'benches.read': 'signed-in',
+  'benches.manage': ['lead', 'admin'],
   'sim.control': ['admin'],
   'audit.read': ['lead', 'admin', 'auditor'],
   'settings.manage': ['admin'],

@@ -11,7 +11,8 @@ import { checkEdgeLine, classifyScpiMeterLine, previewLine, createCalibratorClas
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
 import type { CaptureEngines } from '../bench/capture-engine';
-import type { BenchHub, ConsumerHandler } from '../bench/hub';
+import type { ClockIssue, SenderClock } from '../bench/forward-clock';
+import type { BenchHub, ConsumerHandler, SampleSource } from '../bench/hub';
 import { SampleJournal, type DamagedBatch } from '../bench/journal';
 import { replayPages } from '../bench/replay';
 import { SeqReservation } from '../bench/seq-reservation';
@@ -75,6 +76,8 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     return storage;
   }
   const engines = o.engines;
+  /** Latest placed time (monotonic ms) of a forwarded line, per bench. */
+  const placedUpTo = new Map<string, number>();
   let devices: BenchDevices | undefined;
   let seqs: SeqReservation | undefined;
   /** This start's stream epoch: a resume that names another gets `stream.reset`. */
@@ -139,35 +142,68 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
       return hub.subscribe(name, handler);
     },
 
-    /** Lines read elsewhere (agent, browser Web Serial), decoded by the shared protocol code as if from a port. */
-    ingestForwarded(msg: Extract<ClientMessage, { type: 'lines.forwarded' }>): { accepted: number; rejected: number } {
+    /**
+     * Lines read elsewhere (agent, browser Web Serial), decoded by the shared protocol code as if
+     * from a port. The caller has decided that the sender may feed this bench (forward.service).
+     * Server time decides: each line is placed on this server's monotonic clock by `clock` (bounded
+     * by the batch's arrival; backlog lines flagged), its wall time is the server's, and the
+     * sender's own time is kept as `clientWallMs`. The clock's issues are returned (the caller warns the run).
+     */
+    ingestForwarded(
+      msg: Extract<ClientMessage, { type: 'lines.forwarded' }>,
+      from: { source: SampleSource; clock: SenderClock; arrivalMonoMs?: number; arrivalWallMs?: number },
+    ): { accepted: number; rejected: number; firstSeq: number; lastSeq: number; backlog: number; issues: ClockIssue[] } {
+      const arrivalMono = from.arrivalMonoMs ?? performance.now();
+      const arrivalWall = from.arrivalWallMs ?? Date.now();
+      // Lines are placed no earlier than the bench's latest one, nor later than now (a batch processed late is still placed at its arrival).
+      const floor = placedUpTo.get(msg.benchId) ?? -Infinity;
+      const placed = from.clock.place(msg, arrivalMono, arrivalWall, floor);
       let accepted = 0;
       let rejected = 0;
-      for (const l of msg.lines) {
+      let backlog = 0;
+      let firstSeq = 0;
+      let lastSeq = 0;
+      msg.lines.forEach((l, i) => {
         // The edge: a line that a port could never deliver (control characters, overlong) is counted and dropped here.
         const edge = checkEdgeLine(l.raw);
         if (!edge.ok) {
           rejected++;
           hub.counters(msg.benchId, l.device).edgeRefused++;
-          continue;
+          return;
         }
         const frame = classifiers[l.device](edge.line);
-        if (frame.type === 'text') continue;
+        if (frame.type === 'text') return;
         const ok = frame.type === 'sample';
         if (ok) accepted++;
         else rejected++;
-        hub.ingestSample({
+        const tMs = placed.tMs[i]!;
+        const late = placed.backlog[i]!;
+        if (late) backlog++;
+        const e = hub.ingestSample({
           benchId: msg.benchId,
           device: l.device,
           raw: edge.line,
           value: ok ? frame.sample.value : null,
           unit: ok ? frame.sample.unit : null,
-          wallMs: l.wallMs,
-          tMs: l.wallMs,
+          wallMs: arrivalWall - (arrivalMono - tMs),
+          tMs,
+          source: from.source,
+          clientWallMs: l.wallMs,
+          backlog: late,
         });
-      }
+        if (!firstSeq) firstSeq = e.seq;
+        lastSeq = e.seq;
+        placedUpTo.set(msg.benchId, tMs);
+      });
       if (!engines.has(msg.benchId)) engine(msg.benchId);
-      return { accepted, rejected };
+      return { accepted, rejected, firstSeq, lastSeq, backlog, issues: placed.issues };
+    },
+
+    /** The form in which a forwarded line would be stored (edge-checked), or undefined if it would not be stored. */
+    storedLine(device: DeviceKind, raw: string): string | undefined {
+      const edge = checkEdgeLine(raw);
+      if (!edge.ok || classifiers[device](edge.line).type === 'text') return undefined;
+      return edge.line;
     },
 
     /**

@@ -85,6 +85,8 @@ export interface RunServiceOptions {
   /** HOLD_SECONDS from the environment; wins over the site setting when it differs from the default 30 s. */
   envHoldSeconds: number;
   logger: Logger;
+  /** Whether a user may start a run on a bench (this server's, an active agent's, their own browser bench); default any. */
+  mayRunOn?: (benchId: string, actor: { id: string }) => boolean;
 }
 
 const DEFAULT_HOLD_SECONDS = 30;
@@ -191,6 +193,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         return;
       }
       case 'run.warned':
+        // A sender's implausible clock is flagged on the run's record, not only shown live.
+        if (e.kind === 'clock') await audit.record(null, 'run.clock-flagged', 'run', e.runId, undefined, { index: e.index, message: e.message });
         return;
     }
   }
@@ -418,6 +422,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       if (job.status === 'submitted' || job.status === 'approved') throw conflict(`The job is ${job.status}; no more runs may start`);
       if (job.blockers.length) throw conflict(`The run cannot start: ${job.blockers.join('; ')}`, { blockers: job.blockers });
       const benchId = body.benchId ?? DEFAULT_BENCH_ID;
+      if (o.mayRunOn && !o.mayRunOn(benchId, actor)) throw badRequest(`No bench ${benchId} that you may run on: use this server's bench, a registered agent's or your own browser bench`, { benchId: ['Not a bench you may run on'] });
       const engine = engines.get(benchId);
       if (engine.activeRunId) throw conflict(`Another run is active on ${benchId}; pause is not enough, finish or abort it first`);
       const inst: InstrumentRow | undefined = await instruments.get(job.instrumentId);

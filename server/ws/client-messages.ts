@@ -1,12 +1,12 @@
 /**
- * Browser → server messages on `/ws` (shared/schemas/stream.ts `ClientMessageSchema`): parsing,
- * and the handling of forwarded instrument lines. Anything that does not parse is ignored.
+ * Client → server messages on `/ws` (shared/schemas/stream.ts `ClientMessageSchema`): parsing,
+ * and the handing of forwarded instrument lines to the forward service, which decides who may feed
+ * what and answers `lines.acked`. Anything that does not parse is ignored.
  */
 import type { RawData } from 'ws';
 import { ClientMessageSchema, type ClientMessage } from '../../shared/schemas/stream';
-import { allows } from '../http/policy';
-import type { SessionUser } from '../services/auth.service';
-import type { BenchService } from '../services/bench.service';
+import type { ForwardReply, ForwardService } from '../services/forward.service';
+import type { StreamPrincipal } from './upgrade-auth';
 
 /** Parses one text frame; undefined for binary, non-JSON or off-contract messages. */
 export function parseClientMessage(data: RawData, isBinary: boolean): ClientMessage | undefined {
@@ -19,9 +19,8 @@ export function parseClientMessage(data: RawData, isBinary: boolean): ClientMess
   }
 }
 
-/** Forwarded instrument lines feed the hub like a port: only roles that perform calibrations may do it. */
-export function handleForwarded(user: SessionUser, m: Extract<ClientMessage, { type: 'lines.forwarded' }>, bench: BenchService): { lines: number } {
-  if (!allows('jobs.perform', user.role)) return { lines: 0 };
-  bench.ingestForwarded(m);
+/** Forwarded instrument lines: the forward service checks the sender, stores the batch once and acknowledges it. */
+export function handleForwarded(principal: StreamPrincipal, m: Extract<ClientMessage, { type: 'lines.forwarded' }>, forward: ForwardService, reply: ForwardReply): { lines: number } {
+  forward.handle(principal, m, reply);
   return { lines: m.lines.length };
 }

@@ -23,7 +23,9 @@ import type { SessionEvents } from '../services/session-events';
 import { handleForwarded, parseClientMessage } from './client-messages';
 import { createReplaySlots } from './replay-slots';
 import { createSessionSockets } from './session-sockets';
-import { authenticateUpgrade } from './upgrade-auth';
+import { authenticateUpgrade, type StreamPrincipal } from './upgrade-auth';
+import type { BenchRegistry } from '../services/bench-registry.service';
+import type { ForwardService } from '../services/forward.service';
 
 export { SESSION_COOKIE } from './upgrade-auth';
 export { SESSION_CLOSE_REASONS } from './session-sockets';
@@ -35,6 +37,9 @@ export interface StreamServerOptions {
   bench: BenchService;
   /** Ended sessions (sign-out, deactivation, role change, revocation): their sockets are closed. */
   sessionEvents: SessionEvents;
+  /** Registered benches (agent tokens) and forwarded lines. */
+  registry: BenchRegistry;
+  forward: ForwardService;
   logger: Logger;
   /** Origins allowed besides the server's own. */
   allowedOrigins: string[];
@@ -61,7 +66,9 @@ export interface StreamServerOptions {
 
 interface Client {
   ws: WebSocket;
-  user: SessionUser;
+  /** The signed-in user; null for a bench agent. */
+  user: SessionUser | null;
+  principal: StreamPrincipal;
   alive: boolean;
   /** Run filter for run events; null = all. */
   runId: string | null;
@@ -78,6 +85,10 @@ interface Client {
   end(code: number, reason: string): void;
 }
 
+/** A signed-in user's socket (not a bench agent's). */
+type UserClient = Client & { user: SessionUser };
+const isUserClient = (c: Client): c is UserClient => c.user !== null;
+
 function refuse(socket: Duplex, status: number, text: string, message: string): void {
   const body = JSON.stringify({ error: { code: status === 401 ? 'unauthenticated' : status === 403 ? 'cross_site' : 'bad_request', message } });
   socket.end(`HTTP/1.1 ${status} ${text}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: ${Buffer.byteLength(body)}\r\n\r\n${body}`);
@@ -92,7 +103,7 @@ export function attachStreamServer(o: StreamServerOptions) {
   const pageSize = o.replayPageSize ?? 500;
   const lowWater = o.replayLowWaterBytes ?? 64 * 1024;
   const stallMs = o.replayStallMs ?? 30_000;
-  const sessions = createSessionSockets<Client>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
+  const sessions = createSessionSockets<UserClient>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
   const slots = createReplaySlots({ total: o.maxReplays ?? 4, perUser: o.maxReplaysPerUser ?? 2 });
   const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
   const clients = new Set<Client>();
@@ -144,7 +155,7 @@ export function attachStreamServer(o: StreamServerOptions) {
   /** Takes a client out of every list and stops its timers (idempotent). */
   function forget(c: Client): void {
     clients.delete(c);
-    sessions.leave(c);
+    if (isUserClient(c)) sessions.leave(c);
   }
 
   const onUpgrade = (req: http.IncomingMessage, socket: Duplex, head: Buffer): void => {
@@ -165,24 +176,25 @@ export function attachStreamServer(o: StreamServerOptions) {
           return;
         }
       }
-      const who = await authenticateUpgrade(req, o.auth);
+      const who = await authenticateUpgrade(req, o.auth, o.registry);
       if (!who.ok) {
         stats.refused++;
         refuse(socket, who.status, who.status === 401 ? 'Unauthorized' : 'Forbidden', who.message);
         return;
       }
-      const user = who.user;
+      const { user, principal } = who;
       const sinceRaw = url.searchParams.get('since');
       const since = sinceRaw !== null && /^\d{1,15}$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
       const epoch = url.searchParams.get('epoch');
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, since, epoch, asked));
+      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, principal, since, epoch, asked));
     })();
   };
 
-  function open(ws: WebSocket, user: SessionUser, since: number | undefined, epoch: string | null, asked: number): void {
+  function open(ws: WebSocket, user: SessionUser | null, principal: StreamPrincipal, since: number | undefined, epoch: string | null, asked: number): void {
     const c: Client = {
       ws,
       user,
+      principal,
       alive: true,
       runId: null,
       held: undefined,
@@ -200,7 +212,8 @@ export function attachStreamServer(o: StreamServerOptions) {
     };
     ws.on('close', () => forget(c));
     ws.on('error', () => forget(c));
-    const refusal = sessions.admit(c, asked);
+    // A user's socket follows the session; a bench agent's follows its token (revocation, below).
+    const refusal = isUserClient(c) ? sessions.admit(c, asked) : undefined;
     if (refusal) return c.end(refusal.code, refusal.reason);
     clients.add(c);
     stats.connected++;
@@ -263,7 +276,7 @@ export function attachStreamServer(o: StreamServerOptions) {
   /** Replays (since, latest] in pages while live messages wait, then hands over to live delivery. */
   async function resume(c: Client, since: number, latest: number): Promise<void> {
     c.held = [];
-    const slot = slots.acquire(c.user.id);
+    const slot = slots.acquire(c.user?.id ?? `${c.principal.kind}:${'benchId' in c.principal ? c.principal.benchId : ''}`);
     const closed = () => slot.cancel();
     c.ws.once('close', closed);
     const release = await slot.ready;
@@ -282,7 +295,7 @@ export function attachStreamServer(o: StreamServerOptions) {
         stats.replayed += page.length;
         c.lastSent = Math.max(c.lastSent, page[page.length - 1]!.seq);
         if (!(await drained(c, written))) {
-          o.logger.warn({ user: c.user.id }, 'stream resume stalled: the client does not read; dropped');
+          o.logger.warn({ user: c.user?.id ?? null, principal: c.principal }, 'stream resume stalled: the client does not read; dropped');
           c.ws.terminate();
           return;
         }
@@ -310,7 +323,12 @@ export function attachStreamServer(o: StreamServerOptions) {
       c.runId = m.runId;
       return;
     }
-    const r = handleForwarded(c.user, m, o.bench);
+    const r = handleForwarded(c.principal, m, o.forward, {
+      send: (ack) => {
+        if (c.ws.readyState === c.ws.OPEN) c.ws.send(JSON.stringify(ack));
+      },
+      close: (code, reason) => c.ws.close(code, reason),
+    });
     stats.forwardedLines += r.lines;
   }
 
@@ -328,6 +346,10 @@ export function attachStreamServer(o: StreamServerOptions) {
   beat.unref();
 
   o.server.on('upgrade', onUpgrade);
+  // A revoked bench's agent is disconnected at once.
+  o.registry.onRevoked((benchId) => {
+    for (const c of clients) if (c.principal.kind === 'agent' && c.principal.benchId === benchId) c.ws.close(4403, 'bench revoked');
+  });
 
   return {
     stats: () => ({ ...stats, ...sessions.stats(), clients: clients.size, replays: slots.stats() }),

@@ -5,3 +5,4 @@ export * from './protocol-decoder';
 export * from './sample';
 export * from './scpi';
 export * from './clean-line';
+export * from './line-forwarder';

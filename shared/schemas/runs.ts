@@ -93,6 +93,11 @@ export const PointCaptureSchema = z.object({
     .object({ uMa: z.number(), sdMa: z.number(), n: z.number(), nEff: z.number(), dof: z.number(), method: z.literal('zhang-2006-effective-n') })
     .nullable()
     .optional(),
+  /**
+   * Where the hold's readings came from: `port:<bench>` (this server's ports), `agent:<bench>` (a
+   * registered bench agent), `browser:<user id>` (Web Serial), comma-separated. Absent on older captures.
+   */
+  capturedFrom: z.string().nullable().optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

@@ -68,7 +68,7 @@ export const StreamEventSchemas = {
     type: z.literal('run.warned'),
     runId: z.string(),
     index: z.number().int(),
-    kind: z.enum(['leak', 'overshoot', 'unstable', 'disconnect', 'ne43']),
+    kind: z.enum(['leak', 'overshoot', 'unstable', 'disconnect', 'ne43', 'clock']),
     message: z.string(),
     /** Leak rate, % of span per minute, for a leak. */
     ratePctSpanPerMin: z.number().nullable(),
@@ -117,6 +117,21 @@ export const StreamMessageSchema = z.discriminatedUnion('type', [
   numbered('point.captured'),
   numbered('run.changed'),
   numbered('stream.reset'),
+  /**
+   * To the sender only, not part of the numbered stream (`seq` is always 0): the sender's batches up
+   * to `batchSeq` are settled, so it may forget them. `stored` once their lines are durably stored
+   * (journal-synced), `duplicate` for a batch already stored before, `refused` with the reason.
+   */
+  z.object({
+    type: z.literal('lines.acked'),
+    seq: z.literal(0),
+    senderId: z.string(),
+    batchSeq: z.number().int(),
+    status: z.enum(['stored', 'duplicate', 'refused']),
+    /** Lines of the batch stored now (0 for a duplicate or a refusal). */
+    stored: z.number().int(),
+    reason: z.string().nullable(),
+  }),
 ]);
 export type StreamMessage = z.infer<typeof StreamMessageSchema>;
 export type StreamMessageType = StreamMessage['type'];
@@ -126,10 +141,19 @@ export type StreamMessageOf<K extends StreamMessageType> = Extract<StreamMessage
 /** Browser → server. */
 export const ClientMessageSchema = z.discriminatedUnion('type', [
   z.object({ type: z.literal('watch'), runId: z.string().nullable() }),
-  /** Web Serial: a batch of raw lines read in the browser, forwarded to the bench hub. */
+  /**
+   * A batch of raw lines read by a bench agent or in the browser (Web Serial), forwarded to the
+   * bench hub. `senderId` names the sending queue (stable across an agent's restarts), `batchSeq`
+   * numbers its batches from 1 (a resend keeps its number; the server answers `lines.acked` and
+   * stores a batch once), `sentWallMs` is the sender's clock when it sent the batch. Line and send
+   * times are the sender's clock: metadata, never the time base of holds.
+   */
   z.object({
     type: z.literal('lines.forwarded'),
     benchId: z.string().max(80),
+    senderId: z.string().regex(/^[A-Za-z0-9_-]{1,64}$/),
+    batchSeq: z.number().int().min(1).max(Number.MAX_SAFE_INTEGER),
+    sentWallMs: z.number(),
     lines: z.array(z.object({ device: DeviceSchema, raw: z.string().max(512), wallMs: z.number() })).max(500),
   }),
 ]);

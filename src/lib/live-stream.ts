@@ -204,6 +204,11 @@ export class LiveStream {
       return;
     }
     const m = parsed.data;
+    if (m.type === 'lines.acked') {
+      // An acknowledgement to this page's Web Serial bridge: not part of the numbered stream.
+      for (const l of [...this.listeners]) l(m);
+      return;
+    }
     if (m.type === 'stream.opened') {
       this.heartbeatMs = m.heartbeatMs;
       this.armHeartbeat();
@@ -330,6 +335,7 @@ export function applyStreamMessage(m: StreamMessage, queryClient: QueryClient, s
       void queryClient.invalidateQueries({ queryKey: queryKeys.bench });
       return;
     case 'stream.opened':
+    case 'lines.acked':
       return;
   }
 }

@@ -5,7 +5,7 @@
  */
 import { create } from 'zustand';
 
-export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43';
+export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock';
 
 export interface LiveWarning {
   kind: WarningKind;

@@ -94,19 +94,53 @@ describe('WebSocket /ws', () => {
     expect(junk.status).toBe(401);
   });
 
-  it.each(ROLES)('lets the %s role subscribe and watch, and forward lines only if the policy allows it', async (role) => {
+  it('opens /ws for a registered bench agent token only, never a made-up, malformed or revoked one (nor falls back to the cookie)', async () => {
+    const reg = await clients.lead.post('/api/benches', { id: 'proof-agent', label: 'Proof bench' });
+    expect(reg.status).toBe(201);
+    const token = reg.body.token as string;
+    for (const bad of ['Bearer spb_made-up', 'Bearer', `Basic ${token}`, `Bearer ${token}x`, `Bearer ${token.slice(0, -1)}`]) {
+      const r = await openWs({ authorization: bad, ...withToken(tokenOf(clients.lead)) });
+      expect(r.status, bad).toBe(401);
+    }
+    const ok = await openWs({ authorization: `Bearer ${token}` });
+    expect(ok.first?.type).toBe('stream.opened');
+    const closed = new Promise<number>((r) => ok.ws!.once('close', (code) => r(code)));
+    expect((await clients.admin.post('/api/benches/proof-agent/revoke')).status).toBe(200);
+    expect(await closed).toBe(4403);
+    expect((await openWs({ authorization: `Bearer ${token}` })).status).toBe(401);
+  });
+
+  it.each(ROLES)('lets the %s role subscribe and watch, and forward lines only to its own browser bench if the policy allows it', async (role) => {
     const { ws, first } = await openWs({ ...withToken(tokenOf(clients[role])), origin: srv.url });
     expect(first?.type).toBe('stream.opened');
+    const acks: { batchSeq: number; status: string }[] = [];
+    ws!.on('message', (d) => {
+      const m = JSON.parse(String(d)) as { type: string; batchSeq: number; status: string };
+      if (m.type === 'lines.acked') acks.push(m);
+    });
     ws!.send(JSON.stringify({ type: 'watch', runId: null }));
-    const benchId = `proof-forward-${role}`;
-    ws!.send(JSON.stringify({ type: 'lines.forwarded', benchId, lines: [{ device: 'current', raw: '+1.200000E-02', wallMs: Date.now() }] }));
+    const own = `browser-${(await clients[role].get('/api/auth/me')).body.id}`;
+    const made = `proof-forward-${role}`;
+    const forward = (benchId: string, batchSeq: number) =>
+      ws!.send(JSON.stringify({ type: 'lines.forwarded', benchId, senderId: `proof-${role}`, batchSeq, sentWallMs: Date.now(), lines: [{ device: 'current', raw: '+1.200000E-02', wallMs: Date.now() }] }));
+    forward(own, 1);
+    // A made-up bench name and this server's own bench: refused for every role.
+    forward(made, 2);
+    forward('bench-1', 3);
     // Junk must be ignored without closing the stream or hurting the server.
     for (const junk of ['{', '[]', '{"type":"nope"}', JSON.stringify({ type: 'lines.forwarded', benchId: 'x'.repeat(500), lines: 'no' }), '\u0000', JSON.stringify({ type: 'watch', runId: { $ne: 1 } })]) ws!.send(junk);
     ws!.send(Buffer.from([0xff, 0x00, 0x13]), { binary: true });
-    await sleep(400);
+    const end = Date.now() + 10_000;
+    while (acks.length < 3 && Date.now() < end) await sleep(50);
     expect(ws!.readyState).toBe(WebSocket.OPEN);
+    expect(acks.map((a) => [a.batchSeq, a.status])).toEqual([
+      [1, allows('jobs.perform', role) ? 'stored' : 'refused'],
+      [2, 'refused'],
+      [3, 'refused'],
+    ]);
     const benches = ((await clients.lead.get('/api/bench')).body.benches as { benchId: string }[]).map((b) => b.benchId);
-    expect(benches.includes(benchId), `${role} forwarding lines`).toBe(allows('jobs.perform', role));
+    expect(benches.includes(own), `${role} forwarding lines`).toBe(allows('jobs.perform', role));
+    expect(benches.includes(made), `${role} naming a bench`).toBe(false);
     // A message beyond the 64 KiB limit closes the connection (1009), not the server.
     const closed = new Promise<number>((r) => ws!.once('close', (code) => r(code)));
     ws!.send('x'.repeat(70 * 1024));

@@ -5,3 +5,4 @@ export * from './records';
 export * from './attachments';
 export * from './mail';
 export * from './quarantine';
+export * from './benches';

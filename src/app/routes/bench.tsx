@@ -6,10 +6,12 @@ import { ListSkeleton } from '../../components/ui/skeleton';
 import { useMe } from '../../features/auth/api/get-me';
 import { benchQueryOptions, useBench } from '../../features/bench/api/get-bench';
 import { DevicePanels } from '../../features/bench/components/device-panels';
+import { RegisteredBenches } from '../../features/bench/components/registered-benches';
 import { SimControls } from '../../features/bench/components/sim-controls';
 import { StoragePanel } from '../../features/bench/components/storage-panel';
 import { WebSerialPanel } from '../../features/bench/components/web-serial-panel';
 import { useLiveStream, useLiveStreamNotice } from '../../lib/live-stream';
+import { browserBenchIdOf } from '../../../shared/schemas/benches';
 import { RouteErrorBoundary } from './route-error';
 
 export const createLoader = (queryClient: QueryClient) => () => {
@@ -53,7 +55,8 @@ export function Component() {
             port editing or connection test over the API yet.
           </p>
           {me?.role === 'admin' && bench.data.mode === 'sim' && <SimControls />}
-          <WebSerialPanel />
+          <RegisteredBenches canManage={me?.role === 'lead' || me?.role === 'admin'} />
+          <WebSerialPanel ownBench={me?.role === 'technician' ? browserBenchIdOf(me.id) : null} />
         </div>
       )}
     </>

@@ -1,11 +1,11 @@
 import { useQueryClient } from '@tanstack/react-query';
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { toast } from '../../../components/ui/toast';
 import { formatNumber, unitLabel } from '../../../lib/format';
 import { getLiveStream, useLiveStream } from '../../../lib/live-stream';
-import { useWebSerial, webSerial, type Device } from '../web-serial/serial-bridge';
+import { useWebSerial, webSerial, type Device, type StreamLink } from '../web-serial/serial-bridge';
 
 const BAUDS = [9600, 19200, 38400, 57600, 115200];
 const NAME: Record<Device, string> = { pressure: 'Pressure calibrator', current: 'Current meter' };
@@ -14,7 +14,7 @@ const NAME: Record<Device, string> = { pressure: 'Pressure calibrator', current:
  * "Connect in this browser": where the browser has Web Serial, read the two instruments here and
  * forward their lines to the bench hub; elsewhere, say so and point to the server bridge.
  */
-export function WebSerialPanel() {
+export function WebSerialPanel({ ownBench }: { ownBench: string | null }) {
   const queryClient = useQueryClient();
   const streamStatus = useLiveStream(queryClient);
   const serial = webSerial();
@@ -22,6 +22,10 @@ export function WebSerialPanel() {
   const benchId = useWebSerial((s) => s.benchId);
   const [baud, setBaud] = useState<Record<Device, number>>({ pressure: 9600, current: 9600 });
   const [busy, setBusy] = useState<Device | null>(null);
+  // The lines feed this user's own browser bench (the server refuses any other).
+  useEffect(() => {
+    useWebSerial.getState().setBenchId(ownBench);
+  }, [ownBench]);
 
   if (!serial) {
     return (
@@ -38,11 +42,32 @@ export function WebSerialPanel() {
     );
   }
 
+  if (!ownBench) {
+    return (
+      <section aria-labelledby="webserial-title" className="rounded-card border border-line bg-surface p-5 shadow-card" data-testid="web-serial-not-technician">
+        <h2 id="webserial-title" className="text-lg font-semibold text-ink">
+          Connect in this browser
+        </h2>
+        <p className="mt-1 text-sm text-ink-muted">Only technicians read instruments in the browser: their lines feed their own browser bench and the runs they perform.</p>
+      </section>
+    );
+  }
+
   const connect = async (device: Device) => {
     setBusy(device);
     try {
       const port = await serial.requestPort();
-      const bridge = useWebSerial.getState().ensure((m) => getLiveStream().send(m));
+      const live = getLiveStream();
+      const link: StreamLink = {
+        send: (m) => live.send(m),
+        subscribe: (l) => live.subscribe(l),
+        watchOpen: (l) => {
+          const tell = () => l(live.getStatus() === 'open');
+          tell();
+          return live.subscribeStatus(tell);
+        },
+      };
+      const bridge = useWebSerial.getState().ensure(link);
       await bridge.connect(device, port, baud[device]);
       toast(`${NAME[device]} connected in this browser`, { tone: 'success' });
     } catch (e) {
@@ -61,7 +86,8 @@ export function WebSerialPanel() {
           </h2>
           <p className="mt-1 max-w-prose text-sm text-ink-muted">
             Plug the calibrator and the meter into this computer and read them here with Web Serial. Their lines go to the bench hub as bench{' '}
-            <span className="num text-ink" data-testid="browser-bench-id">{benchId}</span>; runs you start while both are connected use it.
+            <span className="num text-ink" data-testid="browser-bench-id">{benchId ?? ownBench}</span>, which only you can feed; runs you start while both are connected use it, and
+            the server keeps every line until it has stored it.
           </p>
         </div>
         <Badge tone={streamStatus === 'open' ? 'ok' : 'warn'} dot>
@@ -114,7 +140,8 @@ export function WebSerialPanel() {
       </div>
       {state && (
         <p className="num mt-3 text-xs text-ink-muted" data-testid="web-serial-forwarded">
-          {state.forwarded} lines forwarded{state.unsent ? ` · ${state.unsent} batches waiting for the stream` : ''}
+          {state.forwarded} lines stored{state.unsent ? ` · ${state.unsent} lines waiting to be stored` : ''}
+          {state.refused ? ` · ${state.refused} batches refused${state.lastRefusal ? `: ${state.lastRefusal}` : ''}` : ''}
         </p>
       )}
     </section>

@@ -1,19 +1,22 @@
 /**
  * Web Serial bridge: reads the two bench instruments directly in the browser with the shared
  * protocol code (`shared/protocol`: LineFramer + ProtocolDecoder, SCPI for the meter, the
- * calibrator's line profile) and forwards batches of raw lines over the live stream
- * (`lines.forwarded`), where the bench hub decodes them again as if from its own ports.
+ * calibrator's line profile) and forwards the raw lines over the live stream through the shared
+ * line forwarder (numbered batches kept until the server acknowledges them as stored, and sent
+ * again after a reconnect), where the bench hub decodes them again as if from its own ports. The
+ * lines feed the signed-in user's own browser bench, and only runs that user performs.
  */
 import { create } from 'zustand';
 import {
   classifyScpiMeterLine,
   createCalibratorClassifier,
+  LineForwarder,
   ProtocolDecoder,
   SCPI_COMMANDS,
   SIMCAL_PROFILE,
   type LineProtocolProfile,
 } from '../../../../shared/protocol';
-import type { ClientMessage } from '../../../../shared/schemas/stream';
+import type { ClientMessage, StreamMessage } from '../../../../shared/schemas/stream';
 
 /** The parts of the Web Serial API we use (not in TypeScript's DOM library yet). */
 export interface SerialPortLike {
@@ -49,23 +52,26 @@ export interface DeviceLinkState {
 export interface BridgeState {
   benchId: string;
   devices: Record<Device, DeviceLinkState | undefined>;
-  /** Lines sent to the server. */
+  /** Lines acknowledged by the server as stored. */
   forwarded: number;
-  /** Batches that could not be sent (stream down); their lines are kept and retried. */
+  /** Lines kept until the server acknowledges them (stream down, or not yet acknowledged). */
   unsent: number;
+  /** Batches the server refused, and the last reason. */
+  refused: number;
+  lastRefusal: string | null;
 }
 
 const emptyDevice = (baudRate: number): DeviceLinkState => ({ connected: true, baudRate, lines: 0, samples: 0, rejected: 0, lastValue: null, lastUnit: null, error: null });
 
 /** Keeps at most this many lines waiting while the stream is down (oldest dropped). */
-const MAX_PENDING = 5_000;
-/** Lines per `lines.forwarded` message (the contract allows 500). */
-const BATCH = 500;
+const MAX_PENDING = 50_000;
 
 export interface BridgeOptions {
   benchId: string;
   /** Sends a client message on the live stream; false when it is not open. */
   send: (m: ClientMessage) => boolean;
+  /** Names this tab's queue to the server. Default a random id. */
+  senderId?: string;
   /** Calibrator protocol profile. Default the bundled simulated calibrator's. */
   profile?: LineProtocolProfile;
   /** Readings per second asked of each device. Default 10. */
@@ -87,12 +93,38 @@ interface Link {
 export class SerialBridge {
   readonly state: BridgeState;
   private readonly links: Partial<Record<Device, Link>> = {};
-  private pending: { device: Device; raw: string; wallMs: number }[] = [];
+  private readonly forwarder: LineForwarder;
   private flushTimer: ReturnType<typeof setInterval> | null = null;
   private readonly encoder = new TextEncoder();
+  private storedLines = 0;
 
   constructor(private readonly opts: BridgeOptions) {
-    this.state = { benchId: opts.benchId, devices: { pressure: undefined, current: undefined }, forwarded: 0, unsent: 0 };
+    this.state = { benchId: opts.benchId, devices: { pressure: undefined, current: undefined }, forwarded: 0, unsent: 0, refused: 0, lastRefusal: null };
+    this.forwarder = new LineForwarder({
+      benchId: opts.benchId,
+      senderId: opts.senderId ?? `tab-${Math.random().toString(36).slice(2, 12)}`,
+      maxLines: MAX_PENDING,
+      send: (m) => opts.send(m),
+    });
+  }
+
+  /** The live stream opened (or reopened): everything not yet acknowledged is sent again. */
+  linkUp(): void {
+    this.forwarder.linkUp();
+    this.changed();
+  }
+
+  linkDown(): void {
+    this.forwarder.linkDown();
+    this.changed();
+  }
+
+  /** A stream message: acknowledgements of this bridge's batches settle them. */
+  onMessage(m: StreamMessage): void {
+    if (m.type !== 'lines.acked' || m.senderId !== this.forwarder.senderId) return;
+    if (m.status === 'stored') this.storedLines += m.stored;
+    this.forwarder.acked(m);
+    this.changed();
   }
 
   /** Opens `port` for `device`, starts reading and polling. */
@@ -190,54 +222,76 @@ export class SerialBridge {
         st.lastUnit = f.sample.unit;
       } else st.rejected += 1;
       const raw = f.type === 'sample' ? f.sample.raw : f.raw;
-      this.pending.push({ device, raw: raw.slice(0, 512), wallMs: now });
+      this.forwarder.push({ device, raw: raw.slice(0, 512), wallMs: now });
     }
-    if (this.pending.length > MAX_PENDING) this.pending.splice(0, this.pending.length - MAX_PENDING);
     this.changed();
   }
 
-  /** Sends what is waiting, in batches; keeps it when the stream is not open. */
+  /** Seals what was read into a batch and sends what the forwarder's window allows. */
   flush(): void {
-    while (this.pending.length) {
-      const lines = this.pending.slice(0, BATCH);
-      if (!this.opts.send({ type: 'lines.forwarded', benchId: this.opts.benchId, lines })) {
-        this.state.unsent += 1;
-        break;
-      }
-      this.pending.splice(0, lines.length);
-      this.state.forwarded += lines.length;
-    }
+    this.forwarder.tick();
     this.changed();
   }
 
   private changed(): void {
+    const f = this.forwarder.stats;
+    this.state.forwarded = this.storedLines;
+    this.state.unsent = f.queuedLines;
+    this.state.refused = f.refused;
+    this.state.lastRefusal = f.lastRefusal;
     this.opts.onChange?.({ ...this.state, devices: { ...this.state.devices } });
   }
 }
 
-/** Bench id of this browser's Web Serial bench (stable for the tab). */
-function browserBenchId(): string {
-  return `browser-${Math.random().toString(36).slice(2, 8)}`;
+/** What the bridge needs of the live stream. */
+export interface StreamLink {
+  send: (m: ClientMessage) => boolean;
+  subscribe: (listener: (m: StreamMessage) => void) => () => void;
+  /** Calls back with whether the stream is open, now and on every change; returns the unsubscribe. */
+  watchOpen: (listener: (open: boolean) => void) => () => void;
 }
 
 interface WebSerialStore {
   bridge: SerialBridge | null;
   state: BridgeState | null;
-  benchId: string;
-  ensure(send: BridgeOptions['send']): SerialBridge;
+  /** The signed-in user's browser bench (from the server; null until known). */
+  benchId: string | null;
+  setBenchId(benchId: string | null): void;
+  ensure(link: StreamLink): SerialBridge;
   set(state: BridgeState): void;
+  /** Ends the bridge's subscriptions to the stream. */
+  unlink: (() => void) | null;
 }
 
 /** The page's one Web Serial bridge (kept across pages, so a run can use it). */
 export const useWebSerial = create<WebSerialStore>((set, get) => ({
   bridge: null,
   state: null,
-  benchId: browserBenchId(),
-  ensure(send) {
+  benchId: null,
+  unlink: null,
+  setBenchId(benchId) {
+    if (get().benchId === benchId) return;
+    // Another user signed in on this page: the old bridge fed the old user's bench.
+    get().unlink?.();
+    void get().bridge?.close();
+    set({ benchId, bridge: null, state: null, unlink: null });
+  },
+  ensure(link) {
     const existing = get().bridge;
     if (existing) return existing;
-    const bridge = new SerialBridge({ benchId: get().benchId, send, onChange: (s) => set({ state: s }) });
-    set({ bridge, state: bridge.state });
+    const benchId = get().benchId;
+    if (!benchId) throw new Error('This browser has no bench yet: sign in as a technician');
+    const bridge = new SerialBridge({ benchId, send: link.send, onChange: (s) => set({ state: s }) });
+    const offMessages = link.subscribe((m) => bridge.onMessage(m));
+    const offOpen = link.watchOpen((open) => (open ? bridge.linkUp() : bridge.linkDown()));
+    set({
+      bridge,
+      state: bridge.state,
+      unlink: () => {
+        offMessages();
+        offOpen();
+      },
+    });
     return bridge;
   },
   set(state) {
@@ -247,5 +301,5 @@ export const useWebSerial = create<WebSerialStore>((set, get) => ({
 
 /** Bench id to run on when this browser's instruments are connected, else undefined. */
 export function useBrowserBenchId(): string | undefined {
-  return useWebSerial((s) => (s.state && s.state.devices.pressure?.connected && s.state.devices.current?.connected ? s.benchId : undefined));
+  return useWebSerial((s) => (s.state && s.state.devices.pressure?.connected && s.state.devices.current?.connected ? (s.benchId ?? undefined) : undefined));
 }
