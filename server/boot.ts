@@ -8,7 +8,7 @@ import type { RequestHandler } from 'express';
 import type { Logger } from 'pino';
 import { createApp } from './app';
 import { openDatabase, type Database } from './db/client';
-import type { Env } from './env';
+import { demoSeedPolicy, listenHost, trustProxySetting, type Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
 import { uploadRoutes } from './http/routes/files/files.routes';
 import { outboxRoutes } from './http/routes/outbox/outbox.routes';
@@ -93,7 +93,17 @@ export async function boot(opts: BootOptions): Promise<Running> {
   try {
     const hooks: ServiceHooks = {};
     const services = createServices(database, loadSecret(env, memory), hooks);
-    if (env.SEED_DEMO === '1' && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
+    const seedPolicy = demoSeedPolicy(env);
+    if (seedPolicy === 'refuse' && !(await services.users.siteExists())) {
+      throw new Error(
+        `Not seeding the demo site: HOST=${env.HOST} is reachable from the network and the demo users share the documented demo password. ` +
+          'Set SEED_DEMO=1 to seed it anyway, leave HOST unset to listen on loopback, or set SEED_DEMO=0.',
+      );
+    }
+    if (seedPolicy === 'seed-exposed') {
+      logger.warn({ host: env.HOST }, `SEED_DEMO=1 on a network address: the demo users (admin included) sign in with the demo password "${env.DEMO_PASSWORD}"; change it or set DEMO_PASSWORD`);
+    }
+    if ((seedPolicy === 'seed' || seedPolicy === 'seed-exposed') && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
       logger.info('seeded the demo site');
     }
     // Uploads live outside the web root: DATA_DIR/uploads (in-memory servers: a temp dir, removed on close).
@@ -146,6 +156,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
       extraRoutes: [runRoutes(runs), benchRoutes(bench), simRoutes(bench), ...uploadRoutes(files), outboxRoutes(mail)],
+      trustProxy: trustProxySetting(env),
+      maxInFlight: env.MAX_IN_FLIGHT,
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -155,7 +167,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
     });
     await new Promise<void>((resolve, reject) => {
       server.once('error', reject);
-      server.listen(env.PORT, env.HOST, () => resolve());
+      server.listen(env.PORT, listenHost(env), () => resolve());
     });
     const stream = attachStreamServer({ server, auth: services.auth, bench, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;

@@ -12,6 +12,7 @@ import { badRequest } from '../errors';
 import { InstrumentInputSchema } from '../../shared/schemas/instruments';
 import type { ImportReport, ImportRow } from '../../shared/schemas/records';
 import { StandardInputSchema } from '../../shared/schemas/standards';
+import { PastDateSchema } from '../../shared/schemas/dates';
 import type { Actor, AuditService } from './audit.service';
 import { toInstrument, toStandard } from './register.service';
 
@@ -71,7 +72,6 @@ export const STANDARD_COLUMNS = [
 const STANDARD_REQUIRED = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'];
 
 const NUMBER_RE = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
-const ISO_DATE_RE = /^\d{4}-\d{2}-\d{2}$/;
 
 /** A cell as a number when it looks like one; empty → undefined; anything else stays text so zod names the field. */
 function num(cell: string | undefined): number | string | undefined {
@@ -267,7 +267,10 @@ export function createCsvService(db: Db, audit: AuditService) {
       const res = InstrumentInputSchema.safeParse(raw);
       if (!res.success) Object.assign(errors, issuesToFields(res.error.issues, (p) => p.replace(/^primaryElement\./, 'pe.').replace(/^primaryElement$/, 'pe')));
       const last = text(cells.lastCalibratedOn);
-      if (last && (!ISO_DATE_RE.test(last) || Number.isNaN(Date.parse(last)))) errors.lastCalibratedOn = ['Use YYYY-MM-DD'];
+      if (last) {
+        const date = PastDateSchema.safeParse(last);
+        if (!date.success) errors.lastCalibratedOn = date.error.issues.map((i) => i.message);
+      }
       const key = raw.tag.toUpperCase();
       if (key) {
         if (existing.has(key)) (errors.tag ??= []).push('Already registered');

@@ -18,7 +18,7 @@ export function createServices(database: Database, secret: Uint8Array, hooks: Se
   return {
     audit,
     auth,
-    users: createUserService(database.db, audit),
+    users: createUserService(database.db, audit, auth),
     registers,
     jobs,
     review: createReviewService(database.db, { audit, auth, jobs, registers, notify: (n) => hooks.onReview?.(n) }),
