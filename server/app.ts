@@ -4,7 +4,7 @@ import express, { type RequestHandler } from 'express';
 import cookieParser from 'cookie-parser';
 import helmet from 'helmet';
 import type { Logger } from 'pino';
-import { notFound } from './errors';
+import { AppError, notFound } from './errors';
 import { allowedHost } from './http/middleware/allowed-host';
 import { loadSession } from './http/middleware/auth';
 import { errorHandler } from './http/middleware/error-handler';
@@ -39,6 +39,8 @@ export interface AppDeps {
   maxInFlight?: number;
 }
 
+const strictUtf8 = new TextDecoder('utf-8', { fatal: true });
+
 /** Builds the Express app from its dependencies; it does not listen. */
 export function createApp(deps: AppDeps) {
   const app = express();
@@ -66,7 +68,19 @@ export function createApp(deps: AppDeps) {
     }),
   );
   app.use(allowedHost(deps.allowedOrigins));
-  app.use(express.json({ limit: '1mb' }));
+  app.use(
+    express.json({
+      limit: '1mb',
+      // Invalid UTF-8 would be decoded into U+FFFD silently; refuse it instead (every JSON route).
+      verify: (_req, _res, buf) => {
+        try {
+          strictUtf8.decode(buf);
+        } catch {
+          throw new AppError(415, 'unsupported_media', 'The request body is not valid UTF-8');
+        }
+      },
+    }),
+  );
   app.use(cookieParser());
   app.use('/api', sameOrigin(deps.allowedOrigins));
   app.use('/api', loadSession(deps.services.auth));
