@@ -36,17 +36,18 @@ function dayFromToday(days: number, now = Date.now()): string {
   return new Date(now + days * DAY_MS).toISOString().slice(0, 10);
 }
 
-/** Any real date from {@link MIN_DATE} to the furthest due date. */
+/** Any real date from {@link MIN_DATE} on (no upper bound: use {@link PastDateSchema} or {@link DueDateSchema}). */
 export const IsoDateSchema = z
   .string({ message: 'Use YYYY-MM-DD' })
   .trim()
   .regex(SHAPE, { message: 'Use YYYY-MM-DD', abort: true })
   .refine(isRealDate, { message: 'No such date', abort: true })
-  .refine((s) => s >= MIN_DATE, { message: `Dates before ${MIN_DATE} are not taken` })
-  .refine((s) => s <= dayFromToday(MAX_DUE_DAYS_AHEAD), { message: `Dates more than ${Math.round(MAX_DUE_DAYS_AHEAD / 365.25)} years ahead are not taken` });
+  .refine((s) => s >= MIN_DATE, { message: `Dates before ${MIN_DATE} are not taken`, abort: true });
 
 /** A day that has happened (e.g. "last calibrated", "calibrated on"): no later than today. */
 export const PastDateSchema = IsoDateSchema.refine((s) => s <= dayFromToday(TODAY_SLACK_DAYS), { message: 'This date is in the future' });
 
 /** A due date: a real date no further ahead than {@link MAX_DUE_DAYS_AHEAD} (it may be past: overdue). */
-export const DueDateSchema = IsoDateSchema;
+export const DueDateSchema = IsoDateSchema.refine((s) => s <= dayFromToday(MAX_DUE_DAYS_AHEAD), {
+  message: `Dates more than ${Math.round(MAX_DUE_DAYS_AHEAD / 365.25)} years ahead are not taken`,
+});
