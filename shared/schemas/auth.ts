@@ -32,8 +32,8 @@ export const MeSchema = z.object({
   name: z.string(),
   role: RoleSchema,
   siteName: z.string(),
-  /** True until the user has chosen their own password (after an invite or an admin reset). */
-  mustChangePassword: z.boolean(),
+  /** True until the user has chosen their own password (after an invite or an admin reset); the server always sends it. */
+  mustChangePassword: z.boolean().optional(),
 });
 export type Me = z.infer<typeof MeSchema>;
 

@@ -9,11 +9,11 @@ export const UserSchema = z.object({
   active: z.boolean(),
   createdAt: z.string(),
   /** A new password must be chosen at the next sign-in (after an invite or a reset). */
-  mustChangePassword: z.boolean(),
+  mustChangePassword: z.boolean().default(false),
   /** Sign-in locked until then (ISO date-time), or null. */
-  signInLockedUntil: z.string().nullable(),
+  signInLockedUntil: z.string().nullable().default(null),
   /** Password re-entry (signatures, password change) locked until then, or null. */
-  signingLockedUntil: z.string().nullable(),
+  signingLockedUntil: z.string().nullable().default(null),
 });
 export type User = z.infer<typeof UserSchema>;
 
