@@ -142,22 +142,22 @@ export function UsersTable({ users, currentUserId, search = '' }: UsersTableProp
               >
                 Reset password
               </Button>
-            <Button
-              size="sm"
-              variant={u.active ? 'ghost' : 'secondary'}
-              disabled={update.isPending}
-              onClick={() =>
-                update.mutate(
-                  { id: u.id, body: { active: !u.active } },
-                  {
-                    onSuccess: (nu) => toast(nu.active ? `${nu.name} reactivated` : `${nu.name} deactivated`, { tone: 'success' }),
-                    onError: (err) => toast('No change made', { tone: 'error', description: errorText(err) }),
-                  },
-                )
-              }
-            >
-              {u.active ? 'Deactivate' : 'Reactivate'}
-            </Button>
+              <Button
+                size="sm"
+                variant={u.active ? 'ghost' : 'secondary'}
+                disabled={update.isPending}
+                onClick={() =>
+                  update.mutate(
+                    { id: u.id, body: { active: !u.active } },
+                    {
+                      onSuccess: (nu) => toast(nu.active ? `${nu.name} reactivated` : `${nu.name} deactivated`, { tone: 'success' }),
+                      onError: (err) => toast('No change made', { tone: 'error', description: errorText(err) }),
+                    },
+                  )
+                }
+              >
+                {u.active ? 'Deactivate' : 'Reactivate'}
+              </Button>
             </div>
           );
         },
@@ -168,38 +168,38 @@ export function UsersTable({ users, currentUserId, search = '' }: UsersTableProp
 
   return (
     <>
-    <Dialog
-      open={!!issued}
-      onClose={() => setIssued(null)}
-      title="One-time password"
-      description="Give it to the person in person or by phone. It is shown only now; they choose their own at the next sign-in, and their open sessions have ended."
-    >
-      {issued && (
-        <div className="flex flex-col gap-3">
-          <div className="text-sm text-ink-muted">
-            {issued.name} · {issued.email}
+      <Dialog
+        open={!!issued}
+        onClose={() => setIssued(null)}
+        title="One-time password"
+        description="Give it to the person in person or by phone. It is shown only now; they choose their own at the next sign-in, and their open sessions have ended."
+      >
+        {issued && (
+          <div className="flex flex-col gap-3">
+            <div className="text-sm text-ink-muted">
+              {issued.name} · {issued.email}
+            </div>
+            <output data-testid="one-time-password" className="num rounded-md border border-line bg-surface px-3 py-2 text-lg tracking-wide text-ink select-all">
+              {issued.password}
+            </output>
+            <Button onClick={() => setIssued(null)}>Done</Button>
           </div>
-          <output data-testid="one-time-password" className="num rounded-md border border-line bg-surface px-3 py-2 text-lg tracking-wide text-ink select-all">
-            {issued.password}
-          </output>
-          <Button onClick={() => setIssued(null)}>Done</Button>
-        </div>
-      )}
-    </Dialog>
-    <DataTable
-      caption="Users"
-      data={users}
-      columns={columns}
-      globalFilter={search}
-      globalFilterFn={(row, _col, value: string) => {
-        const q = value.trim().toLowerCase();
-        const u = row.original;
-        return !q || u.name.toLowerCase().includes(q) || u.email.toLowerCase().includes(q) || u.role.includes(q);
-      }}
-      initialSorting={[{ id: 'name', desc: false }]}
-      getRowId={(u) => u.id}
-      empty="No users match."
-    />
+        )}
+      </Dialog>
+      <DataTable
+        caption="Users"
+        data={users}
+        columns={columns}
+        globalFilter={search}
+        globalFilterFn={(row, _col, value: string) => {
+          const q = value.trim().toLowerCase();
+          const u = row.original;
+          return !q || u.name.toLowerCase().includes(q) || u.email.toLowerCase().includes(q) || u.role.includes(q);
+        }}
+        initialSorting={[{ id: 'name', desc: false }]}
+        getRowId={(u) => u.id}
+        empty="No users match."
+      />
     </>
   );
 }
