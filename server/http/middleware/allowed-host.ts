@@ -15,6 +15,15 @@ function splitHost(host: string): { name: string; port: string } {
  * same defaults as Vite's `server.allowedHosts`). Anything else is refused with 421 before any work.
  */
 export function allowedHost(allowedOrigins: string[]) {
+  const ok = hostChecker(allowedOrigins);
+  return (req: Request, _res: Response, next: NextFunction) => {
+    if (ok(req.headers.host)) return next();
+    next(new AppError(421, 'wrong_host', 'This server does not answer to that host name; add its origin to ALLOWED_ORIGINS'));
+  };
+}
+
+/** The check of {@link allowedHost} as a function of a Host header value (for the WebSocket upgrade too). */
+export function hostChecker(allowedOrigins: string[]): (hostHeader: string | undefined) => boolean {
   const configured = new Set<string>();
   for (const o of allowedOrigins) {
     try {
@@ -26,11 +35,9 @@ export function allowedHost(allowedOrigins: string[]) {
       /* an unparseable origin allows nothing */
     }
   }
-  return (req: Request, _res: Response, next: NextFunction) => {
-    const host = (req.headers.host ?? '').trim();
+  return (hostHeader) => {
+    const host = (hostHeader ?? '').trim();
     const { name } = splitHost(host);
-    const ok = !!name && (configured.has(host.toLowerCase()) || name === 'localhost' || name.endsWith('.localhost') || isIP(name) !== 0);
-    if (ok) return next();
-    next(new AppError(421, 'wrong_host', 'This server does not answer to that host name; add its origin to ALLOWED_ORIGINS'));
+    return !!name && (configured.has(host.toLowerCase()) || name === 'localhost' || name.endsWith('.localhost') || isIP(name) !== 0);
   };
 }
