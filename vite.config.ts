@@ -4,7 +4,8 @@ import tailwindcss from '@tailwindcss/vite';
 
 export default defineConfig({
   plugins: [react(), tailwindcss()],
-  build: { outDir: 'dist', sourcemap: true, chunkSizeWarningLimit: 1500 },
+  // No source maps in the build: dist/ is served as it is, and maps would publish the source.
+  build: { outDir: 'dist', sourcemap: false, chunkSizeWarningLimit: 1500 },
   server: {
     proxy: {
       '/api': 'http://localhost:3000',

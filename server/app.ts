@@ -4,10 +4,12 @@ import express, { type RequestHandler } from 'express';
 import cookieParser from 'cookie-parser';
 import helmet from 'helmet';
 import type { Logger } from 'pino';
-import { notFound } from './errors';
+import { AppError, notFound } from './errors';
+import { allowedHost } from './http/middleware/allowed-host';
 import { loadSession } from './http/middleware/auth';
 import { errorHandler } from './http/middleware/error-handler';
 import { sameOrigin } from './http/middleware/same-origin';
+import { neverShed, shedLoad } from './http/middleware/shed-load';
 import type { RouteSpec, RouteTable } from './http/route-table';
 import { auditRoutes } from './http/routes/audit/audit.routes';
 import { authRoutes } from './http/routes/auth/auth.routes';
@@ -39,13 +41,23 @@ export interface AppDeps {
   devMiddleware?: RequestHandler;
   /** Extra route tables (bench, runs, ...) mounted after the core ones. */
   extraRoutes?: RouteTable[];
+  /** Express `trust proxy` (TRUST_PROXY); default false: forwarding headers are not believed. */
+  trustProxy?: boolean | number | string;
+  /** Requests in flight before new ones are shed with 503 (MAX_IN_FLIGHT); 0 or unset: no shedding. */
+  maxInFlight?: number;
 }
+
+const strictUtf8 = new TextDecoder('utf-8', { fatal: true });
 
 /** Builds the Express app from its dependencies; it does not listen. */
 export function createApp(deps: AppDeps) {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.set('trust proxy', deps.trustProxy ?? false);
+  // First, before any work: shed load past the in-flight limit, then refuse foreign Host headers.
+  const shedder = shedLoad({ maxInFlight: deps.maxInFlight ?? 0, exempt: neverShed });
+  app.locals.shedding = shedder.stats;
+  app.use(shedder);
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -63,7 +75,20 @@ export function createApp(deps: AppDeps) {
       strictTransportSecurity: false,
     }),
   );
-  app.use(express.json({ limit: '1mb' }));
+  app.use(allowedHost(deps.allowedOrigins));
+  app.use(
+    express.json({
+      limit: '1mb',
+      // Invalid UTF-8 would be decoded into U+FFFD silently; refuse it instead (every JSON route).
+      verify: (_req, _res, buf) => {
+        try {
+          strictUtf8.decode(buf);
+        } catch {
+          throw new AppError(415, 'unsupported_media', 'The request body is not valid UTF-8');
+        }
+      },
+    }),
+  );
   app.use(cookieParser());
   app.use('/api', sameOrigin(deps.allowedOrigins));
   app.use('/api', loadSession(deps.services.auth));
@@ -98,6 +123,8 @@ export function createApp(deps: AppDeps) {
   if (deps.devMiddleware) app.use(deps.devMiddleware);
   else if (deps.clientDir && fs.existsSync(path.join(deps.clientDir, 'index.html'))) {
     const dir = deps.clientDir;
+    // Source maps are never served (the build makes none; a stale one must not leak the source).
+    app.use((req, _res, next) => next(/\.map$/i.test(req.path) ? notFound() : undefined));
     app.use(express.static(dir, { index: false, maxAge: '1h' }));
     // Client-side routes: every other GET gets the app shell.
     app.get(/^(?!\/api\/|\/ws).*/, (_req, res) => {

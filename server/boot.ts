@@ -13,7 +13,7 @@ import { createSimControl, type SimController } from './bench/sim-control';
 import { defaultBinding } from './bench/transport';
 import type { LineProtocolProfile } from '../shared/protocol';
 import { openDatabase, type Database } from './db/client';
-import type { Env } from './env';
+import { demoSeedPolicy, listenHost, trustProxySetting, type Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
 import { storageRoutes } from './http/routes/bench/storage.routes';
 import { benchesRoutes } from './http/routes/benches/benches.routes';
@@ -139,7 +139,17 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const hooks: ServiceHooks = {};
     const sessionEvents = createSessionEvents();
     const services = createServices(database, loadSecret(env, memory), hooks, sessionEvents);
-    if (env.SEED_DEMO === '1' && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
+    const seedPolicy = demoSeedPolicy(env);
+    if (seedPolicy === 'refuse' && !(await services.users.siteExists())) {
+      throw new Error(
+        `Not seeding the demo site: HOST=${env.HOST} is reachable from the network and the demo users share the documented demo password. ` +
+          'Set SEED_DEMO=1 to seed it anyway, leave HOST unset to listen on loopback, or set SEED_DEMO=0.',
+      );
+    }
+    if (seedPolicy === 'seed-exposed') {
+      logger.warn({ host: env.HOST }, `SEED_DEMO=1 on a network address: the demo users (admin included) sign in with the demo password "${env.DEMO_PASSWORD}"; change it or set DEMO_PASSWORD`);
+    }
+    if ((seedPolicy === 'seed' || seedPolicy === 'seed-exposed') && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
       logger.info('seeded the demo site');
     }
     // Uploads live outside the web root: DATA_DIR/uploads (in-memory servers: a temp dir, removed on close).
@@ -226,6 +236,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
       extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
+      trustProxy: trustProxySetting(env),
+      maxInFlight: env.MAX_IN_FLIGHT,
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();
@@ -235,7 +247,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
     });
     await new Promise<void>((resolve, reject) => {
       server.once('error', reject);
-      server.listen(env.PORT, env.HOST, () => resolve());
+      server.listen(env.PORT, listenHost(env), () => resolve());
     });
     const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins });
     const port = (server.address() as AddressInfo).port;

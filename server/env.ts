@@ -3,7 +3,19 @@ import { z } from 'zod';
 const EnvSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
-  HOST: z.string().default('0.0.0.0'),
+  /**
+   * Address to listen on. Unset: the loopback address (127.0.0.1), so a fresh install with the demo
+   * users is not reachable from the network; set it (e.g. 0.0.0.0) to serve a plant network.
+   */
+  HOST: z.string().min(1).optional(),
+  /**
+   * Express `trust proxy`: which proxies' X-Forwarded-For / -Proto to believe ('loopback', an
+   * address or subnet list, or a hop count). Unset: none are believed, so a client cannot choose
+   * the address the sign-in throttle sees.
+   */
+  TRUST_PROXY: z.string().min(1).optional(),
+  /** Requests served at once before new ones get 503 with Retry-After (0 turns shedding off). */
+  MAX_IN_FLIGHT: z.coerce.number().int().min(0).max(100_000).default(48),
   /** Where PGlite keeps its files, the lock, the signing secret, the sample journal and uploads. */
   DATA_DIR: z.string().min(1).default('./data'),
   /** A postgres:// URL switches storage to a PostgreSQL server; unset means embedded PGlite. */
@@ -25,8 +37,11 @@ const EnvSchema = z.object({
   /** Origins allowed for state-changing requests besides the server's own. Comma-separated. */
   ALLOWED_ORIGINS: z.string().default(''),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
-  /** Set to 0 to skip seeding the demo site into an empty database. */
-  SEED_DEMO: z.enum(['0', '1']).default('1'),
+  /**
+   * Demo site seeding into an empty database: unset seeds it only when listening on loopback; `1`
+   * seeds it on any HOST (with a warning naming the demo password); `0` never seeds it.
+   */
+  SEED_DEMO: z.enum(['0', '1']).optional(),
   /** Free disk in DATA_DIR below which /api/health answers 503 (the product could not store what it acknowledges), MiB. */
   MIN_FREE_DISK_MB: z.coerce.number().positive().default(256),
 }).refine((e) => !e.BENCH_PRESSURE_PORT === !e.BENCH_CURRENT_PORT, {
@@ -59,4 +74,35 @@ export function parseEnv(source: Record<string, string | undefined> = process.en
 /** Parses the bench agent's environment, like {@link parseEnv}. */
 export function parseAgentEnv(source: Record<string, string | undefined> = process.env): AgentEnv {
   return parseWith(AgentEnvSchema, source);
+}
+
+/** True for an address or name that only this machine can reach. */
+export function isLoopbackHost(host: string): boolean {
+  const h = host.toLowerCase().replace(/^\[|\]$/g, '');
+  return h === 'localhost' || h.endsWith('.localhost') || h === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(h) || h === '::ffff:127.0.0.1';
+}
+
+/** The address to listen on: HOST, or loopback when it is unset. */
+export function listenHost(env: Env): string {
+  return env.HOST ?? '127.0.0.1';
+}
+
+/**
+ * Whether to seed the demo site (its users share the documented DEMO_PASSWORD): `'seed'` on a
+ * loopback HOST unless SEED_DEMO=0; `'seed-exposed'` when SEED_DEMO=1 was set explicitly on a
+ * network HOST (seed, and warn); `'refuse'` on a network HOST without it; `'skip'` for SEED_DEMO=0.
+ */
+export function demoSeedPolicy(env: Env): 'seed' | 'seed-exposed' | 'refuse' | 'skip' {
+  if (env.SEED_DEMO === '0') return 'skip';
+  if (isLoopbackHost(listenHost(env))) return 'seed';
+  return env.SEED_DEMO === '1' ? 'seed-exposed' : 'refuse';
+}
+
+/** The Express `trust proxy` value for TRUST_PROXY: false when unset; a hop count, true, or an address list. */
+export function trustProxySetting(env: Env): boolean | number | string {
+  const v = env.TRUST_PROXY?.trim();
+  if (!v || v === 'false' || v === '0') return false;
+  if (v === 'true') return true;
+  if (/^\d+$/.test(v)) return Number(v);
+  return v;
 }

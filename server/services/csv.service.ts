@@ -12,6 +12,7 @@ import { badRequest } from '../errors';
 import { InstrumentInputSchema } from '../../shared/schemas/instruments';
 import type { ImportReport, ImportRow } from '../../shared/schemas/records';
 import { StandardInputSchema } from '../../shared/schemas/standards';
+import { PastDateSchema } from '../../shared/schemas/dates';
 import type { Actor, AuditService } from './audit.service';
 import { toInstrument, toStandard } from './register.service';
 
@@ -71,7 +72,6 @@ export const STANDARD_COLUMNS = [
 const STANDARD_REQUIRED = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'];
 
 const NUMBER_RE = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
-const ISO_DATE_RE = /^\d{4}-\d{2}-\d{2}$/;
 
 /** A cell as a number when it looks like one; empty → undefined; anything else stays text so zod names the field. */
 function num(cell: string | undefined): number | string | undefined {
@@ -81,17 +81,33 @@ function num(cell: string | undefined): number | string | undefined {
 }
 function text(cell: string | undefined): string | undefined {
   const s = (cell ?? '').trim();
-  // Undo the spreadsheet-formula guard that export adds.
-  return s ? (/^'[=+\-@]/.test(s) ? s.slice(1) : s) : undefined;
+  // Undo the spreadsheet-formula guard that export adds (at the start and after a separator).
+  return s ? (/^'[=+\-@]/.test(s) ? s.slice(1) : s).replace(SEPARATED_GUARDED, '$1$2') : undefined;
 }
 function nullableNum(cell: string | undefined): number | string | null {
   return num(cell) ?? null;
 }
 
-/** Cells that a spreadsheet would run as a formula are prefixed with ' (OWASP CSV injection guidance). */
+/** Separators a spreadsheet may split a cell on, by locale or by guessing: comma, semicolon, tab, bar. */
+const SEPARATOR = '[,;\\t|]';
+/** A formula character right after a separator (spaces allowed between). */
+const SEPARATED_FORMULA = new RegExp(`(${SEPARATOR})(\\s*)([=+\\-@])`, 'g');
+/** The same, guarded by export: `;'=`. */
+const SEPARATED_GUARDED = new RegExp(`(${SEPARATOR}\\s*)'([=+\\-@])`, 'g');
+
+/**
+ * Cells that a spreadsheet would run as a formula are prefixed with ' (OWASP CSV injection
+ * guidance), at the start of the cell and after any separator inside it: a spreadsheet set to
+ * another separator (semicolon locales) splits `a;=1+1;b` into cells, the middle one a formula.
+ */
 function guard(v: unknown): unknown {
-  return typeof v === 'string' && /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
+  if (typeof v !== 'string') return v;
+  const start = /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
+  return start.replace(SEPARATED_FORMULA, "$1$2'$3");
 }
+
+/** Papa's `quotes`: quote every text cell holding a separator, whatever the export's own one. */
+const quoteSeparated = (v: unknown) => typeof v === 'string' && new RegExp(SEPARATOR).test(v);
 
 function issuesToFields(issues: readonly z.core.$ZodIssue[], rename: (path: string) => string): Record<string, string[]> {
   const out: Record<string, string[]> = {};
@@ -130,7 +146,12 @@ export function parseCsv(textIn: string, columns: readonly string[], required: r
   // Line numbers: count physical lines consumed before each row (quoted fields may span lines).
   const problems = new Map<number, string>();
   for (const e of result.errors) {
-    if (typeof e.row === 'number') problems.set(e.row, e.code === 'TooFewFields' || e.code === 'TooManyFields' ? `${e.message}` : e.message);
+    if (e.code === 'MissingQuotes') {
+      // An unterminated quote swallows the rest of the file, so it is in the last row (Papa's
+      // own row number for this error is not the data row's index).
+      if (result.data.length) problems.set(result.data.length - 1, 'A quoted cell has no closing quote (it runs to the end of the file)');
+      else fileErrors.push('A quoted cell has no closing quote');
+    } else if (typeof e.row === 'number') problems.set(e.row, e.message);
     else fileErrors.push(e.message);
   }
   const lines = lineStarts(source, result.data.length);
@@ -267,7 +288,10 @@ export function createCsvService(db: Db, audit: AuditService) {
       const res = InstrumentInputSchema.safeParse(raw);
       if (!res.success) Object.assign(errors, issuesToFields(res.error.issues, (p) => p.replace(/^primaryElement\./, 'pe.').replace(/^primaryElement$/, 'pe')));
       const last = text(cells.lastCalibratedOn);
-      if (last && (!ISO_DATE_RE.test(last) || Number.isNaN(Date.parse(last)))) errors.lastCalibratedOn = ['Use YYYY-MM-DD'];
+      if (last) {
+        const date = PastDateSchema.safeParse(last);
+        if (!date.success) errors.lastCalibratedOn = date.error.issues.map((i) => i.message);
+      }
       const key = raw.tag.toUpperCase();
       if (key) {
         if (existing.has(key)) (errors.tag ??= []).push('Already registered');
@@ -356,7 +380,7 @@ export function createCsvService(db: Db, audit: AuditService) {
         for (const k of INSTRUMENT_COLUMNS.filter((c) => c.startsWith('pe.'))) out[k] = pe[k.slice(3)] ?? '';
         return INSTRUMENT_COLUMNS.map((c) => guard(out[c]));
       });
-      return Papa.unparse({ fields: [...INSTRUMENT_COLUMNS], data: rows }, { newline: '\r\n' });
+      return Papa.unparse({ fields: [...INSTRUMENT_COLUMNS], data: rows }, { newline: '\r\n', quotes: quoteSeparated });
     },
 
     /** The standards register as CSV (STANDARD_COLUMNS). */
@@ -373,7 +397,7 @@ export function createCsvService(db: Db, audit: AuditService) {
         };
         return STANDARD_COLUMNS.map((c) => guard(out[c]));
       });
-      return Papa.unparse({ fields: [...STANDARD_COLUMNS], data: rows }, { newline: '\r\n' });
+      return Papa.unparse({ fields: [...STANDARD_COLUMNS], data: rows }, { newline: '\r\n', quotes: quoteSeparated });
     },
   };
 }

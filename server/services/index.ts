@@ -13,7 +13,7 @@ import { createUserService } from './user.service';
 /** Builds every service over one database; the composition root and tests share this. */
 export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}, sessionEvents: SessionEvents = createSessionEvents()) {
   const audit = createAuditService(database.db);
-  const auth = createAuthService(database.db, secret, audit, sessionEvents);
+  const auth = createAuthService(database.db, secret, audit, {}, sessionEvents);
   const registers = createRegisterService(database.db, audit);
   const jobs = createJobService(database.db, audit, (n) => hooks.onJob?.(n));
   return {

@@ -44,7 +44,9 @@ describe('file store', () => {
     const a = await store.put(src, { declaredType: 'text/csv', originalName: 'first.csv' });
     const b = await store.put(Buffer.from('tag,lrv\nFT-101,0\n'), { declaredType: 'text/csv', originalName: 'second.csv' });
     expect(a.created).toBe(true);
-    expect(b).toMatchObject({ id: a.id, created: false, originalName: 'first.csv' });
+    // Each upload keeps its own name; the sidecar keeps the first one's.
+    expect(b).toMatchObject({ id: a.id, created: false, originalName: 'second.csv' });
+    expect((await store.stat(a.id))?.originalName).toBe('first.csv');
     await expect(fs.access(src)).resolves.toBeUndefined();
     expect((await listFiles(store.root)).filter((f) => !f.startsWith('.tmp'))).toHaveLength(2);
     expect(await listFiles(path.join(store.root, '.tmp'))).toEqual([]);

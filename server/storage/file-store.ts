@@ -7,7 +7,7 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { createReadStream, type ReadStream } from 'node:fs';
-import fs from 'node:fs/promises';
+import nodeFs from 'node:fs/promises';
 import path from 'node:path';
 
 /** Metadata kept beside each stored file. */
@@ -18,7 +18,7 @@ export interface StoredFileMeta {
   size: number;
   /** Content type as checked on upload, e.g. `application/pdf`. */
   type: string;
-  /** The uploader's file name, sanitised; from the first upload of this content. */
+  /** The uploader's file name, sanitised (the sidecar keeps the first upload's; `put` returns this upload's). */
   originalName: string;
   /** When the content was first stored, ISO 8601 UTC. */
   storedAt: string;
@@ -28,6 +28,8 @@ export interface StoredFileMeta {
 export interface PutResult extends StoredFileMeta {
   /** False when the same content was already stored (nothing was written). */
   created: boolean;
+  /** This upload's own name, sanitised, even when the content was stored before under another. */
+  originalName: string;
 }
 
 /** A stored file opened for reading. */
@@ -82,7 +84,13 @@ export function sanitizeFileName(name: string | undefined): string {
   return cleaned || 'file';
 }
 
-async function fsyncPath(p: string, flags = 'r'): Promise<void> {
+/** True for the errors of a full disk or an exhausted quota. */
+export function isDiskFull(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return code === 'ENOSPC' || code === 'EDQUOT';
+}
+
+async function fsyncPath(fs: typeof nodeFs, p: string, flags = 'r'): Promise<void> {
   const fh = await fs.open(p, flags);
   try {
     await fh.sync();
@@ -91,8 +99,12 @@ async function fsyncPath(p: string, flags = 'r'): Promise<void> {
   }
 }
 
-/** Create a store rooted at `root` (created when missing). */
-export function createFileStore(options: { root: string; now?: () => Date }): FileStore {
+/**
+ * Create a store rooted at `root` (created when missing). `fs` replaces node:fs/promises (tests
+ * inject a full disk with it).
+ */
+export function createFileStore(options: { root: string; now?: () => Date; fs?: typeof nodeFs }): FileStore {
+  const fs = options.fs ?? nodeFs;
   const root = path.resolve(options.root);
   const tmpDir = path.join(root, '.tmp');
   const now = options.now ?? (() => new Date());
@@ -122,9 +134,14 @@ export function createFileStore(options: { root: string; now?: () => Date }): Fi
   /** Write `data` to `dest` atomically. */
   const writeAtomic = async (dest: string, data: string) => {
     const tmp = tempName();
-    await fs.writeFile(tmp, data, { flag: 'wx' });
-    await fsyncPath(tmp);
-    await fs.rename(tmp, dest);
+    try {
+      await fs.writeFile(tmp, data, { flag: 'wx' });
+      await fsyncPath(fs, tmp);
+      await fs.rename(tmp, dest);
+    } catch (err) {
+      await fs.rm(tmp, { force: true }).catch(() => {});
+      throw err;
+    }
   };
 
   return {
@@ -158,7 +175,7 @@ export function createFileStore(options: { root: string; now?: () => Date }): Fi
         const existing = await readMeta(id);
         if (existing) {
           await fs.rm(tmp, { force: true });
-          return { ...existing, created: false };
+          return { ...existing, originalName: sanitizeFileName(info.originalName), created: false };
         }
         await fs.mkdir(path.dirname(dest), { recursive: true });
         const meta: StoredFileMeta = {
@@ -170,11 +187,17 @@ export function createFileStore(options: { root: string; now?: () => Date }): Fi
         };
         // Sidecar first: a blob is only visible (has/open) once its metadata is in place.
         await writeAtomic(metaPath(id), JSON.stringify(meta));
-        await fs.rename(tmp, dest);
-        await fsyncPath(path.dirname(dest)).catch(() => {});
+        try {
+          await fs.rename(tmp, dest);
+        } catch (err) {
+          // No blob: take the sidecar back too, so nothing half-stored remains.
+          await fs.rm(metaPath(id), { force: true }).catch(() => {});
+          throw err;
+        }
+        await fsyncPath(fs, path.dirname(dest)).catch(() => {});
         return { ...meta, created: true };
       } catch (err) {
-        await fs.rm(tmp, { force: true });
+        await fs.rm(tmp, { force: true }).catch(() => {});
         throw err;
       }
     },

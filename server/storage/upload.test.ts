@@ -5,7 +5,9 @@ import os from 'node:os';
 import path from 'node:path';
 import express, { type NextFunction, type Request, type Response } from 'express';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import pino from 'pino';
 import { AppError } from '../errors';
+import { errorHandler } from '../http/middleware/error-handler';
 import { createFileStore } from './file-store';
 import { tinyPdf, tinyPng } from './test-files';
 import { createUploads, toUploadError, UploadRejectedError } from './upload';
@@ -112,5 +114,71 @@ describe('UploadRejectedError', () => {
     expect(new UploadRejectedError('unsupported_type', 'x')).toMatchObject({ status: 415, code: 'unsupported_media' });
     expect(new UploadRejectedError('no_file', 'x')).toMatchObject({ status: 400, code: 'bad_request' });
     expect(toUploadError(new Error('other'))).toBeUndefined();
+  });
+});
+
+describe('a full disk', () => {
+  /** node:fs/promises with ENOSPC injected: after `partial` bytes of the file the fault names (blob or sidecar), or on renaming the blob. */
+  function fullDiskFs(where: 'blob' | 'sidecar' | 'rename'): typeof fs {
+    const enospc = () => Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC', errno: -28, syscall: 'write' });
+    return {
+      ...fs,
+      open: (async (p: string, flags?: string) => {
+        const fh = await fs.open(p, flags);
+        if (where !== 'blob') return fh;
+        return new Proxy(fh, {
+          get(target, key) {
+            if (key === 'writeFile' || key === 'write')
+              return async () => {
+                await target.write(Buffer.from('half a file'));
+                throw enospc();
+              };
+            const v = Reflect.get(target, key) as unknown;
+            return typeof v === 'function' ? v.bind(target) : v;
+          },
+        });
+      }) as typeof fs.open,
+      writeFile: (async (p: string, data: string, o: object) => {
+        if (where === 'sidecar' && String(p).endsWith('.part')) {
+          await fs.writeFile(p, data.slice(0, 5), o);
+          throw enospc();
+        }
+        return fs.writeFile(p, data, o);
+      }) as typeof fs.writeFile,
+      rename: (async (a: string, b: string) => {
+        if (where === 'rename' && !b.endsWith('.json')) throw Object.assign(new Error('ENOSPC: no space left on device, rename'), { code: 'ENOSPC' });
+        return fs.rename(a, b);
+      }) as typeof fs.rename,
+    };
+  }
+
+  it.each(['blob', 'sidecar', 'rename'] as const)('answers 507 with a plain message when the %s write hits ENOSPC, and leaves nothing half-written', async (where) => {
+    const root = path.join(dir, 'files');
+    const store = createFileStore({ root, fs: fullDiskFs(where) });
+    const uploads = createUploads({ tmpDir, store });
+    const app = express();
+    app.post('/upload', uploads.multer.single('file'), async (req: Request, res: Response) => {
+      res.status(201).json(await uploads.accept(req.file));
+    });
+    app.use(errorHandler(pino({ level: 'silent' })));
+    server = await new Promise<Server>((resolve) => {
+      const s = app.listen(0, '127.0.0.1', () => resolve(s));
+    });
+    base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+    const r = await post(tinyPdf(), 'application/pdf', 'cert.pdf');
+    expect(r.status).toBe(507);
+    expect(r.body.error).toEqual({ code: 'insufficient_storage', message: 'The server disk is full, so nothing was saved; tell your administrator' });
+    expect(await filesUnder(root)).toEqual([]);
+    expect(await filesUnder(tmpDir)).toEqual([]);
+  });
+});
+
+describe('file names', () => {
+  it('keeps a UTF-8 multipart file name as sent (not read as latin1), and each upload of shared content keeps its own name', async () => {
+    await startApp();
+    const a = await post(tinyPdf(), 'application/pdf', 'Kalibrierschein-Größe-µ.pdf');
+    expect(a.body).toMatchObject({ originalName: 'Kalibrierschein-Größe-µ.pdf', created: true });
+    const b = await post(tinyPdf(), 'application/pdf', '校正証明書.pdf');
+    expect(b.body).toMatchObject({ id: a.body.id, originalName: '校正証明書.pdf', created: false });
   });
 });

@@ -94,6 +94,8 @@ export function createUploads(options: UploadOptions): Uploads {
   });
   const instance = multer({
     storage,
+    // RFC 7578 §4.2: a file name is sent as UTF-8 by browsers; busboy's default reads it as latin1.
+    defParamCharset: 'utf8',
     limits: { fileSize: maxBytes, files: 1, fields: 20, fieldSize: 64 * 1024, parts: 24 },
   });
   return {

@@ -56,5 +56,7 @@ export async function authenticateUpgrade(req: http.IncomingMessage, auth: AuthS
   }
   if (!user || !token) return { ok: false, status: 401, message: 'Sign in first' };
   if (!allows('stream.subscribe', user.role)) return { ok: false, status: 403, message: 'Your role does not allow this' };
+  // Like every HTTP route but the password change: a user who must choose a new password gets nothing else first.
+  if (user.mustChangePassword) return { ok: false, status: 403, message: 'Choose a new password first' };
   return { ok: true, user, principal: { kind: 'user', user, token } };
 }

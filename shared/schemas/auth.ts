@@ -16,12 +16,24 @@ export const LoginBodySchema = z.object({
 });
 export type LoginBody = z.infer<typeof LoginBodySchema>;
 
+/** Body of `POST /api/auth/password`: the current password and the new one. */
+export const ChangePasswordBodySchema = z.object({
+  current: z.string().min(1, 'Enter your current password').max(256),
+  next: z
+    .string()
+    .min(PASSWORD_MIN_LENGTH, `At least ${PASSWORD_MIN_LENGTH} characters`)
+    .max(256, 'At most 256 characters'),
+});
+export type ChangePasswordBody = z.infer<typeof ChangePasswordBodySchema>;
+
 export const MeSchema = z.object({
   id: z.string(),
   email: z.string(),
   name: z.string(),
   role: RoleSchema,
   siteName: z.string(),
+  /** True until the user has chosen their own password (after an invite or an admin reset); the server always sends it. */
+  mustChangePassword: z.boolean().optional(),
 });
 export type Me = z.infer<typeof MeSchema>;
 

@@ -14,6 +14,14 @@ export const ERROR_CODES = [
   'payload_too_large',
   'unsupported_media',
   'internal',
+  /** The Host header names another server (DNS-rebinding guard), 421. */
+  'wrong_host',
+  /** A new password must be chosen first (after an invite or an admin reset), 403. */
+  'password_change_required',
+  /** Too many requests in flight; retry after the Retry-After header's seconds, 503. */
+  'overloaded',
+  /** The disk is full; nothing was kept, 507. */
+  'insufficient_storage',
 ] as const;
 export const ErrorCodeSchema = z.enum(ERROR_CODES);
 export type ErrorCode = z.infer<typeof ErrorCodeSchema>;

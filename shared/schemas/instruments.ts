@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { PRESSURE_UNIT_IDS } from '../calc';
+import { rangeProblems } from './numbers';
 
 /** How the transmitter's 4–20 mA relates to DP (REFERENCE.md "Transfer functions"). */
 export const OUTPUT_MODES = ['linear', 'sqrt-transmitter', 'sqrt-host'] as const;
@@ -60,6 +61,12 @@ export const InstrumentInputSchema = z
     notes: z.string().max(2000).default(''),
   })
   .refine((v) => v.lrv !== v.urv, { message: 'LRV and URV must differ', path: ['urv'] })
+  .superRefine((v, ctx) => {
+    const p = rangeProblems(v.lrv, v.urv, v.unit);
+    if (p.lo) ctx.addIssue({ code: 'custom', message: p.lo, path: ['lrv'] });
+    if (p.hi) ctx.addIssue({ code: 'custom', message: p.hi, path: ['urv'] });
+    if (p.span && v.lrv !== v.urv) ctx.addIssue({ code: 'custom', message: p.span, path: ['urv'] });
+  })
   .refine((v) => v.outputMode !== 'linear' || v.cutoffMode === 'none', {
     message: 'A linear output has no low-flow cutoff',
     path: ['cutoffMode'],

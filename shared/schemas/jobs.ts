@@ -1,16 +1,16 @@
 import { z } from 'zod';
+import { DueDateSchema } from './dates';
 
 /** Life of a job (our names). */
 export const JOB_STATUSES = ['open', 'in-progress', 'submitted', 'returned', 'approved'] as const;
 export const JobStatusSchema = z.enum(JOB_STATUSES);
 export type JobStatus = z.infer<typeof JobStatusSchema>;
 
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD');
 
 export const CreateJobBodySchema = z.object({
   instrumentId: z.string().uuid('Choose an instrument'),
   assigneeId: z.string().uuid().nullable().default(null),
-  dueOn: isoDate,
+  dueOn: DueDateSchema,
   notes: z.string().max(2000).default(''),
 });
 export type CreateJobBody = z.input<typeof CreateJobBodySchema>;

@@ -1,11 +1,12 @@
 import { z } from 'zod';
+import { DueDateSchema, PastDateSchema } from './dates';
+import { rangeProblems } from './numbers';
 
 export const STANDARD_KINDS = ['pressure', 'current'] as const;
 export const StandardKindSchema = z.enum(STANDARD_KINDS);
 export type StandardKind = z.infer<typeof StandardKindSchema>;
 
 const finite = (label: string) => z.number({ message: `${label} must be a number` }).finite(`${label} must be finite`);
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD');
 
 /**
  * Accuracy as the maker or the certificate states it: ± (pctReading % of reading
@@ -32,10 +33,16 @@ export const StandardInputSchema = z
     accuracy: AccuracySpecSchema,
     resolution: finite('Resolution').positive(),
     certificateNo: z.string().trim().min(1, 'Enter the certificate number').max(80),
-    calibratedOn: isoDate,
-    dueOn: isoDate,
+    calibratedOn: PastDateSchema,
+    dueOn: DueDateSchema,
   })
   .refine((v) => v.rangeMax > v.rangeMin, { message: 'Range maximum must exceed minimum', path: ['rangeMax'] })
+  .superRefine((v, ctx) => {
+    const p = rangeProblems(v.rangeMin, v.rangeMax, v.unit);
+    if (p.lo) ctx.addIssue({ code: 'custom', message: p.lo, path: ['rangeMin'] });
+    if (p.hi) ctx.addIssue({ code: 'custom', message: p.hi, path: ['rangeMax'] });
+    if (p.span && v.rangeMax > v.rangeMin) ctx.addIssue({ code: 'custom', message: p.span, path: ['rangeMax'] });
+  })
   .refine((v) => v.dueOn > v.calibratedOn, { message: 'Due date must follow the calibration date', path: ['dueOn'] });
 export type StandardInput = z.input<typeof StandardInputSchema>;
 

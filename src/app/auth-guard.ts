@@ -10,10 +10,20 @@ export function safeNext(next: string | null): string {
   return next && next.startsWith('/') && !next.startsWith('//') && !next.startsWith('/login') ? next : '/';
 }
 
-/** Loader step: the signed-in user, or a redirect to /login?next=… on 401. */
-export async function requireMe(queryClient: QueryClient, request: Request): Promise<Me> {
+/**
+ * Loader step: the signed-in user, or a redirect to /login?next=… on 401. A user who must choose a
+ * new password (after an invite or a reset) is sent to /password first; the server refuses their
+ * other requests until then anyway.
+ */
+export async function requireMe(queryClient: QueryClient, request: Request, opts: { allowPasswordChange?: boolean } = {}): Promise<Me> {
   try {
-    return await queryClient.ensureQueryData(meQueryOptions());
+    const me = await queryClient.ensureQueryData(meQueryOptions());
+    if (me.mustChangePassword && !opts.allowPasswordChange) {
+      const url = new URL(request.url);
+      const next = url.pathname + url.search;
+      throw redirect(next === '/' ? '/password' : `/password?next=${encodeURIComponent(next)}`);
+    }
+    return me;
   } catch (e) {
     if (isApiError(e) && e.status === 401) {
       const url = new URL(request.url);

@@ -7,6 +7,7 @@ import * as instruments from './routes/instruments';
 import * as login from './routes/login';
 import * as notFound from './routes/not-found';
 import * as outbox from './routes/outbox';
+import * as password from './routes/password';
 import * as queue from './routes/queue';
 import * as records from './routes/records';
 import { RouteErrorBoundary } from './routes/route-error';
@@ -22,6 +23,14 @@ export function createRoutes(queryClient: QueryClient): RouteObject[] {
       ErrorBoundary: login.ErrorBoundary,
       HydrateFallback: appLayout.HydrateFallback,
       loader: login.createLoader(queryClient),
+    },
+    {
+      // Outside the shell: a user who must choose a new password sees only this.
+      path: '/password',
+      Component: password.Component,
+      ErrorBoundary: password.ErrorBoundary,
+      HydrateFallback: appLayout.HydrateFallback,
+      loader: password.createLoader(queryClient),
     },
     {
       // The capture screen runs outside the shell: the whole screen for the bench.

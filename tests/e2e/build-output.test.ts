@@ -12,6 +12,11 @@ function walk(dir: string): string[] {
 describe('the production build is self-contained', () => {
   const files = walk(dist);
 
+  it('holds no source maps and points to none (they would publish the source; issue 14)', () => {
+    expect(files.filter((f) => f.endsWith('.map'))).toEqual([]);
+    for (const f of files.filter((x) => x.endsWith('.js'))) expect(fs.readFileSync(f, 'utf8'), path.basename(f)).not.toMatch(/sourceMappingURL=/);
+  });
+
   it('bundles Inter and JetBrains Mono', () => {
     const fonts = files.filter((f) => /\.(woff2?|ttf)$/.test(f)).map((f) => path.basename(f));
     expect(fonts.some((f) => /^inter-/i.test(f))).toBe(true);

@@ -53,13 +53,19 @@ export async function dataTables(srv: Pick<TestServer, 'database'>): Promise<str
 }
 
 /**
- * Row count per table. The audit trail is counted without failed sign-ins (those are the audit
- * of a refused request, which is the point). Tables in `exclude` are left out.
+ * Audit actions that record a refused credential check: the audit of a refused request, which is
+ * the point (failed sign-ins, wrong current passwords, the locks they lead to).
+ */
+const REFUSAL_AUDITS = ['auth.sign-in-failed', 'auth.password-change-failed', 'auth.account-locked', 'auth.reentry-locked'];
+
+/**
+ * Row count per table. The audit trail is counted without the audits of refused credential
+ * checks ({@link REFUSAL_AUDITS}). Tables in `exclude` are left out.
  */
 export async function rowCounts(srv: Pick<TestServer, 'database'>, tables: string[]): Promise<Record<string, number>> {
   const parts = tables.map((t) =>
     t === 'audit_events'
-      ? `select '${t}' as t, count(*)::int as n from "${t}" where action <> 'auth.sign-in-failed'`
+      ? `select '${t}' as t, count(*)::int as n from "${t}" where action not in (${REFUSAL_AUDITS.map((a) => `'${a}'`).join(', ')})`
       : `select '${t}' as t, count(*)::int as n from "${t}"`,
   );
   const rows = await query<{ t: string; n: number }>(srv, parts.join(' union all '));

@@ -4,7 +4,7 @@ import path from 'node:path';
 import pg from 'pg';
 import { boot, type BootOptions, type Running } from '../../server/boot';
 import { openDatabase } from '../../server/db/client';
-import { parseEnv, type Env } from '../../server/env';
+import { demoSeedPolicy, parseEnv, type Env } from '../../server/env';
 import { createLogger } from '../../server/logger';
 import { createServices } from '../../server/services';
 import { seedDemo } from '../../server/services/demo-seed.service';
@@ -97,7 +97,8 @@ export async function startTestServer(opts: { env?: Record<string, string>; boot
     ...(pgdb ? { DATABASE_URL: pgdb.url } : {}),
     ...opts.env,
   });
-  const template = !pgdb && env.SEED_DEMO === '1' ? await demoTemplate(env) : undefined;
+  const policy = demoSeedPolicy(env);
+  const template = !pgdb && (policy === 'seed' || policy === 'seed-exposed') ? await demoTemplate(env) : undefined;
   const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true, ...(template ? { template } : {}), ...opts.boot });
   return {
     ...running,

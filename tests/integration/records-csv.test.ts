@@ -47,7 +47,7 @@ describe('instrument CSV import', () => {
     expect(byRow[3]).toMatchObject({ ok: true, value: { service: 'Test header, north', notes: 'quoted, with comma' } });
     expect(byRow[4].errors.unit).toBeDefined();
     expect(byRow[5].errors.tag).toEqual(['Already registered']);
-    expect(byRow[6].errors).toMatchObject({ urv: ['LRV and URV must differ'], lastCalibratedOn: ['Use YYYY-MM-DD'] });
+    expect(byRow[6].errors).toMatchObject({ urv: ['LRV and URV must differ'], lastCalibratedOn: ['No such date'] });
     expect(byRow[6].errors.intervalDays).toBeDefined();
     expect(await total()).toBe(n0);
     expect(await auditCount('instrument.created')).toBe(0);

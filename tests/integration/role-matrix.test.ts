@@ -28,6 +28,7 @@ describe('role matrix: every route × every role, plus signed out', () => {
     expect(routes).toBe(1);
     const specs = (srv.server.listeners('request')[0] as unknown as { locals: { routes: RouteSpec[] } }).locals.routes;
     expect(specs.length).toBeGreaterThan(15);
+    expect(specs.map((s) => `${s.method} ${s.path}`)).toEqual(expect.arrayContaining(['post /api/auth/password', 'post /api/users/:id/reset-password', 'post /api/users/:id/unlock']));
   });
 
   it('refuses exactly what the policy table refuses', async () => {

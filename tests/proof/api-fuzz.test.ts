@@ -87,6 +87,16 @@ const NASTY = [
   'ffffffff-ffff-ffff-ffff-ffffffffffffx',
   '%00',
   '\r\nSet-Cookie: x=y',
+  // Dates that do not exist or lie beyond any plausible bound (issue 14).
+  '2026-02-31',
+  '2023-02-29',
+  '0000-01-01',
+  '9999-12-31',
+  '2026-13-01',
+  // Indices that are not plain decimal digits.
+  '0x1',
+  '1e0',
+  '+1',
 ];
 
 const loneSurrogate = fc.constantFrom('\uD800', '\uDBFF', '\uDC00', '\uDFFF');
@@ -104,7 +114,7 @@ const RAW = (token: string) => `__RAWNUM_${token}__`;
 const junkNumber = fc.oneof(
   fc.integer(),
   fc.double().map((d) => (Number.isFinite(d) ? d : RAW(d > 0 ? '1e309' : d < 0 ? '-1e309' : '1e309'))),
-  fc.constantFrom(-1, -0, 0, 1e308, -1e308, Number.MAX_SAFE_INTEGER + 2, 5e-324, 0.1),
+  fc.constantFrom(-1, -0, 0, 1e308, -1e308, 1.7e308, -1.7e308, Number.MAX_SAFE_INTEGER + 2, 5e-324, 1e-320, 0.1),
   fc.constantFrom(RAW('1e309'), RAW('-1e309'), RAW('1e-400'), RAW('123456789012345678901234567890'), RAW('-0.0e0')),
 );
 
@@ -113,9 +123,9 @@ const FIELD_NAMES = [
   'rangeMin', 'rangeMax', 'outputMode', 'cutoff', 'tolerancePct', 'intervalDays', 'instrumentId', 'assigneeId', 'standardIds',
   'permitNo', 'bypass', 'decision', 'meaning', 'comment', 'reason', 'csv', 'confirm', 'readings', 'points', 'instrument',
   'standards', 'transmitter', 'autopilot', 'setpoint', 'faults', 'source', 'dueOn', 'calibratedOn', 'accuracy', 'trim',
-  'benchId', 'dueDate', 'revision', 'type', 'lines', 'runId',
+  'benchId', 'dueDate', 'revision', 'type', 'lines', 'runId', 'lastCalibratedOn', 'current', 'next', 'index',
 ];
-const junkKey = fc.oneof(fc.constantFrom(...FIELD_NAMES), fc.constantFrom('__proto__', 'constructor', 'prototype', ''), fc.string({ maxLength: 12 }));
+const junkKey = fc.oneof(fc.constantFrom(...FIELD_NAMES), fc.constantFrom('__proto__', 'constructor', 'prototype', '', 'k\uD800', '\uDC00'), fc.string({ maxLength: 12 }));
 
 const { value: junkValue } = fc.letrec<{ value: unknown }>((tie) => ({
   value: fc.oneof(
@@ -170,7 +180,28 @@ const brokenBody: fc.Arbitrary<Body> = fc.oneof(
   fc.constant<Body>({ label: 'bad-gzip', contentType: 'application/json', extraHeaders: { 'content-encoding': 'gzip' }, bytes: Buffer.from('not gzip at all'), strict: 'always' }),
 );
 
+/**
+ * Bodies that are valid but for one field (issue 14): a date that does not exist or is out of
+ * bounds, a range that is huge, tiny or infinite, or text holding a lone surrogate. They reach the
+ * refinements that shape-only junk never does.
+ */
+const BAD_DATES = ['2026-02-31', '2023-02-29', '0000-01-01', '9999-12-31', '2999-01-01', '2026-13-01', '2026-00-10'];
+const BAD_RANGES: [unknown, unknown][] = [[-1.7e308, 1.7e308], [0, 1e308], [0, 5e-324], [5e-324, 1e-323], [0, RAW('1e309')], [-1e300, 0]];
+const STANDARD_BODY = { kind: 'pressure', description: 'Fuzz module', serial: 'FUZZ-1', rangeMin: 0, rangeMax: 100, unit: 'kPa', accuracy: { pctReading: 0.02 }, resolution: 0.001, certificateNo: 'F-1', calibratedOn: '2026-01-10', dueOn: '2027-01-10' };
+const INSTRUMENT_BODY = { tag: 'FZ-101', kind: 'dp-flow', lrv: 0, urv: 100, unit: 'kPa', outputMode: 'linear', tolerancePct: 0.5, intervalDays: 365 };
+const nearValid: fc.Arbitrary<unknown> = fc.oneof(
+  fc.tuple(fc.constantFrom(...BAD_DATES), fc.constantFrom('calibratedOn', 'dueOn')).map(([d, f]) => ({ ...STANDARD_BODY, [f]: d })),
+  fc.tuple(fc.constantFrom(...BAD_DATES), fc.uuid({ version: 4 })).map(([d, instrumentId]) => ({ instrumentId, dueOn: d })),
+  fc.constantFrom(...BAD_RANGES).map(([lrv, urv]) => ({ ...INSTRUMENT_BODY, lrv, urv })),
+  fc.constantFrom(...BAD_RANGES).map(([rangeMin, rangeMax]) => ({ ...STANDARD_BODY, rangeMin, rangeMax })),
+  // Each body is invalid for every route: the surrogate sits in a field its own schema reads.
+  loneSurrogate.map((u) => ({ ...STANDARD_BODY, description: `x${u}y` })),
+  loneSurrogate.map((u) => ({ ...INSTRUMENT_BODY, notes: `x${u}y` })),
+  loneSurrogate.map((u) => ({ permitNo: `PTW-${u}` })),
+);
+
 const objectBody: fc.Arbitrary<Body> = fc.oneof(
+  nearValid.map((v) => json('near-valid', toJson(v), false)),
   junkObject.map((v) => json('object', toJson(v), false)),
   wrongTypedObject.map((v) => json('wrong-types', toJson(v), false)),
   fc.constant(json('large-string', toJson({ csv: 'a,b\n'.repeat(220_000), name: 'x'.repeat(100_000) }), false)),

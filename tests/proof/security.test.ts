@@ -74,6 +74,9 @@ describe('role matrix', () => {
       }
     }
     console.log(`security: role matrix checked ${checked.length} route × role pairs`);
+    // The account routes of issue 14 are in the matrix (they are read from the app, so this guards their mounting).
+    const mounted = routesOf(srv).map((r) => `${r.method} ${r.path}`);
+    expect(mounted).toEqual(expect.arrayContaining(['post /api/auth/password', 'post /api/users/:id/reset-password', 'post /api/users/:id/unlock']));
     expect(checked.length).toBeGreaterThan(150);
   });
 });
@@ -231,11 +234,12 @@ describe('session cookie', () => {
     expect(Number(/Max-Age=(\d+)/i.exec(c)![1])).toBe(12 * 3600);
   });
 
-  it('is Secure when a loopback proxy says the request came over HTTPS (trust proxy: loopback)', async () => {
-    const res = await login({ 'x-forwarded-proto': 'https', origin: srv.url.replace('http:', 'https:') });
+  it('is not made Secure by an X-Forwarded-Proto header when no proxy is trusted (TRUST_PROXY unset)', async () => {
+    // tests/integration/safe-start.test.ts shows the header believed with TRUST_PROXY=loopback.
+    const res = await login({ 'x-forwarded-proto': 'https' });
     expect(res.status).toBe(200);
     const c = res.headers.getSetCookie().find((x) => x.startsWith('sp_session='))!;
-    expect(c).toMatch(/;\s*Secure/i);
+    expect(c).not.toMatch(/;\s*Secure/i);
     expect(c).toMatch(/;\s*HttpOnly/i);
   });
 
@@ -272,6 +276,19 @@ describe('cross-site requests', () => {
     expect(await rowCounts(srv, tracked)).toEqual(before);
   });
 
+  it('refuses a foreign Host header (DNS rebinding) before anything else, even with a matching Origin', async () => {
+    const before = await rowCounts(srv, tracked);
+    const r = await rawRequest(srv.url, {
+      method: 'POST',
+      path: '/api/users',
+      headers: { host: 'rebound.example', origin: 'http://rebound.example', 'content-type': 'application/json', cookie: clients.admin.cookie },
+      body: JSON.stringify(invite),
+    });
+    expect(r.status).toBe(421);
+    expectErrorBody(r, 'foreign Host');
+    expect(await rowCounts(srv, tracked)).toEqual(before);
+  });
+
   it('accepts the own Referer, and safe methods from anywhere', async () => {
     const r = await rawRequest(srv.url, { method: 'POST', path: '/api/calc/evaluate', headers: { 'content-type': 'application/json', cookie: clients.lead.cookie, referer: `${srv.url}/queue` }, body: '{}' });
     expect(r.status).toBe(400); // past the guard, stopped by validation
@@ -282,7 +299,8 @@ describe('cross-site requests', () => {
 });
 
 describe('sign-in rate limit', () => {
-  it('answers 429 after five failures for an address and email, even to the right password, and not for another email', async () => {
+  // The address limit, X-Forwarded-For rotation and lifting a lock: tests/integration/accounts.test.ts.
+  it('answers 429 after five failures for an account, even to the right password, and not for another account', async () => {
     const email = demoEmail('tech2');
     const codes: number[] = [];
     for (let i = 0; i < 6; i++) codes.push((await new ApiClient(srv.url).post('/api/auth/login', { email, password: `wrong-password-${i}` })).status);

@@ -1,4 +1,4 @@
-import { and, asc, eq, isNull, ne } from 'drizzle-orm';
+import { and, asc, eq, isNull, ne, sql } from 'drizzle-orm';
 import type { Db } from '../client';
 import { parseSiteSettings, type SiteSettings } from '../../../shared/schemas/settings';
 import { sessions, sites, users } from '../schema';
@@ -27,13 +27,36 @@ export function userRepository(db: Db) {
       const [row] = await db.insert(users).values(values).returning();
       return row!;
     },
-    async update(id: string, values: Partial<Pick<UserRow, 'role' | 'active' | 'name' | 'passwordHash'>>): Promise<UserRow | undefined> {
+    async update(
+      id: string,
+      values: Partial<
+        Pick<UserRow, 'role' | 'active' | 'name' | 'passwordHash' | 'mustChangePassword' | 'failedSignIns' | 'signInLockedUntil' | 'signatureFailures' | 'signingLockedUntil'>
+      >,
+    ): Promise<UserRow | undefined> {
       const [row] = await db
         .update(users)
         .set({ ...values, updatedAt: new Date() })
         .where(eq(users.id, id))
         .returning();
       return row;
+    },
+    /** Counts one more failed sign-in, atomically; returns the new count. */
+    async addSignInFailure(id: string): Promise<number> {
+      const [row] = await db
+        .update(users)
+        .set({ failedSignIns: sql`${users.failedSignIns} + 1` })
+        .where(eq(users.id, id))
+        .returning({ n: users.failedSignIns });
+      return row?.n ?? 0;
+    },
+    /** Counts one more wrong signature password, atomically; returns the new count. */
+    async addSignatureFailure(id: string): Promise<number> {
+      const [row] = await db
+        .update(users)
+        .set({ signatureFailures: sql`${users.signatureFailures} + 1` })
+        .where(eq(users.id, id))
+        .returning({ n: users.signatureFailures });
+      return row?.n ?? 0;
     },
   };
 }
@@ -43,23 +66,26 @@ export function sessionRepository(db: Db) {
     async create(values: { jti: string; userId: string; expiresAt: Date }): Promise<void> {
       await db.insert(sessions).values(values);
     },
-    async findActive(jti: string): Promise<typeof sessions.$inferSelect | undefined> {
+    /** The unrevoked session with this id, only if it belongs to this user. */
+    async findActive(jti: string, userId: string): Promise<typeof sessions.$inferSelect | undefined> {
       const [row] = await db
         .select()
         .from(sessions)
-        .where(and(eq(sessions.jti, jti), isNull(sessions.revokedAt)))
+        .where(and(eq(sessions.jti, jti), eq(sessions.userId, userId), isNull(sessions.revokedAt)))
         .limit(1);
       return row;
     },
     async revoke(jti: string): Promise<void> {
       await db.update(sessions).set({ revokedAt: new Date() }).where(eq(sessions.jti, jti));
     },
-    /** Revokes every open session of a user, but `except` (a jti) when given. */
-    async revokeAllFor(userId: string, except?: string): Promise<void> {
-      await db
+    /** Revokes every open session of a user (but `exceptJti`); returns the ids revoked. */
+    async revokeAllFor(userId: string, exceptJti?: string): Promise<string[]> {
+      const rows = await db
         .update(sessions)
         .set({ revokedAt: new Date() })
-        .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ...(except === undefined ? [] : [ne(sessions.jti, except)])));
+        .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ...(exceptJti ? [ne(sessions.jti, exceptJti)] : [])))
+        .returning({ jti: sessions.jti });
+      return rows.map((r) => r.jti);
     },
   };
 }

@@ -1,6 +1,7 @@
 import type { NextFunction, Request, Response } from 'express';
 import type { Logger } from 'pino';
 import { AppError } from '../../errors';
+import { isDiskFull } from '../../storage/file-store';
 import { toUploadError } from '../../storage/upload';
 
 /** Errors busboy (under multer) raises for a malformed multipart body; they carry no status of their own. */
@@ -18,6 +19,10 @@ export function errorHandler(logger: Logger) {
     if (err instanceof AppError) {
       status = err.status;
       body = { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) };
+    } else if (isDiskFull(err)) {
+      // RFC 4918 §11.5: 507 Insufficient Storage. The writers remove what they began, so nothing half-written stays.
+      status = 507;
+      body = { code: 'insufficient_storage', message: 'The server disk is full, so nothing was saved; tell your administrator' };
     } else if (e?.type === 'entity.parse.failed') {
       status = 400;
       body = { code: 'bad_request', message: 'The request body is not valid JSON' };
@@ -38,7 +43,8 @@ export function errorHandler(logger: Logger) {
       status = (e.status ?? e.statusCode)!;
       body = { code: 'bad_request', message: e.message ?? 'Bad request' };
     }
-    if (status >= 500) logger.error({ err, method: req.method, url: req.originalUrl }, 'request failed');
+    if (status === 507) logger.error({ err, method: req.method, url: req.originalUrl }, 'disk full');
+    else if (status >= 500) logger.error({ err, method: req.method, url: req.originalUrl }, 'request failed');
     if (res.headersSent) return;
     res.status(status).json({ error: body });
   };

@@ -17,25 +17,44 @@ export function fieldErrors(issues: readonly z.core.$ZodIssue[], prefix = ''): R
 }
 
 const NUL_MESSAGE = 'Text may not contain the NUL character (U+0000)';
+/** A high surrogate not followed by a low one, or a low one not preceded by a high one. */
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+const SURROGATE_MESSAGE = 'Text may not contain a lone UTF-16 surrogate (U+D800–U+DFFF unpaired)';
+
+/** The message for text the database cannot store, or undefined when it can. */
+function unstorable(s: string): string | undefined {
+  if (s.includes('\u0000')) return NUL_MESSAGE;
+  // A lone surrogate is not a Unicode scalar value, so it has no UTF-8 form: PostgreSQL refuses it
+  // in text and jsonb (PostgreSQL documentation, "Character Types" and "JSON Types").
+  if (LONE_SURROGATE.test(s)) return SURROGATE_MESSAGE;
+  return undefined;
+}
 
 /**
- * Field errors for every string in `v` that holds U+0000. PostgreSQL cannot store that character
- * in text (PostgreSQL documentation, "Character Types"), so such input would fail in the database
- * as a server error instead of a field error here.
+ * Field errors for every string in `v` (values and object keys) that PostgreSQL cannot store: text
+ * holding U+0000 (PostgreSQL documentation, "Character Types") or a lone UTF-16 surrogate. Such
+ * input would fail in the database as a server error instead of a field error here.
  */
-function nulFields(v: unknown, pathParts: string[], fields: Record<string, string[]>, depth = 0): void {
+function unstorableFields(v: unknown, pathParts: string[], fields: Record<string, string[]>, depth = 0): void {
+  const at = (parts: string[]) => parts.filter(Boolean).join('.') || '_';
   if (typeof v === 'string') {
-    if (v.includes('\u0000')) (fields[pathParts.filter(Boolean).join('.') || '_'] ??= []).push(NUL_MESSAGE);
+    const problem = unstorable(v);
+    if (problem) (fields[at(pathParts)] ??= []).push(problem);
     return;
   }
   if (depth > 32 || v === null || typeof v !== 'object') return;
-  if (Array.isArray(v)) v.forEach((x, i) => nulFields(x, [...pathParts, String(i)], fields, depth + 1));
-  else for (const [k, x] of Object.entries(v as Record<string, unknown>)) nulFields(x, [...pathParts, k], fields, depth + 1);
+  if (Array.isArray(v)) v.forEach((x, i) => unstorableFields(x, [...pathParts, String(i)], fields, depth + 1));
+  else
+    for (const [k, x] of Object.entries(v as Record<string, unknown>)) {
+      const keyProblem = unstorable(k);
+      if (keyProblem) (fields[at([...pathParts, k.replace(new RegExp(LONE_SURROGATE.source, 'g'), '\uFFFD')])] ??= []).push(keyProblem);
+      else unstorableFields(x, [...pathParts, k], fields, depth + 1);
+    }
 }
 
 /**
  * Parses body, query and params with zod; a failure is a 400 with field errors, as is text
- * holding U+0000. The parsed values are kept in `res.locals.input` and handlers read only those
+ * holding U+0000 or a lone surrogate. The parsed values are kept in `res.locals.input` and handlers read only those
  * (`input(res)`).
  */
 export function validate<S extends Schemas>(schemas: S) {
@@ -49,7 +68,7 @@ export function validate<S extends Schemas>(schemas: S) {
       const parsed = schema.safeParse(raw);
       if (parsed.success) {
         out[part] = parsed.data;
-        nulFields(parsed.data, [part === 'body' ? '' : part], fields);
+        unstorableFields(parsed.data, [part === 'body' ? '' : part], fields);
       } else fields = { ...fields, ...fieldErrors(parsed.error.issues, part === 'body' ? '' : part) };
     }
     if (Object.keys(fields).length) return next(badRequest('Some fields need attention', fields));

@@ -51,7 +51,7 @@ export function Component() {
         open={inviting}
         onClose={() => setInviting(false)}
         title="Invite a user"
-        description="They sign in with this email and the initial password you give them."
+        description="They sign in with this email and the initial password you give them, then choose their own."
       >
         <InviteUserForm
           onCancel={() => setInviting(false)}

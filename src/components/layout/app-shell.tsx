@@ -1,4 +1,5 @@
 import type { ReactNode } from 'react';
+import { Link } from 'react-router';
 import type { Me } from '../../../shared/schemas/auth';
 import { ROLE_LABELS } from '../../lib/authorization';
 import { Button } from '../ui/button';
@@ -41,6 +42,9 @@ export function AppShell({ me, onSignOut, signingOut = false, children }: AppShe
               </div>
             </div>
             <ThemeToggle />
+            <Link to="/password" className="hidden text-sm text-ink-muted underline-offset-2 hover:text-ink hover:underline sm:block" data-testid="change-password">
+              Password
+            </Link>
             <Button variant="secondary" size="sm" className="h-9" onClick={onSignOut} loading={signingOut} data-testid="sign-out">
               Sign out
             </Button>

@@ -5,8 +5,9 @@ import type { ReviewService } from '../../../services/review.service';
 import { currentUser } from '../../middleware/auth';
 import { input, validate } from '../../middleware/validate';
 import { routeTable } from '../../route-table';
+import { decimalIndex } from '../../../../shared/schemas/numbers';
 
-const RevisionParamSchema = z.object({ id: z.string().uuid('Not a valid id'), revision: z.coerce.number().int().min(1).max(10_000) });
+const RevisionParamSchema = z.object({ id: z.string().uuid('Not a valid id'), revision: decimalIndex('Revision', 1, 10_000) });
 
 /** Review, e-signature and revisions of a job record (DESIGN.md §3.7). */
 export function reviewRoutes(review: ReviewService) {

@@ -6,8 +6,9 @@ import { currentUser } from '../../middleware/auth';
 import { input, validate } from '../../middleware/validate';
 import { routeTable } from '../../route-table';
 import { streamPieces } from '../../stream';
+import { decimalIndex } from '../../../../shared/schemas/numbers';
 
-const PointParamsSchema = z.object({ id: z.string().uuid('Not a valid id'), index: z.coerce.number().int('Not a point index').min(0).max(1000) });
+const PointParamsSchema = z.object({ id: z.string().uuid('Not a valid id'), index: decimalIndex('Point index', 0, 1000) });
 
 /** Runs: start under a job, read, operate (manual capture, redo, pause, resume, abort), raw trace. */
 export function runRoutes(runs: RunService) {

@@ -64,7 +64,7 @@ describe('InviteUserForm', () => {
   });
 
   it('posts the body and reports the new user', async () => {
-    const created = { id: 'n1', email: 'dana@stillpoint-demo.test', name: 'Dana Field', role: 'lead', active: true, createdAt: '2025-01-01T00:00:00Z' };
+    const created = { id: 'n1', email: 'dana@stillpoint-demo.test', name: 'Dana Field', role: 'lead', active: true, createdAt: '2025-01-01T00:00:00Z', mustChangePassword: true, signInLockedUntil: null, signingLockedUntil: null };
     const f = fakeFetch({ 'POST /api/users': { status: 201, body: created } });
     vi.stubGlobal('fetch', f.fn);
     const onInvited = vi.fn();
