@@ -15,6 +15,7 @@ export const POLICY = {
   'jobs.review': ['lead'],
   'runs.read': 'signed-in',
   'calc.evaluate': 'signed-in',
+  'calc.intervals': 'signed-in',
   'bench.read': 'signed-in',
   'bench.configure': ['admin', 'lead'],
   'sim.control': ['admin'],
