@@ -16,6 +16,7 @@ export const POLICY = {
   'runs.read': 'signed-in',
   'calc.evaluate': 'signed-in',
   'calc.intervals': 'signed-in',
+  'calc.orifice': 'signed-in',
   'bench.read': 'signed-in',
   'bench.configure': ['admin', 'lead'],
   'sim.control': ['admin'],

@@ -25,6 +25,7 @@ import {
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
 import type { SiteSettings } from '../../shared/schemas/settings';
+import { orificeSpecOf, PrimaryElementSchema, type PrimaryElement } from '../../shared/schemas/instruments';
 import { EngineRefusal, type EngineEvent, type EngineRunSettings } from '../bench/capture-engine';
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
@@ -49,7 +50,19 @@ interface FrozenPlan {
   holdSeconds: number;
   windowPctOfSpan: number;
   decisionRule: DecisionRule;
-  instrument: { id: string; tag: string; lrv: number; urv: number; unit: string; outputMode: OutputMode; cutoffMode: 'none' | 'clamp' | 'linear'; cutoffValue: number; tolerancePct: number };
+  instrument: {
+    id: string;
+    tag: string;
+    lrv: number;
+    urv: number;
+    unit: string;
+    outputMode: OutputMode;
+    cutoffMode: 'none' | 'clamp' | 'linear';
+    cutoffValue: number;
+    tolerancePct: number;
+    /** Orifice primary element as registered at start (parsed with PrimaryElementSchema); absent on older runs. */
+    primaryElement?: PrimaryElement | null;
+  };
   standardIds: string[];
   points: PlanPoint[];
   warnings: string[];
@@ -213,6 +226,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         cutoffMode: p.instrument.cutoffMode,
         cutoffValue: p.instrument.cutoffValue,
         tolerancePctSpan: p.instrument.tolerancePct,
+        primaryElement: p.instrument.primaryElement ? (orificeSpecOf(p.instrument.primaryElement) ?? null) : null,
       },
       standards: { pressure, current: currentSpecOf(cs) },
       decisionRule: p.decisionRule,
@@ -359,6 +373,7 @@ export function createRunService(db: Db, audit: AuditService, jobsSource: JobDet
         cutoffMode: inst.cutoffMode,
         cutoffValue: inst.cutoffValue,
         tolerancePct: inst.tolerancePct,
+        primaryElement: PrimaryElementSchema.nullable().catch(null).parse(inst.primaryElement ?? null),
       };
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
       const coverage = { coverageProbability: site.coverageProbability, coverageFactor: site.coverageFactor, minimumTur: site.minimumTur };

@@ -1,6 +1,6 @@
 import { z } from 'zod';
-import { DECISION_RULES, PRESSURE_UNIT_IDS } from '../calc';
-import { CutoffModeSchema, OutputModeSchema } from './instruments';
+import { DECISION_RULES, FLOW_UNITS, PRESSURE_UNIT_IDS } from '../calc';
+import { CutoffModeSchema, OutputModeSchema, PrimaryElementSchema } from './instruments';
 
 export const PressureUnitSchema = z.enum(PRESSURE_UNIT_IDS, { message: 'Unknown pressure unit' });
 
@@ -88,3 +88,18 @@ export const IntervalsBodySchema = z
     confidence: num('Confidence').gt(0, 'Above 0').lt(1, 'Below 1').default(0.5),
   });
 export type IntervalsBody = z.infer<typeof IntervalsBodySchema>;
+
+/** Body of `POST /api/calc/orifice`: ISO 5167-2 flow for a given element and fluid at a DP. */
+export const OrificeBodySchema = z.object({
+  element: PrimaryElementSchema.refine((e) => e.boreDiameterMm < e.pipeDiameterMm, { message: 'The bore must be smaller than the pipe', path: ['boreDiameterMm'] }).refine(
+    (e) => e.fluid !== 'gas' || (e.kappa !== undefined && e.upstreamPressurePa !== undefined),
+    { message: 'A gas needs κ and the upstream pressure', path: ['kappa'] },
+  ),
+  /** Differential pressure, in `unit`. */
+  dp: num('DP').positive('DP must be above 0'),
+  unit: PressureUnitSchema,
+  /** DP at 100 % flow, in `unit`: when given, the departure of the constant-C root is returned. */
+  dpMax: num('DP at 100 % flow').positive().optional(),
+  flowUnit: z.enum(FLOW_UNITS).optional(),
+});
+export type OrificeBody = z.infer<typeof OrificeBodySchema>;

@@ -7,7 +7,7 @@ beforeAll(async () => {
   srv = await startTestServer();
   c = new ApiClient(srv.url);
   await c.login(demoEmail('tech'));
-});
+}, 300_000);
 afterAll(async () => {
   await srv?.close();
 });
@@ -56,5 +56,20 @@ describe('POST /api/calc/intervals', () => {
     expect(Object.keys(bad.body.error.fields ?? {}).length).toBeGreaterThan(0);
     const anon = new ApiClient(srv.url);
     expect((await anon.post('/api/calc/intervals', { history: [], currentIntervalDays: 1 })).status).toBe(401);
+  });
+});
+
+describe('POST /api/calc/orifice', () => {
+  it('ISO 5167-2 flow in the requested unit with C and ε, and the constant-C departure at low flow', async () => {
+    const element = { kind: 'orifice', pipeDiameterMm: 100, boreDiameterMm: 50, taps: 'corner', fluid: 'liquid', densityKgM3: 998.2, viscosityPaS: 0.001 };
+    const r = await c.post('/api/calc/orifice', { element, dp: 0.25, unit: 'kPa', dpMax: 25, flowUnit: 'm3/h' });
+    expect(r.status).toBe(200);
+    expect(r.body.flowUnit).toBe('m3/h');
+    expect(r.body.epsilon).toBe(1);
+    expect(r.body.C).toBeGreaterThan(0.59);
+    expect(r.body.pureRootDeparturePct).toBeLessThan(0);
+    const bad = await c.post('/api/calc/orifice', { element: { ...element, boreDiameterMm: 120 }, dp: -1, unit: 'kPa' });
+    expect(bad.status).toBe(400);
+    expect(Object.keys(bad.body.error.fields ?? {}).length).toBeGreaterThan(0);
   });
 });
