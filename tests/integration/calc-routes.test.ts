@@ -52,7 +52,7 @@ describe('POST /api/calc/intervals', () => {
   it('refuses a bad body with field errors and an anonymous caller', async () => {
     const bad = await c.post('/api/calc/intervals', { history: [{ intervalDays: -1, inTolerance: 5, total: 3 }], currentIntervalDays: 365, reliabilityTarget: 1.5 });
     expect(bad.status).toBe(400);
-    expect(bad.body.error.code).toBe('bad_request');
+    expect(bad.body.error.code).toBe('validation_failed');
     expect(Object.keys(bad.body.error.fields ?? {}).length).toBeGreaterThan(0);
     const anon = new ApiClient(srv.url);
     expect((await anon.post('/api/calc/intervals', { history: [], currentIntervalDays: 1 })).status).toBe(401);
