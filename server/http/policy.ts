@@ -15,6 +15,8 @@ export const POLICY = {
   'jobs.review': ['lead'],
   'runs.read': 'signed-in',
   'calc.evaluate': 'signed-in',
+  'calc.intervals': 'signed-in',
+  'calc.orifice': 'signed-in',
   'bench.read': 'signed-in',
   'bench.configure': ['admin', 'lead'],
   /** Acknowledge quarantined samples and damaged journal batches after review (health stops failing on them). */

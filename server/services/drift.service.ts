@@ -1,9 +1,9 @@
 import type { Db } from '../db/client';
 import { instrumentRepository } from '../db/repositories/register.repository';
-import { userRepository } from '../db/repositories/user.repository';
+import { siteRepository, userRepository } from '../db/repositories/user.repository';
 import { reviewRepository, type RunRow } from '../db/repositories/review.repository';
 import { badRequest, notFound } from '../errors';
-import { driftPerInterval, intervalTestA3, predictErrorAtDue, staircaseInterval, type CalibrationEvent } from '../../shared/calc';
+import { driftPerInterval, predictErrorAtDue, recommendIntervals, staircaseInterval, type CalibrationEvent } from '../../shared/calc';
 import type { Instrument } from '../../shared/schemas/instruments';
 import type { DriftPoint, DriftReport, IntervalRecommendation, NeedsJob, Queue } from '../../shared/schemas/records';
 import type { Actor, AuditService } from './audit.service';
@@ -14,12 +14,13 @@ import { toInstrument } from './register.service';
 
 /**
  * Interval-method parameters. Product defaults, not values fixed by the methods themselves:
- * ILAC-G24 / OIML D 10:2022 leave the staircase factors to the laboratory, and NCSLI RP-1 leaves
- * the reliability target and confidence to the programme (0.95 and 0.5 as in REFERENCE.md's A3 check).
+ * ILAC-G24 / OIML D 10:2022 leave the staircase factors to the laboratory; the reliability target
+ * and confidence are site settings (defaults 0.95 and 0.5, per output mode where the site sets
+ * them); the reliability-model recommendation moves the interval at most by `maxChangeFactor`.
  */
 export const INTERVAL_PARAMS = {
   staircase: { extendAtOrBelow: 0.5, extendFactor: 1.25, shortenFactor: 0.5, minDays: 30, maxDays: 1095 },
-  a3: { targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2, adjustment: 'limit-midpoint' },
+  reliability: { targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2 },
 } as const;
 
 interface PointResult {
@@ -39,6 +40,7 @@ const keyOf = (p: PointResult) => `${p.nominalPct}${p.basis === 'flow' ? 'F' : '
 export function createDriftService(db: Db, audit: AuditService, jobs: JobService) {
   const repo = reviewRepository(db);
   const instruments = instrumentRepository(db);
+  const sites = siteRepository(db);
 
   async function instrumentOf(id: string): Promise<Instrument> {
     const row = await instruments.get(id);
@@ -82,7 +84,7 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
     /**
      * As-found history per point over approved calibrations, drift per interval (as-found(k) −
      * as-left(k−1)), the predicted error at the next due date, and interval recommendations by the
-     * staircase method and NCSLI RP-1 Method A3. Errors in % of span (of flow span for rooted outputs).
+     * staircase method and by the exponential reliability model beside the interval test. Errors in % of span (of flow span for rooted outputs).
      */
     async report(instrumentId: string, today = isoDate(new Date())): Promise<DriftReport> {
       const instrument = await instrumentOf(instrumentId);
@@ -149,20 +151,29 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
         });
       }
       if (calibrations > 0) {
-        const a = intervalTestA3({ intervalDays: instrument.intervalDays, inTolerance, total: calibrations, ...INTERVAL_PARAMS.a3 });
-        const days = Math.round(a.recommendedDays);
+        const site = await sites.settings();
+        const kind = site.intervalTargetsByKind?.[instrument.outputMode];
+        const target = kind?.reliabilityTarget ?? site.intervalReliabilityTarget ?? INTERVAL_PARAMS.reliability.targetReliability;
+        const confidence = kind?.confidence ?? site.intervalConfidence ?? INTERVAL_PARAMS.reliability.confidence;
+        const I = instrument.intervalDays;
+        const a = recommendIntervals([{ intervalDays: I, inTolerance, total: calibrations }], I, target, confidence);
+        const f = INTERVAL_PARAMS.reliability.maxChangeFactor;
+        const { minDays, maxDays } = INTERVAL_PARAMS.staircase;
+        const est = a.exponential.estimateDays ?? Infinity;
+        const days = Math.round(Math.min(maxDays, Math.max(minDays, Math.min(I * f, Math.max(I / f, est)))));
+        const fmt = (v: number | null) => (v === null ? 'unbounded' : `${Math.round(v)} d`);
         recommendations.push({
-          method: 'a3',
-          action: days > instrument.intervalDays ? 'extend' : days < instrument.intervalDays ? 'shorten' : 'keep',
+          method: 'reliability',
+          action: days > I ? 'extend' : days < I ? 'shorten' : 'keep',
           recommendedDays: days,
-          basis: `${inTolerance} of ${calibrations} as-found in tolerance (observed reliability ${(a.observedReliability * 100).toFixed(0)} %, limits ${(a.lower * 100).toFixed(0)}–${(a.upper * 100).toFixed(0)} % at confidence ${INTERVAL_PARAMS.a3.confidence}); target ${INTERVAL_PARAMS.a3.targetReliability * 100} % ${a.passes ? 'lies inside: keep' : 'lies outside: moved halfway toward the interval the nearest limit implies (exponential model)'} (NCSLI RP-1 Method A3; the adjustment rule is our reconstruction from the 2019 NCSL International tutorial case).`,
+          basis: `${inTolerance} of ${calibrations} as-found in tolerance. Interval test (Clopper–Pearson limits ${(a.test.lower * 100).toFixed(0)}–${(a.test.upper * 100).toFixed(0)} % at confidence ${confidence}, target ${(target * 100).toFixed(0)} %): ${a.test.verdict}. Exponential reliability model R(t) = exp(−λt), λ by maximum likelihood: ${fmt(a.exponential.estimateDays)} for the target, ${fmt(a.exponential.rangeDays[0])} to ${fmt(a.exponential.rangeDays[1])} between the confidence limits of λ; recommended within ×${f} of the current interval.`,
         });
       }
       return { instrument, unit: '% of span', tolerancePct: tol, calibrations, inTolerance, points, worstPredicted, recommendations };
     },
 
     /** A lead accepts a recommended interval; the tag's interval changes and the change is audited with its basis. */
-    async acceptInterval(actor: Actor, instrumentId: string, body: { intervalDays: number; method: 'staircase' | 'a3' }): Promise<Instrument> {
+    async acceptInterval(actor: Actor, instrumentId: string, body: { intervalDays: number; method: 'staircase' | 'reliability' }): Promise<Instrument> {
       const report = await service.report(instrumentId);
       const rec = report.recommendations.find((r) => r.method === body.method);
       if (!rec) throw badRequest('There is no recommendation by that method for this tag yet', { method: ['No recommendation'] });

@@ -32,6 +32,7 @@ import type { RunEvent } from '../../shared/schemas/stream';
 import { CaptureEngines, EngineRefusal, type EngineRunSettings } from '../bench/capture-engine';
 import type { BenchHub } from '../bench/hub';
 import type { SimRunContext } from '../bench/sim-control';
+import { orificeSpecOf, PrimaryElementSchema, type PrimaryElement } from '../../shared/schemas/instruments';
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
 import { runRepository, type RunRepository, type RunRow } from '../db/repositories/run.repository';
@@ -55,7 +56,19 @@ interface FrozenPlan {
   holdSeconds: number;
   windowPctOfSpan: number;
   decisionRule: DecisionRule;
-  instrument: { id: string; tag: string; lrv: number; urv: number; unit: string; outputMode: OutputMode; cutoffMode: 'none' | 'clamp' | 'linear'; cutoffValue: number; tolerancePct: number };
+  instrument: {
+    id: string;
+    tag: string;
+    lrv: number;
+    urv: number;
+    unit: string;
+    outputMode: OutputMode;
+    cutoffMode: 'none' | 'clamp' | 'linear';
+    cutoffValue: number;
+    tolerancePct: number;
+    /** Orifice primary element as registered at start (parsed with PrimaryElementSchema); absent on older runs. */
+    primaryElement?: PrimaryElement | null;
+  };
   standardIds: string[];
   points: PlanPoint[];
   warnings: string[];
@@ -270,6 +283,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         cutoffMode: p.instrument.cutoffMode,
         cutoffValue: p.instrument.cutoffValue,
         tolerancePctSpan: p.instrument.tolerancePct,
+        primaryElement: p.instrument.primaryElement ? (orificeSpecOf(p.instrument.primaryElement) ?? null) : null,
       },
       standards: { pressure, current: currentSpecOf(cs) },
       decisionRule: p.decisionRule,
@@ -442,6 +456,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         cutoffMode: inst.cutoffMode,
         cutoffValue: inst.cutoffValue,
         tolerancePct: inst.tolerancePct,
+        primaryElement: PrimaryElementSchema.nullable().catch(null).parse(inst.primaryElement ?? null),
       };
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
       const performer = { id: actor.id, email: actor.email };

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { DECISION_RULES } from './decision';
 import { evaluateCalibration, type EvaluateInput } from './evaluate';
+import { pointFlow } from './orifice';
 import { studentTQuantile } from './student-t';
 
 const base: EvaluateInput = {
@@ -141,6 +142,20 @@ describe('evaluateCalibration', () => {
         },
       ),
     );
+  });
+
+  it('orifice primary element: each point carries the ISO 5167-2 flow in the site unit; a linear output none', () => {
+    const pe = { spec: { D: 0.1, d: 0.05, taps: 'corner' as const, rho: 998.2, mu: 0.001 }, flowUnit: 'm3/h' as const };
+    const r = evaluateCalibration({ ...base, instrument: { ...base.instrument, primaryElement: pe } });
+    if (!r.ok) throw new Error(r.reason);
+    const p100 = r.value.points[2]!;
+    // 100 kPa at URV = 100 000 Pa.
+    expect(p100.flow!.flow).toBeCloseTo(pointFlow(pe.spec, 100_000, 100_000, 'm3/h')!.flow, 9);
+    expect(p100.flow!.unit).toBe('m3/h');
+    expect(r.value.points[0]!.flow!.pureRootDeparturePct!).toBeLessThan(0);
+    const lin = evaluateCalibration({ ...base, instrument: { ...base.instrument, outputMode: 'linear', primaryElement: pe } });
+    if (!lin.ok) throw new Error(lin.reason);
+    expect(lin.value.points[0]!.flow).toBeNull();
   });
 
   it('rejects input it cannot compute from', () => {

@@ -7,6 +7,8 @@
 import { applyDecisionRule, conformanceProbability, testUncertaintyRatio, worstDecision, type Decision, type DecisionRule, type UndecidedReason } from './decision';
 import type { Direction, NominalBasis } from './plan';
 import { hysteresis, nonLinearity, pointResult, worstError, type HysteresisResult, type NonLinearity } from './results';
+import { pointFlow, type FlowUnit, type OrificeSpec, type PointFlow } from './orifice';
+import { convertPressure } from './units';
 import { classifyNe43, isRootedOutput, type Cutoff, type Ne43Class, type OutputMode, type TransferSpec } from './transfer';
 import { DEFAULT_COVERAGE_PROBABILITY, type CoveragePolicy } from './student-t';
 import { pointBudget, type CurrentMeterSpec, type PressureReferenceSpec, type TypeAInput } from './uncertainty';
@@ -24,6 +26,11 @@ export interface EvaluateInstrument {
   cutoffValue?: number;
   /** Tolerance, ± % of output span (of flow span for a rooted output). */
   tolerancePctSpan: number;
+  /**
+   * Orifice primary element (ISO 5167-2) and the unit to show flow in; when given, each point
+   * carries the flow at its applied DP in that unit, with C and ε used.
+   */
+  primaryElement?: { spec: OrificeSpec; flowUnit: FlowUnit } | null;
 }
 
 /** One reading per point (means over the hold). */
@@ -102,6 +109,8 @@ export interface EvaluatePoint {
   /** JCGM 106 conformance probability, 0–1; null without an uncertainty. */
   conformanceProbability: number | null;
   ne43: Ne43Class;
+  /** Flow in engineering units at the applied DP (orifice primary element), or null. */
+  flow: PointFlow | null;
 }
 
 /** Basis of an error in % of output span. */
@@ -158,6 +167,15 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
   for (const [i, r] of captured.entries()) {
     if (![r.nominalPct, r.appliedDp, r.measuredMa].every(Number.isFinite)) return { ok: false, reason: `reading ${i}: non-numeric value` };
   }
+  const pe = ins.primaryElement;
+  // DP is converted from the instrument unit to Pa for ISO 5167-2; the URV is the DP at 100 % flow.
+  const flowAt = (dp: number): PointFlow | null => {
+    if (!pe || ins.outputMode === 'linear') return null;
+    const dpPa = convertPressure(dp - ins.lrv, ins.unit, 'Pa');
+    const maxPa = convertPressure(ins.urv - ins.lrv, ins.unit, 'Pa');
+    if (!(dpPa > 0) || !(maxPa > 0)) return null;
+    return pointFlow(pe.spec, dpPa, maxPa, pe.flowUnit) ?? null;
+  };
   const points: EvaluatePoint[] = captured.map((r, index) => {
     const res = pointResult(spec, r);
     const budget = pointBudget(spec, r, input.standards.pressure, input.standards.current, coverage);
@@ -203,6 +221,7 @@ export function evaluateCalibration(input: EvaluateInput): EvaluateResult {
       acceptanceLimitPctSpan: dec.acceptanceUpper,
       conformanceProbability: u === undefined ? null : conformanceProbability(res.errorPctSpan, -T, T, u),
       ne43: ne43.class,
+      flow: flowAt(r.appliedDp),
     };
   });
   const errors = points.map((p) => p.errorPctSpan);

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { binomialLimits, driftPerInterval, intervalTestA3, predictErrorAtDue, staircaseInterval } from './intervals';
+import fc from 'fast-check';
+import { binomialLimits, driftPerInterval, intervalTest, exponentialInterval, recommendIntervals, type ExponentialIntervalResult, predictErrorAtDue, staircaseInterval } from './intervals';
 
 const DAY = 86_400_000;
 
@@ -28,37 +29,70 @@ describe('NCSLI RP-1 (2010) Method A3 interval test', () => {
     expect(l.lower).toBeCloseTo(0.509, 3);
     expect(l.upper).toBeCloseTo(0.9134, 3);
   });
-  it('tutorial case: 15 of 20 in tolerance at 365 days, R* = 0.95, confidence 0.5 → about 231 days', () => {
-    // Source: 2019 NCSL International symposium interval tutorial (case as given in our REFERENCE.md).
-    const r = intervalTestA3({ intervalDays: 365, inTolerance: 15, total: 20, targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 10 });
+  it('interval test: keep, lengthen or shorten by the Clopper–Pearson limits', () => {
+    // 15 of 20 at 50 % confidence: upper limit 0.8286 (Clopper–Pearson, Biometrika 26 (1934) 404–413); R* 0.95 above it → shorten.
+    const r = intervalTest({ inTolerance: 15, total: 20, targetReliability: 0.95, confidence: 0.5 });
     expect(r.observedReliability).toBe(0.75);
-    expect(r.passes).toBe(false); // 0.95 lies above the 50 % upper limit (0.829)
     expect(r.upper).toBeCloseTo(0.8286, 3);
-    // Default rule ('limit-midpoint', our reconstruction): halfway from 365 d to 365·ln 0.95/ln 0.8286 = 99.6 d.
-    expect(r.recommendedDays).toBeCloseTo((365 + (365 * Math.log(0.95)) / Math.log(r.upper)) / 2, 9);
-    expect(Math.abs(r.recommendedDays - 231)).toBeLessThan(2.5); // "about 231 days"
-    // The harsher reading, all the way from x/n: 65.1 days.
-    const obs = intervalTestA3({ intervalDays: 365, inTolerance: 15, total: 20, targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 10, adjustment: 'observed' });
-    expect(obs.recommendedDays).toBeCloseTo((365 * Math.log(0.95)) / Math.log(0.75), 9);
+    expect(r.verdict).toBe('shorten');
+    // 0 of 5: upper limit 1 − 0.25^(1/5) (closed form of the Clopper–Pearson limit at x = 0).
+    expect(intervalTest({ inTolerance: 0, total: 5, targetReliability: 0.9, confidence: 0.5 }).upper).toBeCloseTo(1 - 0.25 ** (1 / 5), 9);
+    // 20 of 20: lower limit 0.25^(1/20) = 0.9330 above R* = 0.8 → lengthen.
+    const l = intervalTest({ inTolerance: 20, total: 20, targetReliability: 0.8, confidence: 0.5 });
+    expect(l.lower).toBeCloseTo(0.25 ** (1 / 20), 9);
+    expect(l.verdict).toBe('lengthen');
+    expect(intervalTest({ inTolerance: 19, total: 20, targetReliability: 0.95, confidence: 0.5 }).verdict).toBe('keep');
   });
-  it('extends toward the lower limit when the interval is too reliable, and bounds the change', () => {
-    // 20 of 20 at R* = 0.8: the lower 50 % limit lies above 0.8, so the interval grows.
-    const r = intervalTestA3({ intervalDays: 100, inTolerance: 20, total: 20, targetReliability: 0.8, confidence: 0.5, maxChangeFactor: 10 });
-    expect(r.passes).toBe(false);
-    expect(r.lower).toBeGreaterThan(0.8);
-    expect(r.recommendedDays).toBeCloseTo((100 + (100 * Math.log(0.8)) / Math.log(r.lower)) / 2, 9);
-    expect(r.recommendedDays).toBeGreaterThan(100);
-    const capped = intervalTestA3({ intervalDays: 100, inTolerance: 20, total: 20, targetReliability: 0.8, confidence: 0.5, maxChangeFactor: 1.2 });
-    expect(capped.recommendedDays).toBe(120);
-    const none = intervalTestA3({ intervalDays: 100, inTolerance: 0, total: 5, targetReliability: 0.9, confidence: 0.5, maxChangeFactor: 2 });
-    // 0 of 5: the nearest (upper) limit is 1 − 0.25^(1/5) = 0.2421; halfway to 100·ln 0.9/ln 0.2421 = 7.4 d.
-    expect(none.upper).toBeCloseTo(1 - 0.25 ** (1 / 5), 9);
-    expect(none.recommendedDays).toBeCloseTo((100 + (100 * Math.log(0.9)) / Math.log(none.upper)) / 2, 9);
+  it('exponential model: λ̂ = −ln(x/n)/I for one interval length, t = −ln R*/λ, range from both limits', () => {
+    // 15 of 20 at 365 d: λ̂ = −ln 0.75/365; t(R* = 0.95) = 365·ln 0.95/ln 0.75 = 65.06 d (derivable by hand).
+    const e = exponentialInterval([{ intervalDays: 365, inTolerance: 15, total: 20 }], 0.95, 0.5);
+    expect(e.lambdaPerDay).toBeCloseTo(-Math.log(0.75) / 365, 9);
+    expect(e.estimateDays).toBeCloseTo((365 * Math.log(0.95)) / Math.log(0.75), 4);
+    expect(e.rangeDays[0]).toBeLessThan(e.estimateDays!);
+    expect(e.rangeDays[1]!).toBeGreaterThan(e.estimateDays!);
+    // Likelihood-ratio limits: 2(ℓ(λ̂) − ℓ(λ)) = z² at both ends (z = 0.6745 at 50 %).
+    // No failures: λ̂ = 0, the interval is unbounded above; the lower end stays finite.
+    const none = exponentialInterval([{ intervalDays: 365, inTolerance: 20, total: 20 }], 0.95, 0.5);
+    expect(none.lambdaPerDay).toBe(0);
+    expect(none.estimateDays).toBeNull();
+    expect(none.rangeDays[1]).toBeNull();
+    expect(none.rangeDays[0]).toBeGreaterThan(0);
   });
-  it('passes when the target is inside the limits', () => {
-    const r = intervalTestA3({ intervalDays: 365, inTolerance: 19, total: 20, targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2 });
-    expect(r.passes).toBe(true);
-    expect(r.recommendedDays).toBe(365);
+  it('the 2019 tutorial figure is kept as an external value, NOT reproduced', () => {
+    // External value, not reproduced: a 2019 NCSL International tutorial gives about 231 days for
+    // 15 of 20 in tolerance at 365 days, R* = 0.95, confidence 0.5 (REFERENCE.md). RP-1's rule for
+    // the new interval is not available to us; a rule chosen because it reproduces this one number
+    // would be no evidence (equally plausible rules give 65 to 286 days), so no method here is
+    // tuned to it. What we compute for that case, by methods fully specified above:
+    const TUTORIAL_DAYS_NOT_REPRODUCED = 231;
+    const a = recommendIntervals([{ intervalDays: 365, inTolerance: 15, total: 20 }], 365, 0.95, 0.5);
+    expect(a.test.verdict).toBe('shorten');
+    expect(a.exponential.estimateDays).toBeCloseTo(65.06, 1);
+    expect(a.exponential.estimateDays).not.toBeCloseTo(TUTORIAL_DAYS_NOT_REPRODUCED, 0);
+  });
+  it('property: the recommendation is monotone in the in-tolerance count', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 40 }),
+        fc.integer({ min: 30, max: 1000 }),
+        fc.double({ min: 0.5, max: 0.99, noNaN: true }),
+        fc.double({ min: 0.2, max: 0.95, noNaN: true }),
+        (n, days, target, conf) => {
+          let prev: ExponentialIntervalResult | undefined;
+          for (let x = 0; x <= n; x++) {
+            const e = exponentialInterval([{ intervalDays: days, inTolerance: x, total: n }], target, conf);
+            if (prev) {
+              const inf = (v: number | null) => v ?? Infinity;
+              expect(inf(e.estimateDays)).toBeGreaterThanOrEqual(inf(prev.estimateDays) * (1 - 1e-9));
+              expect(e.rangeDays[0]).toBeGreaterThanOrEqual(prev.rangeDays[0] * (1 - 1e-6));
+              expect(inf(e.rangeDays[1])).toBeGreaterThanOrEqual(inf(prev.rangeDays[1]) * (1 - 1e-6));
+            }
+            prev = e;
+          }
+        },
+      ),
+      { numRuns: 40 },
+    );
   });
 });
 

@@ -1,8 +1,11 @@
 /**
  * Drift and calibration-interval methods: drift per interval (as-found(k) − as-left(k−1)),
- * linear-trend prediction, NCSLI RP-1 (2010) Method A3 interval test, and the ILAC-G24 /
- * OIML D 10:2022 staircase method. All parameters are explicit. Times in ms (passed in).
+ * linear-trend prediction, the interval test (Clopper–Pearson limits, as REFERENCE.md describes
+ * NCSLI RP-1 A3's test), the exponential reliability model with a maximum-likelihood estimate and
+ * likelihood-ratio limits, and the ILAC-G24 / OIML D 10:2022 staircase method. All parameters are
+ * explicit. Times in ms (passed in).
  */
+import { studentTQuantile } from './student-t';
 
 /** One calibration event of a tag at one point (errors in % of span; trend rooted outputs in DP terms). */
 export interface CalibrationEvent {
@@ -92,76 +95,158 @@ export function binomialLimits(x: number, n: number, confidence: number): { lowe
   return { lower, upper };
 }
 
-/** Input of the A3 interval test. */
+/** Input of the interval test. */
 export interface IntervalTestInput {
-  /** Current interval, days. */
-  intervalDays: number;
-  /** Calibrations found in tolerance at (about) this interval. */
+  /** Calibrations found in tolerance at (about) the current interval. */
   inTolerance: number;
-  /** Calibrations at this interval. */
+  /** Calibrations at that interval. */
   total: number;
-  /** End-of-period reliability target, 0–1 (e.g. 0.95). */
+  /** End-of-period reliability target R*, 0–1 (e.g. 0.95). */
   targetReliability: number;
-  /** Two-sided confidence of the test, 0–1 (e.g. 0.5). */
+  /** Two-sided confidence of the binomial limits, 0–1 (e.g. 0.5). */
   confidence: number;
-  /** Largest allowed change factor of the interval (e.g. 2: at most double or halve). */
-  maxChangeFactor: number;
-  /**
-   * How a failed interval is moved (see {@link intervalTestA3}). Default `'limit-midpoint'`.
-   * - `'limit-midpoint'`: extrapolate from the confidence limit nearest the target, then move
-   *   halfway from the current interval to that value;
-   * - `'observed'`: extrapolate from the observed reliability x/n all the way.
-   */
-  adjustment?: 'limit-midpoint' | 'observed';
 }
 
-/** Result of the A3 interval test. */
+/** Result of the interval test. */
 export interface IntervalTestResult {
   observedReliability: number;
   lower: number;
   upper: number;
-  /** True when the target lies inside the confidence limits: keep the interval. */
-  passes: boolean;
-  /** Recommended interval, days (the current one when the test passes). */
-  recommendedDays: number;
+  /**
+   * keep: R* lies inside the limits; lengthen: R* lies below the lower limit (more reliable than
+   * needed); shorten: R* lies above the upper limit.
+   */
+  verdict: 'keep' | 'lengthen' | 'shorten';
 }
 
 /**
- * NCSLI RP-1 (2010) Method A3, the interval test: two-sided binomial (Clopper–Pearson) confidence
- * limits of the observed reliability x/n at the given confidence; if the target R* lies inside
- * them the interval passes and is kept. If not, the interval is moved with the exponential
- * reliability model R(t) = exp(−λt), under which the interval that gives R* from an interval I
- * that gave R is I·ln(R*) / ln(R) (the model usual for these methods; from memory, not quoted).
- *
- * Which R, and how far to move, is the `adjustment` setting. The default, `'limit-midpoint'`,
- * takes R at the confidence limit nearest R* (the least change the data force) and moves halfway
- * from I toward that interval. It is our reconstruction: it reproduces the published tutorial
- * case (2019 NCSL International symposium interval tutorial: 15 of 20 in tolerance at 365 days,
- * R* = 0.95, confidence 0.5 → about 231 days; this gives 232) but RP-1's own text was not
- * available to us, so the rule is not quoted from it. `'observed'` extrapolates from x/n all the
- * way (65 days in that case), the harsher reading. Either is bounded by `maxChangeFactor`; an
- * observed reliability of 0 or 1 uses the nearest limit in both modes.
+ * The interval test, as REFERENCE.md describes NCSLI RP-1 (2010) A3's test: is the target R*
+ * inside the two-sided binomial (Clopper & Pearson, Biometrika 26 (1934) 404–413) confidence
+ * limits of the observed in-tolerance fraction? It says whether to keep, lengthen or shorten; it
+ * does not say by how much (RP-1's rule for the new interval is not implemented: its text was not
+ * available to us).
  */
-export function intervalTestA3(i: IntervalTestInput): IntervalTestResult {
+export function intervalTest(i: IntervalTestInput): IntervalTestResult {
   if (!(i.total > 0 && i.inTolerance >= 0 && i.inTolerance <= i.total)) throw new RangeError('need 0 ≤ inTolerance ≤ total, total > 0');
   if (!(i.targetReliability > 0 && i.targetReliability < 1)) throw new RangeError('target reliability must be in (0, 1)');
-  if (!(i.maxChangeFactor >= 1)) throw new RangeError('maxChangeFactor must be ≥ 1');
-  const r = i.inTolerance / i.total;
   const { lower, upper } = binomialLimits(i.inTolerance, i.total, i.confidence);
-  const passes = i.targetReliability >= lower && i.targetReliability <= upper;
-  let rec = i.intervalDays;
-  if (!passes) {
-    const nearest = i.targetReliability > upper ? upper : lower;
-    const mode = i.adjustment ?? 'limit-midpoint';
-    const rUse = mode === 'observed' && r > 0 && r < 1 ? r : nearest;
-    let moved: number;
-    if (rUse <= 0) moved = 0;
-    else if (rUse >= 1) moved = Infinity;
-    else moved = (i.intervalDays * Math.log(i.targetReliability)) / Math.log(rUse);
-    rec = mode === 'observed' ? moved : (i.intervalDays + moved) / 2;
-    rec = Math.min(i.intervalDays * i.maxChangeFactor, Math.max(i.intervalDays / i.maxChangeFactor, rec));
+  const verdict = i.targetReliability < lower ? 'lengthen' : i.targetReliability > upper ? 'shorten' : 'keep';
+  return { observedReliability: i.inTolerance / i.total, lower, upper, verdict };
+}
+
+/** In-tolerance counts found at the end of one interval length. */
+export interface IntervalHistoryGroup {
+  /** Interval length the instruments had been in service for, days (> 0). */
+  intervalDays: number;
+  inTolerance: number;
+  total: number;
+}
+
+/** Exponential reliability model result. */
+export interface ExponentialIntervalResult {
+  /** Maximum-likelihood failure rate λ̂, per day (0 when nothing was found out of tolerance). */
+  lambdaPerDay: number;
+  /** Confidence limits of λ (likelihood ratio), per day. */
+  lambdaLower: number;
+  lambdaUpper: number;
+  /** Interval giving R* at λ̂, days; null when unbounded (λ̂ = 0). */
+  estimateDays: number | null;
+  /** Interval range from both confidence limits of λ: [at λ upper, at λ lower]; the upper end null when unbounded. */
+  rangeDays: [number, number | null];
+}
+
+function logLik(g: readonly IntervalHistoryGroup[], lambda: number): number {
+  let l = 0;
+  for (const x of g) {
+    const lt = lambda * x.intervalDays;
+    l += -x.inTolerance * lt;
+    const out = x.total - x.inTolerance;
+    if (out > 0) l += out * (lt > 0 ? Math.log(-Math.expm1(-lt)) : -Infinity);
   }
-  return { observedReliability: r, lower, upper, passes, recommendedDays: rec };
+  return l;
+}
+
+/**
+ * Exponential reliability model R(t) = exp(−λt) (OIML D 10 / ILAC-G24 and RP-1 name reliability
+ * models of this kind; this one is fully specified here). Estimator: maximum likelihood for the
+ * in/out-of-tolerance outcomes at the end of each interval, ℓ(λ) = Σ[x·(−λI) + (n − x)·ln(1 − e^(−λI))]
+ * (for one interval length this gives λ̂ = −ln(x/n)/I). Confidence limits of λ by the likelihood
+ * ratio, {λ : 2(ℓ(λ̂) − ℓ(λ)) ≤ z²} with z the two-sided normal quantile at `confidence` (Wilks'
+ * theorem). The interval for R* is t = −ln(R*)/λ; the range from both limits is reported, not a
+ * midpoint. The interval test (Clopper–Pearson) is reported beside it by {@link recommendIntervals}.
+ */
+export function exponentialInterval(history: readonly IntervalHistoryGroup[], targetReliability: number, confidence: number): ExponentialIntervalResult {
+  const g = history.filter((x) => x.total > 0);
+  if (g.length === 0) throw new RangeError('no calibrations in the history');
+  for (const x of g) if (!(x.intervalDays > 0 && x.inTolerance >= 0 && x.inTolerance <= x.total)) throw new RangeError('need intervalDays > 0 and 0 ≤ inTolerance ≤ total');
+  if (!(targetReliability > 0 && targetReliability < 1)) throw new RangeError('target reliability must be in (0, 1)');
+  if (!(confidence > 0 && confidence < 1)) throw new RangeError('confidence must be in (0, 1)');
+  const outs = g.reduce((s, x) => s + x.total - x.inTolerance, 0);
+  const ins = g.reduce((s, x) => s + x.inTolerance, 0);
+  const maxI = Math.max(...g.map((x) => x.intervalDays));
+  const minI = Math.min(...g.map((x) => x.intervalDays));
+  // The likelihood is concave in λ; its maximum is at 0 with no failures, at ∞ with no successes.
+  let lambdaHat: number;
+  const hi = 50 / minI;
+  if (outs === 0) lambdaHat = 0;
+  else if (ins === 0) lambdaHat = hi;
+  else {
+    const d = (l: number) => {
+      let s = 0;
+      for (const x of g) {
+        const lt = l * x.intervalDays;
+        s += -x.inTolerance * x.intervalDays + ((x.total - x.inTolerance) * x.intervalDays * Math.exp(-lt)) / -Math.expm1(-lt);
+      }
+      return s;
+    };
+    let lo = 1e-12 / maxI;
+    let up = hi;
+    for (let k = 0; k < 200; k++) {
+      const mid = Math.sqrt(lo * up);
+      if (d(mid) > 0) lo = mid;
+      else up = mid;
+    }
+    lambdaHat = Math.sqrt(lo * up);
+  }
+  const z = studentTQuantile(confidence, Infinity);
+  const lMax = logLik(g, lambdaHat);
+  const inside = (l: number) => 2 * (lMax - logLik(g, l)) <= z * z;
+  const solve = (a: number, b: number) => {
+    // a inside, b outside
+    for (let k = 0; k < 200; k++) {
+      const mid = a > 0 && b > 0 ? Math.sqrt(a * b) : (a + b) / 2;
+      if (inside(mid)) a = mid;
+      else b = mid;
+    }
+    return a;
+  };
+  const lambdaLower = lambdaHat === 0 || inside(1e-15) ? 0 : solve(lambdaHat, 1e-15);
+  const lambdaUpper = inside(hi) ? hi : solve(lambdaHat === 0 ? 1e-15 : lambdaHat, hi);
+  const t = (l: number) => (l > 0 ? -Math.log(targetReliability) / l : null);
+  return { lambdaPerDay: lambdaHat, lambdaLower, lambdaUpper, estimateDays: t(lambdaHat), rangeDays: [t(lambdaUpper) ?? 0, t(lambdaLower)] };
+}
+
+/** Interval analysis of a history with given targets (used by `POST /api/calc/intervals`). */
+export interface IntervalAnalysis {
+  /** The interval test on the calibrations at the current interval. */
+  test: IntervalTestResult;
+  exponential: ExponentialIntervalResult;
+}
+
+/**
+ * Interval test at the current interval (the history group with the largest interval equal to
+ * `currentIntervalDays`, or all groups pooled when none matches) and the exponential model over the
+ * whole history.
+ */
+export function recommendIntervals(history: readonly IntervalHistoryGroup[], currentIntervalDays: number, targetReliability: number, confidence: number): IntervalAnalysis {
+  const at = history.filter((x) => x.intervalDays === currentIntervalDays);
+  const pool = at.length ? at : history;
+  const inTolerance = pool.reduce((s, x) => s + x.inTolerance, 0);
+  const total = pool.reduce((s, x) => s + x.total, 0);
+  return {
+    test: intervalTest({ inTolerance, total, targetReliability, confidence }),
+    exponential: exponentialInterval(history, targetReliability, confidence),
+  };
 }
 
 /** Staircase parameters (ILAC-G24 / OIML D 10:2022 §“staircase”): all explicit. */

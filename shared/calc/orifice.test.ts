@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { dischargeCoefficientRHG, expansibility, orificeFlow, pureRootDeviation, type OrificeSpec } from './orifice';
+import { dischargeCoefficientRHG, expansibility, flowInUnit, orificeFlow, pointFlow, pureRootDeviation, type OrificeSpec } from './orifice';
 
 describe('orifice flow (ISO 5167-2:2003)', () => {
   it('Reader-Harris/Gallagher C: fluids documentation example, C_Reader_Harris_Gallagher', () => {
@@ -54,5 +54,26 @@ describe('orifice flow (ISO 5167-2:2003)', () => {
       }),
       { numRuns: 100 },
     );
+  });
+});
+
+describe('flow at a test point in engineering units', () => {
+  it('ISO 5167-2 flow at the applied DP, with C and ε, and the low-flow departure of the constant-C root', () => {
+    // Water, D = 100 mm, d = 50 mm, corner taps; 0–25 kPa for 0–100 % flow.
+    const spec = { D: 0.1, d: 0.05, taps: 'corner' as const, rho: 998.2, mu: 0.001 };
+    const full = pointFlow(spec, 25_000, 25_000, 'm3/h')!;
+    const ref = orificeFlow(spec, 25_000);
+    if (!ref.ok) throw new Error(ref.reason);
+    expect(full.flow).toBeCloseTo((ref.value.massFlowKgPerS / 998.2) * 3600, 9);
+    expect(full.C).toBe(ref.value.C);
+    expect(full.epsilon).toBe(1); // liquid
+    expect(full.pureRootDeparturePct).toBeCloseTo(0, 12);
+    // At 10 % flow (1 % DP) Re is ten times lower, C is higher, so the pure root under-reads
+    // (REFERENCE.md: "A pure root under-reads a real orifice at low flow").
+    const low = pointFlow(spec, 250, 25_000, 'm3/h')!;
+    expect(low.pureRootDeparturePct!).toBeLessThan(0);
+    expect(low.pureRootDeparturePct!).toBeGreaterThan(-2);
+    expect(flowInUnit(1, 1000, 'l/min')).toBe(60);
+    expect(flowInUnit(1, 1000, 't/h')).toBe(3.6);
   });
 });

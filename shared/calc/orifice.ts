@@ -146,3 +146,65 @@ export function pureRootDeviation(s: OrificeSpec, dp: number, dpMax: number): nu
   const root = full.value.massFlowKgPerS * Math.sqrt(dp / dpMax);
   return (root - at.value.massFlowKgPerS) / at.value.massFlowKgPerS;
 }
+
+/** Flow units the product shows (mass or volume per time). */
+export const FLOW_UNITS = ['kg/s', 'kg/h', 't/h', 'm3/s', 'm3/h', 'l/s', 'l/min'] as const;
+export type FlowUnit = (typeof FLOW_UNITS)[number];
+
+/** A flow in a site unit from mass flow (kg/s) and density (kg/m³). Exact factors (SI). */
+export function flowInUnit(massKgPerS: number, rho: number, unit: FlowUnit): number {
+  switch (unit) {
+    case 'kg/s':
+      return massKgPerS;
+    case 'kg/h':
+      return massKgPerS * 3600;
+    case 't/h':
+      return massKgPerS * 3.6;
+    case 'm3/s':
+      return massKgPerS / rho;
+    case 'm3/h':
+      return (massKgPerS / rho) * 3600;
+    case 'l/s':
+      return (massKgPerS / rho) * 1000;
+    case 'l/min':
+      return (massKgPerS / rho) * 60_000;
+  }
+}
+
+/** Flow at one test point in engineering units, with what ISO 5167-2 used. */
+export interface PointFlow {
+  /** Flow from the ISO 5167-2 equations at the applied DP, in `unit`. */
+  flow: number;
+  unit: FlowUnit;
+  /** ISO 5167-2 discharge coefficient (Reader-Harris/Gallagher) and expansibility used. */
+  C: number;
+  epsilon: number;
+  reD: number;
+  /**
+   * How far the constant-C square-root law (the transmitter's % flow scaled to the flow at URV)
+   * departs from the ISO 5167-2 flow at this DP: (q_root − q_ISO)/q_ISO × 100, %. Negative: the
+   * pure root under-reads at low flow because C rises as Re falls.
+   */
+  pureRootDeparturePct: number | null;
+  warnings: string[];
+}
+
+/**
+ * ISO 5167-2 flow at a test point for an instrument with an orifice primary element.
+ * @param dpPa applied DP, Pa (> 0)
+ * @param dpMaxPa DP at 100 % flow (URV), Pa
+ */
+export function pointFlow(s: OrificeSpec, dpPa: number, dpMaxPa: number, unit: FlowUnit): PointFlow | undefined {
+  const r = orificeFlow(s, dpPa);
+  if (!r.ok) return undefined;
+  const dev = pureRootDeviation(s, dpPa, dpMaxPa);
+  return {
+    flow: flowInUnit(r.value.massFlowKgPerS, s.rho, unit),
+    unit,
+    C: r.value.C,
+    epsilon: r.value.epsilon,
+    reD: r.value.reD,
+    pureRootDeparturePct: dev === undefined ? null : dev * 100,
+    warnings: r.value.warnings,
+  };
+}

@@ -1,6 +1,6 @@
 import { z } from 'zod';
-import { DECISION_RULES, PRESSURE_UNIT_IDS } from '../calc';
-import { CutoffModeSchema, OutputModeSchema } from './instruments';
+import { DECISION_RULES, FLOW_UNITS, PRESSURE_UNIT_IDS } from '../calc';
+import { CutoffModeSchema, OutputModeSchema, PrimaryElementSchema } from './instruments';
 
 export const PressureUnitSchema = z.enum(PRESSURE_UNIT_IDS, { message: 'Unknown pressure unit' });
 
@@ -64,3 +64,42 @@ export const EvaluateBodySchema = z.object({
   coverageFactor: num('Coverage factor').positive().max(10).optional(),
 });
 export type EvaluateBody = z.infer<typeof EvaluateBodySchema>;
+
+/** Body of `POST /api/calc/intervals`: a history of in-tolerance counts at interval lengths, and the targets. */
+export const IntervalsBodySchema = z
+  .object({
+    history: z
+      .array(
+        z
+          .object({
+            intervalDays: num('Interval').positive('Interval must be above 0 days').max(36500),
+            inTolerance: z.number().int('Whole calibrations').min(0),
+            total: z.number().int('Whole calibrations').min(1, 'At least one calibration'),
+          })
+          .refine((g) => g.inTolerance <= g.total, { message: 'In-tolerance count cannot exceed the total', path: ['inTolerance'] }),
+      )
+      .min(1, 'Give at least one interval')
+      .max(100),
+    /** Current interval, days; the interval test uses the history at it (all history pooled when absent there). */
+    currentIntervalDays: num('Current interval').positive().max(36500),
+    /** End-of-period reliability target, 0–1 exclusive; default 0.95. */
+    reliabilityTarget: num('Reliability target').gt(0, 'Above 0').lt(1, 'Below 1').default(0.95),
+    /** Two-sided confidence, 0–1 exclusive; default 0.5. */
+    confidence: num('Confidence').gt(0, 'Above 0').lt(1, 'Below 1').default(0.5),
+  });
+export type IntervalsBody = z.infer<typeof IntervalsBodySchema>;
+
+/** Body of `POST /api/calc/orifice`: ISO 5167-2 flow for a given element and fluid at a DP. */
+export const OrificeBodySchema = z.object({
+  element: PrimaryElementSchema.refine((e) => e.boreDiameterMm < e.pipeDiameterMm, { message: 'The bore must be smaller than the pipe', path: ['boreDiameterMm'] }).refine(
+    (e) => e.fluid !== 'gas' || (e.kappa !== undefined && e.upstreamPressurePa !== undefined),
+    { message: 'A gas needs κ and the upstream pressure', path: ['kappa'] },
+  ),
+  /** Differential pressure, in `unit`. */
+  dp: num('DP').positive('DP must be above 0'),
+  unit: PressureUnitSchema,
+  /** DP at 100 % flow, in `unit`: when given, the departure of the constant-C root is returned. */
+  dpMax: num('DP at 100 % flow').positive().optional(),
+  flowUnit: z.enum(FLOW_UNITS).optional(),
+});
+export type OrificeBody = z.infer<typeof OrificeBodySchema>;

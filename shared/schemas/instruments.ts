@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { PRESSURE_UNIT_IDS } from '../calc';
+import { FLOW_UNITS, PRESSURE_UNIT_IDS, type FlowUnit, type OrificeSpec } from '../calc';
 import { rangeProblems } from './numbers';
 
 /** How the transmitter's 4–20 mA relates to DP (REFERENCE.md "Transfer functions"). */
@@ -35,6 +35,25 @@ export const PrimaryElementSchema = z.object({
   /** Flow unit to show, e.g. 'm3/h', 'kg/h'. */
   flowUnit: z.string().max(20).optional(),
 });
+
+export type PrimaryElement = z.infer<typeof PrimaryElementSchema>;
+
+/**
+ * The register's primary element as the ISO 5167-2 calc takes it (SI units) and the flow unit to
+ * show (default m3/h for a liquid, kg/h for a gas); `undefined` when a gas lacks κ or p1, or the
+ * flow unit is not one the calc knows.
+ */
+export function orificeSpecOf(pe: PrimaryElement): { spec: OrificeSpec; flowUnit: FlowUnit } | undefined {
+  const taps = pe.taps === 'd-d2' ? 'D-D/2' : pe.taps;
+  const spec: OrificeSpec = { D: pe.pipeDiameterMm / 1000, d: pe.boreDiameterMm / 1000, taps, rho: pe.densityKgM3, mu: pe.viscosityPaS };
+  if (pe.fluid === 'gas') {
+    if (pe.kappa === undefined || pe.upstreamPressurePa === undefined) return undefined;
+    spec.gas = { kappa: pe.kappa, p1: pe.upstreamPressurePa };
+  }
+  const unit = pe.flowUnit ?? (pe.fluid === 'gas' ? 'kg/h' : 'm3/h');
+  if (!(FLOW_UNITS as readonly string[]).includes(unit)) return undefined;
+  return { spec, flowUnit: unit as FlowUnit };
+}
 
 export const InstrumentInputSchema = z
   .object({

@@ -312,7 +312,7 @@ export const DriftPointSchema = z.object({
 export type DriftPoint = z.infer<typeof DriftPointSchema>;
 
 export const IntervalRecommendationSchema = z.object({
-  method: z.enum(['staircase', 'a3']),
+  method: z.enum(['staircase', 'reliability']),
   action: z.enum(['extend', 'keep', 'shorten']),
   recommendedDays: z.number().int(),
   /** How it was found, in words with the numbers. */
@@ -336,7 +336,7 @@ export type DriftReport = z.infer<typeof DriftReportSchema>;
 
 export const AcceptIntervalBodySchema = z.object({
   intervalDays: z.number().int().min(1).max(3650),
-  method: z.enum(['staircase', 'a3']),
+  method: z.enum(['staircase', 'reliability']),
 });
 export type AcceptIntervalBody = z.infer<typeof AcceptIntervalBodySchema>;
 

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { DECISIONS, type EvaluateOutput } from '../calc';
+import { DECISIONS, FLOW_UNITS, type EvaluateOutput } from '../calc';
 
 /** Kinds of run within a job (DESIGN.md §3.5–6). */
 export const RUN_KINDS = ['mode-check', 'as-found', 'trim', 'as-left'] as const;
@@ -169,6 +169,19 @@ export const ResultPointSchema = z.object({
   acceptanceLimitPctSpan: z.number().nullable(),
   conformanceProbability: z.number().nullable(),
   ne43: z.enum(['failure-low', 'undefined-low', 'saturation-low', 'measurement', 'saturation-high', 'undefined-high', 'failure-high']),
+  /** Flow in engineering units at the applied DP (ISO 5167-2, orifice primary element); null or absent otherwise. */
+  flow: z
+    .object({
+      flow: z.number(),
+      unit: z.enum(FLOW_UNITS),
+      C: z.number(),
+      epsilon: z.number(),
+      reD: z.number(),
+      pureRootDeparturePct: z.number().nullable(),
+      warnings: z.array(z.string()),
+    })
+    .nullable()
+    .optional(),
 });
 export type ResultPoint = z.infer<typeof ResultPointSchema>;
 

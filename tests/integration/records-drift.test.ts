@@ -79,7 +79,7 @@ describe('drift and intervals', () => {
     // Drift per interval = as-found(k) − as-left(k−1) (REFERENCE.md "Intervals and drift").
     expect(p50.drifts[1].drift).toBeCloseTo(p50.events[2].asFound - p50.events[1].asLeft, 10);
     expect(typeof p50.predictedAtDue).toBe('number');
-    expect(d.recommendations.map((x: { method: string }) => x.method)).toEqual(['staircase', 'a3']);
+    expect(d.recommendations.map((x: { method: string }) => x.method)).toEqual(['staircase', 'reliability']);
     for (const rec of d.recommendations) {
       expect(rec.recommendedDays).toBeGreaterThanOrEqual(30);
       expect(rec.basis.length).toBeGreaterThan(20);

@@ -22,7 +22,7 @@ export const createLoader =
     return null;
   };
 
-const METHOD = { staircase: 'Staircase (ILAC-G24 / OIML D 10)', a3: 'Interval test (NCSLI RP-1 A3)' } as const;
+const METHOD = { staircase: 'Staircase (ILAC-G24 / OIML D 10)', reliability: 'Exponential reliability model, with the Clopper–Pearson interval test' } as const;
 
 /** Drift and interval review of one tag. */
 export function Component() {

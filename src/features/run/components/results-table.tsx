@@ -38,6 +38,8 @@ export function ResultsTable({
 }) {
   const span = spanWords(outputMode, rooted);
   const overall = results.overallDecision ? DECISION[results.overallDecision] : undefined;
+  // Flow in engineering units (ISO 5167-2) when the instrument has an orifice primary element.
+  const flowUnit = results.points.find((p) => p.flow)?.flow?.unit;
   return (
     <div className="flex flex-col gap-2" data-testid={testId}>
       <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
@@ -48,6 +50,7 @@ export function ResultsTable({
               <th scope="col" className="px-3 py-2 text-left">Point</th>
               <th scope="col" className="px-3 py-2 text-right">Applied DP ({unitLabel})</th>
               {rooted && <th scope="col" className="px-3 py-2 text-right">Applied flow %</th>}
+              {flowUnit && <th scope="col" className="px-3 py-2 text-right">Flow ({flowUnit}; C, ε; root departure %)</th>}
               <th scope="col" className="px-3 py-2 text-right">Expected mA</th>
               <th scope="col" className="px-3 py-2 text-right">Measured mA</th>
               <th scope="col" className="px-3 py-2 text-right">Error % {span}</th>
@@ -69,6 +72,20 @@ export function ResultsTable({
                   </td>
                   <td className="num px-3 py-2 text-right">{plain(p.appliedDp, dpDecimals)}</td>
                   {rooted && <td className="num px-3 py-2 text-right">{plain(p.appliedFlowPct, 3)}</td>}
+                  {flowUnit && (
+                    <td className="num px-3 py-2 text-right" data-testid={`result-flow-${p.index}`}>
+                      {p.flow ? (
+                        <>
+                          {formatNumber(p.flow.flow, 4)}
+                          <span className="ml-1 text-xs text-ink-muted">
+                            (C {formatNumber(p.flow.C, 4)}, ε {formatNumber(p.flow.epsilon, 4)}; {p.flow.pureRootDeparturePct == null ? '—' : signed(p.flow.pureRootDeparturePct, 2)})
+                          </span>
+                        </>
+                      ) : (
+                        '—'
+                      )}
+                    </td>
+                  )}
                   <td className="num px-3 py-2 text-right">{plain(p.expectedMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-ma-${p.index}`}>{plain(p.measuredMa, 4)}</td>
                   <td className="num px-3 py-2 text-right" data-testid={`result-error-${p.index}`}>{signed(p.errorPctSpan, 3)}</td>
