@@ -3,15 +3,16 @@
  * capture), a viewer that resumes after each restart never sees a sequence number it has seen
  * before name a different sample or event; every resume across a restart is answered with
  * `stream.reset` (another epoch), every resume within an epoch is served, and the numbering of each
- * new epoch starts above everything seen before it. `PROOF_EPOCH_KILLS` sets the kills (default
- * 20), `PROOF_KILL_SEED` replays the kill moments. tests/integration/stream-epochs-sigkill.test.ts
+ * new epoch starts above everything seen before it. `PROOF_EPOCH_KILLS` sets the kills (PROOF_LEVEL=full:
+ * 20; the short pass of `npm test`: 3), `PROOF_KILL_SEED` replays the kill moments. tests/integration/stream-epochs-sigkill.test.ts
  * runs the same with 2 kills.
  */
+import { proofCount } from '../helpers/proof-level';
 import { describe, expect, it } from 'vitest';
 import { recordSummary } from '../helpers/proof-helpers';
 import { killAndResume } from '../helpers/stream-epochs';
 
-const KILLS = Number(process.env.PROOF_EPOCH_KILLS ?? 20);
+const KILLS = proofCount('PROOF_EPOCH_KILLS', 3, 20);
 const SEED = Number(process.env.PROOF_KILL_SEED ?? Date.now() % 2 ** 31);
 
 describe('stream epochs under SIGKILL', () => {
