@@ -56,7 +56,6 @@ export function ChangePasswordForm({ onChanged, required = false }: ChangePasswo
         label={required ? 'Password you were given' : 'Current password'}
         type="password"
         autoComplete="current-password"
-        autoFocus
         error={errors.current?.message}
         {...register('current')}
       />
