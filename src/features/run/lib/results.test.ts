@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { hysteresisAt, parseResults, resultsByPoint, spanWords } from './results';
+import { hysteresisAt, parseResults, resultsByPoint, spanWords, type RunResults } from './results';
 
 /**
  * Issue 11, finding 10: the results column computed hysteresis from |mA up − mA down|, which
@@ -15,24 +15,33 @@ const api = {
   maxHysteresisPctSpan: 0.00125,
   overallDecision: 'pass',
 };
+/** The fields these helpers read; a full result also carries U, k, TUR and more (RunResultsSchema). */
+const results = (r: object) => r as unknown as RunResults;
+
+describe('parseResults', () => {
+  it('refuses results that do not match the one results contract', () => {
+    expect(parseResults(api)).toBeNull();
+    expect(parseResults(null)).toBeNull();
+  });
+});
 
 describe('hysteresisAt', () => {
   it('shows the evaluated hysteresis (difference of errors), not the mA difference', () => {
-    const r = parseResults(api)!;
+    const r = results(api);
     expect(hysteresisAt(r, r.points[0]!)).toBe(0.00125);
     expect(hysteresisAt(r, r.points[1]!)).toBe(0.00125);
     // What the old column showed: |ΔmA| / 16 mA × 100.
     expect(Math.abs(api.points[0]!.measuredMa - api.points[1]!.measuredMa) / 0.16).toBeGreaterThan(0.7);
   });
   it('is null for a nominal not read both ways', () => {
-    const r = parseResults({ ...api, hysteresis: [] })!;
+    const r = results({ ...api, hysteresis: [] });
     expect(hysteresisAt(r, r.points[0]!)).toBeNull();
   });
 });
 
 describe('resultsByPoint', () => {
   it('gives the k-th result to the k-th captured point', () => {
-    const r = parseResults(api)!;
+    const r = results(api);
     const m = resultsByPoint(
       [
         { index: 0, capture: {} },
