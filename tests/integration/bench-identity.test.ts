@@ -137,21 +137,25 @@ describe('who may feed a bench', () => {
     const ok = await s.ack(s.send(`browser-${me}`, [ma(4, Date.now())]));
     expect(ok.status).toBe('stored');
     await c.post('/api/auth/logout');
-    const after = await s.ack(s.send(`browser-${me}`, [ma(4.1, Date.now())]));
-    expect(after.status).toBe('refused');
+    // Sign-out closes the sender's socket at once (sockets follow the session: stream-session.test.ts);
+    // a batch sent after it is never taken.
     await until(() => !!s.state.closed, 5000, 'socket closed');
+    s.send(`browser-${me}`, [ma(4.1, Date.now())]);
     expect((await storedRaws(`browser-${me}`)).length).toBe(1);
 
     // Deactivated: an admin switches the account off while its socket is open.
     const invited = await admin.post('/api/users', { email: 'fwd-off@stillpoint-demo.test', name: 'Fwd Off', role: 'technician', password: 'violet-harbour-71x' });
     expect(invited.status).toBe(201);
+    // Invited users must choose a new password first (accounts.test.ts); taken as done here.
+    await srv.database.exec(`UPDATE users SET must_change_password = false WHERE email = 'fwd-off@stillpoint-demo.test'`);
     const d = new ApiClient(srv.url);
     await d.login('fwd-off@stillpoint-demo.test', 'violet-harbour-71x');
     const ds = sender({ cookie: d.cookie });
     expect(await ds.opened).toBe(true);
     expect((await ds.ack(ds.send(`browser-${invited.body.id}`, [ma(4, Date.now())]))).status).toBe('stored');
     expect((await admin.req('PATCH', `/api/users/${invited.body.id}`, { active: false })).status).toBe(200);
-    expect((await ds.ack(ds.send(`browser-${invited.body.id}`, [ma(4.2, Date.now())]))).status).toBe('refused');
+    await until(() => !!ds.state.closed, 5000, 'socket closed');
+    ds.send(`browser-${invited.body.id}`, [ma(4.2, Date.now())]);
     expect((await storedRaws(`browser-${invited.body.id}`)).length).toBe(1);
   });
 

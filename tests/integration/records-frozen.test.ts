@@ -121,8 +121,8 @@ describe('a signed record is frozen', () => {
         accuracy: { ...cur.accuracy, pctReading: (cur.accuracy.pctReading ?? 0) + 0.5 },
         resolution: cur.resolution,
         certificateNo: `${cur.certificateNo}-X`,
-        calibratedOn: '2030-01-01',
-        dueOn: '2031-01-01',
+        calibratedOn: '2025-01-02',
+        dueOn: '2027-01-02',
       };
       const r = await c.lead.req('PUT', `/api/standards/${std.id}`, body);
       expect(r.status, JSON.stringify(r.body)).toBe(200);

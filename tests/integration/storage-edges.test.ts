@@ -34,12 +34,23 @@ async function techSocket(url: string, tech: ApiClient): Promise<WebSocket> {
   return ws;
 }
 
-/** Sends the bad lines (one message each, so one refused line never hides another) and one good line last. */
-function sendBadLines(ws: WebSocket, marker: string): number {
-  const bad = ['A\u0000B', ...C0.map((c) => `+1.2${String.fromCharCode(c)}00E-02`), 'x'.repeat(10_000)];
-  for (const raw of bad) ws.send(JSON.stringify({ type: 'lines.forwarded', benchId: 'bench-1', lines: [{ device: 'current', raw, wallMs: Date.now() }] }));
-  ws.send(JSON.stringify({ type: 'lines.forwarded', benchId: 'bench-1', lines: [{ device: 'current', raw: marker, wallMs: Date.now() }] }));
-  return bad.length;
+/**
+ * Sends the bad lines (one batch each, so one refused line never hides another) and one good line
+ * last, as a browser forwarding Web Serial does: to the user's own bench, numbered batches.
+ */
+function sendBadLines(ws: WebSocket, marker: string, userId: string): number {
+  const benchId = `browser-${userId}`;
+  const senderId = `edge-${Math.random().toString(36).slice(2, 10)}`;
+  let batchSeq = 0;
+  const send = (raw: string, sender = senderId, seq = ++batchSeq) =>
+    ws.send(JSON.stringify({ type: 'lines.forwarded', benchId, senderId: sender, batchSeq: seq, sentWallMs: Date.now(), lines: [{ device: 'current', raw, wallMs: Date.now() }] }));
+  const bad = ['A\u0000B', ...C0.map((c) => `+1.2${String.fromCharCode(c)}00E-02`)];
+  for (const raw of bad) send(raw);
+  // 10 000 characters: the message contract (raw at most 512) refuses the whole message before the
+  // edge; sent from a sender of its own so that its refusal touches no other batch.
+  send('x'.repeat(10_000), `${senderId}-long`, 1);
+  send(marker);
+  return bad.length + 1;
 }
 
 type Stored = { seq: number; raw: string; device: string };
@@ -66,7 +77,7 @@ describe('storage edges on one server (in-process)', () => {
     const ws = await techSocket(srv.url, tech);
     const from = srv.bench.hub.latestSeq;
     const marker = '+1.234567E-02';
-    sendBadLines(ws, marker);
+    sendBadLines(ws, marker, (await tech.get('/api/auth/me')).body.id as string);
     // The good line sent after the bad ones is stored, and so are the local bench's samples after it.
     let after: Stored[] = [];
     await until(
@@ -161,7 +172,7 @@ describe('storage edges across a SIGKILL (real server process)', () => {
     const viewer = streamClient({ url: first.base }, admin);
     await viewer.opened;
     const ws = await techSocket(first.base, tech);
-    sendBadLines(ws, '+1.5E-02');
+    sendBadLines(ws, '+1.5E-02', (await tech.get('/api/auth/me')).body.id as string);
     let acked = 0;
     await until(
       async () => {
