@@ -76,7 +76,8 @@ describe('load: live viewers and mixed API traffic during a capture', () => {
     pgdb = await freshPostgresUrl('sp_load');
     server = await startHealthy({ dataDir: dir, databaseUrl: pgdb?.url });
     const base = server.base;
-    const who = { tech: new ApiClient(base), lead: new ApiClient(base), admin: new ApiClient(base), auditor: new ApiClient(base) };
+    // Five accounts: the stream allows ten sockets per account, and the viewers are spread over them.
+    const who = { tech: new ApiClient(base), tech2: new ApiClient(base), lead: new ApiClient(base), admin: new ApiClient(base), auditor: new ApiClient(base) };
     for (const [k, c] of Object.entries(who)) await c.login(demoEmail(k as keyof typeof who));
     const jobId = await prepareFt101(who.tech);
     const runIds: string[] = [];
