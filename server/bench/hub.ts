@@ -131,27 +131,6 @@ export class RingBuffer {
   }
 
   /**
-   * Entries with seq > `since`, oldest first; undefined when entries after `since` have already
-   * been evicted (the ring cannot serve it without a gap).
-   */
-  since(since: number): HubEntry[] | undefined {
-    if (this.size === 0) return [];
-    const oldest = this.items[this.start]!.seq;
-    if (since < oldest - 1) return undefined;
-    // Binary search over the logical order (seqs are increasing).
-    let lo = 0;
-    let hi = this.size;
-    while (lo < hi) {
-      const mid = (lo + hi) >>> 1;
-      if (this.items[(this.start + mid) % this.capacity]!.seq <= since) lo = mid + 1;
-      else hi = mid;
-    }
-    const out: HubEntry[] = [];
-    for (let k = lo; k < this.size; k++) out.push(this.items[(this.start + k) % this.capacity]!);
-    return out;
-  }
-
-  /**
    * At most `limit` entries with `since` < seq ≤ `upTo`, oldest first (one page of a resume);
    * undefined when entries after `since` have already been evicted.
    */
