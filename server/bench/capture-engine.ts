@@ -13,7 +13,6 @@ import {
   DEFAULT_HOLD_SETTINGS,
   HoldAnalyzer,
   isPressureUnitId,
-  SLOPE_SIGNIFICANCE,
   type HoldSettings,
   type PlanPoint,
   type TypeAOfMean,
@@ -81,8 +80,13 @@ interface Active {
   lastProgressMs: number;
   overshoots: number;
   leakWarned: boolean;
-  /** DP slope (% of span/min) of the last settling window that was restarted for drifting; undefined after a clean window. */
-  windowSlope: number | undefined;
+  /**
+   * Leak versus relaxation: the applied DP since the point entered its window, in sub-windows of
+   * `subWindowMs` (shared/calc `HoldAnalyzer.trend`). Unlike the hold window, it is not restarted
+   * when the hold is (drift restarts the hold; a leak must be told from settling over a longer time).
+   */
+  trend: HoldAnalyzer | undefined;
+  subWindowMs: number;
   ne43Warned: boolean;
   unitWarned: boolean;
   lastMa: number | undefined;
@@ -95,15 +99,14 @@ interface Active {
 const BAND_REASONS = ['applied DP outside the stability band', 'current outside the stability band'];
 
 /**
- * A settling approach slows down from one window to the next (a first-order tail falls by
- * e^(−W/τ) per window); a leak keeps its rate with the source isolated. Two consecutive windows
- * that both exceed the leak limit, in the same direction, the second at least this fraction of the
- * first, are called a leak. Product choice, not a published value.
+ * Sub-window of the leak-versus-relaxation test: a third of the hold time, at most the shared/calc
+ * default (10 s), so that the three sub-windows the verdict needs fit in one hold (product choice).
+ * With the default 30 s hold that is 10 s, and relaxation with τ up to about 9 sub-windows (90 s)
+ * decays visibly across them; a shorter hold tells a leak from settling only for shorter τ.
  */
-const LEAK_PERSISTENCE = 0.7;
-
-/** Shortest window whose slope counts towards the leak decision, ms (a steep leak leaves the band fast). */
-const LEAK_WINDOW_MIN_MS = 1000;
+function subWindowMsFor(holdTimeMs: number, configured: number | undefined): number {
+  return configured ?? Math.max(100, Math.min(DEFAULT_HOLD_SETTINGS.trendWindowMs, holdTimeMs / 3));
+}
 
 export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   readonly benchId: string;
@@ -122,7 +125,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   }
 
   /** Snapshot of the active run's points (copies). */
-  snapshot(): { runId: string; status: RunStatus; currentIndex: number | null; points: EnginePoint[] } | undefined {
+  snapshot(): { runId: string; status: RunStatus; currentIndex: number | null; points: EnginePoint[]; trend: PointCapture['trend'] } | undefined {
     const r = this.run;
     if (!r) return undefined;
     return {
@@ -130,6 +133,8 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       status: r.status,
       currentIndex: r.current,
       points: r.points.map((p) => ({ ...p, flags: [...p.flags], capture: p.capture ? { ...p.capture } : null })),
+      // Leak versus relaxation of the current point so far (null outside its window).
+      trend: trendOfCapture(r.trend, r.subWindowMs),
     };
   }
 
@@ -165,7 +170,8 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       lastProgressMs: 0,
       overshoots: 0,
       leakWarned: false,
-      windowSlope: undefined,
+      trend: undefined,
+      subWindowMs: subWindowMsFor(holdSettings.holdTimeMs!, settings.hold?.trendWindowMs),
       ne43Warned: false,
       unitWarned: false,
       lastMa: undefined,
@@ -317,11 +323,13 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     if (p.state === 'approaching' || p.state === 'waiting') {
       this.invalidateHold(r);
       r.hold = new HoldAnalyzer({ ...r.holdSettings, maPerDpUnit: p.plan.maPerDpUnit });
+      r.trend = new HoldAnalyzer({ ...r.holdSettings, trendWindowMs: r.subWindowMs });
       r.settlingSinceMs = tMs;
       this.setState(r, p, 'settling');
     }
     this.mark(r, wallMs);
     r.hold!.pushDp(tMs, value);
+    r.trend!.pushDp(tMs, value);
     this.evaluate(r, tMs);
   }
 
@@ -354,32 +362,32 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     const enough = h.dp.n >= 5 && h.ma.n >= 5;
     const bandLost = enough && h.reasons.some((x) => BAND_REASONS.includes(x));
     const drifting = enough && h.durationMs >= r.holdSettings.leakMinDurationMs! && (h.leak || !h.stable);
-    if (h.capturable && !bandLost) {
+    // Leak or settling: a trend at a near-constant rate over the last three sub-windows, beyond the
+    // leak limit, is a leak; a decaying one is relaxation and is left to settle (shared/calc hold.ts).
+    const t = r.trend!.trend();
+    const leaking = t.kind === 'leak' && Math.abs(t.ratePctSpanPerMin) > this.leakLimitPct(r);
+    if (leaking) {
+      if (!p.flags.includes('leak')) p.flags.push('leak');
+      if (!r.leakWarned) {
+        r.leakWarned = true;
+        this.warn(
+          r,
+          'leak',
+          `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(t.ratePctSpanPerMin).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
+          t.ratePctSpanPerMin,
+        );
+      }
+    }
+    if (h.capturable && !bandLost && !leaking) {
       this.capture(r, false, null, null);
       return;
     }
     if (bandLost || drifting) {
       // The window is not clean: the approach is still settling, or the tubing leaks. The window
       // slides on from here, so the approach before the source was isolated is not held against it.
-      const slope = h.leakRatePctSpanPerMin;
-      const counts = h.durationMs >= Math.min(LEAK_WINDOW_MIN_MS, r.holdSettings.leakMinDurationMs!);
-      const beyondLimit = counts && Math.abs(slope) - SLOPE_SIGNIFICANCE * (Number.isFinite(h.dp.slopeSePerMin) ? (h.dp.slopeSePerMin / r.s.dpSpan) * 100 : 0) > this.leakLimitPct(r);
-      const prev = r.windowSlope;
-      if (beyondLimit && prev !== undefined && Math.sign(prev) === Math.sign(slope) && Math.abs(slope) >= LEAK_PERSISTENCE * Math.abs(prev)) {
-        if (!p.flags.includes('leak')) p.flags.push('leak');
-        if (!r.leakWarned) {
-          r.leakWarned = true;
-          this.warn(
-            r,
-            'leak',
-            `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(slope).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
-            slope,
-          );
-        }
-      }
-      this.restartWindow(r, beyondLimit ? slope : undefined);
+      this.restartWindow(r);
       this.setState(r, p, 'settling');
-    } else this.setState(r, p, h.stable && !h.leak ? 'holding' : 'settling');
+    } else this.setState(r, p, h.stable && !h.leak && !leaking ? 'holding' : 'settling');
     if (r.settlingSinceMs !== undefined && p.state === 'settling' && tMs - r.settlingSinceMs > (r.s.unstableAfterHolds ?? 4) * required && !p.flags.includes('unstable')) {
       p.flags.push('unstable');
       this.warn(r, 'unstable', `Point ${p.plan.index + 1} has not settled: ${h.reasons.filter((x) => x !== 'hold time not reached').join(', ') || 'readings keep moving'}`, null);
@@ -411,6 +419,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       typeA: typeAOfCapture(r.hold!.typeA()),
       // What fed the hold (a manual capture also names its person in capturedBy).
       capturedFrom: [...r.holdSources].sort().join(', ') || null,
+      trend: trendOfCapture(r.trend, r.subWindowMs),
     };
     if (manual && !p.flags.includes('manual')) p.flags.push('manual');
     p.capture = capture;
@@ -455,12 +464,11 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     return hs.leakLimitUnitPerMin !== undefined ? (hs.leakLimitUnitPerMin / r.s.dpSpan) * 100 : (hs.leakLimitPctSpanPerMin ?? DEFAULT_HOLD_SETTINGS.leakLimitPctSpanPerMin);
   }
 
-  /** Starts a new hold window from the next sample, remembering the slope of the one that ended. */
-  private restartWindow(r: Active, slopePctSpanPerMin: number | undefined): void {
+  /** Starts a new hold window from the next sample (the leak-versus-relaxation record goes on). */
+  private restartWindow(r: Active): void {
     r.hold!.reset();
     r.holdStartWall = r.holdEndWall = undefined;
     r.holdSources.clear();
-    r.windowSlope = slopePctSpanPerMin;
   }
 
   private invalidateHold(r: Active): void {
@@ -469,7 +477,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     r.holdSources.clear();
     r.settlingSinceMs = undefined;
     r.leakWarned = false;
-    r.windowSlope = undefined;
+    r.trend = undefined;
   }
 
   private finish(status: 'complete' | 'aborted'): void {
@@ -559,4 +567,11 @@ function round(x: number): number {
 /** The hold's Type A of the mean error as the capture stores it (mA). */
 function typeAOfCapture(a: TypeAOfMean | undefined): PointCapture['typeA'] {
   return a ? { uMa: a.u, sdMa: a.sd, n: a.n, nEff: a.nEff, dof: a.dof, method: a.method } : null;
+}
+
+/** The leak-versus-relaxation verdict as the capture stores it (% of span per minute). */
+function trendOfCapture(a: HoldAnalyzer | undefined, subWindowMs: number): PointCapture['trend'] {
+  if (!a) return null;
+  const t = a.trend();
+  return { kind: t.kind, ratePctSpanPerMin: t.ratePctSpanPerMin, decayRatio: t.decayRatio, windows: t.windows, subWindowMs };
 }

@@ -52,12 +52,15 @@ export interface VerifyResult {
 export function createAuditService(db: Db) {
   const repo = auditRepository(db);
   return {
-    /** Appends one event; the row is hash-linked to the one before it. */
-    async record(actor: Actor | NonUserActor | null, action: string, entity: string, entityId: string | null, before?: unknown, after?: unknown): Promise<AuditRow> {
+    /**
+     * Appends one event; the row is hash-linked to the one before it. With `tx`, the row is written
+     * in that transaction (it commits or rolls back with what it records).
+     */
+    async record(actor: Actor | NonUserActor | null, action: string, entity: string, entityId: string | null, before?: unknown, after?: unknown, tx?: Db): Promise<AuditRow> {
       const user = actor && 'id' in actor ? actor : null;
       // JSON round-trip so what is hashed is exactly what jsonb stores back.
       const norm = (v: unknown) => (v === undefined ? null : JSON.parse(JSON.stringify(v)));
-      return repo.append(
+      return (tx ? auditRepository(tx) : repo).append(
         {
           at: new Date(Math.floor(Date.now())),
           actorId: user?.id ?? null,

@@ -174,22 +174,27 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
         const key = `${e.runId}/${e.index}`;
         const value = JSON.stringify([e.state, e.flags]);
         if (storedPoint.get(key) === value) return;
-        // A point that is not captured holds no capture (a redo clears it); a captured one was stored by point.captured.
-        await runsRepo.updatePoint(e.runId, e.index, e.state === 'captured' ? { state: e.state, flags: e.flags } : { state: e.state, flags: e.flags, capture: null, reason: null });
+        // 'captured' is stored only with its capture (point.captured, just before); if that write
+        // failed, this change is neither stored nor shown.
+        if (e.state === 'captured') throw new Error(`point ${e.index} of run ${e.runId} is not stored as captured; its capture was not stored`);
+        // A point that is not captured holds no capture (a redo clears it).
+        await runsRepo.updatePoint(e.runId, e.index, { state: e.state, flags: e.flags, capture: null, reason: null });
         storedPoint.set(key, value);
         return;
       }
       case 'point.captured': {
-        await runsRepo.updatePoint(e.runId, e.index, { state: 'captured', flags: e.flags, capture: e.capture, reason: e.capture.manualReason });
-        storedPoint.set(`${e.runId}/${e.index}`, JSON.stringify(['captured', e.flags]));
         const by = e.capture.by;
-        if (e.manual && by?.kind === 'user') {
-          await audit.record(by.user, 'run.point-captured-manually', 'run', e.runId, undefined, { index: e.index, reason: e.capture.manualReason, flags: e.flags, capture: e.capture, by });
-        } else {
+        // The capture and its audit event commit together (one transaction).
+        const auditIn = (tx: Db) => {
+          if (e.manual && by?.kind === 'user') {
+            return audit.record(by.user, 'run.point-captured-manually', 'run', e.runId, undefined, { index: e.index, reason: e.capture.manualReason, flags: e.flags, capture: e.capture, by }, tx);
+          }
           // Hands-free: the bench captured it after the hold, for the run's performer, from the samples' sources.
           const performer = by?.kind === 'bench' && by.performer ? `; run performed by ${by.performer.email}` : '';
-          await audit.record({ nonUser: `bench ${e.benchId} (hands-free capture${performer})` }, 'run.point-captured', 'run', e.runId, undefined, { index: e.index, flags: e.flags, capture: e.capture, by });
-        }
+          return audit.record({ nonUser: `bench ${e.benchId} (hands-free capture${performer})` }, 'run.point-captured', 'run', e.runId, undefined, { index: e.index, flags: e.flags, capture: e.capture, by }, tx);
+        };
+        await runsRepo.updatePoint(e.runId, e.index, { state: 'captured', flags: e.flags, capture: e.capture, reason: e.capture.manualReason }, auditIn);
+        storedPoint.set(`${e.runId}/${e.index}`, JSON.stringify(['captured', e.flags]));
         return;
       }
       case 'run.changed': {

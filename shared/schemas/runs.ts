@@ -98,6 +98,21 @@ export const PointCaptureSchema = z.object({
    * registered bench agent), `browser:<user id>` (Web Serial), comma-separated. Absent on older captures.
    */
   capturedFrom: z.string().nullable().optional(),
+  /**
+   * Leak versus relaxation over the point's time in its window (shared/calc hold.ts, `TrendVerdict`):
+   * `leak` is a trend at a near-constant rate (flagged `leak` only beyond the leak limit), `relaxation`
+   * a decaying one. Rate in % of span per minute. Absent on older captures; null before three sub-windows.
+   */
+  trend: z
+    .object({
+      kind: z.enum(['none', 'relaxation', 'leak', 'undetermined']),
+      ratePctSpanPerMin: z.number(),
+      decayRatio: z.number().nullable(),
+      windows: z.number().int(),
+      subWindowMs: z.number(),
+    })
+    .nullable()
+    .optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

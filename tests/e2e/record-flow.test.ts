@@ -129,11 +129,7 @@ function hysteresisOf(run: ApiRun, p: { nominalPct: number; basis: string }): nu
 }
 
 describe('the record says what happened, with one definition of error and hysteresis', () => {
-  // Skipped, not passing: after the evidence, capture-path, identity and numbers branches were merged,
-  // the lower trim with a simulated leak of 0.5 per minute completes without the leak flag (line
-  // "expect(leakTrim.points[0]!.flags).toContain('leak')"). It passed on its own branch. Until the
-  // cause is found (issue 11, acceptance 8 and 9), this flow is not evidence and is not run.
-  it.skip('runs a job with a manual capture, a leak-flagged trim and a redone point, then checks every screen and the certificate', { timeout: 1_200_000 }, async () => {
+  it('runs a job with a manual capture, a leak-flagged trim and a redone point, then checks every screen and the certificate', { timeout: 1_200_000 }, async () => {
     await sim({ source: { leakPerMin: 0, overshoot: 0, noise: 0 }, transmitter: { zeroErrorPct: 0, spanErrorPct: 0, outputNoiseMa: 0.001 } });
     const modeId = await handsFree('mode-check');
     expect((await getRun(modeId)).status).toBe('complete');
@@ -159,8 +155,15 @@ describe('the record says what happened, with one definition of error and hyster
     await moveTo(0);
     const leakTrimId = await start('trim', 'lower-trim');
     const target = (await getRun(leakTrimId)).points[0]!.targetDp;
-    // The leak acts once the source is isolated at the target.
-    await sim({ source: { leakPerMin: 0.5 }, setpoint: { value: target, overshoot: 0 } });
+    // The leak acts once the source is isolated at the target. Its size is chosen for the short
+    // hold of this flow (HOLD_SECONDS=2): a leak is called on two consecutive windows whose DP slope
+    // exceeds the leak limit, and the first window after isolation also holds the end of the rise.
+    // At 0.5 % of span per minute the DP moves 0.017 % of span in 2 s, a sixth of the stability band,
+    // so a window across the top of the rise can look flat and be captured (it was, on a loaded
+    // machine). At 1.5 % of span per minute the fall outweighs the end of the rise (the first-order
+    // approach is within 0.01 of the target when the source is isolated) and the DP still stays in
+    // the ±0.5 window for about 20 s after isolation.
+    await sim({ source: { leakPerMin: 1.5 }, setpoint: { value: target, overshoot: 0 } });
     await until('the leak to be flagged', () => getRun(leakTrimId), (r) => r.points[0]!.flags.includes('leak') || r.status === 'complete', 60_000);
     await sim({ source: { leakPerMin: 0 } });
     const leakTrim = await until('the leaky trim reading', () => getRun(leakTrimId), (r) => r.status === 'complete', 120_000);
@@ -278,7 +281,7 @@ describe('the record says what happened, with one definition of error and hyster
         const row = hystBlock.split('\n').find((l) => new RegExp(`^\\s*${h.nominalPct} % flow\\s`).test(l));
         expect(row, `certificate hysteresis row at ${h.nominalPct} %`).toBeDefined();
         // As found, then as left: the as-left value is the row's last number.
-        expect(row!.match(/\d+\.\d+/g)?.at(-1)).toBe(printed(h.hysteresisPctSpan, 3));
+        expect(row!.match(/-?\d+\.\d+/g)?.at(-1)).toBe(printed(h.hysteresisPctSpan, 3));
       }
       expect(pageErrors).toEqual([]);
     } finally {

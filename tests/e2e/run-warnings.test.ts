@@ -70,12 +70,13 @@ describe('capture-screen warnings', () => {
     const page = await context.newPage();
     try {
       await openRun(page, runId);
-      // Up to 25 % DP from below; the point settles and starts its hold.
-      await sim({ setpoint: { value: 25 } });
-      await page.locator('[data-testid="current-point"][data-state="holding"]').waitFor({ timeout: 60_000 });
+      // Up to 25 % DP from below, with a leak that acts once the source is isolated at the setpoint,
+      // so the whole hold sees it. (Started by hand once the point holds, the leak raced the 6 s hold
+      // on a loaded machine: a hold that was mostly flat before the leak began could complete first.)
       // Leak: 0.5 inH2O/min on a 100 inH2O span = 0.5 % of span per minute (five times the default limit),
       // slow enough that the DP stays inside the capture window for the whole test on a loaded machine.
-      await sim({ source: { leakPerMin: 0.5 } });
+      await sim({ source: { leakPerMin: 0.5 }, setpoint: { value: 25 } });
+      await page.locator('[data-testid="current-point"][data-state="settling"], [data-testid="current-point"][data-state="holding"]').first().waitFor({ timeout: 60_000 });
       const banner = page.getByTestId('warning-leak');
       await banner.waitFor({ timeout: 60_000 });
       expect(await banner.getAttribute('role')).toBe('alert');

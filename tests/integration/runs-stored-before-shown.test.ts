@@ -3,7 +3,8 @@
  * is committed. The run repository the server stores through is wrapped at boot with a gate that
  * holds point writes back; the capture engine captures meanwhile, and neither a real WebSocket
  * client nor the API may show the capture until the write goes through. Every capture, and its
- * audit event, names who or what took it. HOLD_SECONDS = 1, simulated rig driven by set-points.
+ * audit event, names who or what took it; the two commit in one transaction (a failure after the
+ * audit row was written leaves neither). HOLD_SECONDS = 1, simulated rig driven by set-points.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunRepository } from '../../server/db/repositories/run.repository';
@@ -27,11 +28,20 @@ const gate = {
     return this.closed ? new Promise<void>((resolve) => this.waiting.push(resolve)) : Promise.resolve();
   },
 };
+/** When set, the write that goes with a point update (its audit event) is made, then fails. */
+let failAfterAudit = false;
 const gated = (repo: RunRepository): RunRepository => ({
   ...repo,
-  updatePoint: async (...args) => {
+  updatePoint: async (runId, index, values, alsoIn) => {
     await gate.pass();
-    return repo.updatePoint(...args);
+    const failing =
+      alsoIn && failAfterAudit
+        ? async (tx: Parameters<typeof alsoIn>[0]) => {
+            await alsoIn(tx);
+            throw new Error('injected failure after the audit row was written');
+          }
+        : alsoIn;
+    return repo.updatePoint(runId, index, values, failing);
   },
 });
 
@@ -154,5 +164,31 @@ describe('stored before shown', () => {
     expect(ev.actorEmail).toBe(demoEmail('tech'));
     expect(ev.after.reason).toBe('technician judged the reading steady');
     expect(ev.after.by).toEqual(p.capture!.by);
+  }, 120_000);
+
+  it('stores a capture and its audit event in one transaction: a failure after the audit row leaves neither', async () => {
+    const run = await startModeCheck();
+    const engine = srv.runs.engines.get('bench-1');
+    failAfterAudit = true;
+    try {
+      await sim({ setpoint: { value: run.points[0]!.targetDp } });
+      await until(() => engine.snapshot()?.points[0]?.state === 'captured', 20_000, 'engine captured');
+      await srv.runs.settle();
+      // The write failed: the point is not stored as captured, and no audit row for it survived.
+      const after = await getRun(run.id);
+      expect(after.points[0]!.state).not.toBe('captured');
+      expect(after.points[0]!.capture).toBeNull();
+      const audit = await admin.get(`/api/audit?entity=run&entityId=${run.id}`);
+      const actions = (audit.body.items as { action: string }[]).map((a) => a.action);
+      expect(actions).toContain('run.started');
+      expect(actions).not.toContain('run.point-captured');
+      // The chain is still whole (the rolled-back row left no gap behind).
+      const verify = await admin.get('/api/audit/verify');
+      expect(verify.status).toBe(200);
+      expect(verify.body.ok).toBe(true);
+    } finally {
+      failAfterAudit = false;
+      await tech.post(`/api/runs/${run.id}/abort`, {});
+    }
   }, 120_000);
 });

@@ -41,11 +41,28 @@ export function runRepository(db: Db) {
     async points(runId: string): Promise<PointRow[]> {
       return db.select().from(points).where(eq(points.runId, runId)).orderBy(asc(points.index));
     },
-    async updatePoint(runId: string, index: number, values: Partial<Pick<PointRow, 'state' | 'flags' | 'capture' | 'reason'>>): Promise<void> {
-      await db
-        .update(points)
-        .set({ ...values, updatedAt: new Date() })
-        .where(and(eq(points.runId, runId), eq(points.index, index)));
+    /**
+     * Updates one point. With `alsoIn`, the update and whatever `alsoIn` writes (the capture's audit
+     * event) commit in one transaction: a capture is never stored without its audit event, nor the
+     * event without the capture.
+     */
+    async updatePoint(
+      runId: string,
+      index: number,
+      values: Partial<Pick<PointRow, 'state' | 'flags' | 'capture' | 'reason'>>,
+      alsoIn?: (tx: Db) => Promise<unknown>,
+    ): Promise<void> {
+      const write = async (d: Db) => {
+        await d
+          .update(points)
+          .set({ ...values, updatedAt: new Date() })
+          .where(and(eq(points.runId, runId), eq(points.index, index)));
+      };
+      if (!alsoIn) return write(db);
+      await db.transaction(async (tx) => {
+        await write(tx);
+        await alsoIn(tx);
+      });
     },
     async update(id: string, values: Partial<Pick<RunRow, 'status' | 'results' | 'endedAt'>>): Promise<void> {
       await db.update(runs).set(values).where(eq(runs.id, id));
