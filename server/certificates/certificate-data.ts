@@ -29,6 +29,8 @@ export type CertificatePoint = Pick<
   | 'errorPctSpan'
   | 'expandedUncertaintyPctSpan'
   | 'coverageFactor'
+  | 'coverageProbability'
+  | 'effectiveDof'
   | 'decision'
 >;
 

@@ -84,7 +84,12 @@ describe('renderCertificate', () => {
     expect(text).toContain('Non-binary statement with guard band w = U (ILAC-G8:09/2019)');
     expect(text).toContain('As found, the instrument did not conform to its specified tolerance of ±0.50 % of flow span');
     expect(text).toContain('As left, the instrument conforms to its specified tolerance of ±0.50 % of flow span at all 9 test points.');
-    expect(text).toContain('coverage factor k = 2');
+    // k per point, t_p(nu_eff) (JCGM 100:2008 G.3-G.4): stated as a method, and printed for every point.
+    expect(text).toContain("the coverage factor k of Student's t distribution at each point's effective degrees of freedom");
+    const data = sampleCertificate();
+    for (const p of [...data.asFound.points, ...data.asLeft!.points]) expect(text).toContain(p.coverageFactor!.toFixed(2));
+    const ks = [...data.asFound.points, ...data.asLeft!.points].map((p) => p.coverageFactor!);
+    expect(Math.min(...ks)).toBeGreaterThan(2); // finite nu_eff: k above the normal 2
   });
 
   it('carries traceability, environment, signatures, page numbers and the reproduction note', () => {

@@ -30,7 +30,7 @@ function resultsTable(w: Writer, data: CertificateData, r: CertificateResults): 
   const unit = data.instrument.range.unit;
   const dpDec = dpDecimals(data.instrument.range.urv - data.instrument.range.lrv);
   const basis = r.points[0]?.basis ?? data.method.basis;
-  const k = r.points[0]?.coverageFactor ?? 2;
+  // Each point's U has its own coverage factor, k = t_p(ν_eff) of that point (GUM G.3–G.4), so k is a column.
   const columns: Column[] = [
     { header: '#', width: 18, align: 'right', mono: true },
     { header: `Nominal\n% ${basis === 'flow' ? 'flow' : 'DP'}`, width: 42, align: 'right', mono: true },
@@ -39,7 +39,8 @@ function resultsTable(w: Writer, data: CertificateData, r: CertificateResults): 
     { header: 'Expected\nmA', width: 50, align: 'right', mono: true },
     { header: 'Measured\nmA', width: 50, align: 'right', mono: true },
     { header: `Error\n% ${spanWord(data)}`, width: 48, align: 'right', mono: true },
-    { header: `U (k = ${num(k, k % 1 === 0 ? 0 : 2)})\n% ${spanWord(data)}`, width: 50, align: 'right', mono: true },
+    { header: `U\n% ${spanWord(data)}`, width: 44, align: 'right', mono: true },
+    { header: 'k', width: 26, align: 'right', mono: true },
   ];
   // Applied flow only means something when the output is a flow signal.
   const showFlow = r.points.some((p) => p.appliedFlowPct !== null);
@@ -56,6 +57,7 @@ function resultsTable(w: Writer, data: CertificateData, r: CertificateResults): 
     { text: num(p.measuredMa, 4) },
     { text: num(p.errorPctSpan, 3, true) },
     { text: num(p.expandedUncertaintyPctSpan, 3) },
+    { text: p.expandedUncertaintyPctSpan === null ? '—' : num(p.coverageFactor, 2) },
     { text: decisionText(p.decision), color: decisionColor(p.decision), strong: p.decision !== 'pass' },
   ]);
   w.table(columns, rows);
@@ -283,9 +285,8 @@ export function writeBody(w: Writer, data: CertificateData): void {
   hysteresisTable(w, data);
 
   w.heading('Measurement uncertainty');
-  const k = data.asFound.points[0]?.coverageFactor ?? 2;
   w.paragraph(
-    `U is the expanded uncertainty of each point in % of ${rooted ? 'flow' : 'output'} span, the standard uncertainty multiplied by the coverage factor k = ${num(k, k % 1 === 0 ? 0 : 2)}, which for a normal distribution gives a coverage probability of about 95 %. It was evaluated per JCGM 100:2008 (GUM) from the reference standards' specifications, the meter's resolution and the repeatability over the hold. Errors are (measured − expected)/16 mA × 100, the expected current taken at the DP actually applied; hysteresis at a nominal point is the difference between its upscale and downscale errors.`,
+    `U is the expanded uncertainty of each point in % of ${rooted ? 'flow' : 'output'} span, the standard uncertainty multiplied by ${coverageStatement(data)}. It was evaluated per JCGM 100:2008 (GUM) from the reference standards' specifications, the meter's resolution and the repeatability over the hold. Errors are (measured − expected)/16 mA × 100, the expected current taken at the DP actually applied; hysteresis at a nominal point is the difference between its upscale and downscale errors.`,
   );
 
   w.heading('Decision rule and statement of conformity');
@@ -318,3 +319,22 @@ export function writeBody(w: Writer, data: CertificateData): void {
   w.font('textStrong', 8.5, COLOR.muted).text('End of certificate', MARGIN.left, w.doc.y, { width: CONTENT_W, align: 'center' });
 }
 
+
+/**
+ * How the coverage factors were chosen, from the points' own k and ν_eff: a fixed k when the site
+ * fixes it, else k = t_p(ν_eff) per point (Student's t at the Welch–Satterthwaite effective degrees
+ * of freedom, JCGM 100:2008 G.3–G.4), with the range of k that occurs.
+ */
+function coverageStatement(data: CertificateData): string {
+  const pts = [...data.asFound.points, ...(data.asLeft?.points ?? [])].filter((p) => p.expandedUncertaintyPctSpan !== null && p.coverageFactor !== null);
+  const ks = pts.map((p) => p.coverageFactor!);
+  if (ks.length === 0) return 'a coverage factor k (no point had a computable uncertainty)';
+  const fixed = pts.every((p) => p.coverageProbability === null || p.coverageProbability === undefined);
+  const lo = Math.min(...ks);
+  const hi = Math.max(...ks);
+  if (fixed) return `the coverage factor k = ${num(lo, lo % 1 === 0 ? 0 : 2)} fixed by the site, which for a normal distribution gives a coverage probability of about 95 %`;
+  const p = pts[0]!.coverageProbability!;
+  const range = Math.abs(hi - lo) < 0.005 ? `k = ${num(lo, 2)} at every point` : `k from ${num(lo, 2)} to ${num(hi, 2)}, given for each point in the results`;
+  // No Greek letters: the certificate's font subset is latin (fonts.ts).
+  return `the coverage factor k of Student's t distribution at each point's effective degrees of freedom (Welch–Satterthwaite formula, JCGM 100:2008, G.3–G.4) for a coverage probability of ${num(p * 100, 2)} %, ${range}`;
+}

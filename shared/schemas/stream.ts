@@ -154,7 +154,10 @@ export const ClientMessageSchema = z.discriminatedUnion('type', [
     senderId: z.string().regex(/^[A-Za-z0-9_-]{1,64}$/),
     batchSeq: z.number().int().min(1).max(Number.MAX_SAFE_INTEGER),
     sentWallMs: z.number(),
-    lines: z.array(z.object({ device: DeviceSchema, raw: z.string().max(512), wallMs: z.number() })).max(500),
+    // A raw line up to 16 384 characters passes the message contract (a message is at most 64 KiB)
+    // so that an overlong line is refused and counted at the edge check (shared/protocol
+    // clean-line.ts, at most 256 characters), not dropped with its whole batch unseen.
+    lines: z.array(z.object({ device: DeviceSchema, raw: z.string().max(16_384), wallMs: z.number() })).max(500),
   }),
 ]);
 export type ClientMessage = z.infer<typeof ClientMessageSchema>;
