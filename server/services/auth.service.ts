@@ -7,7 +7,7 @@ import { AppError, badRequest, locked, unauthenticated } from '../errors';
 import type { Role } from '../../shared/schemas/auth';
 import type { AuditService } from './audit.service';
 import { createSessionEvents, type SessionEndReason, type SessionEvents } from './session-events';
-import { isCommonPassword } from './common-passwords';
+import { MIN_PASSWORD_SCORE, passwordStrength } from './password-strength';
 
 /** bcrypt cost factor; 2^11 rounds (OWASP password storage guidance asks for at least 10). */
 export const BCRYPT_COST = 11;
@@ -62,13 +62,18 @@ export function hashPassword(password: string): Promise<string> {
 }
 
 /**
- * Why a new password is refused, or undefined. `@zxcvbn-ts/core` is not installed, so this is the
- * short common-password list of common-passwords.ts plus the account's own email name.
+ * Why a new password is refused, or undefined: an estimated strength below
+ * {@link MIN_PASSWORD_SCORE} by `@zxcvbn-ts/core` (password-strength.ts), with the account's email
+ * name and the product's words as user inputs, or the email name inside the password.
  */
 export function newPasswordProblem(password: string, email: string): string | undefined {
   const name = email.split('@')[0]!.toLowerCase();
-  if (isCommonPassword(password) || (name.length >= 3 && password.toLowerCase().includes(name))) return 'This password is too common or contains the email name';
-  return undefined;
+  if (name.length >= 3 && password.toLowerCase().includes(name)) return 'This password contains the name part of the email address; choose one that does not';
+  const s = passwordStrength(password, email);
+  if (s.score >= MIN_PASSWORD_SCORE) return undefined;
+  const why = s.warning ?? 'It would be guessed too quickly.';
+  const how = s.suggestions[0] ?? 'Use a longer password of several unrelated words.';
+  return `This password is too easy to guess. ${why} ${how}`;
 }
 
 /** Lock length after `failures` failed sign-ins in a row (0 below the threshold). */

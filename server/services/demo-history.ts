@@ -25,10 +25,11 @@ import type { Db } from '../db/client';
 import { instrumentRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
 import { reviewRepository } from '../db/repositories/review.repository';
 import { userRepository } from '../db/repositories/user.repository';
-import type { AuditService } from './audit.service';
+import type { JobDetail } from '../../shared/schemas/jobs';
+import { createAuditService, type AuditService } from './audit.service';
 import { addDays, isoDate } from './dates';
-import { recordHash, toSnapshotRun } from './review.service';
 import { EMPTY_CHECKLIST } from './job.service';
+import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
 
 const DEMO_DOMAIN = 'stillpoint-demo.test';
 /** The bench id run plans name (the server's own bench). */
@@ -245,6 +246,14 @@ export async function seedDemoHistory(
   const now = opts.now ?? new Date();
   const today = isoDate(now);
   const repo = reviewRepository(db);
+  const freezer = createRecordFreezer(db, opts.audit ?? createAuditService(db));
+  /** Freezes revision 1 of a demo job as a submission would, by its performer; returns the record hash. */
+  const freeze = async (detail: JobDetail, by: { id: string; name: string }, at: Date): Promise<string> => {
+    const record = await freezer.build(detail, by, at);
+    const hash = frozenRecordHash(record);
+    await repo.saveSnapshot({ jobId: detail.id, revision: 1, snapshot: record, hash, frozenAt: at });
+    return hash;
+  };
   const users = userRepository(db);
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
@@ -318,7 +327,29 @@ export async function seedDemoHistory(
         zeroLeft = zeroFound;
         spanLeft = spanFound;
       }
-      const runs = (await repo.runsWithPoints(job.id)).map(toSnapshotRun);
+      // Frozen as the lead signed it (the same record and hash a real submission and signature make).
+      const signedAt = new Date(startedAt.getTime() + 2 * 86_400_000);
+      const detail: JobDetail = {
+        id: job.id,
+        instrumentId: inst.id,
+        tag: inst.tag,
+        status: 'submitted',
+        assigneeId: assignee.id,
+        assigneeName: assignee.name,
+        dueOn: on,
+        overdue: false,
+        permitNo: job.permitNo,
+        notes: job.notes,
+        revision: 1,
+        createdAt: job.createdAt.toISOString(),
+        updatedAt: job.updatedAt.toISOString(),
+        checklist: job.checklist as JobDetail['checklist'],
+        standards: [],
+        runs: [],
+        blockers: [],
+        submitBlockers: [],
+      };
+      const hash = await freeze(detail, { id: assignee.id, name: assignee.name }, new Date(startedAt.getTime() + 86_400_000));
       await repo.insertSignature({
         jobId: job.id,
         revision: 1,
@@ -328,30 +359,8 @@ export async function seedDemoHistory(
         signerId: lead.id,
         signerName: lead.name,
         signerEmail: lead.email,
-        signedAt: new Date(startedAt.getTime() + 2 * 86_400_000),
-        recordHash: recordHash(
-          {
-            id: job.id,
-            instrumentId: inst.id,
-            tag: inst.tag,
-            status: 'submitted',
-            assigneeId: assignee.id,
-            assigneeName: assignee.name,
-            dueOn: on,
-            overdue: false,
-            permitNo: job.permitNo,
-            notes: job.notes,
-            revision: 1,
-            createdAt: job.createdAt.toISOString(),
-            updatedAt: job.updatedAt.toISOString(),
-            checklist: job.checklist as never,
-            standards: [],
-            runs: [],
-            blockers: [],
-            submitBlockers: [],
-          },
-          runs,
-        ),
+        signedAt,
+        recordHash: hash,
       });
       jobsWritten++;
     }
@@ -379,6 +388,32 @@ export async function seedDemoHistory(
     const al = await recordCompletedRun(db, { jobId: job.id, kind: 'as-left', instrument: pending, pressureStandard: pressureFor(pending), currentStandard: currentStd, errorsPctSpan: [0.01, -0.02, 0.0, 0.02, 0.01, 0.02, 0.0, -0.01, 0.01], startedAt: new Date(af.endedAt.getTime() + 30 * 60_000), startedBy: tech.id, trace: { hz: 10, seqBase: base + af.samples + 10, seed: 303 } });
     samplesWritten += af.samples + al.samples;
     runsWritten += 2;
+    // Submitted: frozen at submission, as the review expects.
+    const submittedAt = new Date(al.endedAt.getTime() + 60 * 60_000);
+    await freeze(
+      {
+        id: job.id,
+        instrumentId: pending.id,
+        tag: pending.tag,
+        status: 'submitted',
+        assigneeId: tech.id,
+        assigneeName: tech.name,
+        dueOn: job.dueOn,
+        overdue: false,
+        permitNo: job.permitNo,
+        notes: job.notes,
+        revision: 1,
+        createdAt: job.createdAt.toISOString(),
+        updatedAt: job.updatedAt.toISOString(),
+        checklist: job.checklist as JobDetail['checklist'],
+        standards: [],
+        runs: [],
+        blockers: [],
+        submitBlockers: [],
+      },
+      { id: tech.id, name: tech.name },
+      submittedAt,
+    );
     jobsWritten++;
   }
   await opts.audit?.record(null, 'demo.history-seeded', 'site', null, undefined, { jobs: jobsWritten, runs: runsWritten, samples: samplesWritten, tags });

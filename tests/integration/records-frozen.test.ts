@@ -70,6 +70,22 @@ afterAll(async () => {
   if (dir) await fs.rm(dir, { recursive: true, force: true });
 });
 
+describe('the demo history is frozen like a real record', () => {
+  it('every approved demo job has a stored frozen record whose hash matches and which its signature signs', async () => {
+    const approved = ((await c.lead.get('/api/records?status=approved')).body.items ?? []) as Array<{ jobId?: string; id?: string }>;
+    expect(approved.length).toBeGreaterThan(3);
+    for (const row of approved.slice(0, 8)) {
+      const id = row.jobId ?? row.id!;
+      const r = await c.auditor.get(`/api/jobs/${id}/record`);
+      expect(r.status).toBe(200);
+      expect(r.body.record, `job ${id} frozen`).not.toBeNull();
+      expect(r.body.storedHashMatches).toBe(true);
+      expect(r.body.signatures.length).toBeGreaterThan(0);
+      for (const sig of r.body.signatures as Array<{ valid: boolean }>) expect(sig.valid).toBe(true);
+    }
+  });
+});
+
 describe('a signed record is frozen', () => {
   it('stores the record at submission with its hash', async () => {
     expect((await c.tech.post(`/api/jobs/${jobId}/submit`)).status).toBe(200);

@@ -46,9 +46,8 @@ function sendBadLines(ws: WebSocket, marker: string, userId: string): number {
     ws.send(JSON.stringify({ type: 'lines.forwarded', benchId, senderId: sender, batchSeq: seq, sentWallMs: Date.now(), lines: [{ device: 'current', raw, wallMs: Date.now() }] }));
   const bad = ['A\u0000B', ...C0.map((c) => `+1.2${String.fromCharCode(c)}00E-02`)];
   for (const raw of bad) send(raw);
-  // 10 000 characters: the message contract (raw at most 512) refuses the whole message before the
-  // edge; sent from a sender of its own so that its refusal touches no other batch.
-  send('x'.repeat(10_000), `${senderId}-long`, 1);
+  // 10 000 characters: within the message contract (a raw line up to 16 384), refused at the edge (256).
+  send('x'.repeat(10_000));
   send(marker);
   return bad.length + 1;
 }
@@ -91,9 +90,8 @@ describe('storage edges on one server (in-process)', () => {
     );
     expect(after.filter((s) => CONTROL.test(s.raw) || s.raw.length > 256)).toEqual([]);
     const status = (await tech.get('/api/bench')).body as { storage: { edgeRefused: number; quarantined: { total: number } } };
-    // NUL and the 30 other controls are counted at the edge; the 10 000-character line never passes
-    // the message schema (a raw line is at most 512 characters there), so it is not even counted.
-    expect(status.storage.edgeRefused).toBe(1 + C0.length);
+    // NUL, the 30 other controls and the 10 000-character line are each refused and counted at the edge.
+    expect(status.storage.edgeRefused).toBe(1 + C0.length + 1);
     expect(status.storage.quarantined.total).toBe(0);
     expect((await tech.get('/api/health')).body).toMatchObject({ ok: true, status: 'ok' });
     ws.terminate();
@@ -185,7 +183,7 @@ describe('storage edges across a SIGKILL (real server process)', () => {
     );
     const status = (await admin.get('/api/bench')).body as { ackedSeq: number; latestSeq: number; storage: { edgeRefused: number } };
     acked = status.ackedSeq;
-    expect(status.storage.edgeRefused).toBe(1 + C0.length);
+    expect(status.storage.edgeRefused).toBe(1 + C0.length + 1);
     first.child.kill('SIGKILL');
     await first.exited;
     ws.terminate();
