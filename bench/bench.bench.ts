@@ -17,7 +17,7 @@ import http from 'node:http';
 import os from 'node:os';
 import { monitorEventLoopDelay, PerformanceObserver } from 'node:perf_hooks';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
+import { isMainModule, type BenchFigure } from './figure';
 import { PGlite } from '@electric-sql/pglite';
 import { ReadlineParser } from '@serialport/parser-readline';
 import { SerialPort } from 'serialport';
@@ -33,15 +33,6 @@ import { BenchHub } from '../server/bench/hub';
 import { SIMCAL_FEED_PROFILE } from '../shared/protocol';
 import type { StreamMessage } from '../shared/schemas/stream';
 import { findSocat } from '../simulators/pty-sim';
-
-/** One benchmark figure. */
-export interface BenchFigure {
-  name: string;
-  value: number;
-  unit: string;
-  target?: string;
-  ok?: boolean;
-}
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const tmp = () => fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-bench-'));
@@ -481,8 +472,7 @@ export async function run(): Promise<BenchFigure[]> {
   return out;
 }
 
-const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   console.table(await run());
   process.exit(0);
 }

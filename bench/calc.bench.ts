@@ -2,17 +2,8 @@
  * Throughput of the incremental hold analysis (shared/calc HoldAnalyzer) on one core.
  * Run: `npx tsx bench/calc.bench.ts`. Exports `run()` for an aggregating bench runner.
  */
-import { pathToFileURL } from 'node:url';
+import { isMainModule, type BenchFigure } from './figure';
 import { HoldAnalyzer } from '../shared/calc';
-
-/** One benchmark figure. */
-export interface BenchFigure {
-  name: string;
-  value: number;
-  unit: string;
-  target?: string;
-  ok?: boolean;
-}
 
 const SAMPLES = 6_000_000;
 const TARGET = 1_000_000;
@@ -90,8 +81,7 @@ export async function run(): Promise<BenchFigure[]> {
   ];
 }
 
-const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   const figures = await run();
   console.table(figures);
 }

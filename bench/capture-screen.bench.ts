@@ -8,18 +8,10 @@
  * Run: `npx tsx bench/capture-screen.bench.ts`. Duration: env CAPTURE_BENCH_SECONDS (default 600,
  * the acceptance run); exports `run()` for `npm run bench`.
  */
-import { pathToFileURL } from 'node:url';
+import { isMainModule, type BenchFigure } from './figure';
 import ensureBuiltAndChromium from '../tests/e2e/global-setup';
 import { launchBrowser } from '../tests/helpers/browser';
 import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer } from '../tests/helpers/test-server';
-
-export interface BenchFigure {
-  name: string;
-  value: number;
-  unit: string;
-  target?: string;
-  ok?: boolean;
-}
 
 const RATE_HZ = 20;
 const WARMUP_S = 5;
@@ -135,6 +127,6 @@ export async function run(): Promise<BenchFigure[]> {
   }
 }
 
-if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {
+if (isMainModule(import.meta.url)) {
   for (const f of await run()) console.log(`${f.name}: ${Number.isInteger(f.value) ? f.value : f.value.toFixed(2)} ${f.unit}${f.target ? ` (target ${f.target})` : ''}${f.ok === undefined ? '' : f.ok ? ' ok' : ' NOT MET'}`);
 }

@@ -9,8 +9,7 @@
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
-import type { BenchFigure } from './bench.bench';
+import { isMainModule, type BenchFigure } from './figure';
 
 
 const ROOT = path.resolve(import.meta.dirname, '..');
@@ -44,8 +43,7 @@ export async function run(): Promise<BenchFigure[]> {
   ];
 }
 
-const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   console.table(await run());
   process.exit(0);
 }

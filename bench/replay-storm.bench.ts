@@ -14,11 +14,10 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
 import WebSocket from 'ws';
 import type { StreamMessage } from '../shared/schemas/stream';
 import { randomPort, startServerProcess, waitHealthy } from '../tests/helpers/proof-process';
-import type { BenchFigure } from './bench.bench';
+import { isMainModule, type BenchFigure } from './figure';
 
 const SOCKETS = 100;
 const ACCOUNTS = 10;
@@ -165,8 +164,7 @@ export async function run(): Promise<BenchFigure[]> {
   }
 }
 
-const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   console.table(await run());
   process.exit(0);
 }

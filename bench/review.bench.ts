@@ -6,7 +6,7 @@
  * same from a cold page load, and the server time of the whole-run trace request.
  * Run: `npx tsx bench/review.bench.ts`, or through `npm run bench`.
  */
-import { pathToFileURL } from 'node:url';
+import { isMainModule, type BenchFigure } from './figure';
 import { boot } from '../server/boot';
 import { instrumentRepository, standardRepository } from '../server/db/repositories/register.repository';
 import { reviewRepository } from '../server/db/repositories/review.repository';
@@ -16,15 +16,6 @@ import { createLogger } from '../server/logger';
 import { recordCompletedRun } from '../server/services/demo-history';
 import { launchBrowser } from '../tests/helpers/browser';
 import setupE2e from '../tests/e2e/global-setup';
-
-/** One benchmark figure. */
-export interface BenchFigure {
-  name: string;
-  value: number;
-  unit: string;
-  target?: string;
-  ok?: boolean;
-}
 
 const TARGET_MS = 300;
 const ROUNDS = 9;
@@ -127,7 +118,6 @@ export async function run(): Promise<BenchFigure[]> {
   }
 }
 
-const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   console.table(await run());
 }

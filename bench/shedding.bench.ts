@@ -14,13 +14,12 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
 import WebSocket from 'ws';
 import { EvaluateBodySchema } from '../shared/schemas/calc';
 import { ApiClient, demoEmail } from '../tests/helpers/test-server';
 import { percentile, prepareFt101, sleep } from '../tests/helpers/proof-helpers';
 import { startHealthy } from '../tests/helpers/proof-process';
-import type { BenchFigure } from './bench.bench';
+import { isMainModule, type BenchFigure } from './figure';
 
 const SECONDS = Number(process.env.BENCH_SHED_SECONDS ?? 15);
 const RATES = (process.env.BENCH_SHED_RATES ?? '100,150,200,250,300').split(',').map(Number);
@@ -178,8 +177,7 @@ export async function run(): Promise<BenchFigure[]> {
   }
 }
 
-const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
-if (isMain) {
+if (isMainModule(import.meta.url)) {
   console.table(await run());
   process.exit(0);
 }

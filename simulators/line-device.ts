@@ -3,7 +3,7 @@
  * misbehaves on demand (late, missing or garbled replies).
  */
 import { LineFramer, type LineTerminator } from '../shared/protocol';
-import { seededRng, type Rng } from './random';
+import { seededRng, type Rng } from '../shared/random';
 
 /** A simulated instrument as the serial binding and the pty runner see it: bytes in, bytes out. */
 export interface SimDevice {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { seededRng } from './random';
+import { seededRng } from '../shared/random';
 import {
   DEFAULT_SOURCE,
   DEFAULT_TRANSMITTER,

@@ -3,7 +3,7 @@
  * formulas are written out locally (from REFERENCE.md, "Transfer functions") so the simulator
  * stays independent of `shared/calc`.
  */
-import { gaussian, type Rng } from './random';
+import { gaussian, type Rng } from '../shared/random';
 
 // ---------------------------------------------------------------------------------------------
 // Pressure source: the technician's hand pump / volume controller plus the tubing.

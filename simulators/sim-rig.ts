@@ -7,7 +7,7 @@ import { PressureCalibratorEmulator } from './pressure-calibrator-emulator';
 import { ScpiMeterEmulator } from './scpi-meter-emulator';
 import { createSimBinding, type SimBinding } from './sim-binding';
 import type { DeviceFaults } from './line-device';
-import { seededRng, type Rng } from './random';
+import { seededRng, type Rng } from '../shared/random';
 import { defaultMargin, releasePoint, startAutopilot, stepAutopilot, type AutopilotPlan, type AutopilotState } from './autopilot';
 import {
   appliedPressure,

@@ -21,6 +21,7 @@ import {
   type PressureUnitId,
   type TransferSpec,
 } from '../../shared/calc';
+import { seededRng } from '../../shared/random';
 import type { Db } from '../db/client';
 import { instrumentRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
 import { reviewRepository } from '../db/repositories/review.repository';
@@ -35,17 +36,6 @@ const DEMO_DOMAIN = 'stillpoint-demo.test';
 /** The bench id run plans name (the server's own bench). */
 const BENCH_ID = 'bench-1';
 
-/** Deterministic pseudo-random numbers (mulberry32), so the demo is the same on every start. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function cutoffOf(i: InstrumentRow): Cutoff {
   if (i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)) return { mode: 'none' };
@@ -104,7 +94,7 @@ export async function recordCompletedRun(db: Db, s: CompletedRunSpec): Promise<{
   const pts: PlanPoint[] = plan.value;
   const hold = s.holdSeconds ?? 30;
   const dpSpan = Math.abs(span(spec.range));
-  const rand = rng(s.trace?.seed ?? Math.floor(s.startedAt.getTime() / 1000));
+  const rand = seededRng(s.trace?.seed ?? Math.floor(s.startedAt.getTime() / 1000));
   const gauss = () => {
     const u = Math.max(rand(), 1e-12);
     return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());
@@ -284,7 +274,7 @@ export async function seedDemoHistory(
     if (!inst?.lastCalibratedOn) continue;
     if ((await repo.approvedJobsWithRuns(inst.id)).length) continue;
     tags.push(h.tag);
-    const rand = rng(h.seed);
+    const rand = seededRng(h.seed);
     const pStd = pressureFor(inst);
     const count = Math.min(7, Math.ceil(1095 / inst.intervalDays) + 1);
     const dates = Array.from({ length: count }, (_, k) => addDays(inst.lastCalibratedOn!, -(count - 1 - k) * inst.intervalDays));

@@ -1,30 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
+import { normalSource, seededRng } from '../random';
 import { analyzeHold, BoundedSeries, ChannelAccumulator, HoldAnalyzer, typeAOfMean, type HoldSample } from './hold';
 
-/** mulberry32 PRNG (public-domain algorithm), uniform in [0, 1). */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
-/** Box–Muller standard normal from a uniform source. */
-function gaussian(rand: () => number): () => number {
-  return () => {
-    const u1 = 1 - rand();
-    const u2 = rand();
-    return Math.sqrt(-2 * Math.log(u1)) * Math.cos(2 * Math.PI * u2);
-  };
-}
 
 function trace(seed: number, n: number, dtMs: number, t0: number, y0: number, slopePerMin: number, sigma: number): HoldSample[] {
-  const g = gaussian(mulberry32(seed));
+  const g = normalSource(seededRng(seed));
   const out: HoldSample[] = [];
   for (let i = 0; i < n; i++) {
     const t = t0 + i * dtMs;
@@ -122,18 +104,8 @@ describe('hold analysis', () => {
 });
 
 describe('Type A of the mean of autocorrelated readings (Zhang, Metrologia 43 (2006) S276–S281)', () => {
-  // Seeded generator (mulberry32) and Box–Muller normals, so the test is repeatable.
-  function rng(seed: number) {
-    let a = seed >>> 0;
-    const u = () => {
-      a = (a + 0x6d2b79f5) >>> 0;
-      let t = a;
-      t = Math.imul(t ^ (t >>> 15), t | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-    };
-    return () => Math.sqrt(-2 * Math.log(u() + 1e-300)) * Math.cos(2 * Math.PI * u());
-  }
+  // Seeded generator and Box–Muller normals (shared/random.ts), so the test is repeatable.
+  const rng = (seed: number) => normalSource(seededRng(seed));
   function ar1(n: number, phi: number, sigmaE: number, normal: () => number): Float64Array {
     const y = new Float64Array(n);
     let x = (normal() * sigmaE) / Math.sqrt(1 - phi * phi); // start in the stationary distribution

@@ -18,6 +18,7 @@ import type { StreamMessage } from '../../shared/schemas/stream';
 import { prepareFt101, sleep } from './proof-helpers';
 import { randomPort, startServerProcess, waitHealthy, type ServerProcess } from './proof-process';
 import { ApiClient, demoEmail } from './test-server';
+import { seededRng } from '../../shared/random';
 
 /** What a message says, without its seq: the same seq must always say the same. */
 function identity(m: StreamMessage): string {
@@ -76,15 +77,7 @@ function openViewer(base: string, cookie: string, resume: { since: number; epoch
 export async function killAndResume(o: { kills: number; seed: number; log?: (line: string) => void }): Promise<EpochsOutcome> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-epochs-'));
   const children: ServerProcess[] = [];
-  let a = o.seed >>> 0;
-  const random = () => {
-    // mulberry32
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const random = seededRng(o.seed);
   const t0 = Date.now();
   const seen = new Map<number, { epoch: string; what: string }>();
   const clashes: SeqClash[] = [];

@@ -21,6 +21,7 @@ import { ApiClient, demoEmail } from '../helpers/test-server';
 import { prepareFt101, recordSummary, sleep } from '../helpers/proof-helpers';
 import { proofCount } from '../helpers/proof-level';
 import { freshPostgresUrl, randomPort, startHealthy, startServerProcess, type ServerProcess } from '../helpers/proof-process';
+import { seededRng } from '../../shared/random';
 
 const PG_ADMIN = process.env.TEST_DATABASE_URL;
 const KILLS = PG_ADMIN ? proofCount('PROOF_KILLS', 3, 15) : proofCount('PROOF_KILLS', 5, 50);
@@ -35,17 +36,6 @@ function startServer(port: number, databaseUrl: string | undefined): ServerProce
   return s;
 }
 
-/** Small seeded PRNG (mulberry32) so a failing run can be replayed with PROOF_KILL_SEED. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Collects sample.received messages from /ws: seq → raw line. */
 function watchStream(base: string, cookie: string) {
@@ -76,7 +66,8 @@ afterAll(async () => {
 
 describe('durability under SIGKILL during capture', () => {
   it(`survives ${KILLS} kills at random moments with every acknowledged sample and captured point`, { timeout: 2_700_000 }, async () => {
-    const random = rng(SEED);
+    // Seeded (shared/random.ts) so a failing run can be replayed with PROOF_KILL_SEED.
+    const random = seededRng(SEED);
     pgdb = await freshPostgresUrl('sp_dur');
     const databaseUrl = pgdb?.url;
     const t0 = Date.now();

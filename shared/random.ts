@@ -1,4 +1,7 @@
-/** Seeded randomness so simulated runs and tests repeat exactly. */
+/**
+ * Seeded randomness so simulated runs, the demo history, tests and proofs repeat exactly: one
+ * generator (mulberry32, a public-domain algorithm) for all of them.
+ */
 
 /** Uniform numbers in [0, 1). */
 export type Rng = () => number;
@@ -19,4 +22,9 @@ export function seededRng(seed = 1): Rng {
 export function gaussian(rng: Rng): number {
   const u = Math.max(rng(), Number.EPSILON);
   return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rng());
+}
+
+/** A source of standard normal deviates (Box–Muller) drawn from `rng`. */
+export function normalSource(rng: Rng): () => number {
+  return () => gaussian(rng);
 }
