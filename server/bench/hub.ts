@@ -7,6 +7,7 @@
  */
 import type { DeviceKind } from '../../shared/protocol';
 import type { StreamEvent, StreamMessage } from '../../shared/schemas/stream';
+import { RingBuffer } from './ring-buffer';
 
 /**
  * Where a line came from: this server's own port (`id` the bench id), a registered bench agent
@@ -104,56 +105,6 @@ export function toStreamMessage(e: HubEntry): StreamMessage {
   };
 }
 
-/** Fixed-capacity ring of entries ordered by seq. */
-export class RingBuffer {
-  private readonly items: (HubEntry | undefined)[];
-  private start = 0;
-  private size = 0;
-
-  constructor(readonly capacity: number) {
-    this.items = new Array<HubEntry | undefined>(capacity);
-  }
-
-  push(e: HubEntry): void {
-    const i = (this.start + this.size) % this.capacity;
-    this.items[i] = e;
-    if (this.size < this.capacity) this.size++;
-    else this.start = (this.start + 1) % this.capacity;
-  }
-
-  get length(): number {
-    return this.size;
-  }
-
-  /** Oldest seq kept, or undefined when empty. */
-  get oldestSeq(): number | undefined {
-    return this.size ? this.items[this.start]!.seq : undefined;
-  }
-
-  /**
-   * At most `limit` entries with `since` < seq ≤ `upTo`, oldest first (one page of a resume);
-   * undefined when entries after `since` have already been evicted.
-   */
-  page(since: number, limit: number, upTo = Infinity): HubEntry[] | undefined {
-    if (this.size === 0) return [];
-    if (since < this.items[this.start]!.seq - 1) return undefined;
-    let lo = 0;
-    let hi = this.size;
-    while (lo < hi) {
-      const mid = (lo + hi) >>> 1;
-      if (this.items[(this.start + mid) % this.capacity]!.seq <= since) lo = mid + 1;
-      else hi = mid;
-    }
-    const out: HubEntry[] = [];
-    for (let k = lo; k < this.size && out.length < limit; k++) {
-      const e = this.items[(this.start + k) % this.capacity]!;
-      if (e.seq > upTo) break;
-      out.push(e);
-    }
-    return out;
-  }
-}
-
 /** Options of {@link BenchHub}. */
 export interface BenchHubOptions {
   /** Ring buffer capacity, entries. Default 200 000. */
@@ -169,7 +120,7 @@ export interface BenchHubOptions {
 
 /** The hub. One per process; benches are named by id. */
 export class BenchHub {
-  readonly ring: RingBuffer;
+  readonly ring: RingBuffer<HubEntry>;
   private nextSeq: number;
   private readonly consumers: Consumer[] = [];
   private readonly wallNow: () => number;
@@ -180,7 +131,7 @@ export class BenchHub {
   private seqGuard: ((seq: number) => void) | undefined;
 
   constructor(options: BenchHubOptions = {}) {
-    this.ring = new RingBuffer(options.ringCapacity ?? 200_000);
+    this.ring = new RingBuffer<HubEntry>(options.ringCapacity ?? 200_000);
     this.nextSeq = options.firstSeq ?? 1;
     this.wallNow = options.wallNow ?? Date.now;
     this.monoNow = options.monoNow ?? (() => performance.now());

@@ -5,7 +5,8 @@
  * Device and run events are not stored, so a resume older than the ring gets the samples only.
  */
 import type { StreamMessage } from '../../shared/schemas/stream';
-import { toStreamMessage, type RingBuffer } from './hub';
+import { toStreamMessage, type HubEntry } from './hub';
+import type { RingBuffer } from './ring-buffer';
 
 /** A stored sample row as the sample repository returns it. */
 export interface StoredSample {
@@ -21,7 +22,7 @@ export interface StoredSample {
 
 /** Where a resume reads from. */
 export interface ReplaySource {
-  ring: RingBuffer;
+  ring: RingBuffer<HubEntry>;
   /** Stored samples with seq > `after`, oldest first, at most `limit`. */
   stored(after: number, limit: number): Promise<StoredSample[]>;
   /** Highest seq below which every sample is stored. */
