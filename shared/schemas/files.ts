@@ -26,6 +26,6 @@ export const AttachmentListSchema = z.object({ items: z.array(AttachmentSchema) 
 
 /** Body of `DELETE /api/attachments/:id`: removing a file needs a reason, kept in the audit trail. */
 export const RemoveAttachmentBodySchema = z.object({
-  reason: z.string().trim().min(5, 'Say why the file is removed (at least 5 characters)').max(500, 'Keep the reason under 500 characters'),
+  reason: z.string({ message: 'Say why the file is removed' }).trim().min(5, 'Say why the file is removed (at least 5 characters)').max(500, 'Keep the reason under 500 characters'),
 });
 export type RemoveAttachmentBody = z.input<typeof RemoveAttachmentBodySchema>;

@@ -89,15 +89,23 @@ export function reviewRepository(db: Db) {
           revision: jobs.revision,
           frozenAt: recordSnapshots.frozenAt,
           updatedAt: jobs.updatedAt,
-          returns: sql<number>`(select count(*)::int from ${signatures} where ${signatures.jobId} = ${jobs.id} and ${signatures.decision} = 'return')`,
         })
         .from(jobs)
         .innerJoin(instruments, eq(instruments.id, jobs.instrumentId))
         .leftJoin(users, eq(users.id, jobs.assigneeId))
         .leftJoin(recordSnapshots, and(eq(recordSnapshots.jobId, jobs.id), eq(recordSnapshots.revision, jobs.revision)))
         .where(eq(jobs.status, 'submitted'));
+      const returns = new Map<string, number>();
+      if (rows.length) {
+        const counted = await db
+          .select({ jobId: signatures.jobId, n: sql<number>`count(*)::int` })
+          .from(signatures)
+          .where(and(inArray(signatures.jobId, rows.map((r) => r.id)), eq(signatures.decision, 'return')))
+          .groupBy(signatures.jobId);
+        for (const x of counted) returns.set(x.jobId, x.n);
+      }
       return rows
-        .map((r) => ({ id: r.id, tag: r.tag, service: r.service, assigneeName: r.assigneeName, revision: r.revision, submittedAt: r.frozenAt ?? r.updatedAt, returns: r.returns }))
+        .map((r) => ({ id: r.id, tag: r.tag, service: r.service, assigneeName: r.assigneeName, revision: r.revision, submittedAt: r.frozenAt ?? r.updatedAt, returns: returns.get(r.id) ?? 0 }))
         .sort((a, b) => a.submittedAt.getTime() - b.submittedAt.getTime() || a.tag.localeCompare(b.tag));
     },
 
