@@ -386,6 +386,8 @@ export const DriftReportSchema = z.object({
   /** Largest |predicted error| at the next due date over all points, or null. */
   worstPredicted: z.number().nullable(),
   recommendations: z.array(IntervalRecommendationSchema),
+  /** Which recommendation governs and why, in words; null without any. Additive. */
+  governing: z.object({ method: z.enum(['staircase', 'reliability']), reason: z.string() }).nullable().optional(),
 });
 export type DriftReport = z.infer<typeof DriftReportSchema>;
 
