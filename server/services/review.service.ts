@@ -228,8 +228,10 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       const instrument = { ...live, ...asUsed } as typeof live;
       const performed = performerIds(job, runs);
       const no = cannotSign(user, job, performed);
+      // The certificates shown are those the frozen record cites, not whatever the register holds now.
+      const cited = new Map((kept?.record.standards ?? []).map((s) => [s.id, s.certificateFileId] as const));
       const bundle: ReviewBundle = {
-        job,
+        job: { ...job, standards: job.standards.map((s) => (cited.has(s.id) ? { ...s, certificateFileId: cited.get(s.id) ?? null } : s)) },
         instrument,
         signatures: sigs.map(toSignature),
         revisions: revs.map(summary),

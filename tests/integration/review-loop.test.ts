@@ -60,6 +60,7 @@ afterAll(async () => {
 describe('the return loop', () => {
   let photoId: string;
   let certId: string;
+  let certFileId: string;
 
   it('takes a photo and a certificate before submission; removal needs a reason (400 with the field) and is audited', async () => {
     const p1 = await upload(c.tech, `/api/jobs/${jobA}/photos`, tinyPng(), 'image/png', 'as-found-gauge.png');
@@ -84,6 +85,7 @@ describe('the return loop', () => {
     const cert = await upload(c.lead, `/api/standards/${standards.pressure.id}/certificate`, tinyPdf(), 'application/pdf', 'pressure-cert.pdf');
     expect(cert.status).toBe(201);
     certId = cert.body.id;
+    certFileId = cert.body.fileId;
     expect((await c.lead.get(`/api/standards/${standards.pressure.id}/certificates`)).body.items.map((a: { id: string }) => a.id)).toContain(certId);
   });
 
@@ -156,6 +158,13 @@ describe('the return loop', () => {
     expect(r.body.error.message).toMatch(/approved/);
     expect((await remove(c.lead, certId, { reason: 'Superseded by a newer certificate' })).status).toBe(423);
     expect((await c.lead.get(`/api/jobs/${jobA}/photos`)).body.items).toHaveLength(1);
+    // A newer certificate becomes the standard's; the approved record still shows the one it cited.
+    const newer = await upload(c.lead, `/api/standards/${standards.pressure.id}/certificate`, Buffer.concat([tinyPdf(), Buffer.from('% renewed\n')]), 'application/pdf', 'pressure-cert-2027.pdf');
+    expect(newer.status).toBe(201);
+    expect(newer.body.fileId).not.toBe(certFileId);
+    expect((await c.lead.get(`/api/standards/${standards.pressure.id}`)).body.certificateFileId).toBe(newer.body.fileId);
+    const cited = (await c.lead.get(`/api/jobs/${jobA}/review`)).body.job.standards.find((s: { id: string }) => s.id === standards.pressure.id);
+    expect(cited.certificateFileId).toBe(certFileId);
     // A datasheet is not part of a record: a lead removes it, with a reason.
     const inst = (await c.lead.get('/api/instruments')).body.items[0].id as string;
     const d = await upload(c.lead, `/api/instruments/${inst}/datasheet`, tinyPdf(), 'application/pdf', 'sheet.pdf');
