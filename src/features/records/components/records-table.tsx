@@ -44,15 +44,18 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
         cell: ({ row }) => {
           const s = row.original.lastSignature;
           return s ? (
-            <span>
-              {s.signerName}, <span className="num">{s.signedAt.slice(0, 10)}</span> <span className="text-ink-muted">({s.meaning})</span>
+            <span title={`${s.signerName}, ${s.signedAt.slice(0, 10)} (${s.meaning})`}>
+              {s.signerName}
+              <span className="block text-xs text-ink-muted">
+                <span className="num">{s.signedAt.slice(0, 10)}</span> · {s.decision === 'approve' ? 'approved' : 'returned'}
+              </span>
             </span>
           ) : (
             <span className="text-ink-faint">Awaiting review</span>
           );
         },
       },
-      { accessorKey: 'revisions', header: 'Earlier revisions', meta: { numeric: true } },
+      { accessorKey: 'revisions', header: 'Earlier rev.', meta: { numeric: true } },
       {
         id: 'links',
         header: '',

@@ -7,7 +7,7 @@ const when = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
 /** Days between a submission and now, in words ("today", "3 days"). */
 function waited(iso: string, now = Date.now()): string {
   const d = Math.floor((now - Date.parse(iso)) / 86_400_000);
-  return d <= 0 ? 'today' : d === 1 ? '1 day' : `${d} days`;
+  return d <= 0 ? 'less than a day' : d === 1 ? '1 day' : `${d} days`;
 }
 
 /** Jobs awaiting review, oldest submission first: the lead's desk. */
@@ -25,7 +25,7 @@ export function InboxList({ items }: { items: InboxItem[] }) {
           </span>
           {j.returns > 0 && <Badge tone="warn">{j.returns === 1 ? 'resubmitted after a return' : `resubmitted after ${j.returns} returns`}</Badge>}
           <span className="text-sm">
-            submitted <span className="num">{when(j.submittedAt)}</span> <span className="text-ink-muted">({waited(j.submittedAt)} waiting)</span>
+            submitted <span className="num">{when(j.submittedAt)}</span> <span className="text-ink-muted">(waiting {waited(j.submittedAt)})</span>
           </span>
         </li>
       ))}
