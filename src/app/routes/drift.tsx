@@ -77,7 +77,7 @@ export function Component() {
                   <Badge tone={r.action === 'shorten' ? 'danger' : r.action === 'extend' ? 'ok' : 'neutral'}>{r.action}</Badge>
                 </p>
                 <p className="mt-2 text-sm text-ink-muted">{r.basis}</p>
-                {canAccept && r.recommendedDays !== i.intervalDays && (
+                {canAccept && r.recommendedDays !== i.intervalDays && (!d.governing || d.governing.method === r.method) && (
                   <Button
                     className="mt-3"
                     size="sm"

@@ -11,9 +11,10 @@ function cssVar(name: string, fallback: string): string {
 /** A palette of our own for up to ten points (up and down series share a hue, down dashed). */
 const HUES = [188, 28, 262, 140, 340, 210, 48, 300, 100, 0];
 
-/** The colour of the k-th point's series (the same in the chart and in its legend). */
-function colourOf(k: number, theme: string): string {
-  const hue = HUES[Math.floor(k / 2) % HUES.length]!;
+/** The colour of a point's series: one hue per nominal point, shared by its rising and falling series (the same in the chart and in its legend). */
+function colourOf(points: DriftPoint[], p: DriftPoint, theme: string): string {
+  const nominals = [...new Set(points.map((x) => x.nominalPct))].sort((a, b) => a - b);
+  const hue = HUES[nominals.indexOf(p.nominalPct) % HUES.length]!;
   return `hsl(${hue} 55% ${theme === 'bench' ? 62 : 42}%)`;
 }
 
@@ -32,9 +33,9 @@ export function DriftLegend({ points, tolerance, dueOn }: { points: DriftPoint[]
   const danger = 'var(--sp-danger, #b0383a)';
   return (
     <ul className="mt-3 flex flex-wrap gap-x-4 gap-y-1.5 text-xs text-ink" aria-label="Legend" data-testid="drift-legend">
-      {points.map((p, k) => (
+      {points.map((p) => (
         <li key={p.key} className="flex items-center gap-1.5" data-testid="legend-item">
-          <Swatch colour={colourOf(k, theme)} {...(p.direction === 'down' ? { dash: '5 4' } : {})} />
+          <Swatch colour={colourOf(points, p, theme)} {...(p.direction === 'down' ? { dash: '5 4' } : {})} />
           <span className="num">
             {p.nominalPct} % {p.basis === 'flow' ? 'flow' : 'DP'} {p.direction === 'up' ? '↑ rising' : '↓ falling'}
           </span>
@@ -76,8 +77,8 @@ export function DriftChart({ points, tolerance, dueOn, height = 300 }: { points:
     if (dueSec && !times.includes(dueSec)) times.push(dueSec);
     const series: uPlot.Series[] = [{}];
     const data: (number | null)[][] = [times];
-    points.forEach((p, k) => {
-      const col = colourOf(k, theme);
+    points.forEach((p) => {
+      const col = colourOf(points, p, theme);
       const byT = new Map(p.events.map((e) => [e.atMs / 1000, e.asFound]));
       data.push(times.map((t) => byT.get(t) ?? null));
       series.push({ label: `${p.nominalPct} % ${p.direction === 'up' ? '↑' : '↓'}`, stroke: col, width: 1.5, dash: p.direction === 'down' ? [5, 4] : undefined, spanGaps: true, points: { show: true, size: 5 } });
