@@ -30,6 +30,26 @@ describe('mail templates', () => {
     expect(m.text).toMatch(/As-left result: +pass/);
   });
 
+  it('job resubmitted after a return: the comment and the reply, escaped, and a link to the review page', () => {
+    const m = jobSubmittedMail({
+      appUrl,
+      jobId: 'J-7',
+      tag: 'PT-204',
+      submittedBy: 'Ana',
+      submittedAt: '2025-03-16T08:00:00Z',
+      reply: { text: 'Re-made the <fittings>.', comment: 'Point 3 leaks.', returnedBy: 'Lee' },
+    });
+    expect(m.subject).toBe('Resubmitted for review: PT-204');
+    expect(m.text).toContain('Lee returned it with these comments:');
+    expect(m.text).toContain('Point 3 leaks.');
+    expect(m.text).toContain('Ana replied:');
+    expect(m.text).toContain('Re-made the <fittings>.');
+    expect(m.html).toContain('Re-made the &lt;fittings&gt;.');
+    expect(m.text).toContain('https://stillpoint.works.example.test/jobs/J-7/review');
+    const silent = jobSubmittedMail({ appUrl, jobId: 'J-7', tag: 'PT-204', submittedBy: 'Ana', submittedAt: '2025-03-16T08:00:00Z', reply: { text: '', comment: 'Point 3 leaks.', returnedBy: 'Lee' } });
+    expect(silent.text).toContain('Ana resubmitted without a reply.');
+  });
+
   it('job returned: the comment is quoted, and escaped in HTML', () => {
     const m = jobReturnedMail({ appUrl, jobId: 'J-7', tag: 'PT-204', returnedBy: 'Lee', returnedAt: new Date('2025-03-15T10:00:00Z'), comment: 'Point 3 <down> was captured manually;\nadd the reason.' });
     expect(m.subject).toBe('Returned with comments: PT-204');

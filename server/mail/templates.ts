@@ -16,6 +16,8 @@ type When = string | Date;
 /** Where the links in mail point; one place to change if the client routes move. */
 export const mailLinks = {
   job: (appUrl: string, jobId: string) => `${trimSlash(appUrl)}/jobs/${encodeURIComponent(jobId)}`,
+  /** The lead's review page, where the return comments and the replies stand. */
+  review: (appUrl: string, jobId: string) => `${trimSlash(appUrl)}/jobs/${encodeURIComponent(jobId)}/review`,
   queue: (appUrl: string) => `${trimSlash(appUrl)}/queue`,
   standards: (appUrl: string) => `${trimSlash(appUrl)}/standards`,
 };
@@ -153,6 +155,8 @@ export interface JobSubmittedData extends JobMailBase {
   submittedAt: When;
   /** Overall as-left decision in words, e.g. `pass`. */
   outcome?: string;
+  /** A resubmission after a return: the lead's comment and the technician's reply (may be empty). */
+  reply?: { text: string; comment: string; returnedBy: string };
 }
 
 /** A technician submitted a job for review. */
@@ -161,11 +165,17 @@ export function jobSubmittedMail(d: JobSubmittedData): RenderedMail {
   if (d.service) facts.push(['Service', d.service]);
   facts.push(['Job', d.jobId], ['Submitted by', d.submittedBy], ['Submitted', formatDateTime(d.submittedAt)]);
   if (d.outcome) facts.push(['As-left result', d.outcome]);
-  return compose(`Ready for review: ${d.tag}`, d.recipientName ? `Hello ${d.recipientName}` : undefined, [
-    { kind: 'p', text: `${d.submittedBy} has submitted the calibration of ${d.tag} for review.` },
+  const blocks: Block[] = [
+    { kind: 'p', text: d.reply ? `${d.submittedBy} has resubmitted the calibration of ${d.tag} for review after it was returned.` : `${d.submittedBy} has submitted the calibration of ${d.tag} for review.` },
     { kind: 'facts', rows: facts },
-    { kind: 'link', label: 'Review the job', href: mailLinks.job(d.appUrl, d.jobId) },
-  ]);
+  ];
+  if (d.reply) {
+    blocks.push({ kind: 'p', text: `${d.reply.returnedBy} returned it with these comments:` }, { kind: 'quote', text: d.reply.comment || '(no comment)' });
+    blocks.push({ kind: 'p', text: d.reply.text ? `${d.submittedBy} replied:` : `${d.submittedBy} resubmitted without a reply.` });
+    if (d.reply.text) blocks.push({ kind: 'quote', text: d.reply.text });
+  }
+  blocks.push({ kind: 'link', label: 'Review the job', href: mailLinks.review(d.appUrl, d.jobId) });
+  return compose(d.reply ? `Resubmitted for review: ${d.tag}` : `Ready for review: ${d.tag}`, d.recipientName ? `Hello ${d.recipientName}` : undefined, blocks);
 }
 
 /** Data of {@link jobReturnedMail}. */

@@ -1,6 +1,8 @@
 import { createHash } from 'node:crypto';
 import { auditRepository, type AuditAppend, type AuditRow } from '../db/repositories/audit.repository';
 import type { Db } from '../db/client';
+import type { AuditEntry } from '../../shared/schemas/records';
+import { summaryOf } from './audit-words';
 
 /** Who did something; null for the system (seed, scheduled mail). */
 export interface Actor {
@@ -77,6 +79,38 @@ export function createAuditService(db: Db) {
     },
     async list(opts: { entity?: string; entityId?: string; limit?: number; afterId?: number }): Promise<AuditRow[]> {
       return repo.list({ ...opts, limit: Math.min(opts.limit ?? 200, 1000) });
+    },
+    /**
+     * Rows as the API returns them, in words: the actor's name (for a hands-free capture, the
+     * bench and the run's performer), the record's tag or name, and what happened.
+     */
+    async inWords(rows: AuditRow[]): Promise<AuditEntry[]> {
+      const performerOf = (r: AuditRow) => {
+        const by = (r.after as { by?: { kind?: string; benchId?: string; performer?: { id?: string; email?: string } | null } } | null)?.by;
+        return by?.kind === 'bench' ? by : undefined;
+      };
+      const names = await repo.labels({
+        userIds: rows.flatMap((r) => [r.actorId ?? '', performerOf(r)?.performer?.id ?? '']).filter(Boolean),
+        emails: rows.flatMap((r) => [r.actorEmail ?? '', performerOf(r)?.performer?.email ?? '']).filter((e) => e.includes('@') && !e.includes(' ')),
+        entityIds: rows.map((r) => r.entityId ?? '').filter(Boolean),
+      });
+      const person = (id?: string | null, email?: string | null) => (id && names.users.get(id)) || (email && names.byEmail.get(email)) || email || null;
+      return rows.map((r) => {
+        const bench = performerOf(r);
+        let actorName: string | null;
+        if (bench) {
+          const who = person(bench.performer?.id, bench.performer?.email);
+          actorName = `Bench ${bench.benchId ?? '?'} (hands-free${who ? `, run performed by ${who}` : ''})`;
+        } else if (r.actorId || r.actorEmail) actorName = person(r.actorId, r.actorEmail) ?? r.actorEmail;
+        else actorName = 'Stillpoint (automatic)';
+        return {
+          ...r,
+          at: r.at.toISOString(),
+          actorName,
+          subject: (r.entityId && names.entities.get(r.entityId)) ?? null,
+          summary: summaryOf(r.action, r.after),
+        };
+      });
     },
     /** Recomputes the chain from the first row; reports the first row that was altered or unlinked. */
     async verify(): Promise<VerifyResult> {

@@ -23,6 +23,21 @@ export const INTERVAL_PARAMS = {
   reliability: { targetReliability: 0.95, confidence: 0.5, maxChangeFactor: 2 },
 } as const;
 
+/**
+ * Which interval suggestion governs: the shorter one, so the tag is never left longer than either
+ * method supports (common practice: when two interval methods disagree, the more conservative
+ * result is used). On a tie the staircase governs: it follows the latest as-found directly.
+ */
+export function governingOf(recs: IntervalRecommendation[]): { method: 'staircase' | 'reliability'; reason: string } | null {
+  if (!recs.length) return null;
+  if (recs.length === 1) return { method: recs[0]!.method, reason: 'It is the only suggestion with enough history.' };
+  const [a, b] = [...recs].sort((x, y) => x.recommendedDays - y.recommendedDays || (x.method === 'staircase' ? -1 : 1));
+  const name = (m: string) => (m === 'staircase' ? 'staircase' : 'reliability-model');
+  return a!.recommendedDays === b!.recommendedDays
+    ? { method: a!.method, reason: `Both methods suggest ${a!.recommendedDays} days.` }
+    : { method: a!.method, reason: `The ${name(a!.method)} suggestion (${a!.recommendedDays} days) is shorter than the ${name(b!.method)} one (${b!.recommendedDays} days); the shorter interval governs, so the tag is not left longer than either method supports.` };
+}
+
 interface PointResult {
   nominalPct: number;
   basis: 'flow' | 'dp';
@@ -169,7 +184,7 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
           basis: `${inTolerance} of ${calibrations} as-found in tolerance. Interval test (Clopper–Pearson limits ${(a.test.lower * 100).toFixed(0)}–${(a.test.upper * 100).toFixed(0)} % at confidence ${confidence}, target ${(target * 100).toFixed(0)} %): ${a.test.verdict}. Exponential reliability model R(t) = exp(−λt), λ by maximum likelihood: ${fmt(a.exponential.estimateDays)} for the target, ${fmt(a.exponential.rangeDays[0])} to ${fmt(a.exponential.rangeDays[1])} between the confidence limits of λ; recommended within ×${f} of the current interval.`,
         });
       }
-      return { instrument, unit: '% of span', tolerancePct: tol, calibrations, inTolerance, points, worstPredicted, recommendations };
+      return { instrument, unit: '% of span', tolerancePct: tol, calibrations, inTolerance, points, worstPredicted, recommendations, governing: governingOf(recommendations) };
     },
 
     /** A lead accepts a recommended interval; the tag's interval changes and the change is audited with its basis. */

@@ -9,22 +9,14 @@ import { normaliseDeclaredType, type AllowedType } from '../storage/sniff';
 import { UploadRejectedError, type Uploads } from '../storage/upload';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
+import type { Attachment } from '../../shared/schemas/files';
 
 type UploadedFile = Express.Multer.File | undefined;
 const PDF: AllowedType[] = ['application/pdf'];
 const IMAGES: AllowedType[] = ['image/png', 'image/jpeg', 'image/webp'];
 
-export interface Attachment {
-  id: string;
-  kind: AttachmentRow['kind'];
-  fileId: string;
-  type: string;
-  size: number;
-  originalName: string;
-  uploadedBy: string;
-  createdAt: string;
-}
-const toAttachment = (r: AttachmentRow): Attachment => ({
+export type { Attachment } from '../../shared/schemas/files';
+const toAttachment = (r: AttachmentRow & { uploadedByName?: string | null }): Attachment => ({
   id: r.id,
   kind: r.kind,
   fileId: r.fileId,
@@ -32,6 +24,7 @@ const toAttachment = (r: AttachmentRow): Attachment => ({
   size: r.size,
   originalName: r.originalName,
   uploadedBy: r.uploadedBy,
+  uploadedByName: r.uploadedByName ?? null,
   createdAt: r.createdAt.toISOString(),
 });
 
@@ -60,7 +53,7 @@ export function createFileService(db: Db, deps: { audit: AuditService; uploads: 
   async function attach(actor: Actor, entity: AttachmentRow['entity'], entityId: string, kind: AttachmentRow['kind'], file: UploadedFile, allowed: AllowedType[]) {
     const put = await accept(file, allowed);
     const row = await attachments.create({ entity, entityId, kind, fileId: put.id, type: put.type, size: put.size, originalName: put.originalName, uploadedBy: actor.id });
-    const out = toAttachment(row);
+    const out = toAttachment({ ...row, uploadedByName: (actor as Partial<SessionUser>).name ?? null });
     await deps.audit.record(actor, 'file.attached', entity, entityId, undefined, { kind, fileId: put.id, type: put.type, size: put.size, name: put.originalName });
     return out;
   }
@@ -100,7 +93,50 @@ export function createFileService(db: Db, deps: { audit: AuditService; uploads: 
     },
     async list(entity: AttachmentRow['entity'], entityId: string): Promise<Attachment[]> {
       if (entity === 'job' && !(await jobs.get(entityId))) throw notFound('No such job');
+      if (entity === 'standard' && !(await standards.get(entityId))) throw notFound('No such standard');
+      if (entity === 'instrument' && !(await instruments.get(entityId))) throw notFound('No such instrument');
       return (await attachments.list(entity, entityId)).map(toAttachment);
+    },
+
+    /**
+     * Removes a file from what it belongs to, with a reason (audited). The row and the bytes are
+     * kept. Refused on a locked record: a photo of a submitted or approved job, or a standard's
+     * certificate that a submitted or approved record cites. Photos: the assigned technician;
+     * certificates and datasheets: a lead or an admin.
+     */
+    async remove(user: SessionUser, id: string, reason: string): Promise<{ removed: Attachment; certificateFileId?: string | null }> {
+      const a = await attachments.get(id);
+      if (!a || a.removedAt) throw notFound('No such file (it may have been removed already)');
+      if (a.entity === 'job') {
+        const job = await jobs.get(a.entityId);
+        if (!job) throw notFound('No such job');
+        if (job.status === 'approved') throw locked(`Revision ${job.revision} of this record is approved and locked; its photos stay as they are`);
+        if (job.status === 'submitted') throw locked('The job is submitted for review; its photos stay as they are until it is returned');
+        if (job.assigneeId !== user.id) throw forbidden('Only the assigned technician removes photos from this job');
+      } else {
+        if (user.role !== 'lead' && user.role !== 'admin') throw forbidden('Only a lead or an admin removes register files');
+        if (a.entity === 'standard') {
+          const citing = await attachments.recordsCitingCertificate(a.fileId);
+          if (citing.length)
+            throw locked(`This certificate is part of ${citing.length === 1 ? 'a submitted or approved record' : `${citing.length} submitted or approved records`}; it cannot be removed. Upload the new certificate instead.`);
+        }
+      }
+      if (!(await attachments.remove(id, user.id, reason))) throw notFound('No such file (it was removed meanwhile)');
+      let certificateFileId: string | null | undefined;
+      if (a.entity === 'standard') {
+        const st = await standards.get(a.entityId);
+        if (st && st.certificateFileId === a.fileId) {
+          // The standard's certificate becomes the newest one still attached, or none.
+          certificateFileId = (await attachments.list('standard', a.entityId)).at(-1)?.fileId ?? null;
+          await standards.update(a.entityId, { certificateFileId });
+        }
+      }
+      await deps.audit.record(user, 'file.removed', a.entity, a.entityId, { kind: a.kind, fileId: a.fileId, name: a.originalName }, {
+        attachmentId: a.id,
+        reason,
+        ...(certificateFileId !== undefined ? { certificateFileId } : {}),
+      });
+      return { removed: toAttachment(a), ...(certificateFileId !== undefined ? { certificateFileId } : {}) };
     },
 
     /** A stored file by its id (64 hex digits); anything else is refused before it reaches the file system. */

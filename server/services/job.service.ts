@@ -3,7 +3,7 @@ import { instrumentRepository, jobRepository, standardRepository, type JobRow } 
 import { userRepository } from '../db/repositories/user.repository';
 import { badRequest, conflict, forbidden, locked, notFound } from '../errors';
 import { convertPressure, isPressureUnitId } from '../../shared/calc';
-import type { Checklist, ChecklistPatch, Job, JobDetail } from '../../shared/schemas/jobs';
+import type { Checklist, ChecklistPatch, Job, JobDetail, ReturnNotice } from '../../shared/schemas/jobs';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
 import { dueState, isoDate } from './dates';
@@ -48,7 +48,9 @@ function checklistOf(raw: unknown): Checklist {
 const CURRENT_SPAN_NEEDED = { min: 3.6, max: 21 };
 
 /** Something the job flow tells the team about (mail); never allowed to block or fail the action. */
-export type JobNotice = { kind: 'assigned'; jobId: string; assigneeId: string; byName: string } | { kind: 'submitted'; jobId: string; byName: string; at: string };
+export type JobNotice =
+  | { kind: 'assigned'; jobId: string; assigneeId: string; byName: string }
+  | { kind: 'submitted'; jobId: string; byName: string; at: string; reply?: { text: string; comment: string; returnedBy: string; returnedAt: string } };
 
 export function createJobService(db: Db, audit: AuditService, notify?: (notice: JobNotice) => void | Promise<void>) {
   const jobs = jobRepository(db);
@@ -121,7 +123,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
         if (!problem && s.kind === 'current' && (s.rangeMin > CURRENT_SPAN_NEEDED.min || s.rangeMax < CURRENT_SPAN_NEEDED.max)) {
           problem = `range ${s.rangeMin}–${s.rangeMax} mA does not cover 3.6–21 mA`;
         }
-        chosen.push({ id: s.id, kind: s.kind, description: s.description, serial: s.serial, certificateNo: s.certificateNo, dueOn: s.dueOn, dueState: state, problem });
+        chosen.push({ id: s.id, kind: s.kind, description: s.description, serial: s.serial, certificateNo: s.certificateNo, dueOn: s.dueOn, dueState: state, problem, certificateFileId: s.certificateFileId ?? null });
       }
       const runs = await jobs.runs(id);
       const blockers: string[] = [];
@@ -150,6 +152,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
 
       return {
         ...toJob(r, today),
+        returned: r.status === 'returned' ? await service.lastReturn(id, r.revision) : null,
         checklist,
         standards: chosen,
         runs: runs.map((x) => ({
@@ -163,6 +166,12 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
         blockers,
         submitBlockers,
       };
+    },
+
+    /** The return that stands on this revision: the lead's comment, who and when (null when none). */
+    async lastReturn(id: string, revision: number): Promise<ReturnNotice | null> {
+      const last = (await records.signatures(id)).filter((x) => x.decision === 'return' && x.revision === revision).at(-1);
+      return last ? { signatureId: last.id, revision: last.revision, comment: last.comment, byName: last.signerName, at: last.signedAt.toISOString() } : null;
     },
 
     async create(actor: Actor, body: { instrumentId: string; assigneeId: string | null; dueOn: string; notes: string }): Promise<Job> {
@@ -218,8 +227,11 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       return service.detail(id);
     },
 
-    /** Hands the job to review; refused with the reasons while anything is missing. */
-    async submit(actor: SessionUser, id: string): Promise<JobDetail> {
+    /**
+     * Hands the job to review; refused with the reasons while anything is missing. After a return,
+     * `reply` answers the lead's comment: stored with the submission, audited, and mailed to the leads.
+     */
+    async submit(actor: SessionUser, id: string, body: { reply?: string } = {}): Promise<JobDetail> {
       const r = await row(id);
       if (r.assigneeId !== actor.id) throw forbidden('Only the assigned technician submits this job');
       const d = await service.detail(id);
@@ -228,10 +240,30 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       const at = new Date();
       const snapshot = await freezer.build(d, { id: actor.id, name: actor.name }, at);
       const hash = frozenRecordHash(snapshot);
-      const moved = await records.submitWithSnapshot({ jobId: id, revision: d.revision, snapshot, hash, frozenAt: at }, ['open', 'in-progress', 'returned']);
+      const answered = r.status === 'returned' ? d.returned : null;
+      const reply = answered && body.reply ? body.reply : '';
+      if (body.reply && !answered) throw badRequest('Only a returned job takes a reply', { reply: ['The job was not returned; there is nothing to reply to'] });
+      const moved = await records.submitWithSnapshot(
+        { jobId: id, revision: d.revision, snapshot, hash, frozenAt: at },
+        ['open', 'in-progress', 'returned'],
+        answered && reply ? { signatureId: answered.signatureId, reply, byId: actor.id, byName: actor.name } : undefined,
+      );
       if (!moved) throw conflict('The job changed while it was being submitted; reload it');
-      await audit.record(actor, 'job.submitted', 'job', id, { status: r.status }, { status: 'submitted', revision: d.revision, recordHash: hash });
-      tell({ kind: 'submitted', jobId: id, byName: actor.name, at: at.toISOString() });
+      await audit.record(
+        actor,
+        'job.submitted',
+        'job',
+        id,
+        { status: r.status },
+        { status: 'submitted', revision: d.revision, recordHash: hash, ...(answered ? { answers: answered.signatureId, reply } : {}) },
+      );
+      tell({
+        kind: 'submitted',
+        jobId: id,
+        byName: actor.name,
+        at: at.toISOString(),
+        ...(answered ? { reply: { text: reply, comment: answered.comment, returnedBy: answered.byName, returnedAt: answered.at } } : {}),
+      });
       return service.detail(id);
     },
   };

@@ -82,7 +82,7 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
           if (!u?.active) return;
           send([u.email], jobAssignedMail({ ...f.base, recipientName: u.name, assignedBy: n.byName, dueDate: f.job.dueOn, permitNumber: f.job.permitNo ?? undefined, note: f.job.notes || undefined }));
         } else {
-          for (const l of await leads()) send([l.email], jobSubmittedMail({ ...f.base, recipientName: l.name, submittedBy: n.byName, submittedAt: n.at }));
+          for (const l of await leads()) send([l.email], jobSubmittedMail({ ...f.base, recipientName: l.name, submittedBy: n.byName, submittedAt: n.at, ...(n.reply ? { reply: n.reply } : {}) }));
         }
       }),
 

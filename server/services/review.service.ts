@@ -6,10 +6,12 @@ import type { JobDetail } from '../../shared/schemas/jobs';
 import type {
   AuditEntry,
   FrozenRecord,
+  Inbox,
   RecordItem,
   Revision,
   RevisionSummary,
   ReviewBundle,
+  ReviewExchange,
   ReviewTrace,
   Signature,
   SnapshotRun,
@@ -74,7 +76,7 @@ export function toSnapshotRun(r: RunWithPoints): SnapshotRun {
  */
 export function recordHash(job: JobDetail, runs: SnapshotRun[]): string {
   // Volatile fields (blockers depend on today's date) are left out of what is signed.
-  const { blockers: _b, submitBlockers: _s, overdue: _o, updatedAt: _u, ...stable } = job;
+  const { blockers: _b, submitBlockers: _s, overdue: _o, updatedAt: _u, returned: _r, ...stable } = job;
   return createHash('sha256').update(canonical({ job: stable, runs })).digest('hex');
 }
 
@@ -213,20 +215,23 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
     /** The review page's data: job, instrument, signatures, revisions, audit trail and who may sign. */
     async bundle(user: SessionUser, jobId: string): Promise<ReviewBundle> {
       const job = await jobs.detail(jobId);
-      const [live, runs, sigs, revs, kept] = await Promise.all([
+      const [live, runs, sigs, revs, kept, replies] = await Promise.all([
         deps.registers.getInstrument(job.instrumentId),
         repo.runsWithPoints(jobId),
         repo.signatures(jobId),
         repo.revisions(jobId),
         freezer.stored(jobId, job.revision),
+        repo.replies(jobId),
       ]);
       // A submitted or signed revision is reviewed against the instrument as it was used, not as the register stands now.
       const { id: _id, ...asUsed } = kept?.record.instrument ?? { id: '' };
       const instrument = { ...live, ...asUsed } as typeof live;
       const performed = performerIds(job, runs);
       const no = cannotSign(user, job, performed);
+      // The certificates shown are those the frozen record cites, not whatever the register holds now.
+      const cited = new Map((kept?.record.standards ?? []).map((s) => [s.id, s.certificateFileId] as const));
       const bundle: ReviewBundle = {
-        job,
+        job: { ...job, standards: job.standards.map((s) => (cited.has(s.id) ? { ...s, certificateFileId: cited.get(s.id) ?? null } : s)) },
         instrument,
         signatures: sigs.map(toSignature),
         revisions: revs.map(summary),
@@ -234,6 +239,19 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
         performers: await performers(job, runs),
         canSign: !no,
         cannotSignReason: no?.reason ?? null,
+        exchanges: sigs
+          .filter((x) => x.decision === 'return')
+          .map((x): ReviewExchange => {
+            const r = replies.find((y) => y.signatureId === x.id);
+            return {
+              signatureId: x.id,
+              revision: x.revision,
+              comment: x.comment,
+              returnedBy: x.signerName,
+              returnedAt: x.signedAt.toISOString(),
+              reply: r ? { text: r.reply, byName: r.byName, at: r.at.toISOString() } : null,
+            };
+          }),
       };
       // The page opens the first completed as-found run (else the first completed run): start its trace now.
       const first = runs.find((r) => r.status === 'complete' && r.kind === 'as-found') ?? runs.find((r) => r.status === 'complete');
@@ -241,13 +259,17 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       return bundle;
     },
 
-    /** Audit events of the job and of each of its runs, oldest first. */
+    /** Audit events of the job and of each of its runs (and its photos), oldest first, in words. */
     async trail(jobId: string, runIds: string[]): Promise<AuditEntry[]> {
       const lists = await Promise.all([jobId, ...runIds].map((id) => audit.list({ entityId: id, limit: 1000 })));
-      return lists
-        .flat()
-        .sort((a, b) => a.id - b.id)
-        .map((r) => ({ ...r, at: r.at.toISOString() }));
+      return audit.inWords(lists.flat().sort((a, b) => a.id - b.id));
+    },
+
+    /** Jobs awaiting review, oldest submission first (the lead's inbox). */
+    async inbox(): Promise<Inbox> {
+      const rows = await repo.inbox();
+      const items = rows.map((r) => ({ ...r, submittedAt: r.submittedAt.toISOString() }));
+      return { items, count: items.length };
     },
 
     /**
@@ -411,15 +433,34 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       service.trace(runId, TRACE_DEFAULTS).catch(() => {});
     },
 
-    /** Submitted and approved jobs with their last signature
-    /** Submitted and approved jobs with their last signature and number of revisions. */
-    async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string }): Promise<RecordItem[]> {
+    /**
+     * Submitted and approved jobs with their last signature, number of revisions, calibration date
+     * and as-found / as-left results; newest calibration first (a record awaiting review sorts by
+     * its calibration date like any other). `from`/`to` filter on the calibration date.
+     */
+    async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string; from?: string; to?: string }): Promise<RecordItem[]> {
       const rows = await repo.records(opts);
       const ids = rows.map((r) => r.id);
-      const [sigs, counts] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids)]);
+      const [sigs, counts, finished] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids), repo.finishedRunsFor(ids)]);
       const last = new Map<string, SignatureRow>();
       for (const s of sigs) last.set(s.jobId, s);
-      return rows.map((r) => ({ ...toJob(r), lastSignature: last.has(r.id) ? toSignature(last.get(r.id)!) : null, revisions: counts.get(r.id) ?? 0 }));
+      const items = rows.map((r) => {
+        const mine = finished.filter((x) => x.jobId === r.id);
+        const found = mine.filter((x) => x.kind === 'as-found').at(-1);
+        const left = mine.filter((x) => x.kind === 'as-left').at(-1);
+        const dated = left ?? found;
+        return {
+          ...toJob(r),
+          lastSignature: last.has(r.id) ? toSignature(last.get(r.id)!) : null,
+          revisions: counts.get(r.id) ?? 0,
+          calibratedOn: dated ? isoDate(dated.endedAt ?? dated.startedAt) : null,
+          asFound: found?.decision ?? null,
+          asLeft: left?.decision ?? null,
+        };
+      });
+      return items
+        .filter((x) => (!opts.from || (x.calibratedOn !== null && x.calibratedOn >= opts.from)) && (!opts.to || (x.calibratedOn !== null && x.calibratedOn <= opts.to)))
+        .sort((a, b) => (b.calibratedOn ?? b.updatedAt).localeCompare(a.calibratedOn ?? a.updatedAt) || b.updatedAt.localeCompare(a.updatedAt));
     },
   };
   return service;

@@ -86,6 +86,8 @@ export const JobStandardSchema = z.object({
   dueState: z.enum(['in-date', 'due-soon', 'expired']),
   /** Why it may not be used, or null. */
   problem: z.string().nullable(),
+  /** The standard's current certificate file (file store id), when one is uploaded. Additive. */
+  certificateFileId: z.string().nullable().optional(),
 });
 
 export const RunSummarySchema = z.object({
@@ -97,6 +99,16 @@ export const RunSummarySchema = z.object({
   overallDecision: z.string().nullable(),
 });
 
+/** A lead's return of a job: the comment, who signed the return and when (ISO date-time, UTC). */
+export const ReturnNoticeSchema = z.object({
+  signatureId: z.string(),
+  revision: z.number().int(),
+  comment: z.string(),
+  byName: z.string(),
+  at: z.string(),
+});
+export type ReturnNotice = z.infer<typeof ReturnNoticeSchema>;
+
 export const JobDetailSchema = JobSchema.extend({
   checklist: ChecklistSchema,
   standards: z.array(JobStandardSchema),
@@ -105,5 +117,13 @@ export const JobDetailSchema = JobSchema.extend({
   blockers: z.array(z.string()),
   /** Blockers for submission. */
   submitBlockers: z.array(z.string()),
+  /** While the job stands returned: the lead's comment, who returned it and when. Additive. */
+  returned: ReturnNoticeSchema.nullable().optional(),
 });
 export type JobDetail = z.infer<typeof JobDetailSchema>;
+
+/** Body of `POST /api/jobs/:id/submit`: after a return, the technician's answer to the lead's comment. */
+export const SubmitJobBodySchema = z.object({
+  reply: z.string().trim().max(2000, 'Keep the reply under 2000 characters').default(''),
+});
+export type SubmitJobBody = z.input<typeof SubmitJobBodySchema>;

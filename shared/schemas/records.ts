@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { IsoDateSchema } from './dates';
 import { InstrumentSchema } from './instruments';
 import { JobDetailSchema, JobSchema } from './jobs';
 import { RunResultsSchema } from './runs';
@@ -184,6 +185,12 @@ export const AuditEntrySchema = z.object({
   after: z.unknown(),
   prevHash: z.string(),
   hash: z.string(),
+  /** Who acted, in words: the user's name, or the bench and the run's performer for a hands-free capture. Additive. */
+  actorName: z.string().nullable().optional(),
+  /** What it concerns, in words (the instrument tag of a job or run, a standard's description). Additive. */
+  subject: z.string().nullable().optional(),
+  /** What happened, in words (e.g. "Checklist changed"). Additive. */
+  summary: z.string().optional(),
 });
 export type AuditEntry = z.infer<typeof AuditEntrySchema>;
 
@@ -193,6 +200,20 @@ export const AuditVerifySchema = z.object({
   brokenAt: z.object({ id: z.number(), reason: z.string() }).optional(),
 });
 export type AuditVerify = z.infer<typeof AuditVerifySchema>;
+
+/** One round of the return loop: the lead's return and the technician's reply on resubmission. */
+export const ReviewExchangeSchema = z.object({
+  signatureId: z.string(),
+  /** Revision that was returned. */
+  revision: z.number().int(),
+  comment: z.string(),
+  returnedBy: z.string(),
+  /** ISO date-time, UTC. */
+  returnedAt: z.string(),
+  /** Null until the technician resubmits (or when they resubmitted without a reply). */
+  reply: z.object({ text: z.string(), byName: z.string(), at: z.string() }).nullable(),
+});
+export type ReviewExchange = z.infer<typeof ReviewExchangeSchema>;
 
 /** Everything the lead needs to review a job, except the runs' points and traces (GET /api/runs/:id). */
 export const ReviewBundleSchema = z.object({
@@ -207,6 +228,8 @@ export const ReviewBundleSchema = z.object({
   /** Whether the signed-in user may sign this job now, and why not. */
   canSign: z.boolean(),
   cannotSignReason: z.string().nullable(),
+  /** Every return of this job and the technician's reply to it, oldest first. Additive. */
+  exchanges: z.array(ReviewExchangeSchema).optional(),
 });
 export type ReviewBundle = z.infer<typeof ReviewBundleSchema>;
 
@@ -214,13 +237,45 @@ export type ReviewBundle = z.infer<typeof ReviewBundleSchema>;
 export const RecordItemSchema = JobSchema.extend({
   lastSignature: SignatureSchema.nullable(),
   revisions: z.number().int(),
+  /** Calibration date: the day the last completed as-left (else as-found) run ended, ISO; null without one. Additive. */
+  calibratedOn: z.string().nullable().optional(),
+  /** Overall decision of the last completed as-found and as-left runs (e.g. "pass"), null when none. Additive. */
+  asFound: z.string().nullable().optional(),
+  asLeft: z.string().nullable().optional(),
 });
 export type RecordItem = z.infer<typeof RecordItemSchema>;
 
-export const RecordsQuerySchema = z.object({
-  status: z.enum(['approved', 'submitted', 'all']).default('all'),
-  q: z.string().trim().max(100).optional(),
+export const RecordsQuerySchema = z
+  .object({
+    status: z.enum(['approved', 'submitted', 'all']).default('all'),
+    q: z.string().trim().max(100).optional(),
+    /** Calibration date from (inclusive), ISO date. */
+    from: IsoDateSchema.optional(),
+    /** Calibration date to (inclusive), ISO date. */
+    to: IsoDateSchema.optional(),
+  })
+  .refine((v) => !v.from || !v.to || v.from <= v.to, { message: 'The start date is after the end date', path: ['to'] });
+
+/** A job awaiting review, for the lead's inbox. */
+export const InboxItemSchema = z.object({
+  id: z.string(),
+  tag: z.string(),
+  service: z.string(),
+  assigneeName: z.string().nullable(),
+  revision: z.number().int(),
+  /** When it was (last) submitted, ISO date-time, UTC. */
+  submittedAt: z.string(),
+  /** How many times it was returned before. */
+  returns: z.number().int(),
 });
+export type InboxItem = z.infer<typeof InboxItemSchema>;
+
+export const InboxSchema = z.object({
+  /** Oldest submission first. */
+  items: z.array(InboxItemSchema),
+  count: z.number().int(),
+});
+export type Inbox = z.infer<typeof InboxSchema>;
 
 /** An instrument falling due without an open job. */
 export const NeedsJobSchema = z.object({
@@ -331,6 +386,8 @@ export const DriftReportSchema = z.object({
   /** Largest |predicted error| at the next due date over all points, or null. */
   worstPredicted: z.number().nullable(),
   recommendations: z.array(IntervalRecommendationSchema),
+  /** Which recommendation governs and why, in words; null without any. Additive. */
+  governing: z.object({ method: z.enum(['staircase', 'reliability']), reason: z.string() }).nullable().optional(),
 });
 export type DriftReport = z.infer<typeof DriftReportSchema>;
 

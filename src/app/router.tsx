@@ -3,6 +3,7 @@ import { createBrowserRouter, Navigate, redirect, type RouteObject } from 'react
 import * as appLayout from './routes/app-layout';
 import * as audit from './routes/audit';
 import * as bench from './routes/bench';
+import * as inbox from './routes/inbox';
 import * as instruments from './routes/instruments';
 import * as login from './routes/login';
 import * as notFound from './routes/not-found';
@@ -87,6 +88,7 @@ export function createRoutes(queryClient: QueryClient): RouteObject[] {
         },
         { path: 'bench', Component: bench.Component, ErrorBoundary: bench.ErrorBoundary, loader: bench.createLoader(queryClient) },
         { path: 'records', Component: records.Component, ErrorBoundary: records.ErrorBoundary, loader: records.createLoader(queryClient) },
+        { path: 'review', Component: inbox.Component, ErrorBoundary: inbox.ErrorBoundary, loader: inbox.createLoader(queryClient) },
         { path: 'audit', Component: audit.Component, ErrorBoundary: audit.ErrorBoundary, loader: audit.createLoader(queryClient) },
         { path: 'users', Component: users.Component, ErrorBoundary: users.ErrorBoundary, loader: users.createLoader(queryClient) },
         { path: 'outbox', Component: outbox.Component, ErrorBoundary: outbox.ErrorBoundary, loader: outbox.createLoader(queryClient) },

@@ -4,7 +4,7 @@ import type { Role } from '../../shared/schemas/auth';
  * What each role may open. The server enforces every route; the client only hides what the
  * server would refuse (DESIGN.md §2).
  */
-export const AREAS = ['queue', 'instruments', 'standards', 'bench', 'records', 'audit', 'users', 'outbox'] as const;
+export const AREAS = ['queue', 'instruments', 'standards', 'bench', 'records', 'review', 'audit', 'users', 'outbox'] as const;
 export type Area = (typeof AREAS)[number];
 
 const ALL: readonly Role[] = ['technician', 'lead', 'admin', 'auditor'];
@@ -15,6 +15,8 @@ export const AREA_ROLES: Record<Area, readonly Role[]> = {
   standards: ALL,
   bench: ALL,
   records: ALL,
+  /** The review inbox: jobs awaiting a lead's sign-off. */
+  review: ['lead'],
   audit: ['lead', 'admin', 'auditor'],
   users: ['admin'],
   outbox: ['admin'],

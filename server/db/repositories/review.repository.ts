@@ -1,12 +1,13 @@
 import { and, asc, desc, eq, inArray, or, sql, ilike, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
-import { instruments, jobRevisions, jobs, points, recordSnapshots, runs, samples, signatures, sites, standards, users } from '../schema';
+import { instruments, jobRevisions, jobs, points, recordSnapshots, returnReplies, runs, samples, signatures, sites, standards, users } from '../schema';
 import { parsedRun } from './run.repository';
 
 export type SignatureRow = typeof signatures.$inferSelect;
 export type SignatureInsert = typeof signatures.$inferInsert;
 export type RevisionRow = typeof jobRevisions.$inferSelect;
 export type SnapshotRow = typeof recordSnapshots.$inferSelect;
+export type ReplyRow = typeof returnReplies.$inferSelect;
 export type RunRow = typeof runs.$inferSelect;
 export type PointRow = typeof points.$inferSelect;
 export type RunWithPoints = RunRow & { points: PointRow[] };
@@ -50,7 +51,11 @@ export function reviewRepository(db: Db) {
      * written (a resubmission after a return replaces the earlier one). Returns false when the job
      * moved on meanwhile.
      */
-    async submitWithSnapshot(values: { jobId: string; revision: number; snapshot: unknown; hash: string; frozenAt: Date }, fromStatus: readonly string[]): Promise<boolean> {
+    async submitWithSnapshot(
+      values: { jobId: string; revision: number; snapshot: unknown; hash: string; frozenAt: Date },
+      fromStatus: readonly string[],
+      reply?: Omit<typeof returnReplies.$inferInsert, 'id' | 'jobId' | 'revision' | 'at'>,
+    ): Promise<boolean> {
       return db.transaction(async (tx) => {
         const [moved] = await tx
           .update(jobs)
@@ -62,8 +67,57 @@ export function reviewRepository(db: Db) {
           .insert(recordSnapshots)
           .values(values)
           .onConflictDoUpdate({ target: [recordSnapshots.jobId, recordSnapshots.revision], set: { snapshot: values.snapshot, hash: values.hash, frozenAt: values.frozenAt } });
+        // The reply to the return answered by this resubmission, in the same transaction.
+        if (reply) await tx.insert(returnReplies).values({ ...reply, jobId: values.jobId, revision: values.revision, at: values.frozenAt });
         return true;
       });
+    },
+
+    /** Replies to returns of a job, oldest first. */
+    async replies(jobId: string): Promise<ReplyRow[]> {
+      return db.select().from(returnReplies).where(eq(returnReplies.jobId, jobId)).orderBy(asc(returnReplies.at));
+    },
+
+    /** Submitted jobs with tag, service, assignee and when their current revision was frozen, oldest submission first. */
+    async inbox(): Promise<Array<{ id: string; tag: string; service: string; assigneeName: string | null; revision: number; submittedAt: Date; returns: number }>> {
+      const rows = await db
+        .select({
+          id: jobs.id,
+          tag: instruments.tag,
+          service: instruments.service,
+          assigneeName: users.name,
+          revision: jobs.revision,
+          frozenAt: recordSnapshots.frozenAt,
+          updatedAt: jobs.updatedAt,
+        })
+        .from(jobs)
+        .innerJoin(instruments, eq(instruments.id, jobs.instrumentId))
+        .leftJoin(users, eq(users.id, jobs.assigneeId))
+        .leftJoin(recordSnapshots, and(eq(recordSnapshots.jobId, jobs.id), eq(recordSnapshots.revision, jobs.revision)))
+        .where(eq(jobs.status, 'submitted'));
+      const returns = new Map<string, number>();
+      if (rows.length) {
+        const counted = await db
+          .select({ jobId: signatures.jobId, n: sql<number>`count(*)::int` })
+          .from(signatures)
+          .where(and(inArray(signatures.jobId, rows.map((r) => r.id)), eq(signatures.decision, 'return')))
+          .groupBy(signatures.jobId);
+        for (const x of counted) returns.set(x.jobId, x.n);
+      }
+      return rows
+        .map((r) => ({ id: r.id, tag: r.tag, service: r.service, assigneeName: r.assigneeName, revision: r.revision, submittedAt: r.frozenAt ?? r.updatedAt, returns: returns.get(r.id) ?? 0 }))
+        .sort((a, b) => a.submittedAt.getTime() - b.submittedAt.getTime() || a.tag.localeCompare(b.tag));
+    },
+
+    /** Completed as-found and as-left runs of these jobs (kind, end, overall decision), oldest first. */
+    async finishedRunsFor(jobIds: string[]): Promise<Array<{ jobId: string; kind: string; startedAt: Date; endedAt: Date | null; decision: string | null }>> {
+      if (!jobIds.length) return [];
+      const rows = await db
+        .select()
+        .from(runs)
+        .where(and(inArray(runs.jobId, jobIds), eq(runs.status, 'complete'), inArray(runs.kind, ['as-found', 'as-left'])))
+        .orderBy(asc(runs.startedAt));
+      return rows.map(parsedRun).map((r) => ({ jobId: r.jobId, kind: r.kind, startedAt: r.startedAt, endedAt: r.endedAt, decision: r.results?.overallDecision ?? null }));
     },
 
     /** Stores the frozen record of a revision that was submitted before records were frozen (signed at review). */

@@ -23,6 +23,13 @@ export const attachments = pgTable(
       .notNull()
       .references(() => users.id),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    /**
+     * Set when someone removed the file from what it belongs to (with a reason, audited). The row
+     * and the stored bytes are kept: a record that cited the file can still show it.
+     */
+    removedAt: timestamp('removed_at', { withTimezone: true }),
+    removedBy: uuid('removed_by').references(() => users.id),
+    removedReason: text('removed_reason'),
   },
   (t) => [index('attachments_entity_idx').on(t.entity, t.entityId), index('attachments_file_idx').on(t.fileId)],
 );

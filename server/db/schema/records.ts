@@ -78,3 +78,30 @@ export const recordSnapshots = pgTable(
   },
   (t) => [unique('record_snapshots_job_revision_uq').on(t.jobId, t.revision)],
 );
+
+/**
+ * The technician's reply to a return, given when resubmitting: one row per answered return
+ * (the signature that returned the job). Rows are never changed; every round is kept.
+ */
+export const returnReplies = pgTable(
+  'return_replies',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    jobId: uuid('job_id')
+      .notNull()
+      .references(() => jobs.id),
+    /** The return signature this answers. */
+    signatureId: uuid('signature_id')
+      .notNull()
+      .references(() => signatures.id),
+    revision: integer('revision').notNull(),
+    reply: text('reply').notNull(),
+    byId: uuid('by_id')
+      .notNull()
+      .references(() => users.id),
+    /** Printed name at the time of the reply. */
+    byName: text('by_name').notNull(),
+    at: timestamp('at', { withTimezone: true }).notNull(),
+  },
+  (t) => [index('return_replies_job_idx').on(t.jobId), unique('return_replies_signature_uq').on(t.signatureId)],
+);

@@ -57,16 +57,27 @@ export function Component() {
           <section className="rounded-card border border-line bg-surface p-4 shadow-card">
             <DriftChart points={d.points} tolerance={d.tolerancePct} dueOn={i.nextDueOn} />
           </section>
+          {d.governing && (
+            <p className="rounded-md border border-accent/40 bg-accent-soft px-3 py-2 text-sm text-ink" data-testid="governing-interval">
+              <strong>
+                {METHOD[d.governing.method]} governs: <span className="num">{d.recommendations.find((r) => r.method === d.governing!.method)?.recommendedDays}</span> d.
+              </strong>{' '}
+              {d.governing.reason}
+            </p>
+          )}
           <section aria-label="Interval recommendations" className="grid gap-3 md:grid-cols-2">
             {d.recommendations.map((r) => (
-              <div key={r.method} className="rounded-card border border-line bg-surface p-4 shadow-card">
-                <h2 className="text-sm font-semibold">{METHOD[r.method]}</h2>
+              <div key={r.method} className={`rounded-card border bg-surface p-4 shadow-card ${d.governing?.method === r.method ? 'border-accent' : 'border-line'}`}>
+                <h2 className="text-sm font-semibold">
+                  {METHOD[r.method]}{' '}
+                  {d.governing && <span className="font-normal text-ink-muted">{d.governing.method === r.method ? '· governs' : '· for comparison'}</span>}
+                </h2>
                 <p className="mt-1 text-2xl">
                   <span className="num">{r.recommendedDays}</span> d{' '}
                   <Badge tone={r.action === 'shorten' ? 'danger' : r.action === 'extend' ? 'ok' : 'neutral'}>{r.action}</Badge>
                 </p>
                 <p className="mt-2 text-sm text-ink-muted">{r.basis}</p>
-                {canAccept && r.recommendedDays !== i.intervalDays && (
+                {canAccept && r.recommendedDays !== i.intervalDays && (!d.governing || d.governing.method === r.method) && (
                   <Button
                     className="mt-3"
                     size="sm"

@@ -15,6 +15,7 @@ import { instrumentsQueryOptions, useInstruments } from '../../features/instrume
 import { INSTRUMENT_COLUMNS } from '../../features/instruments/components/instrument-columns';
 import { InstrumentForm } from '../../features/instruments/components/instrument-form';
 import { canEditRegisters } from '../../lib/authorization';
+import { DatasheetDialog } from '../../features/instruments/components/datasheet-dialog';
 import { RouteErrorBoundary } from './route-error';
 
 export const createLoader = (queryClient: QueryClient) => () => {
@@ -34,6 +35,7 @@ export function Component() {
   const list = useInstruments({ q, ...sort, page, pageSize: PAGE_SIZE });
   const [editing, setEditing] = useState<Instrument | 'new' | null>(null);
   const [importing, setImporting] = useState(false);
+  const [datasheets, setDatasheets] = useState<Instrument | null>(null);
   const canEdit = !!me && canEditRegisters(me.role);
   return (
     <>
@@ -97,15 +99,18 @@ export function Component() {
           onPage={setPage}
           loading={list.isFetching}
           empty={q ? `No instruments match “${q}”.` : 'No instruments registered yet.'}
-          rowActions={
-            canEdit
-              ? (i) => (
-                  <Button size="sm" variant="ghost" onClick={() => setEditing(i)} aria-label={`Edit ${i.tag}`}>
-                    Edit
-                  </Button>
-                )
-              : undefined
-          }
+          rowActions={(i) => (
+            <>
+              <Button size="sm" variant="ghost" onClick={() => setDatasheets(i)} aria-label={`Datasheets of ${i.tag}`}>
+                Datasheets
+              </Button>
+              {canEdit && (
+                <Button size="sm" variant="ghost" onClick={() => setEditing(i)} aria-label={`Edit ${i.tag}`}>
+                  Edit
+                </Button>
+              )}
+            </>
+          )}
         />
       )}
       <Dialog open={editing !== null} onClose={() => setEditing(null)} title={editing === 'new' ? 'New instrument' : `Edit ${editing?.tag ?? ''}`} className="w-[min(48rem,calc(100vw-2rem))]">
@@ -120,6 +125,7 @@ export function Component() {
           />
         )}
       </Dialog>
+      <DatasheetDialog instrument={datasheets} canEdit={canEdit} onClose={() => setDatasheets(null)} />
       <CsvImportDialog
         open={importing}
         onClose={() => setImporting(false)}

@@ -18,6 +18,8 @@ import { useStartRun } from '../../features/jobs/api/start-run';
 import { useSubmitJob } from '../../features/jobs/api/submit-job';
 import { useUpdateChecklist } from '../../features/jobs/api/update-checklist';
 import { PreparationPanel } from '../../features/jobs/components/preparation-panel';
+import { JobPhotos, StandardCertificates } from '../../features/jobs/components/job-files';
+import { ReturnNoticeBanner } from '../../features/jobs/components/return-notice';
 import { ReturnPanel } from '../../features/jobs/components/return-panel';
 import { RunLauncher } from '../../features/jobs/components/run-launcher';
 import { BlockerList, StepRail, StepSection } from '../../features/jobs/components/step-frame';
@@ -60,6 +62,7 @@ export function Component() {
   const start = useStartRun(id);
   const submit = useSubmitJob(id);
   const [starting, setStarting] = useState<string | null>(null);
+  const [reply, setReply] = useState('');
   const browserBench = useBrowserBenchId();
 
   const spec = useMemo(() => (instrument.data ? transferSpecOf(instrument.data) : undefined), [instrument.data]);
@@ -134,6 +137,8 @@ export function Component() {
           </Link>
         }
       />
+      {/* The return loop: the lead's comment stands at the top until the job is resubmitted. */}
+      {j.status === 'returned' && j.returned && <ReturnNoticeBanner notice={j.returned} />}
       <StepRail steps={steps} />
       {browserBench && (
         <p className="-mt-3 mb-5 rounded-md border border-info/40 bg-info-soft px-3 py-2 text-sm text-ink" data-testid="browser-bench-note">
@@ -169,6 +174,22 @@ export function Component() {
             testId="start-as-found"
           />
         </StepSection>
+
+        {/* Files: as-found photos of the job and the certificates of the standards used. */}
+        <section aria-label="Photos and certificates" className="rounded-card border border-line bg-surface p-4 shadow-card sm:p-5" data-testid="job-files">
+          <h2 className="text-base font-semibold">Photos and certificates</h2>
+          <p className="mb-3 text-sm text-ink-muted">Photos of the transmitter as found (nameplate, gauge, damage), and the certificates of the standards chosen for this job.</p>
+          <div className="grid gap-4 md:grid-cols-2">
+            <div>
+              <h3 className="mb-1 text-sm font-medium">As-found photos</h3>
+              <JobPhotos job={j} canEdit={canEdit} />
+            </div>
+            <div>
+              <h3 className="mb-1 text-sm font-medium">Certificates of the standards</h3>
+              <StandardCertificates job={j} />
+            </div>
+          </div>
+        </section>
 
         <StepSection step={step('decision')} index={indexOf('decision')} description="Results per point with uncertainty and decision under the site's rule; as-found and as-left together once both exist.">
           {asFound ? (
@@ -222,14 +243,35 @@ export function Component() {
           ) : (
             <div className="flex flex-col gap-3">
               {j.submitBlockers.length === 0 && <p className="text-sm text-ok">Nothing stops the submission.</p>}
+              {j.status === 'returned' && j.returned && (
+                <div className="flex flex-col gap-1.5">
+                  <label htmlFor="submit-reply" className="text-sm font-medium">
+                    Your reply to {j.returned.byName}
+                  </label>
+                  <p className="text-xs text-ink-muted">“{j.returned.comment}” — say what you changed. The reply is kept with the record and sent to the leads.</p>
+                  <textarea
+                    id="submit-reply"
+                    data-testid="submit-reply"
+                    value={reply}
+                    onChange={(e) => setReply(e.target.value)}
+                    rows={3}
+                    maxLength={2000}
+                    disabled={!canEdit}
+                    className="block w-full max-w-2xl rounded-md border border-line bg-surface px-3 py-2 text-ink"
+                  />
+                </div>
+              )}
               <div>
                 <Button
                   data-testid="submit-job"
                   disabled={!canEdit || j.submitBlockers.length > 0}
                   loading={submit.isPending}
                   onClick={() =>
-                    submit.mutate(undefined, {
-                      onSuccess: () => toast('Submitted for review', { tone: 'success' }),
+                    submit.mutate(j.status === 'returned' ? { reply: reply.trim() } : undefined, {
+                      onSuccess: () => {
+                        setReply('');
+                        toast(j.status === 'returned' ? 'Resubmitted with your reply' : 'Submitted for review', { tone: 'success' });
+                      },
                       onError: (e) => toast('Not submitted', { tone: 'error', description: e instanceof Error ? e.message : undefined }),
                     })
                   }

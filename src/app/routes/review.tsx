@@ -15,7 +15,7 @@ import { reviewRunQueryOptions, useReviewRuns } from '../../features/review/api/
 import { reviewTraceQueryOptions, useReviewTrace, type TraceWindow } from '../../features/review/api/get-trace';
 import { getRevision } from '../../features/review/api/sign-job';
 import { PointTable } from '../../features/review/components/point-table';
-import { AuditTrailList, ChecklistSummary, Panel, RevisionList, SignatureList, StandardsUsed } from '../../features/review/components/review-panels';
+import { AuditTrailList, ChecklistSummary, Panel, ReturnExchanges, ReviewPhotos, RevisionList, SignatureList, StandardsUsed } from '../../features/review/components/review-panels';
 import { RevisionDialog } from '../../features/review/components/revision-dialog';
 import { SignDialog } from '../../features/review/components/sign-dialog';
 import { TraceChart } from '../../features/review/components/trace-chart';
@@ -61,7 +61,7 @@ export function Component() {
 
   if (review.isPending) return <ListSkeleton rows={6} />;
   if (review.isError) return <ErrorNotice title="Could not load this job for review" error={review.error} onRetry={() => void review.refetch()} />;
-  const { job, instrument, signatures, revisions, audit, performers, canSign, cannotSignReason } = review.data;
+  const { job, instrument, signatures, revisions, audit, performers, canSign, cannotSignReason, exchanges = [] } = review.data;
   const isLead = me?.role === 'lead';
   const results = run ? parseResults(run) : null;
   const unit = unitLabel(instrument.unit);
@@ -124,6 +124,12 @@ export function Component() {
       )}
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_22rem]">
         <div className="flex min-w-0 flex-col gap-4">
+          {/* The return loop: every return with its comment and the technician's reply. */}
+          {exchanges.length > 0 && (
+            <Panel title="Returns and replies" testId="review-exchange-panel">
+              <ReturnExchanges exchanges={exchanges} />
+            </Panel>
+          )}
           <div className="flex flex-wrap items-center gap-2" role="tablist" aria-label="Runs">
             {loadedRuns.map((r) => {
               const res = parseResults(r);
@@ -181,6 +187,9 @@ export function Component() {
         <aside className="flex flex-col gap-4">
           <Panel title="Standards used" testId="standards-used">
             <StandardsUsed job={job} />
+          </Panel>
+          <Panel title="As-found photos">
+            <ReviewPhotos jobId={job.id} />
           </Panel>
           <Panel title="Checklist">
             <ChecklistSummary checklist={job.checklist} />

@@ -14,6 +14,7 @@ import { toast } from '../../components/ui/toast';
 import { useMe } from '../../features/auth/api/get-me';
 import { standardsQueryOptions, useStandardDueCounts, useStandards } from '../../features/standards/api/get-standards';
 import { STANDARD_COLUMNS } from '../../features/standards/components/standard-columns';
+import { CertificateDialog } from '../../features/standards/components/certificate-dialog';
 import { StandardForm } from '../../features/standards/components/standard-form';
 import { canEditRegisters } from '../../lib/authorization';
 import { RouteErrorBoundary } from './route-error';
@@ -36,6 +37,7 @@ export function Component() {
   const counts = useStandardDueCounts().data;
   const [editing, setEditing] = useState<Standard | 'new' | null>(null);
   const [importing, setImporting] = useState(false);
+  const [certificates, setCertificates] = useState<Standard | null>(null);
   const canEdit = !!me && canEditRegisters(me.role);
   return (
     <>
@@ -97,15 +99,18 @@ export function Component() {
             onPage={setPage}
             loading={list.isFetching}
             empty={q ? `No standards match “${q}”.` : 'No standards registered yet.'}
-            rowActions={
-              canEdit
-                ? (s) => (
-                    <Button size="sm" variant="ghost" onClick={() => setEditing(s)} aria-label={`Edit ${s.serial}`}>
-                      Edit
-                    </Button>
-                  )
-                : undefined
-            }
+            rowActions={(s) => (
+              <>
+                <Button size="sm" variant="ghost" onClick={() => setCertificates(s)} aria-label={`Certificates of ${s.serial}`}>
+                  Certificates
+                </Button>
+                {canEdit && (
+                  <Button size="sm" variant="ghost" onClick={() => setEditing(s)} aria-label={`Edit ${s.serial}`}>
+                    Edit
+                  </Button>
+                )}
+              </>
+            )}
           />
         </div>
       )}
@@ -121,6 +126,7 @@ export function Component() {
           />
         )}
       </Dialog>
+      <CertificateDialog standard={certificates} canEdit={canEdit} onClose={() => setCertificates(null)} />
       <CsvImportDialog
         open={importing}
         onClose={() => setImporting(false)}

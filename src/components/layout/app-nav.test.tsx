@@ -24,9 +24,9 @@ describe('AppNav', () => {
     }
   });
 
-  it('shows Users and Outbox only to admin, Audit to lead, admin and auditor', () => {
+  it('shows Users and Outbox only to admin, Review to leads, Audit to lead, admin and auditor', () => {
     expect(navNames('technician')).toEqual(['Queue', 'Instruments', 'Standards', 'Bench', 'Records']);
-    expect(navNames('lead')).toEqual(['Queue', 'Instruments', 'Standards', 'Bench', 'Records', 'Audit']);
+    expect(navNames('lead')).toEqual(['Queue', 'Instruments', 'Standards', 'Bench', 'Records', 'Review', 'Audit']);
     expect(navNames('auditor')).toEqual(['Queue', 'Instruments', 'Standards', 'Bench', 'Records', 'Audit']);
     expect(navNames('admin')).toEqual(['Queue', 'Instruments', 'Standards', 'Bench', 'Records', 'Audit', 'Users', 'Outbox']);
   });

@@ -1,6 +1,7 @@
 import { NavLink } from 'react-router';
 import type { Role } from '../../../shared/schemas/auth';
 import { canOpen, type Area } from '../../lib/authorization';
+import { useReviewInbox } from '../../lib/review-inbox';
 import { cn } from '../../lib/cn';
 
 export interface NavItem {
@@ -16,6 +17,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { area: 'standards', label: 'Standards', to: '/standards' },
   { area: 'bench', label: 'Bench', to: '/bench' },
   { area: 'records', label: 'Records', to: '/records' },
+  { area: 'review', label: 'Review', to: '/review' },
   { area: 'audit', label: 'Audit', to: '/audit' },
   { area: 'users', label: 'Users', to: '/users' },
   { area: 'outbox', label: 'Outbox', to: '/outbox' },
@@ -23,6 +25,17 @@ export const NAV_ITEMS: readonly NavItem[] = [
 
 export function navItemsFor(role: Role): NavItem[] {
   return NAV_ITEMS.filter((i) => canOpen(role, i.area));
+}
+
+/** How many jobs await review (leads): a count beside the Review link, none when zero. */
+function ReviewCount() {
+  const n = useReviewInbox(true).data?.count ?? 0;
+  if (!n) return null;
+  return (
+    <span className="num ml-2 rounded-full bg-accent px-1.5 text-xs leading-5 text-accent-ink" data-testid="review-count" aria-label={`${n} awaiting review`}>
+      {n}
+    </span>
+  );
 }
 
 export interface AppNavProps {
@@ -51,6 +64,7 @@ export function AppNav({ role, className }: AppNavProps) {
               }
             >
               {item.label}
+              {item.area === 'review' && <ReviewCount />}
             </NavLink>
           </li>
         ))}

@@ -15,7 +15,7 @@ export function auditRoutes(audit: AuditService) {
   const list = { query: AuditQuerySchema };
   t.add('get', '/', 'audit.read', validate(list), async (_req, res) => {
     const rows = await audit.list(input(res, list).query);
-    res.json({ items: rows.map((r) => ({ ...r, at: r.at.toISOString() })) });
+    res.json({ items: await audit.inWords(rows) });
   });
   t.add('get', '/verify', 'audit.read', async (_req, res) => {
     res.json(await audit.verify());

@@ -1,4 +1,4 @@
-import { AssignJobBodySchema, ChecklistPatchSchema, CreateJobBodySchema } from '../../../../shared/schemas/jobs';
+import { AssignJobBodySchema, ChecklistPatchSchema, CreateJobBodySchema, SubmitJobBodySchema } from '../../../../shared/schemas/jobs';
 import { IdParamSchema } from '../../../../shared/schemas/users';
 import type { JobService } from '../../../services/job.service';
 import { currentUser } from '../../middleware/auth';
@@ -28,8 +28,10 @@ export function jobRoutes(jobs: JobService) {
     const { params, body } = input(res, checklist);
     res.json(await jobs.updateChecklist(currentUser(res), params.id, body));
   });
-  t.add('post', '/:id/submit', 'jobs.perform', validate(one), async (_req, res) => {
-    res.json(await jobs.submit(currentUser(res), input(res, one).params.id));
+  const submit = { params: IdParamSchema, body: SubmitJobBodySchema };
+  t.add('post', '/:id/submit', 'jobs.perform', validate(submit), async (_req, res) => {
+    const { params, body } = input(res, submit);
+    res.json(await jobs.submit(currentUser(res), params.id, body));
   });
   return t;
 }

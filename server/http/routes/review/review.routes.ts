@@ -48,6 +48,10 @@ export function reviewRoutes(review: ReviewService) {
 /** The review page's trace of a run: raw samples in a window or a min/mean/max envelope. */
 export function reviewTraceRoutes(review: ReviewService) {
   const t = routeTable('/api/review');
+  // The lead's inbox: jobs awaiting review, oldest submission first.
+  t.add('get', '/inbox', 'jobs.review', async (_req, res) => {
+    res.json(await review.inbox());
+  });
   const trace = { params: IdParamSchema, query: ReviewTraceQuerySchema };
   t.add('get', '/runs/:id/trace', 'runs.read', validate(trace), async (_req, res) => {
     const { params, query } = input(res, trace);

@@ -10,7 +10,11 @@ function changedKeys(before: unknown, after: unknown): string[] {
   return [...new Set([...Object.keys(a), ...Object.keys(b)])].filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k]));
 }
 
-/** The audit trail: when (UTC), who, what, which record, and old → new values on demand. */
+/** Entities named by a tag (set in the numeric face like every tag). */
+const ENTITY_NUMERIC = new Set(['job', 'run', 'instrument']);
+const ENTITY_WORDS: Record<string, string> = { job: 'Job', run: 'Run', instrument: 'Instrument', standard: 'Standard', user: 'User', site: 'Site', bench: 'Bench', 'sample-storage': 'Sample storage' };
+
+/** The audit trail in words: when (UTC), who by name, what happened, which record by its tag, and old → new values on demand. */
 export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; brokenId?: number | undefined }) {
   const [open, setOpen] = useState<number | null>(null);
   return (
@@ -21,7 +25,7 @@ export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; broke
             <th className="px-3 py-2">#</th>
             <th className="px-3 py-2">When (UTC)</th>
             <th className="px-3 py-2">Who</th>
-            <th className="px-3 py-2">Action</th>
+            <th className="px-3 py-2">What happened</th>
             <th className="px-3 py-2">Record</th>
             <th className="px-3 py-2">Changed</th>
           </tr>
@@ -34,11 +38,22 @@ export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; broke
                 <tr className={cn('border-t border-line', e.id === brokenId && 'bg-danger-soft')} data-testid={`audit-row-${e.id}`}>
                   <td className="num px-3 py-2">{e.id}</td>
                   <td className="num px-3 py-2 whitespace-nowrap">{e.at.replace('T', ' ').slice(0, 19)}</td>
-                  <td className="px-3 py-2">{e.actorEmail ?? <span className="text-ink-faint">system</span>}</td>
-                  <td className="px-3 py-2 font-medium">{e.action}</td>
                   <td className="px-3 py-2">
-                    {e.entity}
-                    {e.entityId && <span className="num ml-1 text-xs text-ink-muted">{e.entityId.slice(0, 8)}</span>}
+                    {e.actorName ?? e.actorEmail ?? <span className="text-ink-muted">Stillpoint (automatic)</span>}
+                    {e.actorName && e.actorEmail && e.actorEmail.includes('@') && !e.actorName.includes(e.actorEmail) && <span className="block text-xs text-ink-muted">{e.actorEmail}</span>}
+                  </td>
+                  <td className="px-3 py-2 font-medium" title={e.action}>
+                    {e.summary ?? e.action}
+                  </td>
+                  <td className="px-3 py-2">
+                    {e.subject ? (
+                      <span className={ENTITY_NUMERIC.has(e.entity) ? 'num' : undefined}>{e.subject}</span>
+                    ) : (
+                      <>
+                        {ENTITY_WORDS[e.entity] ?? e.entity}
+                        {e.entityId && <span className="num ml-1 text-xs text-ink-muted">{e.entityId.slice(0, 8)}</span>}
+                      </>
+                    )}
                   </td>
                   <td className="px-3 py-2">
                     <button type="button" className="text-accent hover:underline" onClick={() => setOpen(open === e.id ? null : e.id)} aria-expanded={open === e.id}>

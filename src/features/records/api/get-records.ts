@@ -5,16 +5,26 @@ import { api } from '../../../lib/api-client';
 
 export type RecordsFilter = 'all' | 'approved' | 'submitted';
 
-/** GET /api/records?status= → submitted and approved jobs with their last signature. */
-export async function getRecords(status: RecordsFilter, signal?: AbortSignal): Promise<RecordItem[]> {
-  const r = await api.get(`/api/records?status=${status}`, { schema: z.object({ items: z.array(RecordItemSchema) }), ...(signal ? { signal } : {}) });
+/** Calibration dates to show, inclusive (ISO dates); empty for no bound. */
+export interface RecordsDates {
+  from: string;
+  to: string;
+}
+const NO_DATES: RecordsDates = { from: '', to: '' };
+
+/** GET /api/records?status=&from=&to= → records with last signature, calibration date and results, newest calibration first. */
+export async function getRecords(status: RecordsFilter, dates: RecordsDates = NO_DATES, signal?: AbortSignal): Promise<RecordItem[]> {
+  const q = new URLSearchParams({ status });
+  if (dates.from) q.set('from', dates.from);
+  if (dates.to) q.set('to', dates.to);
+  const r = await api.get(`/api/records?${q}`, { schema: z.object({ items: z.array(RecordItemSchema) }), ...(signal ? { signal } : {}) });
   return r.items;
 }
 
-export function recordsQueryOptions(status: RecordsFilter = 'all') {
-  return queryOptions({ queryKey: ['records', status], queryFn: ({ signal }) => getRecords(status, signal) });
+export function recordsQueryOptions(status: RecordsFilter = 'all', dates: RecordsDates = NO_DATES) {
+  return queryOptions({ queryKey: ['records', status, dates.from, dates.to], queryFn: ({ signal }) => getRecords(status, dates, signal) });
 }
 
-export function useRecords(status: RecordsFilter) {
-  return useQuery(recordsQueryOptions(status));
+export function useRecords(status: RecordsFilter, dates: RecordsDates = NO_DATES) {
+  return useQuery(recordsQueryOptions(status, dates));
 }

@@ -4,6 +4,15 @@ import type { RecordItem } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
 import { DataTable, type ColumnDef } from '../../../components/ui/table';
 
+const RESULT_WORDS: Record<string, string> = { pass: 'Pass', fail: 'Fail', 'conditional-pass': 'Conditional pass', 'conditional-fail': 'Conditional fail' };
+const RESULT_TONES: Record<string, 'ok' | 'danger' | 'warn'> = { pass: 'ok', fail: 'danger', 'conditional-pass': 'warn', 'conditional-fail': 'warn' };
+
+/** An overall result in words with a tone; a dash when the run was not done (an as-left after a pass). */
+function Result({ decision }: { decision: string | null }) {
+  if (!decision) return <span className="text-ink-faint">—</span>;
+  return <Badge tone={RESULT_TONES[decision] ?? 'neutral'}>{RESULT_WORDS[decision] ?? decision}</Badge>;
+}
+
 /** Submitted and approved records with links to review, certificate and drift. */
 export function RecordsTable({ records, search }: { records: RecordItem[]; search: string }) {
   const columns = useMemo<ColumnDef<RecordItem>[]>(
@@ -18,6 +27,14 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
           </Badge>
         ),
       },
+      {
+        id: 'calibrated',
+        header: 'Calibrated',
+        accessorFn: (r) => r.calibratedOn ?? '',
+        cell: ({ row }) => (row.original.calibratedOn ? <span className="num whitespace-nowrap">{row.original.calibratedOn}</span> : <span className="text-ink-faint">—</span>),
+      },
+      { id: 'asFound', header: 'As found', accessorFn: (r) => r.asFound ?? '', cell: ({ row }) => <Result decision={row.original.asFound ?? null} /> },
+      { id: 'asLeft', header: 'As left', accessorFn: (r) => r.asLeft ?? '', cell: ({ row }) => <Result decision={row.original.asLeft ?? null} /> },
       { accessorKey: 'revision', header: 'Rev.', meta: { numeric: true } },
       { accessorKey: 'assigneeName', header: 'Performed by', cell: ({ getValue }) => getValue<string | null>() ?? '—' },
       {
@@ -27,15 +44,18 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
         cell: ({ row }) => {
           const s = row.original.lastSignature;
           return s ? (
-            <span>
-              {s.signerName}, <span className="num">{s.signedAt.slice(0, 10)}</span> <span className="text-ink-muted">({s.meaning})</span>
+            <span title={`${s.signerName}, ${s.signedAt.slice(0, 10)} (${s.meaning})`}>
+              {s.signerName}
+              <span className="block text-xs text-ink-muted">
+                <span className="num">{s.signedAt.slice(0, 10)}</span> · {s.decision === 'approve' ? 'approved' : 'returned'}
+              </span>
             </span>
           ) : (
             <span className="text-ink-faint">Awaiting review</span>
           );
         },
       },
-      { accessorKey: 'revisions', header: 'Earlier revisions', meta: { numeric: true } },
+      { accessorKey: 'revisions', header: 'Earlier rev.', meta: { numeric: true } },
       {
         id: 'links',
         header: '',
@@ -65,7 +85,7 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
       data={records}
       columns={columns}
       globalFilter={search}
-      initialSorting={[{ id: 'signed', desc: true }]}
+      initialSorting={[{ id: 'calibrated', desc: true }]}
       getRowId={(r) => r.id}
       empty={search ? `No records match “${search}”.` : 'No submitted or approved records yet.'}
     />

@@ -1,7 +1,9 @@
 import type { ReactNode } from 'react';
 import type { Checklist, JobDetail } from '../../../../shared/schemas/jobs';
-import type { AuditEntry, RevisionSummary, Signature } from '../../../../shared/schemas/records';
+import type { AuditEntry, ReviewExchange, RevisionSummary, Signature } from '../../../../shared/schemas/records';
+import { AttachmentList, PHOTO } from '../../../components/ui/attachments';
 import { Badge } from '../../../components/ui/badge';
+import { fileUrl } from '../../../lib/attachments';
 import { daysUntil } from '../../../lib/format';
 
 export function Panel({ title, children, testId }: { title: string; children: ReactNode; testId?: string }) {
@@ -31,6 +33,13 @@ export function StandardsUsed({ job }: { job: JobDetail }) {
                 {s.dueState === 'expired' ? 'Expired' : s.dueState === 'due-soon' ? `Due in ${d} d` : 'In date'}
               </Badge>
             </span>
+            {s.certificateFileId ? (
+              <a className="text-accent hover:underline" href={fileUrl(s.certificateFileId)} target="_blank" rel="noreferrer" data-testid="certificate-link">
+                Open the certificate
+              </a>
+            ) : (
+              <span className="text-xs text-ink-muted">No certificate file uploaded</span>
+            )}
             {s.problem && <span className="text-danger">{s.problem}</span>}
           </li>
         );
@@ -122,7 +131,48 @@ export function RevisionList({ revisions, onOpen }: { revisions: RevisionSummary
   );
 }
 
-/** The job's audit trail, oldest first, with old → new values on request. */
+/**
+ * The return loop of this job: each return with the lead's comment, and the technician's reply on
+ * resubmission, oldest first.
+ */
+export function ReturnExchanges({ exchanges }: { exchanges: ReviewExchange[] }) {
+  return (
+    <ol className="flex flex-col gap-3 text-sm" data-testid="review-exchanges">
+      {exchanges.map((x, i) => (
+        <li key={x.signatureId} className="rounded-md border border-line px-3 py-2" data-testid="exchange">
+          <div className="text-xs text-ink-muted">
+            Round {i + 1} · revision {x.revision}
+          </div>
+          <p className="mt-1">
+            <strong>{x.returnedBy}</strong> returned it <span className="num text-xs text-ink-muted">{when(x.returnedAt)}</span>
+          </p>
+          <blockquote className="mt-1 border-l-2 border-warn pl-3 whitespace-pre-wrap" data-testid="exchange-comment">
+            {x.comment || 'No comment was given.'}
+          </blockquote>
+          {x.reply ? (
+            <>
+              <p className="mt-2">
+                <strong>{x.reply.byName}</strong> replied on resubmission <span className="num text-xs text-ink-muted">{when(x.reply.at)}</span>
+              </p>
+              <blockquote className="mt-1 border-l-2 border-accent pl-3 whitespace-pre-wrap" data-testid="exchange-reply">
+                {x.reply.text}
+              </blockquote>
+            </>
+          ) : (
+            <p className="mt-2 text-ink-muted">No reply yet.</p>
+          )}
+        </li>
+      ))}
+    </ol>
+  );
+}
+
+/** The job's as-found photos, to look at (read-only here). */
+export function ReviewPhotos({ jobId }: { jobId: string }) {
+  return <AttachmentList target={{ entity: 'job', id: jobId }} spec={PHOTO} canUpload={false} canRemove={false} emptyText="No as-found photos." testId="review-photos" />;
+}
+
+/** The job's audit trail in words, oldest first, with old → new values on request. */
 export function AuditTrailList({ entries }: { entries: AuditEntry[] }) {
   if (!entries.length) return <p className="text-sm text-ink-muted">No events.</p>;
   return (
@@ -131,8 +181,9 @@ export function AuditTrailList({ entries }: { entries: AuditEntry[] }) {
         <li key={e.id} className="border-b border-line py-1 last:border-0">
           <details>
             <summary className="cursor-pointer">
-              <span className="num text-xs text-ink-muted">{when(e.at)}</span> <span className="font-medium">{e.action}</span>{' '}
-              <span className="text-ink-muted">{e.actorEmail ?? 'system'}</span>
+              <span className="num text-xs text-ink-muted">{when(e.at)}</span> <span className="font-medium">{e.summary ?? e.action}</span>
+              {e.subject && <span className="text-ink-muted"> · {e.subject}</span>}{' '}
+              <span className="text-ink-muted">— {e.actorName ?? e.actorEmail ?? 'Stillpoint (automatic)'}</span>
             </summary>
             <div className="mt-1 grid gap-2 sm:grid-cols-2">
               <pre className="num overflow-x-auto rounded bg-sunken p-2 text-[11px]">{JSON.stringify(e.before, null, 1) ?? 'null'}</pre>

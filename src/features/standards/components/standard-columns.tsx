@@ -1,6 +1,7 @@
 import type { Standard } from '../../../../shared/schemas/standards';
 import type { RegisterColumn } from '../../../components/registers/server-table';
 import { daysUntil, formatNumber, formatRange } from '../../../lib/format';
+import { CertificateCell } from './certificate-dialog';
 import { DueStateBadge } from './due-state-badge';
 import { formatAccuracy } from './standards-table';
 
@@ -11,7 +12,7 @@ export const STANDARD_COLUMNS: RegisterColumn<Standard>[] = [
   { id: 'range', header: 'Range', cell: (s) => <span className="num whitespace-nowrap">{formatRange(s.rangeMin, s.rangeMax, s.unit)}</span> },
   { id: 'accuracy', header: 'Accuracy', cell: (s) => <span className="num">{formatAccuracy(s.accuracy, s.unit)}</span> },
   { id: 'resolution', header: 'Resolution', optional: true, numeric: true, cell: (s) => formatNumber(s.resolution, 6) },
-  { id: 'certificate', header: 'Certificate', cell: (s) => <span className="num">{s.certificateNo}</span> },
+  { id: 'certificate', header: 'Certificate', cell: (s) => <CertificateCell standard={s} /> },
   { id: 'calibrated', header: 'Calibrated', optional: true, cell: (s) => <span className="num">{s.calibratedOn}</span> },
   {
     id: 'due',

@@ -1,0 +1,127 @@
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchBrowser } from '../helpers/browser';
+import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
+
+/**
+ * The return loop in the browser: the lead returns a submitted job with a comment, the technician
+ * sees it at the top of the job page and answers it on resubmission, the lead reads the reply on
+ * the review page and approves.
+ */
+let server: TestServer;
+let browser: Browser;
+let admin: ApiClient;
+let jobId: string;
+
+const COMMENT = 'Point 3 down drifts during the hold; re-make the fittings and repeat the as-found.';
+const REPLY = 'Fittings re-made and leak-tested at 110 % of span; the hold is steady now.';
+
+async function signIn(page: Page, email: string) {
+  await page.goto(`${server.url}/login`);
+  await page.getByLabel('Email').fill(email);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByTestId('nav-records').or(page.getByTestId('nav-queue')).first().waitFor();
+}
+
+/** Waits until the Outbox holds a message with this subject to this address; returns its text. */
+async function mailText(subject: RegExp, to: string): Promise<string> {
+  const deadline = Date.now() + 30_000;
+  while (Date.now() < deadline) {
+    const items = (await admin.get('/api/outbox')).body.items as Array<{ id: string; subject: string; to: string[] }>;
+    const hit = items.find((m) => subject.test(m.subject) && m.to.includes(to));
+    if (hit) return (await admin.get(`/api/outbox/${hit.id}`)).body.text as string;
+    await new Promise((r) => setTimeout(r, 150));
+  }
+  throw new Error(`no message ${subject} to ${to}`);
+}
+
+beforeAll(async () => {
+  server = await startTestServer();
+  admin = new ApiClient(server.url);
+  await admin.login(demoEmail('admin'));
+  const tech = new ApiClient(server.url);
+  const me = await tech.login(demoEmail('tech'));
+  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
+  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
+  const s = await demoStandards(server);
+  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
+  await passingAsFound(server, jobId, 'FT-101', me.id);
+  const sub = await tech.post(`/api/jobs/${jobId}/submit`);
+  expect(sub.status, JSON.stringify(sub.body)).toBe(200);
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+describe('the return loop in the browser', () => {
+  it('lead returns with a comment, technician sees it and replies on resubmission, lead reads the reply and approves', async () => {
+    const errors: string[] = [];
+
+    // 1. The lead returns the job with a comment.
+    const lead = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const leadPage = await lead.newPage();
+    leadPage.on('pageerror', (e) => errors.push(e.message));
+    await signIn(leadPage, demoEmail('lead'));
+    await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
+    await leadPage.getByRole('button', { name: 'Return…' }).click();
+    const dialog = leadPage.getByRole('dialog');
+    await dialog.getByLabel('What needs correcting').fill(COMMENT);
+    await dialog.getByLabel('Your password').fill(DEMO_PASSWORD);
+    await dialog.getByRole('button', { name: 'Sign and return' }).click();
+    await leadPage.getByTestId('review-exchange-panel').getByText(COMMENT).waitFor();
+    await leadPage.getByTestId('review-exchange-panel').getByText('No reply yet.').waitFor();
+
+    // The return mail links to the job page, where the comment now stands.
+    const returned = await mailText(/^Returned with comments: FT-101$/, demoEmail('tech'));
+    expect(returned).toContain(COMMENT);
+    const link = /https?:\/\/\S+\/jobs\/[0-9a-f-]{36}/.exec(returned)?.[0];
+    expect(link).toBeDefined();
+
+    // 2. The technician opens the mail's link: the comment, who and when are at the top.
+    const tech = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const techPage = await tech.newPage();
+    techPage.on('pageerror', (e) => errors.push(e.message));
+    await signIn(techPage, demoEmail('tech'));
+    await techPage.goto(`${server.url}${new URL(link!).pathname}`);
+    const notice = techPage.getByTestId('return-notice');
+    await notice.waitFor();
+    expect(await notice.getByTestId('return-comment').innerText()).toBe(COMMENT);
+    expect(await notice.innerText()).toMatch(/Returned by Bram Oduya on \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
+    // The notice is the first thing under the page header, above the steps.
+    const noticeTop = (await notice.boundingBox())!.y;
+    const submitTop = (await techPage.getByTestId('submit-job').boundingBox())!.y;
+    expect(noticeTop).toBeLessThan(submitTop);
+
+    // 3. The technician replies and resubmits.
+    await techPage.getByLabel(/Your reply to Bram Oduya/).fill(REPLY);
+    await techPage.getByTestId('submit-job').click();
+    await techPage.getByText('Submitted for review.').waitFor();
+    await techPage.getByTestId('return-notice').waitFor({ state: 'detached' });
+    const resubmitted = await mailText(/^Resubmitted for review: FT-101$/, demoEmail('lead'));
+    expect(resubmitted).toContain(REPLY);
+    expect(resubmitted).toContain(`/jobs/${jobId}/review`);
+    await tech.close();
+
+    // 4. The lead sees the exchange (comment, reply, who, when) and approves.
+    await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
+    const exchange = leadPage.getByTestId('exchange');
+    await exchange.getByTestId('exchange-reply').getByText(REPLY).waitFor();
+    const text = await exchange.innerText();
+    expect(text).toContain(COMMENT);
+    expect(text).toMatch(/Bram Oduya returned it/);
+    expect(text).toMatch(/replied on resubmission \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
+    await leadPage.getByRole('button', { name: 'Approve…' }).click();
+    const approve = leadPage.getByRole('dialog');
+    await approve.getByLabel('Your password').fill(DEMO_PASSWORD);
+    await approve.getByRole('button', { name: 'Sign and approve' }).click();
+    await leadPage.getByTestId('signatures').getByText('approved', { exact: true }).waitFor();
+    await lead.close();
+
+    expect((await admin.get(`/api/jobs/${jobId}`)).body.status).toBe('approved');
+    expect(errors).toEqual([]);
+  });
+});
