@@ -16,7 +16,7 @@ export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; broke
   return (
     <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Audit trail">
-        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
           <tr>
             <th className="px-3 py-2">#</th>
             <th className="px-3 py-2">When (UTC)</th>

@@ -13,8 +13,8 @@ export const OUTPUT_MODE_LABELS: Record<OutputMode, string> = {
 export interface InstrumentsTableProps {
   instruments: readonly Instrument[];
   search?: string;
-  /** For tests; defaults to now. */
-  today?: Date;
+  /** Today's date (YYYY-MM-DD) for tests; defaults to today in the site's zone. */
+  today?: string;
 }
 
 /** Text a search matches against: tag, service, location, unit and output mode. */

@@ -22,7 +22,7 @@ export function PointTable({ run, selectedIndex, onSelect, outputMode }: PointTa
   return (
     <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full border-collapse text-sm" aria-label={`Points of the ${run.kind} run`}>
-        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
           <tr>
             <th className="px-3 py-2">Point</th>
             <th className="px-3 py-2 text-right">Applied ({run.unit})</th>

@@ -7,7 +7,7 @@ import { daysUntil } from '../../../lib/format';
 export function Panel({ title, children, testId }: { title: string; children: ReactNode; testId?: string }) {
   return (
     <section className="rounded-card border border-line bg-surface p-4 shadow-card" aria-label={title} data-testid={testId}>
-      <h2 className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">{title}</h2>
+      <h2 className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">{title}</h2>
       {children}
     </section>
   );

@@ -360,7 +360,7 @@ function StreamDot({ status }: { status: LiveStatus }) {
 function ShortcutHelp({ shortcuts }: { shortcuts: readonly Shortcut[] }) {
   return (
     <section aria-label="Keyboard shortcuts" className="rounded-card border border-line bg-surface px-4 py-3 text-sm shadow-card" data-testid="shortcuts">
-      <h2 className="text-xs font-semibold tracking-wide text-ink-muted uppercase">Keys</h2>
+      <h2 className="text-xs font-semibold tracking-wide text-ink-muted">Keys</h2>
       <ul className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1.5">
         {shortcuts.map((s) => (
           <li key={s.key} className={cn('flex items-center gap-2', s.enabled === false && 'opacity-45')}>

@@ -28,7 +28,7 @@ export function PointList({
   return (
     <div className="overflow-hidden rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Points">
-        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted">
           <tr>
             <th scope="col" className="px-3 py-2">
               Point
@@ -77,7 +77,7 @@ export function PointList({
                       {STATE_LABEL[p.state]}
                     </Badge>
                     {p.flags.map((f) => (
-                      <Badge key={f} tone={f} className="uppercase" >
+                      <Badge key={f} tone={f}>
                         {f}
                       </Badge>
                     ))}

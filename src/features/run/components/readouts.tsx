@@ -10,7 +10,7 @@ function fixed(v: number | null, decimals: number): string {
 function Readout({ label, value, unit, testId, tone, size = 'lg', sub }: { label: string; value: string; unit: string; testId: string; tone?: 'ok' | 'warn' | 'danger' | undefined; size?: 'lg' | 'md'; sub?: string | undefined }) {
   return (
     <div className="min-w-0 rounded-card border border-line bg-surface px-4 py-3 shadow-card">
-      <dt className="text-xs font-semibold tracking-wide text-ink-muted uppercase">{label}</dt>
+      <dt className="text-xs font-semibold tracking-wide text-ink-muted">{label}</dt>
       <dd className="mt-1 flex items-baseline gap-2">
         <span
           data-testid={testId}

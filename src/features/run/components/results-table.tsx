@@ -45,7 +45,7 @@ export function ResultsTable({
       <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
-          <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted uppercase">
+          <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted">
             <tr>
               <th scope="col" className="px-3 py-2 text-left">Point</th>
               <th scope="col" className="px-3 py-2 text-right">Applied DP ({unitLabel})</th>
