@@ -17,6 +17,7 @@ import {
 export {
   dpDecimals,
   flowAtDp,
+  type FlowInstrument as FlowInstrumentView,
   flowDecimals,
   formatFixed,
   formatFlow,

@@ -1,6 +1,7 @@
 import { Fragment, useState } from 'react';
 import type { AuditEntry } from '../../../../shared/schemas/records';
 import { cn } from '../../../lib/cn';
+import { formatDateTime } from '../../../lib/format';
 
 /** Changed keys between two JSON values (top level), for a quick old → new reading. */
 function changedKeys(before: unknown, after: unknown): string[] {
@@ -10,7 +11,7 @@ function changedKeys(before: unknown, after: unknown): string[] {
   return [...new Set([...Object.keys(a), ...Object.keys(b)])].filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k]));
 }
 
-/** The audit trail: when (UTC), who, what, which record, and old → new values on demand. */
+/** The audit trail: when (site time), who, what, which record, and old → new values on demand. */
 export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; brokenId?: number | undefined }) {
   const [open, setOpen] = useState<number | null>(null);
   return (
@@ -33,7 +34,7 @@ export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; broke
               <Fragment key={e.id}>
                 <tr className={cn('border-t border-line', e.id === brokenId && 'bg-danger-soft')} data-testid={`audit-row-${e.id}`}>
                   <td className="num px-3 py-2">{e.id}</td>
-                  <td className="num px-3 py-2 whitespace-nowrap">{e.at.replace('T', ' ').slice(0, 19)}</td>
+                  <td className="num px-3 py-2 whitespace-nowrap">{formatDateTime(e.at, { seconds: true })}</td>
                   <td className="px-3 py-2">{e.actorEmail ?? <span className="text-ink-faint">system</span>}</td>
                   <td className="px-3 py-2 font-medium">{e.action}</td>
                   <td className="px-3 py-2">

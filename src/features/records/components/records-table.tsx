@@ -3,6 +3,7 @@ import { Link } from 'react-router';
 import type { RecordItem } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
 import { DataTable, type ColumnDef } from '../../../components/ui/table';
+import { formatDate } from '../../../lib/format';
 
 /** Submitted and approved records with links to review, certificate and drift. */
 export function RecordsTable({ records, search }: { records: RecordItem[]; search: string }) {
@@ -28,7 +29,7 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
           const s = row.original.lastSignature;
           return s ? (
             <span>
-              {s.signerName}, <span className="num">{s.signedAt.slice(0, 10)}</span> <span className="text-ink-muted">({s.meaning})</span>
+              {s.signerName}, <span className="num">{formatDate(s.signedAt)}</span> <span className="text-ink-muted">({s.meaning})</span>
             </span>
           ) : (
             <span className="text-ink-faint">Awaiting review</span>

@@ -2,7 +2,7 @@ import type { ReactNode } from 'react';
 import type { Checklist, JobDetail } from '../../../../shared/schemas/jobs';
 import type { AuditEntry, RevisionSummary, Signature } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
-import { daysUntil } from '../../../lib/format';
+import { daysUntil, formatDateTime } from '../../../lib/format';
 
 export function Panel({ title, children, testId }: { title: string; children: ReactNode; testId?: string }) {
   return (
@@ -13,7 +13,7 @@ export function Panel({ title, children, testId }: { title: string; children: Re
   );
 }
 
-const when = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+const when = (iso: string) => formatDateTime(iso);
 
 /** Standards used, with their due dates and state at review time. */
 export function StandardsUsed({ job }: { job: JobDetail }) {
