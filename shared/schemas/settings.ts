@@ -52,3 +52,11 @@ export function parseSiteSettings(text: string | null | undefined): SiteSettings
   const r = SiteSettingsSchema.safeParse(raw);
   return r.success ? r.data : {};
 }
+
+/** Body of `PUT /api/site/time-zone` (admin): the site's IANA time zone. */
+export const SiteTimeZoneBodySchema = z
+  .object({
+    timeZone: z.string({ message: 'Choose a time zone' }).trim().refine(isTimeZone, 'Choose a known time zone, e.g. Europe/London'),
+  })
+  .strict();
+export type SiteTimeZoneBody = z.infer<typeof SiteTimeZoneBodySchema>;

@@ -94,4 +94,21 @@ describe('the site clock near midnight', () => {
     expect(((await admin.get('/api/auth/me')).body as { timeZone?: string }).timeZone).toBe('UTC');
     expect(await createSiteClock(server.database.db, () => new Date('2026-12-02T23:30:00Z')).today()).toBe('2026-12-02');
   });
+
+  it('lets an admin set the zone (audited), refuses others, and explains a bad zone', async () => {
+    const leadClient = new ApiClient(server.url);
+    await leadClient.login(demoEmail('lead'));
+    expect((await leadClient.req('PUT', '/api/site/time-zone', { timeZone: 'Europe/London' })).status).toBe(403);
+    const bad = await admin.req('PUT', '/api/site/time-zone', { timeZone: 'Europe/Atlantis' });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.fields.timeZone).toEqual(['Choose a known time zone, e.g. Europe/London']);
+    expect((await admin.req('PUT', '/api/site/time-zone', {})).status).toBe(400);
+    const ok = await admin.req('PUT', '/api/site/time-zone', { timeZone: 'Europe/London' });
+    expect(ok.status, JSON.stringify(ok.body)).toBe(200);
+    expect(((await admin.get('/api/site/settings')).body as { timeZone: string }).timeZone).toBe('Europe/London');
+    expect(((await leadClient.get('/api/auth/me')).body as { timeZone: string }).timeZone).toBe('Europe/London');
+    const audit = (await admin.get('/api/audit')).body as { items?: Array<{ action: string; after?: unknown }> } | Array<{ action: string }>;
+    const items = Array.isArray(audit) ? audit : (audit.items ?? []);
+    expect(items.some((e) => e.action === 'site.time-zone-changed')).toBe(true);
+  });
 });
