@@ -17,6 +17,7 @@ import { calcRoutes } from './http/routes/calc/calc.routes';
 import { jobRoutes } from './http/routes/jobs/jobs.routes';
 import { certificateRoutes } from './http/routes/records/certificate.routes';
 import { queueRoutes, recordsRoutes } from './http/routes/records/records.routes';
+import { siteRoutes } from './http/routes/site/site.routes';
 import { instrumentRoutes, standardRoutes } from './http/routes/registers/registers.routes';
 import { reviewRoutes, reviewTraceRoutes } from './http/routes/review/review.routes';
 import { userRoutes } from './http/routes/users/users.routes';
@@ -105,6 +106,7 @@ export function createApp(deps: AppDeps) {
     certificateRoutes(deps.services.certificates),
     queueRoutes(deps.services.drift),
     auditRoutes(deps.services.audit),
+    siteRoutes(deps.services.site),
     calcRoutes(),
     ...(deps.extraRoutes ?? []),
   ];

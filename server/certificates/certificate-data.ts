@@ -4,6 +4,7 @@
  * standards registers, the runs' evaluated results and the signatures; the renderer only lays it
  * out.
  */
+import { formatFixed } from '../../shared/format';
 import type { Decision, DecisionRule, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
 import type { ResultPoint, RunResults } from '../../shared/schemas/runs';
 
@@ -32,7 +33,9 @@ export type CertificatePoint = Pick<
   | 'coverageProbability'
   | 'effectiveDof'
   | 'decision'
->;
+> &
+  /** Flow in engineering units at the applied DP (orifice primary element, ISO 5167-2); absent otherwise. */
+  Partial<Pick<ResultPoint, 'flow'>>;
 
 /**
  * One set of results (as found or as left). The calc engine's `EvaluateOutput` is assignable to
@@ -109,6 +112,8 @@ export interface CertificateData {
   issuedAt?: string;
   /** 1 for the first issue; each correction issues the next revision. */
   revision: number;
+  /** The site's time zone (IANA name): dates and times are printed in it with their UTC offset. Default UTC. */
+  timeZone?: string;
   /** Required when `revision` > 1: why this revision replaces the previous one. */
   revisionReason?: string;
   /** A draft prints a banner and needs no approval signature; it is not a valid certificate. */
@@ -224,7 +229,7 @@ export function decisionText(d: Decision): string {
 }
 
 function pct(n: number): string {
-  return `${n.toFixed(2)} %`;
+  return `${formatFixed(n, 2)} %`;
 }
 
 /** `at 2 of 10 test points` / `at all 10 test points` / `at the 1 test point`. */

@@ -52,6 +52,18 @@ afterAll(async () => {
 });
 
 describe('renderCertificate', () => {
+  it('writes numbers by the one sign rule: U+2212 minus, + on signed values, never a signed zero', () => {
+    expect(text).toMatch(/\u2212\d\.\d{3}/); // a negative as-found error
+    expect(text).toMatch(/\+\d\.\d{3}/);
+    expect(text).not.toMatch(/[-\u2212+]0\.0+(?!\d*[1-9])\b/);
+    expect(text).not.toMatch(/(^|\s)-\d/); // no hyphen-minus before a number
+  });
+
+  it('shows flow in engineering units for an orifice primary element, with the constant-C root departure', () => {
+    expect(text).toContain('Flow in engineering units (m³/h) from the orifice primary element by ISO 5167-2:2003');
+    expect(text).toContain('Constant-C root departure %');
+  });
+
   it('produces a PDF', () => {
     expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
     expect(pdf.length).toBeGreaterThan(10_000);
@@ -76,8 +88,10 @@ describe('renderCertificate', () => {
     for (const ma of [...SAMPLE_AS_FOUND_MA, ...SAMPLE_AS_LEFT_MA]) expect(text).toContain(ma.toFixed(4));
     expect(text).toContain('Lower trim');
     expect(text).toContain('20.0931');
-    expect(text).toContain('0.0 to 2500.0 mmH2O@68F');
-    expect(text).toContain('mmH2O at 68 °F (20 °C)'); // the calc label's subscript ₂ is mapped into the latin subset
+    // One unit spelling (shared/format), never the unit id; DP decimals by the screens' rule (span 2500 → 1).
+    expect(text).toContain('0.0 to 2500.0 mmH2O at 68 °F');
+    expect(text).not.toContain('mmH2O@68F');
+    expect(text).not.toMatch(/MMH2O|K=2|k = 2\)/);
   });
 
   it('states the decision rule, the statement of conformity and the uncertainty', () => {

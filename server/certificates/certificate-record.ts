@@ -4,6 +4,7 @@
  * the register, the standards or the site's settings change. Pure: no I/O, no clock.
  */
 import type { DecisionRule, TrimKind } from '../../shared/calc';
+import { DEFAULT_TIME_ZONE, formatDate, formatDateTime, formatFixed, formatNominal, isTimeZone } from '../../shared/format';
 import type { FrozenRecord, FrozenRun } from '../../shared/schemas/records';
 import type { CertificateData, CertificateResults, CertificateSignature, CertificateTrim } from './certificate-data';
 
@@ -56,17 +57,14 @@ interface ResultPointLike {
 const TRIM_NAMES: Readonly<Record<string, string>> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
 const KIND_NAMES: Readonly<Record<string, string>> = { 'mode-check': 'Output-mode check', 'as-found': 'As-found', 'as-left': 'As-left' };
 
-function isoDay(iso: string): string {
-  return iso.slice(0, 10);
-}
-
-function utc(iso: string): string {
-  return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+/** The site's zone stored with the record (UTC for records frozen before it was a setting). */
+function zoneOf(record: FrozenRecord): string {
+  const z = (record.site.settings as { timeZone?: unknown } | undefined)?.timeZone;
+  return typeof z === 'string' && isTimeZone(z) ? z : DEFAULT_TIME_ZONE;
 }
 
 function fixed(n: number, d: number): string {
-  const s = n.toFixed(d);
-  return /^-0\.?0*$/.test(s) ? s.slice(1) : s;
+  return formatFixed(n, d);
 }
 
 function planOf(run: FrozenRun): PlanLike {
@@ -148,7 +146,7 @@ function shownRuns(runs: readonly FrozenRun[]): Array<{ run: FrozenRun; label: s
 function pointWords(run: FrozenRun, index: number): string {
   const p = planOf(run).points?.[index];
   if (!p) return `point ${index + 1}`;
-  return `point ${index + 1} (${Number(p.nominalPct.toFixed(3))} % ${p.basis === 'flow' ? 'flow' : 'DP'}, ${p.approach})`;
+  return `point ${index + 1} (${formatNominal(p.nominalPct)} % ${p.basis === 'flow' ? 'flow' : 'DP'}, ${p.approach})`;
 }
 
 function quoted(s: string): string {
@@ -159,7 +157,8 @@ function quoted(s: string): string {
  * How each point was captured, and every flag and redo, in words: manual captures go to the
  * method (they depart from hands-free capture), flags and redos to the remarks.
  */
-export function captureStatements(runs: readonly FrozenRun[], names: ReadonlyMap<string, string> = new Map()): { handsFree: number; manual: string[]; remarks: string[] } {
+export function captureStatements(runs: readonly FrozenRun[], names: ReadonlyMap<string, string> = new Map(), zone: string = DEFAULT_TIME_ZONE): { handsFree: number; manual: string[]; remarks: string[] } {
+  const utc = (iso: string) => formatDateTime(iso, zone, { withZone: true });
   let handsFree = 0;
   const manual: string[] = [];
   const remarks: string[] = [];
@@ -204,6 +203,7 @@ export function captureStatements(runs: readonly FrozenRun[], names: ReadonlyMap
 /** Everything the certificate shows, from the frozen record and the signatures of its revision. */
 export function certificateFromRecord(record: FrozenRecord, ctx: CertificateContext): CertificateData {
   const { instrument: ins, job } = record;
+  const zone = zoneOf(record);
   const found = complete(record.runs, 'as-found').at(-1);
   const left = complete(record.runs, 'as-left').at(-1);
   const plan = planOf(found ?? left ?? ({ plan: {} } as FrozenRun));
@@ -212,7 +212,7 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
   const returned = (job.checklist as { returnedToService?: { byName?: string; at?: string } | null } | null)?.returnedToService ?? null;
   const assignee = job.assigneeName ?? 'Technician';
   const names = new Map(record.performers.map((p) => [p.id, p.name]));
-  const captures = captureStatements(record.runs, names);
+  const captures = captureStatements(record.runs, names, zone);
   const points = plan.points ?? [];
   const signatures: CertificateSignature[] = [
     ...(returned?.at || performedEnd
@@ -222,7 +222,8 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
   ];
   return {
     certificateNumber: `${ins.tag}-${job.id.slice(0, 8).toUpperCase()}`,
-    issueDate: approval ? isoDay(approval.signedAt) : ctx.draftDate,
+    issueDate: approval ? formatDate(approval.signedAt, zone) : ctx.draftDate,
+    timeZone: zone,
     ...(approval ? { issuedAt: approval.signedAt } : {}),
     revision: job.revision,
     revisionReason: job.revision > 1 ? (ctx.revisionReason ?? 'Corrected record') : undefined,

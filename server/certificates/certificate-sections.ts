@@ -13,7 +13,8 @@ import {
   type CertificateResults,
 } from './certificate-data';
 import { fitToLatin } from './fonts';
-import { COLOR, CONTENT_W, dateOnly, dpDecimals, MARGIN, nominal, num, PAGE, unitLabel, utc, type Cell, type Column, type Writer } from './pdf-writer';
+import { COLOR, CONTENT_W, dateOnly, dateTime, dpDecimals, MARGIN, nominal, num, PAGE, unitLabel, type Cell, type Column, type Writer } from './pdf-writer';
+import { flowDecimals } from '../../shared/format';
 
 /** What errors are a percentage of: flow span for a root in the transmitter, else output span. */
 function spanWord(data: CertificateData): string {
@@ -35,7 +36,7 @@ function resultsTable(w: Writer, data: CertificateData, r: CertificateResults): 
     { header: '#', width: 18, align: 'right', mono: true },
     { header: `Nominal\n% ${basis === 'flow' ? 'flow' : 'DP'}`, width: 42, align: 'right', mono: true },
     { header: 'Direction', width: 38 },
-    { header: `Applied DP\n${unit}`, width: 62, align: 'right', mono: true },
+    { header: `Applied DP\n${unitLabel(unit)}`, width: 62, align: 'right', mono: true },
     { header: 'Expected\nmA', width: 50, align: 'right', mono: true },
     { header: 'Measured\nmA', width: 50, align: 'right', mono: true },
     { header: `Error\n% ${spanWord(data)}`, width: 48, align: 'right', mono: true },
@@ -66,10 +67,48 @@ function resultsTable(w: Writer, data: CertificateData, r: CertificateResults): 
     ['Largest hysteresis', r.maxHysteresisPctSpan === null ? '—' : `${num(r.maxHysteresisPctSpan, 3)} % of ${spanWord(data)}`, true],
   ];
   w.facts(summary);
+  flowTable(w, data, r);
+}
+
+/**
+ * Flow in engineering units beside % flow, when the instrument has an orifice primary element:
+ * the ISO 5167-2 flow at each applied DP with the discharge coefficient C, expansibility expansibility and
+ * Re_D it used, and how far the constant-C square-root law departs from it (largest at low flow).
+ */
+function flowTable(w: Writer, data: CertificateData, r: CertificateResults): void {
+  const withFlow = r.points.filter((p) => p.flow);
+  if (withFlow.length === 0) return;
+  const flowUnit = withFlow[0]!.flow!.unit;
+  const full = Math.max(...withFlow.map((p) => p.flow!.flow));
+  const dec = flowDecimals(full);
+  const dpDec = dpDecimals(data.instrument.range.urv - data.instrument.range.lrv);
+  const columns: Column[] = [
+    { header: '#', width: 18, align: 'right', mono: true },
+    { header: 'Applied\nflow %', width: 50, align: 'right', mono: true },
+    { header: `Applied DP\n${unitLabel(data.instrument.range.unit)}`, width: 70, align: 'right', mono: true },
+    { header: `Flow\n${unitLabel(flowUnit)}`, width: 70, align: 'right', mono: true },
+    { header: 'C', width: 50, align: 'right', mono: true },
+    { header: 'Expan-\nsibility', width: 50, align: 'right', mono: true },
+    { header: 'Re_D', width: 60, align: 'right', mono: true },
+  ];
+  const used = columns.reduce((s, c) => s + c.width, 0);
+  columns.push({ header: 'Constant-C root\ndeparture %', width: CONTENT_W - used, align: 'right', mono: true });
+  const rows: Cell[][] = r.points.map((p, i) => [
+    { text: String(i + 1) },
+    { text: num(p.appliedFlowPct, 3) },
+    { text: num(p.appliedDp, dpDec) },
+    { text: p.flow ? num(p.flow.flow, dec) : '—' },
+    { text: p.flow ? num(p.flow.C, 5) : '—' },
+    { text: p.flow ? num(p.flow.epsilon, 5) : '—' },
+    { text: p.flow ? num(p.flow.reD, 0) : '—' },
+    { text: p.flow ? num(p.flow.pureRootDeparturePct, 2, true) : '—' },
+  ]);
+  w.paragraph(`Flow in engineering units (${unitLabel(flowUnit)}) from the orifice primary element by ISO 5167-2:2003 (discharge coefficient C by Reader-Harris/Gallagher, expansibility factor), at the DP applied at each point. The last column is how far a constant-C square-root law, scaled to the flow at the upper range value, departs from that flow: (q_root − q_ISO)/q_ISO.`, { size: 8 });
+  w.table(columns, rows);
 }
 
 function standardsTable(w: Writer, data: CertificateData): void {
-  const performedOn = dateOnly(data.performed.start);
+  const performedOn = dateOnly(data.performed.start, data.timeZone);
   const columns: Column[] = [
     { header: 'Used for', width: 70 },
     { header: 'Standard', width: 150 },
@@ -136,7 +175,7 @@ function trimsSection(w: Writer, data: CertificateData): void {
   const dpDec = dpDecimals(data.instrument.range.urv - data.instrument.range.lrv);
   const columns: Column[] = [
     { header: 'Trim', width: 70 },
-    { header: `Applied DP\n${data.instrument.range.unit}`, width: 70, align: 'right', mono: true },
+    { header: `Applied DP\n${unitLabel(data.instrument.range.unit)}`, width: 70, align: 'right', mono: true },
     { header: 'Target\nmA', width: 56, align: 'right', mono: true },
     { header: 'Before\nmA', width: 62, align: 'right', mono: true },
     { header: `Before, error\n% ${spanWord(data)}`, width: 70, align: 'right', mono: true },
@@ -238,7 +277,7 @@ export function writeBody(w: Writer, data: CertificateData): void {
         ? `Output held at 4 mA below ${num(cutoff.value, 2)} % flow`
         : `Linear below ${num(cutoff.value, 2)} % DP`;
   w.facts([
-    ['Range', `${num(ins.range.lrv, dpDec)} to ${num(ins.range.urv, dpDec)} ${ins.range.unit}`, true],
+    ['Range', `${num(ins.range.lrv, dpDec)} to ${num(ins.range.urv, dpDec)} ${unitLabel(ins.range.unit)}`, true],
     ['Unit', unitLabel(ins.range.unit)],
     ['Output', OUTPUT_MODE_TEXT[ins.outputMode]],
     ['Low-flow cutoff', cutoffText],
@@ -253,7 +292,7 @@ export function writeBody(w: Writer, data: CertificateData): void {
     ['Hold per point', `${num(m.holdSeconds, 0)} s`, true],
     ['Points up', `${m.pointsUp.map(nominal).join(', ')} % ${basisWord}`, true],
     ['Points down', `${m.pointsDown.map(nominal).join(', ')} % ${basisWord}`, true],
-    ['Performed', data.performed.end ? `${utc(data.performed.start)} to ${utc(data.performed.end)}` : utc(data.performed.start), true],
+    ['Performed', data.performed.end ? `${dateTime(data.performed.start, data.timeZone)} to ${dateTime(data.performed.end, data.timeZone)}` : dateTime(data.performed.start, data.timeZone), true],
   ];
   w.facts(method);
   methodCaptures(w, data);
@@ -305,9 +344,9 @@ export function writeBody(w: Writer, data: CertificateData): void {
         { header: 'Role', width: 80 },
         { header: 'Name', width: 140 },
         { header: 'Meaning of signature', width: CONTENT_W - 80 - 140 - 112 },
-        { header: 'Signed (UTC)', width: 112, mono: true },
+        { header: 'Signed', width: 112, mono: true },
       ],
-      data.signatures.map((s) => [{ text: roleText[s.role] }, { text: s.title ? `${s.name}\n${s.title}` : s.name }, { text: s.meaning }, { text: utc(s.signedAt) }]),
+      data.signatures.map((s) => [{ text: roleText[s.role] }, { text: s.title ? `${s.name}\n${s.title}` : s.name }, { text: s.meaning }, { text: dateTime(s.signedAt, data.timeZone) }]),
     );
   }
   w.paragraph('Signed electronically. Each signature records the signer’s name, the date and time and the meaning of the signature, and is linked to this record in the audit trail.', {

@@ -3,7 +3,7 @@
  * helpers (headings, paragraphs, label/value facts, tables that repeat their header across pages)
  * over one pdfkit document. Knows nothing of certificates.
  */
-import { isPressureUnitId, PRESSURE_UNIT_LABELS } from '../../shared/calc';
+import { DEFAULT_TIME_ZONE, dpDecimals as sharedDpDecimals, formatDate, formatDateTime, formatFixed, formatNominal, unitLabel as sharedUnitLabel } from '../../shared/format';
 import { fitToLatin, type FontRole } from './fonts';
 
 export const PAGE = { width: 595.28, height: 841.89 }; // A4 in points
@@ -26,39 +26,37 @@ export const COLOR = {
   draft: '#fef3c7',
 };
 
-/** Numbers: ASCII minus (copy-paste into spreadsheets stays numeric), fixed decimals. */
+/**
+ * Numbers: the one rule of shared/format — U+2212 minus (the fonts' latin subset carries it), + on
+ * signed values, never a negative or signed zero — at fixed decimals.
+ */
 export function num(n: number | null | undefined, decimals: number, signed = false): string {
-  if (n === null || n === undefined || !Number.isFinite(n)) return '—';
-  const s = n.toFixed(decimals);
-  const negZero = /^-0\.?0*$/.test(s);
-  const clean = negZero ? s.slice(1) : s;
-  return signed && !clean.startsWith('-') ? `+${clean}` : clean;
+  return formatFixed(n, decimals, { signed });
 }
 
-/** Decimals for DP values: about five significant figures of the span. */
-export function dpDecimals(span: number): number {
-  const mag = Math.ceil(Math.log10(Math.abs(span) || 1));
-  return Math.min(6, Math.max(0, 5 - mag));
-}
+/** Decimals for DP values: shared/format's rule (last digit ≤ 0.01 % of span), the same as the screens. */
+export const dpDecimals = sharedDpDecimals;
 
 /** Nominal % without trailing zeros: 6.25, 10, 56.25. */
 export function nominal(n: number): string {
-  return String(Number(n.toFixed(3)));
+  return formatNominal(n);
 }
 
+/** The unit's one spelling (shared/format). */
 export function unitLabel(unit: string): string {
-  return isPressureUnitId(unit) ? PRESSURE_UNIT_LABELS[unit] : unit;
+  return sharedUnitLabel(unit);
 }
 
-export function utc(iso: string): string {
-  const d = new Date(iso);
-  if (Number.isNaN(d.getTime())) return iso;
-  const s = d.toISOString();
-  return `${s.slice(0, 10)} ${s.slice(11, 16)} UTC`;
+/** A date-time in the site's zone with its UTC offset: `2025-03-17 08:02 UTC`, `2025-03-17 09:02 UTC+1`. */
+export function dateTime(iso: string, zone: string = DEFAULT_TIME_ZONE): string {
+  const s = formatDateTime(iso, zone, { withZone: true });
+  return s === '—' ? iso : s;
 }
 
-export function dateOnly(iso: string): string {
-  return /^\d{4}-\d{2}-\d{2}$/.test(iso) ? iso : new Date(iso).toISOString().slice(0, 10);
+/** A calendar date; an instant gives its date in the site's zone. */
+export function dateOnly(iso: string, zone: string = DEFAULT_TIME_ZONE): string {
+  const s = formatDate(iso, zone);
+  return s === '—' ? iso : s;
 }
 
 export interface Column {

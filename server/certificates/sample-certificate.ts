@@ -13,7 +13,11 @@ const dpAt = (flowPct: number) => (2500 * flowPct * flowPct) / 10000;
 function evaluate(measured: number[]): EvaluateOutput {
   const nominals = [...POINTS_UP, ...POINTS_DOWN];
   const input: EvaluateInput = {
-    instrument: { lrv: 0, urv: 2500, unit: 'mmH2O@68F', outputMode: 'sqrt-transmitter', cutoffMode: 'clamp', cutoffValue: 5, tolerancePctSpan: 0.5 },
+    instrument: {
+      lrv: 0, urv: 2500, unit: 'mmH2O@68F', outputMode: 'sqrt-transmitter', cutoffMode: 'clamp', cutoffValue: 5, tolerancePctSpan: 0.5,
+      // An invented orifice run (102.3 mm pipe, 61.4 mm bore, flange taps, hot water): flow in m³/h per point.
+      primaryElement: { spec: { D: 0.1023, d: 0.0614, taps: 'flange', rho: 958, mu: 0.00028 }, flowUnit: 'm3/h' },
+    },
     standards: {
       pressure: { kind: 'spec', unit: 'mmH2O@68F', pctOfReading: 0.025, pctOfFullScale: 0.005, fullScale: 5000, resolution: 0.1 },
       current: { pctOfReading: 0.01, floorMa: 0.0005, resolutionMa: 0.0001 },

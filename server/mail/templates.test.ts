@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
+import { formatRange } from '../../shared/format';
 import {
   escapeHtml,
+  formatDate,
   formatDateTime,
   jobApprovedMail,
   jobAssignedMail,
@@ -100,5 +102,25 @@ describe('mail templates', () => {
     expect(escapeHtml(`<a href="x">'&'</a>`)).toBe('&lt;a href=&quot;x&quot;&gt;&#39;&amp;&#39;&lt;/a&gt;');
     expect(formatDateTime('2025-01-01T23:59:59.999Z')).toBe('2025-01-01 23:59 UTC');
     expect(() => formatDateTime('not a date')).toThrow(RangeError);
+  });
+});
+
+describe('one style with the screens and the certificate', () => {
+  it('states the range in the one unit spelling and times in the site zone with their offset', () => {
+    const m = jobSubmittedMail({
+      appUrl: 'http://localhost:5173',
+      jobId: 'j-1',
+      tag: 'FT-101',
+      range: formatRange(0, 100, 'inH2O@68F'),
+      timeZone: 'Europe/London',
+      submittedBy: 'Ana',
+      submittedAt: '2026-06-01T09:30:00Z',
+    });
+    expect(m.text).toMatch(/Range:\s+0–100 inH2O at 68 °F/);
+    expect(m.text).toMatch(/Submitted:\s+2026-06-01 10:30 UTC\+1/);
+    expect(m.html).toContain('0–100 inH2O at 68 °F');
+    // Without a zone, UTC as before.
+    expect(formatDateTime('2026-06-01T09:30:00Z')).toBe('2026-06-01 09:30 UTC');
+    expect(formatDate('2026-06-01T23:30:00Z', 'Europe/London')).toBe('2026-06-02');
   });
 });

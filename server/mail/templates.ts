@@ -1,8 +1,10 @@
 /**
  * Team mail wording: pure functions of plain data, no clock and no I/O. Each returns a subject,
  * a plain-text body and a simple HTML body with the same content. Every value put into HTML is
- * escaped. Dates are given as ISO strings (or Date) and shown in UTC.
+ * escaped. Dates are given as ISO strings (or Date) and shown in the site's time zone (UTC when
+ * none is given) in the one style of shared/format; units are spelt as shared/format spells them.
  */
+import { DEFAULT_TIME_ZONE, formatDate as dateInStyle, formatDateTime as dateTimeInStyle } from '../../shared/format';
 
 /** A rendered message, ready for `Mailer.send` (add the recipients). */
 export interface RenderedMail {
@@ -37,16 +39,15 @@ function toDate(w: When): Date {
   return d;
 }
 
-/** `2025-03-14` (UTC). A bare `YYYY-MM-DD` string is returned as is. */
-export function formatDate(w: When): string {
+/** `2025-03-14`, the date in `zone` (default UTC). A bare `YYYY-MM-DD` string is returned as is. */
+export function formatDate(w: When, zone: string = DEFAULT_TIME_ZONE): string {
   if (typeof w === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(w)) return w;
-  return toDate(w).toISOString().slice(0, 10);
+  return dateInStyle(toDate(w), zone);
 }
 
-/** `2025-03-14 09:30 UTC`. */
-export function formatDateTime(w: When): string {
-  const iso = toDate(w).toISOString();
-  return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+/** `2025-03-14 09:30 UTC`, or `2025-03-14 10:30 UTC+1` in a zone an hour east. */
+export function formatDateTime(w: When, zone: string = DEFAULT_TIME_ZONE): string {
+  return dateTimeInStyle(toDate(w), zone, { withZone: true });
 }
 
 /** One block of a message: a paragraph, a key/value list, a quoted comment or a table. */
@@ -127,6 +128,10 @@ export interface JobMailBase {
   service?: string;
   /** Name of the person the mail is for. */
   recipientName?: string;
+  /** The instrument's range with its unit, as shared/format writes it (`0–100 inH2O at 68 °F`). */
+  range?: string;
+  /** The site's time zone (IANA); times are shown in it. Default UTC. */
+  timeZone?: string;
 }
 
 /** Data of {@link jobAssignedMail}. */
@@ -141,7 +146,8 @@ export interface JobAssignedData extends JobMailBase {
 export function jobAssignedMail(d: JobAssignedData): RenderedMail {
   const facts: [string, string][] = [['Tag', d.tag]];
   if (d.service) facts.push(['Service', d.service]);
-  facts.push(['Job', d.jobId], ['Due', formatDate(d.dueDate)], ['Assigned by', d.assignedBy]);
+  if (d.range) facts.push(['Range', d.range]);
+  facts.push(['Job', d.jobId], ['Due', formatDate(d.dueDate, d.timeZone)], ['Assigned by', d.assignedBy]);
   if (d.permitNumber) facts.push(['Permit', d.permitNumber]);
   const blocks: Block[] = [{ kind: 'p', text: `${d.assignedBy} has assigned you the calibration of ${d.tag}.` }, { kind: 'facts', rows: facts }];
   if (d.note) blocks.push({ kind: 'quote', text: d.note });
@@ -163,7 +169,8 @@ export interface JobSubmittedData extends JobMailBase {
 export function jobSubmittedMail(d: JobSubmittedData): RenderedMail {
   const facts: [string, string][] = [['Tag', d.tag]];
   if (d.service) facts.push(['Service', d.service]);
-  facts.push(['Job', d.jobId], ['Submitted by', d.submittedBy], ['Submitted', formatDateTime(d.submittedAt)]);
+  if (d.range) facts.push(['Range', d.range]);
+  facts.push(['Job', d.jobId], ['Submitted by', d.submittedBy], ['Submitted', formatDateTime(d.submittedAt, d.timeZone)]);
   if (d.outcome) facts.push(['As-left result', d.outcome]);
   const blocks: Block[] = [
     { kind: 'p', text: d.reply ? `${d.submittedBy} has resubmitted the calibration of ${d.tag} for review after it was returned.` : `${d.submittedBy} has submitted the calibration of ${d.tag} for review.` },
@@ -188,7 +195,7 @@ export interface JobReturnedData extends JobMailBase {
 /** A lead returned a job to the technician with comments. */
 export function jobReturnedMail(d: JobReturnedData): RenderedMail {
   return compose(`Returned with comments: ${d.tag}`, d.recipientName ? `Hello ${d.recipientName}` : undefined, [
-    { kind: 'p', text: `${d.returnedBy} has returned the calibration of ${d.tag} (job ${d.jobId}) on ${formatDateTime(d.returnedAt)} with these comments:` },
+    { kind: 'p', text: `${d.returnedBy} has returned the calibration of ${d.tag} (job ${d.jobId}) on ${formatDateTime(d.returnedAt, d.timeZone)} with these comments:` },
     { kind: 'quote', text: d.comment },
     { kind: 'p', text: 'Address the comments and submit the job again.' },
     { kind: 'link', label: 'Open the job', href: mailLinks.job(d.appUrl, d.jobId) },
@@ -210,7 +217,7 @@ export function jobApprovedMail(d: JobApprovedData): RenderedMail {
     ['Tag', d.tag],
     ['Job', d.jobId],
     ['Signed by', d.approvedBy],
-    ['Signed', formatDateTime(d.approvedAt)],
+    ['Signed', formatDateTime(d.approvedAt, d.timeZone)],
     ['Meaning', d.meaning],
   ];
   if (d.certificateNumber) facts.push(['Certificate', d.certificateNumber]);

@@ -3,6 +3,8 @@ import bcrypt from 'bcryptjs';
 import { SignJWT, jwtVerify, errors as joseErrors } from 'jose';
 import type { Db } from '../db/client';
 import { sessionRepository, siteRepository, userRepository, type UserRow } from '../db/repositories/user.repository';
+import { parseSiteSettings } from '../../shared/schemas/settings';
+import { DEFAULT_TIME_ZONE } from '../../shared/format/dates';
 import { AppError, badRequest, locked, unauthenticated } from '../errors';
 import type { Role } from '../../shared/schemas/auth';
 import type { AuditService } from './audit.service';
@@ -258,7 +260,8 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
 
     async me(user: SessionUser) {
       const site = await sites.get();
-      return { id: user.id, email: user.email, name: user.name, role: user.role, siteName: site?.name ?? 'Stillpoint', mustChangePassword: !!user.mustChangePassword };
+      const timeZone = parseSiteSettings(site?.settings).timeZone ?? DEFAULT_TIME_ZONE;
+      return { id: user.id, email: user.email, name: user.name, role: user.role, siteName: site?.name ?? 'Stillpoint', timeZone, mustChangePassword: !!user.mustChangePassword };
     },
   };
   return service;

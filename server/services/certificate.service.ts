@@ -6,7 +6,7 @@ import { certificateFromRecord } from '../certificates/certificate-record';
 import { conflict } from '../errors';
 import type { AuditService } from './audit.service';
 import type { JobService } from './job.service';
-import { isoDate } from './dates';
+import { createSiteClock } from './site-clock';
 import { createRecordFreezer } from './record-snapshot';
 
 /**
@@ -17,9 +17,11 @@ import { createRecordFreezer } from './record-snapshot';
 export function createCertificateService(db: Db, deps: { jobs: JobService; audit: AuditService }) {
   const repo = reviewRepository(db);
   const freezer = createRecordFreezer(db, deps.audit);
+  const clock = createSiteClock(db);
 
   const service = {
-    async data(jobId: string, today = isoDate(new Date())): Promise<CertificateData> {
+    async data(jobId: string, today?: string): Promise<CertificateData> {
+      today ??= await clock.today();
       const job = await deps.jobs.detail(jobId);
       const [sigs, revs, kept] = await Promise.all([repo.signatures(jobId), repo.revisions(jobId), freezer.stored(jobId, job.revision)]);
       // A record signed before submissions were frozen has no snapshot: it is drawn from what stands.

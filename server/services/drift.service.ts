@@ -8,7 +8,9 @@ import type { Instrument } from '../../shared/schemas/instruments';
 import type { DriftPoint, DriftReport, IntervalRecommendation, NeedsJob, Queue } from '../../shared/schemas/records';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
-import { daysBetween, isoDate } from './dates';
+import { daysBetween } from './dates';
+import { dateInZone, todayInZone } from '../../shared/format/dates';
+import { createSiteClock } from './site-clock';
 import type { JobService } from './job.service';
 import { toInstrument } from './register.service';
 
@@ -56,6 +58,7 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
   const repo = reviewRepository(db);
   const instruments = instrumentRepository(db);
   const sites = siteRepository(db);
+  const clock = createSiteClock(db);
 
   async function instrumentOf(id: string): Promise<Instrument> {
     const row = await instruments.get(id);
@@ -69,7 +72,9 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
      * first), and instruments without an open job whose next due date (last approved calibration +
      * interval) is within `withinDays` — or that were never calibrated.
      */
-    async queue(viewer: SessionUser, withinDays: number, today = isoDate(new Date())): Promise<Queue> {
+    async queue(viewer: SessionUser, withinDays: number, on?: string): Promise<Queue> {
+      const zone = await clock.zone();
+      const today = on ?? todayInZone(zone);
       const open = (await jobs.list(viewer)).filter((j) => j.status !== 'approved');
       const busy = await repo.openJobInstrumentIds();
       const needsJob: NeedsJob[] = [];
@@ -101,7 +106,9 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
      * as-left(k−1)), the predicted error at the next due date, and interval recommendations by the
      * staircase method and by the exponential reliability model beside the interval test. Errors in % of span (of flow span for rooted outputs).
      */
-    async report(instrumentId: string, today = isoDate(new Date())): Promise<DriftReport> {
+    async report(instrumentId: string, on?: string): Promise<DriftReport> {
+      const zone = await clock.zone();
+      const today = on ?? todayInZone(zone);
       const instrument = await instrumentOf(instrumentId);
       const history = await repo.approvedJobsWithRuns(instrumentId);
       const byKey = new Map<string, { p: PointResult; events: Array<CalibrationEvent & { jobId: string; revision: number; on: string }> }>();
@@ -126,7 +133,7 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
         for (const p of foundPts) {
           const k = keyOf(p);
           if (!byKey.has(k)) byKey.set(k, { p, events: [] });
-          byKey.get(k)!.events.push({ atMs, asFound: p.errorPctSpan, asLeft: left.get(k) ?? p.errorPctSpan, jobId: j.id, revision: j.revision, on: isoDate(found.startedAt) });
+          byKey.get(k)!.events.push({ atMs, asFound: p.errorPctSpan, asLeft: left.get(k) ?? p.errorPctSpan, jobId: j.id, revision: j.revision, on: dateInZone(found.startedAt, zone) });
         }
       }
       cals.sort((a, b) => a.atMs - b.atMs);
@@ -144,8 +151,8 @@ export function createDriftService(db: Db, audit: AuditService, jobs: JobService
             direction: p.direction,
             events: events.map((e) => ({ jobId: e.jobId, revision: e.revision, on: e.on, atMs: e.atMs, asFound: e.asFound, asLeft: e.asLeft })),
             drifts: driftPerInterval(events).map((d) => ({
-              from: isoDate(new Date(d.fromMs)),
-              to: isoDate(new Date(d.toMs)),
+              from: dateInZone(d.fromMs, zone),
+              to: dateInZone(d.toMs, zone),
               drift: d.drift,
               ratePerDay: Number.isFinite(d.ratePerDay) ? d.ratePerDay : null,
             })),

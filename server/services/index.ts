@@ -8,6 +8,7 @@ import { createJobService, type JobNotice } from './job.service';
 import { createRegisterService } from './register.service';
 import { createReviewService, type ReviewNotice } from './review.service';
 import { createSessionEvents, type SessionEvents } from './session-events';
+import { createSiteService } from './site.service';
 import { createUserService } from './user.service';
 
 /** Builds every service over one database; the composition root and tests share this. */
@@ -26,6 +27,7 @@ export function createServices(database: Database, secret: Uint8Array, hooks: Se
     csv: createCsvService(database.db, audit),
     drift: createDriftService(database.db, audit, jobs),
     certificates: createCertificateService(database.db, { jobs, audit }),
+    site: createSiteService(database.db, audit),
   };
 }
 

@@ -7,6 +7,8 @@ import type { Checklist, ChecklistPatch, Job, JobDetail, ReturnNotice } from '..
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
 import { dueState, isoDate } from './dates';
+import { createSiteClock } from './site-clock';
+import { formatRange, unitLabel } from '../../shared/format';
 import { reviewRepository } from '../db/repositories/review.repository';
 import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
 
@@ -66,6 +68,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
   const standards = standardRepository(db);
   const records = reviewRepository(db);
   const freezer = createRecordFreezer(db, audit);
+  const clock = createSiteClock(db);
 
   async function assignable(assigneeId: string) {
     const u = await users.findById(assigneeId);
@@ -88,21 +91,23 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
      * list); for a technician their own open jobs come first.
      */
     async list(viewer: SessionUser): Promise<Job[]> {
-      const all = (await jobs.list()).map((r) => toJob(r));
+      const today = await clock.today();
+      const all = (await jobs.list()).map((r) => toJob(r, today));
       const open = all.filter((j) => j.status !== 'approved');
       const done = all.filter((j) => j.status === 'approved');
       if (viewer.role !== 'technician') return [...open, ...done];
       return [...open.filter((j) => j.assigneeId === viewer.id), ...open.filter((j) => j.assigneeId !== viewer.id), ...done];
     },
     async get(id: string): Promise<Job> {
-      return toJob(await row(id));
+      return toJob(await row(id), await clock.today());
     },
 
     /**
      * The job with its checklist, the chosen standards and their checks, its runs, and what
      * blocks the next run and the submission — in words a technician can act on.
      */
-    async detail(id: string, today = isoDate(new Date())): Promise<JobDetail> {
+    async detail(id: string, today?: string): Promise<JobDetail> {
+      today ??= await clock.today();
       const r = await row(id);
       const checklist = checklistOf(r.checklist);
       const instrument = (await instruments.get(r.instrumentId))!;
@@ -117,11 +122,11 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
             const hi = convertPressure(Math.max(instrument.lrv, instrument.urv), instrument.unit, s.unit);
             const lo = convertPressure(Math.min(instrument.lrv, instrument.urv), instrument.unit, s.unit);
             if (hi > s.rangeMax * (1 + 1e-9) || lo < s.rangeMin - 1e-9)
-              problem = `range ${s.rangeMin}–${s.rangeMax} ${s.unit} does not cover the instrument's ${instrument.lrv}–${instrument.urv} ${instrument.unit}`;
-          } else problem = `unit ${s.unit} cannot be compared with ${instrument.unit}`;
+              problem = `range ${formatRange(s.rangeMin, s.rangeMax, s.unit)} does not cover the instrument's ${formatRange(instrument.lrv, instrument.urv, instrument.unit)}`;
+          } else problem = `unit ${unitLabel(s.unit)} cannot be compared with ${unitLabel(instrument.unit)}`;
         }
         if (!problem && s.kind === 'current' && (s.rangeMin > CURRENT_SPAN_NEEDED.min || s.rangeMax < CURRENT_SPAN_NEEDED.max)) {
-          problem = `range ${s.rangeMin}–${s.rangeMax} mA does not cover 3.6–21 mA`;
+          problem = `range ${formatRange(s.rangeMin, s.rangeMax, 'mA')} does not cover 3.6–21 mA`;
         }
         chosen.push({ id: s.id, kind: s.kind, description: s.description, serial: s.serial, certificateNo: s.certificateNo, dueOn: s.dueOn, dueState: state, problem, certificateFileId: s.certificateFileId ?? null });
       }

@@ -7,7 +7,9 @@ import { notFound } from '../errors';
 import type { Mailer } from '../mail/mailer';
 import type { StoredMail } from '../mail/stored-mail';
 import { jobApprovedMail, jobAssignedMail, jobReturnedMail, jobSubmittedMail, standardsDueMail, weeklyDueListMail, type RenderedMail } from '../mail/templates';
-import { addDays, isoDate } from './dates';
+import { addDays } from './dates';
+import { createSiteClock } from './site-clock';
+import { formatRange } from '../../shared/format';
 import type { JobNotice } from './job.service';
 import type { ReviewNotice } from './review.service';
 
@@ -27,6 +29,7 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
   const jobs = jobRepository(db);
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
+  const clock = createSiteClock(db);
 
   const send = (to: string[], m: RenderedMail) => {
     if (!deps.mailer || !to.length) return;
@@ -37,7 +40,8 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
     const job = await jobs.get(jobId);
     if (!job) return undefined;
     const inst = await instruments.get(job.instrumentId);
-    return { job, base: { appUrl: deps.appUrl(), jobId, tag: job.tag, service: inst?.service || undefined } };
+    const range = inst ? formatRange(inst.lrv, inst.urv, inst.unit) : undefined;
+    return { job, base: { appUrl: deps.appUrl(), jobId, tag: job.tag, service: inst?.service || undefined, range, timeZone: await clock.zone() } };
   }
   /** Runs a mail step; a failure is reported and swallowed, so mail never fails the action. */
   const guard = async (what: string, fn: () => Promise<void>) => {
@@ -104,8 +108,9 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
       }),
 
     /** Standards due within 30 days (or past due) → the leads; nothing is sent when none are. Returns how many were listed. */
-    async standardsDue(today = isoDate(new Date())): Promise<number> {
+    async standardsDue(on?: string): Promise<number> {
       let n = 0;
+      const today = on ?? (await clock.today());
       await guard('standards.due', async () => {
         const horizon = addDays(today, STANDARDS_DUE_WITHIN_DAYS);
         const due = (await standards.all()).filter((s) => s.dueOn <= horizon);
@@ -127,8 +132,9 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
     },
 
     /** The weekly list of open jobs due within the coming week or overdue → the leads. Returns how many were listed. */
-    async weeklyDueList(today = isoDate(new Date())): Promise<number> {
+    async weeklyDueList(on?: string): Promise<number> {
       let n = 0;
+      const today = on ?? (await clock.today());
       await guard('jobs.weekly-due', async () => {
         const horizon = addDays(today, 7);
         const items = (await jobs.list())

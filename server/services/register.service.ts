@@ -12,6 +12,7 @@ import type { AccuracySpec, Standard, StandardInputSchema } from '../../shared/s
 import type { z } from 'zod';
 import type { Actor, AuditService } from './audit.service';
 import { addDays, dueState, isoDate } from './dates';
+import { createSiteClock } from './site-clock';
 
 type InstrumentParsed = z.output<typeof InstrumentInputSchema>;
 type StandardParsed = z.output<typeof StandardInputSchema>;
@@ -40,6 +41,7 @@ export function toInstrument(r: InstrumentRow): Instrument {
   };
 }
 
+/** A standard as the API shows it; `today` is the site's today (site-clock.ts), UTC's when not given. */
 export function toStandard(r: StandardRow, today = isoDate(new Date())): Standard {
   return {
     id: r.id,
@@ -64,6 +66,7 @@ export function toStandard(r: StandardRow, today = isoDate(new Date())): Standar
 export function createRegisterService(db: Db, audit: AuditService) {
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
+  const clock = createSiteClock(db);
   return {
     async listInstruments(q: ListQuery) {
       const { items, total } = await instruments.list(q);
@@ -90,12 +93,13 @@ export function createRegisterService(db: Db, audit: AuditService) {
     },
     async listStandards(q: ListQuery) {
       const { items, total } = await standards.list(q);
-      return { items: items.map((r) => toStandard(r)), total };
+      const today = await clock.today();
+      return { items: items.map((r) => toStandard(r, today)), total };
     },
     async getStandard(id: string): Promise<Standard> {
       const row = await standards.get(id);
       if (!row) throw notFound('No such standard');
-      return toStandard(row);
+      return toStandard(row, await clock.today());
     },
     async createStandard(actor: Actor, input: StandardParsed): Promise<Standard> {
       if (await standards.findBySerial(input.serial)) throw conflict('That serial number is already registered', { serial: ['Already registered'] });

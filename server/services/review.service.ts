@@ -18,7 +18,8 @@ import type {
 } from '../../shared/schemas/records';
 import { canonical, type AuditService } from './audit.service';
 import type { AuthService, SessionUser } from './auth.service';
-import { isoDate } from './dates';
+import { createSiteClock } from './site-clock';
+import { dateInZone } from '../../shared/format/dates';
 import type { JobService } from './job.service';
 import { toJob } from './job.service';
 import type { RegisterService } from './register.service';
@@ -95,16 +96,18 @@ function performerIds(job: JobDetail, runs: RunWithPoints[]): Set<string> {
 }
 
 /** Calibration date of the record: the day the last completed as-left (or as-found) run ended. */
-function calibrationDate(runs: RunWithPoints[], fallback: string): string {
+function calibrationDate(runs: RunWithPoints[], fallback: string, zone: string): string {
   const done = runs.filter((r) => r.status === 'complete' && (r.kind === 'as-left' || r.kind === 'as-found'));
   const last = done.at(-1);
-  return last ? isoDate(last.endedAt ?? last.startedAt) : fallback;
+  // The date in the site's zone: a run ending at 23:30 local time is calibrated that day, whatever UTC says.
+  return last ? dateInZone(last.endedAt ?? last.startedAt, zone) : fallback;
 }
 
 export function createReviewService(db: Db, deps: ReviewServiceDeps) {
   const repo = reviewRepository(db);
   const { audit, auth, jobs } = deps;
   const freezer = createRecordFreezer(db, audit);
+  const clock = createSiteClock(db);
 
   /**
    * The frozen record of the job's current revision and its hash. A job submitted before records
@@ -303,7 +306,8 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       const { hash } = await frozen(user, job);
       const signedAt = new Date();
       const approve = body.decision === 'approve';
-      const calibratedOn = approve ? calibrationDate(runs, isoDate(signedAt)) : null;
+      const zone = await clock.zone();
+      const calibratedOn = approve ? calibrationDate(runs, dateInZone(signedAt, zone), zone) : null;
       const done = await repo.sign(
         {
           jobId,

@@ -32,6 +32,8 @@ export const MeSchema = z.object({
   name: z.string(),
   role: RoleSchema,
   siteName: z.string(),
+  /** The site's time zone (IANA name; 'UTC' when the site has not set one): dates are shown and "today" is taken in it. */
+  timeZone: z.string().optional(),
   /** True until the user has chosen their own password (after an invite or an admin reset); the server always sends it. */
   mustChangePassword: z.boolean().optional(),
 });

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { DECISION_RULES } from '../calc';
+import { isTimeZone } from '../format/dates';
 
 /**
  * Site settings (stored as JSON on the site row; parsed with this schema in the repository).
@@ -31,6 +32,12 @@ export const SiteSettingsSchema = z.object({
     .record(z.string(), z.object({ reliabilityTarget: z.number().gt(0).lt(1).optional(), confidence: z.number().gt(0).lt(1).optional() }))
     .optional()
     .catch(undefined),
+  /**
+   * The site's time zone, an IANA name such as 'Europe/London' (default 'UTC'). Dates and times
+   * are shown in it, and "today" (standards' due state, calibration dates) is taken in it by the
+   * server and the client alike.
+   */
+  timeZone: z.string().refine(isTimeZone, 'Choose a known time zone, e.g. Europe/London').optional().catch(undefined),
 });
 export type SiteSettings = z.infer<typeof SiteSettingsSchema>;
 
@@ -45,3 +52,11 @@ export function parseSiteSettings(text: string | null | undefined): SiteSettings
   const r = SiteSettingsSchema.safeParse(raw);
   return r.success ? r.data : {};
 }
+
+/** Body of `PUT /api/site/time-zone` (admin): the site's IANA time zone. */
+export const SiteTimeZoneBodySchema = z
+  .object({
+    timeZone: z.string({ message: 'Choose a time zone' }).trim().refine(isTimeZone, 'Choose a known time zone, e.g. Europe/London'),
+  })
+  .strict();
+export type SiteTimeZoneBody = z.infer<typeof SiteTimeZoneBodySchema>;

@@ -1,47 +1,76 @@
-import { isPressureUnitId, PRESSURE_UNIT_LABELS } from '../../shared/calc/units';
-
-/** Display helpers. Numbers are returned as strings for a `num` element. */
-
-const DAY_MS = 86_400_000;
-
-/** A value with up to `maxDecimals` decimals and no trailing zeros, using a real minus sign. */
-export function formatNumber(value: number, maxDecimals = 4): string {
-  if (!Number.isFinite(value)) return '—';
-  const s = value.toLocaleString('en-GB', { maximumFractionDigits: maxDecimals, useGrouping: false });
-  return s.replace(/^-/, '−');
-}
-
-/** "LRV–URV unit", e.g. "0–2500 mmH2O"; spaced ("−250 – 250 mbar") when a bound is negative, so the dash is not read as a minus. */
-export function formatRange(lrv: number, urv: number, unit: string): string {
-  const sep = lrv < 0 || urv < 0 ? ' – ' : '–';
-  return `${formatNumber(lrv)}${sep}${formatNumber(urv)} ${unitLabel(unit)}`;
-}
-
 /**
- * Short display label of a unit id: pressure ids from shared/calc ("inH2O@68F" → "inH₂O at 68 °F",
- * the parenthesised conversion dropped); other units as given.
+ * The client's view of shared/format (numbers, units, dates — one style with the certificate and
+ * the mails), with dates bound to the site's time zone. The zone comes with the signed-in user
+ * (`/api/auth/me`) and is set once by the session query; until then dates are shown in UTC.
  */
-export function unitLabel(unit: string): string {
-  return isPressureUnitId(unit) ? PRESSURE_UNIT_LABELS[unit].replace(/\s*\([^)]*\)$/, '') : unit;
+import {
+  DEFAULT_TIME_ZONE,
+  daysBetween,
+  formatDate as formatDateIn,
+  formatDateTime as formatDateTimeIn,
+  formatTime as formatTimeIn,
+  isTimeZone,
+  todayInZone,
+  type DateTimeOptions,
+} from '../../shared/format';
+
+export {
+  dpDecimals,
+  flowAtDp,
+  type FlowInstrument as FlowInstrumentView,
+  flowDecimals,
+  formatFixed,
+  formatFlow,
+  formatNominal,
+  formatNumber,
+  formatRange,
+  formatRootDeparture,
+  formatSigned,
+  MINUS,
+  NO_VALUE,
+  relativeDays,
+  uncertaintyLabel,
+  unitLabel,
+} from '../../shared/format';
+
+let siteZone = DEFAULT_TIME_ZONE;
+
+/** Set the site's time zone (from the signed-in user's site); an unknown zone leaves UTC. */
+export function setSiteTimeZone(zone: string | undefined): void {
+  siteZone = zone && isTimeZone(zone) ? zone : DEFAULT_TIME_ZONE;
 }
 
-/** Whole days from today (local) to an ISO date (YYYY-MM-DD); negative when past. */
-export function daysUntil(isoDate: string, today: Date = new Date()): number {
-  const [y, m, d] = isoDate.slice(0, 10).split('-').map(Number);
-  const target = Date.UTC(y ?? 1970, (m ?? 1) - 1, d ?? 1);
-  const now = Date.UTC(today.getFullYear(), today.getMonth(), today.getDate());
-  return Math.round((target - now) / DAY_MS);
+/** The site's time zone in use. */
+export function siteTimeZone(): string {
+  return siteZone;
 }
 
-/** "today", "in 3 days", "5 days ago". */
-export function relativeDays(days: number): string {
-  if (days === 0) return 'today';
-  if (days === 1) return 'tomorrow';
-  if (days === -1) return 'yesterday';
-  return days > 0 ? `in ${days} days` : `${-days} days ago`;
+/** Today's date (YYYY-MM-DD) in the site's zone — the same function the server uses. */
+export function siteToday(now: Date = new Date()): string {
+  return todayInZone(siteZone, now);
 }
 
-/** ISO date part of a timestamp or date string. */
+/** "2026-12-02": a calendar date as is, an instant as its date in the site's zone. */
+export function formatDate(value: string | Date | null | undefined): string {
+  return formatDateIn(value, siteZone);
+}
+
+/** "2026-12-02 09:36" in the site's zone. */
+export function formatDateTime(value: string | Date | number | null | undefined, opts: DateTimeOptions = {}): string {
+  return formatDateTimeIn(value, siteZone, opts);
+}
+
+/** "09:36" (or "09:36:05") in the site's zone: clocks and chart axes. */
+export function formatTime(value: Date | number, seconds = false): string {
+  return formatTimeIn(value, siteZone, seconds);
+}
+
+/** Whole days from the site's today to a date (YYYY-MM-DD); negative when past. */
+export function daysUntil(isoDate: string, today: string = siteToday()): number {
+  return daysBetween(today, isoDate);
+}
+
+/** The date of a timestamp or date string in the site's zone; "—" when empty. */
 export function isoDay(value: string | null | undefined): string {
-  return value ? value.slice(0, 10) : '—';
+  return formatDate(value);
 }

@@ -52,7 +52,7 @@ describe('job preparation and submission rules', () => {
     });
     expect(narrow.status).toBe(201);
     const d = (await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [narrow.body.id] })).body;
-    expect(d.blockers.join('\n')).toMatch(/range 0–10 kPa does not cover the instrument's 0–100 inH2O@68F/);
+    expect(d.blockers.join('\n')).toMatch(/range 0–10 kPa does not cover the instrument's 0–100 inH2O at 68 °F/);
   });
 
   it('clears the blockers once the checklist is complete, stamping who and when', async () => {

@@ -103,7 +103,7 @@ export function Component() {
           </section>
           <section className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
             <table className="w-full text-sm" aria-label="Drift per point">
-              <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+              <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
                 <tr>
                   <th className="px-3 py-2">Point</th>
                   <th className="px-3 py-2 text-right">Last as-found</th>

@@ -55,7 +55,7 @@ export function Component() {
             <TechnicianQueue jobs={items} userId={me.id} />
           ) : (
             <section aria-labelledby="all-jobs">
-              <h2 id="all-jobs" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+              <h2 id="all-jobs" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">
                 All jobs
               </h2>
               <JobList jobs={sortJobs(items)} label="All jobs" actions={isLead ? (j) => <LeadJobActions job={j} technicians={technicians} /> : undefined} />
@@ -63,7 +63,7 @@ export function Component() {
           )}
           {planner && (
             <section aria-labelledby="needs-job">
-              <h2 id="needs-job" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+              <h2 id="needs-job" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">
                 Due within {WITHIN_DAYS} days, no job yet
               </h2>
               <NeedsJobList items={needs} technicians={technicians} canPlan={isLead} />
@@ -80,14 +80,14 @@ function TechnicianQueue({ jobs, userId }: { jobs: Parameters<typeof splitQueue>
   return (
     <>
       <section aria-labelledby="assigned-to-me">
-        <h2 id="assigned-to-me" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+        <h2 id="assigned-to-me" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">
           Assigned to me
         </h2>
         <JobList jobs={mine} label="Assigned to me" hideAssignee emptyText="Nothing is assigned to you right now." />
       </section>
       {others.length > 0 && (
         <section aria-labelledby="other-jobs">
-          <h2 id="other-jobs" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+          <h2 id="other-jobs" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">
             Other jobs
           </h2>
           <JobList jobs={others} label="Other jobs" />

@@ -20,7 +20,7 @@ import { RevisionDialog } from '../../features/review/components/revision-dialog
 import { SignDialog } from '../../features/review/components/sign-dialog';
 import { TraceChart } from '../../features/review/components/trace-chart';
 import { DECISION_LABELS, DECISION_TONES, defaultRunId, parseResults, pointWindow, RUN_KIND_LABELS, spanWords } from '../../features/review/lib/results';
-import { formatNumber, formatRange, unitLabel } from '../../lib/format';
+import { dpDecimals, formatNumber, formatRange, unitLabel } from '../../lib/format';
 import { requireMe } from '../auth-guard';
 import { RouteErrorBoundary } from './route-error';
 
@@ -177,7 +177,7 @@ export function Component() {
                   · hold <span className="num">{run.holdSeconds}</span> s
                 </p>
               )}
-              <PointTable run={run} selectedIndex={selected} onSelect={choosePoint} outputMode={instrument.outputMode} />
+              <PointTable run={run} selectedIndex={selected} onSelect={choosePoint} outputMode={instrument.outputMode} dpDecimals={dpDecimals(instrument.urv - instrument.lrv)} />
             </>
           )}
           <Panel title="Audit trail of this job">

@@ -107,12 +107,12 @@ export function ServerTable<T>({ caption, storageKey, columns, rows, rowKey, tot
                     key={c.id}
                     scope="col"
                     aria-sort={active ? (sort.dir === 'asc' ? 'ascending' : 'descending') : c.sortKey ? 'none' : undefined}
-                    className={cn('border-b border-line px-3 py-2.5 text-left text-xs font-semibold tracking-wide whitespace-nowrap text-ink-muted uppercase', c.numeric && 'text-right')}
+                    className={cn('border-b border-line px-3 py-2.5 text-left text-xs font-semibold tracking-wide whitespace-nowrap text-ink-muted', c.numeric && 'text-right')}
                   >
                     {c.sortKey ? (
                       <button
                         type="button"
-                        className="uppercase hover:text-ink"
+                        className="hover:text-ink"
                         onClick={() => onSort({ sort: c.sortKey!, dir: active && sort.dir === 'asc' ? 'desc' : 'asc' })}
                       >
                         {c.header} {active ? (sort.dir === 'asc' ? '▲' : '▼') : ''}

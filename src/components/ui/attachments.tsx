@@ -2,6 +2,7 @@ import { useId, useRef, useState } from 'react';
 import type { Attachment } from '../../../shared/schemas/files';
 import { isApiError } from '../../lib/api-client';
 import { fileUrl, useAttachmentActions, useAttachments, type AttachmentTarget } from '../../lib/attachments';
+import { formatDate } from '../../lib/format';
 import { Button } from './button';
 import { Dialog } from './dialog';
 import { toast } from './toast';
@@ -45,7 +46,7 @@ function FileRow({ a, spec, canRemove, onRemove }: { a: Attachment; spec: Attach
           {a.originalName}
         </a>
         <span className="block text-xs text-ink-muted">
-          <span className="num">{kib(a.size)}</span> · {a.uploadedByName ?? 'uploaded'} · <span className="num">{a.createdAt.slice(0, 10)}</span>
+          <span className="num">{kib(a.size)}</span> · {a.uploadedByName ?? 'uploaded'} · <span className="num">{formatDate(a.createdAt)}</span>
         </span>
       </span>
       {canRemove && (

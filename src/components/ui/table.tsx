@@ -90,7 +90,7 @@ export function DataTable<T>({
                     scope="col"
                     aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : canSort ? 'none' : undefined}
                     className={cn(
-                      'border-b border-line px-3 py-2.5 text-left text-xs font-semibold uppercase tracking-wide text-ink-muted whitespace-nowrap',
+                      'border-b border-line px-3 py-2.5 text-left text-xs font-semibold tracking-wide text-ink-muted whitespace-nowrap',
                       meta?.numeric && 'text-right',
                     )}
                   >
@@ -99,7 +99,7 @@ export function DataTable<T>({
                         type="button"
                         onClick={h.column.getToggleSortingHandler()}
                         className={cn(
-                          'inline-flex items-center gap-1 rounded uppercase tracking-wide hover:text-ink focus-visible:outline-2 focus-visible:outline-focus',
+                          'inline-flex items-center gap-1 rounded tracking-wide hover:text-ink focus-visible:outline-2 focus-visible:outline-focus',
                           meta?.numeric && 'flex-row-reverse',
                         )}
                       >

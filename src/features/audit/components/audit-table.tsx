@@ -1,6 +1,7 @@
 import { Fragment, useState } from 'react';
 import type { AuditEntry } from '../../../../shared/schemas/records';
 import { cn } from '../../../lib/cn';
+import { formatDateTime } from '../../../lib/format';
 
 /** Changed keys between two JSON values (top level), for a quick old → new reading. */
 function changedKeys(before: unknown, after: unknown): string[] {
@@ -14,13 +15,13 @@ function changedKeys(before: unknown, after: unknown): string[] {
 const ENTITY_NUMERIC = new Set(['job', 'run', 'instrument']);
 const ENTITY_WORDS: Record<string, string> = { job: 'Job', run: 'Run', instrument: 'Instrument', standard: 'Standard', user: 'User', site: 'Site', bench: 'Bench', 'sample-storage': 'Sample storage' };
 
-/** The audit trail in words: when (UTC), who by name, what happened, which record by its tag, and old → new values on demand. */
+/** The audit trail in words: when (site time), who by name, what happened, which record by its tag, and old → new values on demand. */
 export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; brokenId?: number | undefined }) {
   const [open, setOpen] = useState<number | null>(null);
   return (
     <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Audit trail">
-        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
           <tr>
             <th className="px-3 py-2">#</th>
             <th className="px-3 py-2">When (UTC)</th>
@@ -37,7 +38,7 @@ export function AuditTable({ entries, brokenId }: { entries: AuditEntry[]; broke
               <Fragment key={e.id}>
                 <tr className={cn('border-t border-line', e.id === brokenId && 'bg-danger-soft')} data-testid={`audit-row-${e.id}`}>
                   <td className="num px-3 py-2">{e.id}</td>
-                  <td className="num px-3 py-2 whitespace-nowrap">{e.at.replace('T', ' ').slice(0, 19)}</td>
+                  <td className="num px-3 py-2 whitespace-nowrap">{formatDateTime(e.at, { seconds: true })}</td>
                   <td className="px-3 py-2">
                     {e.actorName ?? e.actorEmail ?? <span className="text-ink-muted">Stillpoint (automatic)</span>}
                     {e.actorName && e.actorEmail && e.actorEmail.includes('@') && !e.actorName.includes(e.actorEmail) && <span className="block text-xs text-ink-muted">{e.actorEmail}</span>}

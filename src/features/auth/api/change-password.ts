@@ -1,11 +1,14 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { MeSchema, type ChangePasswordBody, type Me } from '../../../../shared/schemas/auth';
 import { api } from '../../../lib/api-client';
+import { setSiteTimeZone } from '../../../lib/format';
 import { meQueryKey } from './get-me';
 
 /** POST /api/auth/password {current, next} → Me. Every other session of the user ends; this one stays. */
-export function changePassword(body: ChangePasswordBody): Promise<Me> {
-  return api.post('/api/auth/password', body, { schema: MeSchema });
+export async function changePassword(body: ChangePasswordBody): Promise<Me> {
+  const me = await api.post('/api/auth/password', body, { schema: MeSchema });
+  setSiteTimeZone(me.timeZone);
+  return me;
 }
 
 export function useChangePassword(opts: { onSuccess?: (me: Me) => void } = {}) {

@@ -1,13 +1,17 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { MeSchema, type Me } from '../../../../shared/schemas/auth';
 import { api } from '../../../lib/api-client';
+import { setSiteTimeZone } from '../../../lib/format';
 import { SESSION_CHECK } from '../../../lib/query-client';
 
 export const meQueryKey = ['auth', 'me'] as const;
 
 /** GET /api/auth/me → the signed-in user, or ApiError 401. */
-export function getMe(signal?: AbortSignal): Promise<Me> {
-  return api.get('/api/auth/me', { schema: MeSchema, ...(signal ? { signal } : {}) });
+export async function getMe(signal?: AbortSignal): Promise<Me> {
+  const me = await api.get('/api/auth/me', { schema: MeSchema, ...(signal ? { signal } : {}) });
+  // Dates on every page are shown, and "today" is taken, in the site's zone.
+  setSiteTimeZone(me.timeZone);
+  return me;
 }
 
 export function meQueryOptions() {

@@ -20,7 +20,7 @@ export function DevicePanels({ status }: { status: BenchStatus }) {
     <div className="flex flex-col gap-6">
       {status.benches.map((b) => (
         <section key={b.benchId} aria-label={`Bench ${b.benchId}`} data-testid={`bench-${b.benchId}`}>
-          <h2 className="mb-2 flex items-center gap-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+          <h2 className="mb-2 flex items-center gap-3 text-sm font-semibold tracking-wide text-ink-muted">
             <span className="num normal-case">{b.benchId}</span>
             {b.benchId === status.benchId ? <Badge tone="accent">This server</Badge> : <Badge>Remote (agent or browser)</Badge>}
             {(b.activeRunId ?? b.runId) && <Badge tone="holding">Run in progress</Badge>}

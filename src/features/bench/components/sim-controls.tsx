@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { Button } from '../../../components/ui/button';
 import { toast } from '../../../components/ui/toast';
-import { formatNumber } from '../../../lib/format';
+import { formatNumber, unitLabel } from '../../../lib/format';
 import { useSimControl, useSimSnapshot, type SimControlBody } from '../api/sim';
 
 function Num({ label, value, onChange, step = 0.05, unit, testId }: { label: string; value: string; onChange: (v: string) => void; step?: number; unit: string; testId: string }) {
@@ -45,7 +45,7 @@ export function SimControls() {
       </h2>
       <p className="mt-1 text-sm text-ink-muted">
         Demo mode: the bench reads simulated instruments. Now applying{' '}
-        <span className="num text-ink">{snap.data ? `${formatNumber(snap.data.appliedDp, 3)} ${snap.data.unit}` : '—'}</span>, loop{' '}
+        <span className="num text-ink">{snap.data ? `${formatNumber(snap.data.appliedDp, 3)} ${unitLabel(snap.data.unit)}` : '—'}</span>, loop{' '}
         <span className="num text-ink">{snap.data ? `${formatNumber(snap.data.currentMa, 3)} mA` : '—'}</span>
         {snap.data?.autopilot && (
           <>

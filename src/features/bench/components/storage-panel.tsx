@@ -3,9 +3,10 @@ import { Button } from '../../../components/ui/button';
 import { toast } from '../../../components/ui/toast';
 import type { BenchStatus } from '../api/get-bench';
 import { useAcknowledgeStorage, useStorageReview } from '../api/storage';
+import { formatDateTime } from '../../../lib/format';
 
 /** A time as the browser's locale writes it. */
-const when = (iso: string) => new Date(iso).toLocaleString();
+const when = (iso: string) => formatDateTime(iso, { seconds: true });
 
 /**
  * What was not stored as received: forwarded lines refused at the edge, samples the database

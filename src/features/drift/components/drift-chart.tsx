@@ -2,6 +2,7 @@ import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { DriftPoint } from '../../../../shared/schemas/records';
+import { dateAxis } from '../../../lib/chart-axes';
 import { useThemeStore } from '../../../lib/theme';
 
 function cssVar(name: string, fallback: string): string {
@@ -93,7 +94,7 @@ export function DriftChart({ points, tolerance, dueOn, height = 300 }: { points:
       legend: { show: false },
       scales: { x: { time: true }, y: { range: (_u, lo, hi) => [Math.min(lo, -tolerance * 1.2), Math.max(hi, tolerance * 1.2)] } },
       axes: [
-        { stroke: ink, grid: { stroke: grid } },
+        { stroke: ink, grid: { stroke: grid }, ...dateAxis() },
         { stroke: ink, grid: { stroke: grid }, label: 'As-found error, % of span', size: 60 },
       ],
       series,

@@ -2,7 +2,7 @@ import { useMemo } from 'react';
 import type { Instrument, OutputMode } from '../../../../shared/schemas/instruments';
 import { Badge } from '../../../components/ui/badge';
 import { DataTable, type ColumnDef } from '../../../components/ui/table';
-import { daysUntil, formatNumber, formatRange, relativeDays } from '../../../lib/format';
+import { daysUntil, formatDate, formatNumber, formatRange, relativeDays } from '../../../lib/format';
 
 export const OUTPUT_MODE_LABELS: Record<OutputMode, string> = {
   linear: 'Linear',
@@ -13,8 +13,8 @@ export const OUTPUT_MODE_LABELS: Record<OutputMode, string> = {
 export interface InstrumentsTableProps {
   instruments: readonly Instrument[];
   search?: string;
-  /** For tests; defaults to now. */
-  today?: Date;
+  /** Today's date (YYYY-MM-DD) for tests; defaults to today in the site's zone. */
+  today?: string;
 }
 
 /** Text a search matches against: tag, service, location, unit and output mode. */
@@ -65,7 +65,7 @@ export function InstrumentsTable({ instruments, search = '', today }: Instrument
           const d = daysUntil(due, today);
           return (
             <div className="flex items-center gap-2 whitespace-nowrap">
-              <span className="num">{due.slice(0, 10)}</span>
+              <span className="num">{formatDate(due)}</span>
               {d < 0 ? (
                 <Badge tone="danger">Overdue</Badge>
               ) : d <= 30 ? (

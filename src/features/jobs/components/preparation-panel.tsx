@@ -57,7 +57,7 @@ export function PreparationPanel({ job, register, canEdit, save, saving }: Prepa
       <BypassBlock job={job} locked={locked} pendingKey={pendingKey} run={run} />
 
       <div>
-        <h3 className="text-sm font-semibold tracking-wide text-ink-muted uppercase">Before connecting</h3>
+        <h3 className="text-sm font-semibold tracking-wide text-ink-muted">Before connecting</h3>
         <div className="mt-1 divide-y divide-line">
           <SignedStep
             testId="ack-operators"
@@ -125,7 +125,7 @@ function StandardsChooser({
 
   return (
     <fieldset>
-      <legend className="text-sm font-semibold tracking-wide text-ink-muted uppercase">Reference standards</legend>
+      <legend className="text-sm font-semibold tracking-wide text-ink-muted">Reference standards</legend>
       <p className="mt-1 text-sm text-ink-muted">One pressure reference and one current meter. An expired standard, or one whose range does not cover the instrument, blocks the run.</p>
       {!register ? (
         <p className="mt-3 text-sm text-ink-muted">Loading the standards register…</p>
@@ -235,7 +235,7 @@ function BypassBlock({
 
   return (
     <fieldset className="rounded-md border border-line p-4">
-      <legend className="px-1 text-sm font-semibold tracking-wide text-ink-muted uppercase">Interlock bypass</legend>
+      <legend className="px-1 text-sm font-semibold tracking-wide text-ink-muted">Interlock bypass</legend>
       <div className="flex flex-wrap gap-4 text-sm" role="radiogroup" aria-label="Is an interlock bypass needed?">
         <label className="flex items-center gap-2">
           <input type="radio" name="bypass" checked={!req} disabled={locked || fixed} onChange={() => setRequired(false)} /> No bypass needed

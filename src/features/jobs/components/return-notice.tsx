@@ -1,6 +1,6 @@
 import type { ReturnNotice } from '../../../../shared/schemas/jobs';
+import { formatDateTime } from '../../../lib/format';
 
-const when = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
 
 /** The lead's return, shown at the top of the job page until the job is resubmitted. */
 export function ReturnNoticeBanner({ notice }: { notice: ReturnNotice }) {
@@ -11,7 +11,7 @@ export function ReturnNoticeBanner({ notice }: { notice: ReturnNotice }) {
       data-testid="return-notice"
     >
       <h2 className="text-sm font-semibold">
-        Returned by {notice.byName} on <span className="num">{when(notice.at)}</span>
+        Returned by {notice.byName} on <span className="num">{formatDateTime(notice.at)}</span>
       </h2>
       <blockquote className="mt-1 border-l-2 border-warn pl-3 whitespace-pre-wrap" data-testid="return-comment">
         {notice.comment || 'No comment was given.'}

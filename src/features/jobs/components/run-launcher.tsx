@@ -2,6 +2,7 @@ import { Link } from 'react-router';
 import type { JobDetail } from '../../../../shared/schemas/jobs';
 import { Badge, type BadgeTone } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
+import { formatDateTime } from '../../../lib/format';
 
 const RUN_STATUS: Record<string, { label: string; tone: BadgeTone }> = {
   running: { label: 'Running', tone: 'holding' },
@@ -51,7 +52,7 @@ export function RunLauncher({
                 <Link to={`/runs/${r.id}`} className="font-medium text-accent underline-offset-2 hover:underline">
                   {r.status === 'running' || r.status === 'paused' ? 'Open the capture screen' : 'View run'}
                 </Link>
-                <span className="num text-ink-muted">{new Date(r.startedAt).toLocaleString('en-GB', { dateStyle: 'short', timeStyle: 'short' })}</span>
+                <span className="num text-ink-muted">{formatDateTime(r.startedAt)}</span>
                 <Badge tone={st.tone} dot>
                   {st.label}
                 </Badge>

@@ -1,12 +1,13 @@
 import type { z } from 'zod';
 import type { SignedStepSchema } from '../../../../shared/schemas/jobs';
 import { Button } from '../../../components/ui/button';
+import { formatDateTime } from '../../../lib/format';
 
 type Signed = z.infer<typeof SignedStepSchema>;
 
 export function formatStamp(s: NonNullable<Signed>): string {
-  const d = new Date(s.at);
-  const when = Number.isNaN(d.getTime()) ? s.at : d.toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' });
+  const f = formatDateTime(s.at);
+  const when = f === '—' ? s.at : f;
   return `${s.byName}, ${when}`;
 }
 

@@ -3,7 +3,7 @@ import type { TrimPlan } from '../../../../shared/calc';
 import type { Run } from '../../../../shared/schemas/runs';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
-import { formatNumber } from '../../../lib/format';
+import { formatFixed, formatNumber, formatSigned } from '../../../lib/format';
 
 const TRIM_LABEL: Record<string, string> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
 
@@ -74,7 +74,7 @@ export function TrimPanel({
           const open = r.runs.find((x) => x.status === 'running' || x.status === 'paused');
           const done = r.runs.some((x) => x.status === 'complete');
           const span = rooted ? 'flow span' : 'span';
-          const err = (e: number | null) => (e === null ? '—' : `${e >= 0 ? '+' : '−'}${formatNumber(Math.abs(e), 3)} % ${span}`);
+          const err = (e: number | null) => (e === null ? '—' : `${formatSigned(e, 3)} % ${span}`);
           return (
             <li key={s.kind} className="rounded-md border border-line p-4" data-testid={`trim-${s.kind}`}>
               <div className="flex items-start justify-between gap-2">
@@ -84,7 +84,7 @@ export function TrimPanel({
                 {done ? <Badge tone="ok">Captured</Badge> : <Badge>Not yet</Badge>}
               </div>
               <p className="mt-1 text-sm text-ink-muted">
-                Apply <span className="num text-ink">{formatNumber(s.targetDp, dpDecimals)}</span> {unitLabel} (<span className="num">{formatNumber(s.dpPct, 2)} % DP</span>
+                Apply <span className="num text-ink">{formatFixed(s.targetDp, dpDecimals)}</span> {unitLabel} (<span className="num">{formatNumber(s.dpPct, 2)} % DP</span>
                 {s.flowPct !== undefined && (
                   <>
                     , <span className="num">{formatNumber(s.flowPct, 2)} % flow</span>

@@ -5,6 +5,7 @@
  */
 import type { JobDetail } from '../../../../shared/schemas/jobs';
 import type { Run, RunKind } from '../../../../shared/schemas/runs';
+import { formatFixed } from '../../../lib/format';
 
 export type StepId = 'preparation' | 'mode-check' | 'as-found' | 'decision' | 'trim' | 'as-left' | 'return' | 'submit';
 export type StepStatus = 'done' | 'current' | 'blocked' | 'todo' | 'optional';
@@ -42,7 +43,7 @@ export function modeCheckProblem(run: Run | undefined, registerMode: string | un
   if (run.modeCheck.matchesRegister) return null;
   const found = OUTPUT_MODE_WORDS[run.modeCheck.finding] ?? run.modeCheck.finding;
   const reg = registerMode ? (OUTPUT_MODE_WORDS[registerMode] ?? registerMode) : 'another output mode';
-  return `The output-mode check read ${run.modeCheck.measuredMa.toFixed(2)} mA at 25 % DP (${found}), but the register says ${reg}. Stop: correct the register or the transmitter configuration, then repeat the check.`;
+  return `The output-mode check read ${formatFixed(run.modeCheck.measuredMa, 2)} mA at 25 % DP (${found}), but the register says ${reg}. Stop: correct the register or the transmitter configuration, then repeat the check.`;
 }
 
 export interface StepInput {

@@ -1,6 +1,7 @@
 import { ErrorNotice } from '../../../components/ui/error-notice';
 import { ListSkeleton } from '../../../components/ui/skeleton';
 import { useOutboxMessage } from '../api/get-outbox-message';
+import { formatDateTime } from '../../../lib/format';
 
 /** One message: headers and the plain-text body (the HTML part is not rendered, so nothing in it runs). */
 export function MessageView({ id }: { id: string }) {
@@ -17,7 +18,7 @@ export function MessageView({ id }: { id: string }) {
         <dt className="text-ink-muted">To</dt>
         <dd>{m.to.join(', ')}</dd>
         <dt className="text-ink-muted">Received</dt>
-        <dd className="num">{new Date(m.receivedAt).toLocaleString()}</dd>
+        <dd className="num">{formatDateTime(m.receivedAt, { seconds: true })}</dd>
       </dl>
       <pre className="whitespace-pre-wrap break-words font-sans text-sm text-ink">{m.text || '(no text part)'}</pre>
     </article>

@@ -1,7 +1,8 @@
 import type { OutboxSummary } from '../../../../shared/schemas/outbox';
 import { cn } from '../../../lib/cn';
+import { formatDateTime } from '../../../lib/format';
 
-const when = (iso: string) => new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+const when = (iso: string) => formatDateTime(iso);
 
 /** The received messages, newest first; choosing one opens it. */
 export function OutboxList({ messages, selectedId, onSelect }: { messages: OutboxSummary[]; selectedId: string | null; onSelect: (id: string) => void }) {

@@ -29,7 +29,8 @@ export interface JobListProps {
   jobs: readonly Job[];
   /** Accessible name of the list. */
   label: string;
-  today?: Date;
+  /** Today's date (YYYY-MM-DD) for tests; defaults to today in the site's zone. */
+  today?: string;
   emptyText?: string;
   /** Hide the assignee (e.g. in the caller's own list). */
   hideAssignee?: boolean;

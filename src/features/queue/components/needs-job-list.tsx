@@ -5,7 +5,7 @@ import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { isApiError } from '../../../lib/api-client';
-import { relativeDays } from '../../../lib/format';
+import { relativeDays, siteToday } from '../../../lib/format';
 import { useCreateJob } from '../api/get-queue';
 
 /** Instruments falling due with no open job; a lead creates (and assigns) the job from here. */
@@ -44,7 +44,7 @@ export function NeedsJobList({ items, technicians, canPlan }: { items: NeedsJob[
 
 function CreateJobDialog({ item, technicians, onClose }: { item: NeedsJob; technicians: Array<{ id: string; name: string }>; onClose: () => void }) {
   const create = useCreateJob();
-  const today = new Date().toISOString().slice(0, 10);
+  const today = siteToday();
   const [assigneeId, setAssigneeId] = useState('');
   const [dueOn, setDueOn] = useState(item.nextDueOn && item.nextDueOn > today ? item.nextDueOn : today);
   const [error, setError] = useState<string | null>(null);

@@ -3,6 +3,7 @@ import { Link } from 'react-router';
 import type { RecordItem } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
 import { DataTable, type ColumnDef } from '../../../components/ui/table';
+import { formatDate } from '../../../lib/format';
 
 const RESULT_WORDS: Record<string, string> = { pass: 'Pass', fail: 'Fail', 'conditional-pass': 'Conditional pass', 'conditional-fail': 'Conditional fail' };
 const RESULT_TONES: Record<string, 'ok' | 'danger' | 'warn'> = { pass: 'ok', fail: 'danger', 'conditional-pass': 'warn', 'conditional-fail': 'warn' };
@@ -31,7 +32,7 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
         id: 'calibrated',
         header: 'Calibrated',
         accessorFn: (r) => r.calibratedOn ?? '',
-        cell: ({ row }) => (row.original.calibratedOn ? <span className="num whitespace-nowrap">{row.original.calibratedOn}</span> : <span className="text-ink-faint">—</span>),
+        cell: ({ row }) => (row.original.calibratedOn ? <span className="num whitespace-nowrap">{formatDate(row.original.calibratedOn)}</span> : <span className="text-ink-faint">—</span>),
       },
       { id: 'asFound', header: 'As found', accessorFn: (r) => r.asFound ?? '', cell: ({ row }) => <Result decision={row.original.asFound ?? null} /> },
       { id: 'asLeft', header: 'As left', accessorFn: (r) => r.asLeft ?? '', cell: ({ row }) => <Result decision={row.original.asLeft ?? null} /> },
@@ -44,10 +45,10 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
         cell: ({ row }) => {
           const s = row.original.lastSignature;
           return s ? (
-            <span title={`${s.signerName}, ${s.signedAt.slice(0, 10)} (${s.meaning})`}>
+            <span title={`${s.signerName}, ${formatDate(s.signedAt)} (${s.meaning})`}>
               {s.signerName}
               <span className="block text-xs text-ink-muted">
-                <span className="num">{s.signedAt.slice(0, 10)}</span> · {s.decision === 'approve' ? 'approved' : 'returned'}
+                <span className="num">{formatDate(s.signedAt)}</span> · {s.decision === 'approve' ? 'approved' : 'returned'}
               </span>
             </span>
           ) : (

@@ -1,8 +1,8 @@
 import { Link } from 'react-router';
 import type { InboxItem } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
+import { formatDateTime } from '../../../lib/format';
 
-const when = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
 
 /** Days between a submission and now, in words ("today", "3 days"). */
 function waited(iso: string, now = Date.now()): string {
@@ -25,7 +25,7 @@ export function InboxList({ items }: { items: InboxItem[] }) {
           </span>
           {j.returns > 0 && <Badge tone="warn">{j.returns === 1 ? 'resubmitted after a return' : `resubmitted after ${j.returns} returns`}</Badge>}
           <span className="text-sm">
-            submitted <span className="num">{when(j.submittedAt)}</span> <span className="text-ink-muted">(waiting {waited(j.submittedAt)})</span>
+            submitted <span className="num">{formatDateTime(j.submittedAt)}</span> <span className="text-ink-muted">(waiting {waited(j.submittedAt)})</span>
           </span>
         </li>
       ))}

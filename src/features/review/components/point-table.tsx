@@ -1,7 +1,7 @@
 import type { Run } from '../../../../shared/schemas/runs';
 import { Badge } from '../../../components/ui/badge';
 import { cn } from '../../../lib/cn';
-import { formatNumber } from '../../../lib/format';
+import { formatFixed, formatFlow, formatNumber, formatRootDeparture, formatSigned, flowDecimals, unitLabel } from '../../../lib/format';
 import { DECISION_LABELS, DECISION_TONES, hysteresisAt, parseResults, pointsWithResults, spanWords } from '../lib/results';
 
 export interface PointTableProps {
@@ -10,22 +10,29 @@ export interface PointTableProps {
   onSelect: (index: number) => void;
   /** The instrument's output mode: errors are % of flow span for a root in the transmitter. */
   outputMode?: string;
+  /** Decimals of DP values (shared/format `dpDecimals` of the instrument's span); 4 when not given. */
+  dpDecimals?: number;
 }
 
 /** Every point of a run with its capture, result, uncertainty and decision; a row opens its trace. */
-const hyst = (h: number | null) => (h === null ? '—' : formatNumber(h, 3));
+const hyst = (h: number | null) => formatSigned(h, 3);
 
-export function PointTable({ run, selectedIndex, onSelect, outputMode }: PointTableProps) {
+export function PointTable({ run, selectedIndex, onSelect, outputMode, dpDecimals = 4 }: PointTableProps) {
   const rows = pointsWithResults(run);
   const results = parseResults(run);
   const span = spanWords(outputMode);
+  // Flow in engineering units (ISO 5167-2) when the instrument has an orifice primary element.
+  const flows = rows.map((x) => x.result?.flow).filter((f) => !!f);
+  const flowUnit = flows[0]?.unit;
+  const flowDec = flowDecimals(Math.max(0, ...flows.map((f) => f.flow)));
   return (
     <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full border-collapse text-sm" aria-label={`Points of the ${run.kind} run`}>
-        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
           <tr>
             <th className="px-3 py-2">Point</th>
-            <th className="px-3 py-2 text-right">Applied ({run.unit})</th>
+            <th className="px-3 py-2 text-right">Applied ({unitLabel(run.unit)})</th>
+            {flowUnit && <th className="px-3 py-2 text-right">Flow ({unitLabel(flowUnit)}; constant-C root departure)</th>}
             <th className="px-3 py-2 text-right">Current (mA)</th>
             <th className="px-3 py-2 text-right">Expected (mA)</th>
             <th className="px-3 py-2 text-right">Error (% {span})</th>
@@ -56,24 +63,36 @@ export function PointTable({ run, selectedIndex, onSelect, outputMode }: PointTa
                   </span>
                 </button>
               </td>
-              <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.appliedDp, 4) : '—'}</td>
-              <td className="num px-3 py-2 text-right">{p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}</td>
-              <td className="num px-3 py-2 text-right">{formatNumber(r?.expectedMa ?? p.expectedMa, 4)}</td>
+              <td className="num px-3 py-2 text-right">{p.capture ? formatFixed(p.capture.appliedDp, dpDecimals) : '—'}</td>
+              {flowUnit && (
+                <td className="num px-3 py-2 text-right" data-testid={`review-flow-${p.index}`}>
+                  {r?.flow ? (
+                    <>
+                      {formatFlow(r.flow.flow, r.flow.unit, flowDec)}
+                      <span className="ml-1 text-xs text-ink-muted">({formatRootDeparture(r.flow.pureRootDeparturePct)})</span>
+                    </>
+                  ) : (
+                    '—'
+                  )}
+                </td>
+              )}
+              <td className="num px-3 py-2 text-right">{p.capture ? formatFixed(p.capture.measuredMa, 4) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{formatFixed(r?.expectedMa ?? p.expectedMa, 4)}</td>
               <td className="num px-3 py-2 text-right" data-testid={`review-error-${p.index}`}>
-                {r ? formatNumber(r.errorPctSpan, 3) : '—'}
+                {r ? formatSigned(r.errorPctSpan, 3) : '—'}
               </td>
               <td className="num px-3 py-2 text-right" data-testid={`review-hyst-${p.index}`}>
                 {hyst(r && results ? hysteresisAt(results, r) : null)}
               </td>
               <td className="num px-3 py-2 text-right">
-                {r?.expandedUncertaintyPctSpan != null ? formatNumber(r.expandedUncertaintyPctSpan, 3) : '—'}
+                {formatFixed(r?.expandedUncertaintyPctSpan, 3)}
                 {r?.coverageFactor != null && (
                   <span className="ml-1 text-xs text-ink-muted">
                     (k {formatNumber(r.coverageFactor, 2)}, ν {r.effectiveDof == null ? '∞' : formatNumber(r.effectiveDof, 1)})
                   </span>
                 )}
               </td>
-              <td className="num px-3 py-2 text-right">{r?.tur != null ? formatNumber(r.tur, 1) : '—'}</td>
+              <td className="num px-3 py-2 text-right">{r?.tur != null ? `${formatNumber(r.tur, 1)}:1` : '—'}</td>
               <td className="px-3 py-2">
                 {r ? <Badge tone={DECISION_TONES[r.decision] ?? 'neutral'}>{DECISION_LABELS[r.decision] ?? r.decision}</Badge> : '—'}
                 {r?.undecided && <span className="ml-1 text-xs text-ink-muted">{r.undecided.message}</span>}

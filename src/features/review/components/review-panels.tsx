@@ -4,18 +4,18 @@ import type { AuditEntry, ReviewExchange, RevisionSummary, Signature } from '../
 import { AttachmentList, PHOTO } from '../../../components/ui/attachments';
 import { Badge } from '../../../components/ui/badge';
 import { fileUrl } from '../../../lib/attachments';
-import { daysUntil } from '../../../lib/format';
+import { daysUntil, formatDateTime } from '../../../lib/format';
 
 export function Panel({ title, children, testId }: { title: string; children: ReactNode; testId?: string }) {
   return (
     <section className="rounded-card border border-line bg-surface p-4 shadow-card" aria-label={title} data-testid={testId}>
-      <h2 className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">{title}</h2>
+      <h2 className="mb-3 text-sm font-semibold tracking-wide text-ink-muted">{title}</h2>
       {children}
     </section>
   );
 }
 
-const when = (iso: string) => `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+const when = (iso: string) => formatDateTime(iso);
 
 /** Standards used, with their due dates and state at review time. */
 export function StandardsUsed({ job }: { job: JobDetail }) {

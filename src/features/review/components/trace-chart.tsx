@@ -4,6 +4,7 @@ import 'uplot/dist/uPlot.min.css';
 import type { ReviewTrace } from '../../../../shared/schemas/records';
 import type { Run } from '../../../../shared/schemas/runs';
 import { Button } from '../../../components/ui/button';
+import { timeAxis } from '../../../lib/chart-axes';
 import { useThemeStore } from '../../../lib/theme';
 import type { TraceWindow } from '../api/get-trace';
 
@@ -141,7 +142,7 @@ export function TraceChart({ run, trace, unitLabel, selectedIndex, view, onViewC
       select: { show: true, left: 0, top: 0, width: 0, height: 0 },
       scales: { x: { time: true }, dp: { auto: true, range: safeRange }, ma: { auto: true, range: safeRange } },
       axes: [
-        { stroke: c.ink, grid: { stroke: c.grid, width: 1 }, ticks: { stroke: c.grid } },
+        { stroke: c.ink, grid: { stroke: c.grid, width: 1 }, ticks: { stroke: c.grid }, ...timeAxis() },
         { scale: 'dp', label: unitLabel, stroke: c.dp, grid: { stroke: c.grid, width: 1 }, ticks: { stroke: c.grid }, size: 64 },
         { scale: 'ma', side: 1, label: 'mA', stroke: c.ma, grid: { show: false }, ticks: { stroke: c.grid }, size: 56 },
       ],

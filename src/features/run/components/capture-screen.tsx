@@ -9,7 +9,7 @@ import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
 import { toast } from '../../../components/ui/toast';
 import { cn } from '../../../lib/cn';
-import { formatNumber, unitLabel as unitText } from '../../../lib/format';
+import { dpDecimals as dpDecimalsOfSpan, formatFixed, formatNumber, unitLabel as unitText } from '../../../lib/format';
 import { useLiveStream, useLiveStreamNotice, type LiveStatus } from '../../../lib/live-stream';
 import { liveSamples, useLatestSamples } from '../../../stores/live-samples';
 import { useLiveRun } from '../../../stores/live-run';
@@ -17,6 +17,7 @@ import { useRunAction } from '../api/run-actions';
 import { useCaptureSound, useSoundPref } from '../hooks/use-capture-sound';
 import { useShortcuts, type Shortcut } from '../hooks/use-shortcuts';
 import { approachWords, liveValues, ne43Problem, nominalWords, transferSpecOf } from '../lib/live-values';
+import { flowViewOf } from '../lib/flow';
 import { parseResults } from '../lib/results';
 import { CurrentPoint } from './current-point';
 import { LiveTrace } from './live-trace';
@@ -35,10 +36,9 @@ export const RUN_KIND_LABEL: Record<Run['kind'], string> = {
 
 const TRIM_LABEL: Record<string, string> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
 
-/** Decimals for DP values: five significant figures at full scale, at least two decimals. */
+/** Decimals for DP values: shared/format's one rule (last digit ≤ 0.01 % of span), as on the certificate. */
 export function dpDecimalsFor(span: number): number {
-  const mag = Math.floor(Math.log10(Math.abs(span) || 1));
-  return Math.min(5, Math.max(2, 4 - mag));
+  return dpDecimalsOfSpan(span);
 }
 
 export interface CaptureScreenProps {
@@ -64,6 +64,9 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
   const rooted = !!instrument && instrument.outputMode !== 'linear';
   const samples = useLatestSamples();
   const values = liveValues(spec, samples.pressure?.value, samples.pressureUnit, samples.current?.value);
+  // Flow in engineering units beside % flow (orifice primary element, ISO 5167-2).
+  const flow = useMemo(() => flowViewOf(instrument), [instrument]);
+  const liveFlow = flow?.at(values.appliedDp);
   const toInstrumentUnit = useMemo(() => {
     const from = samples.pressureUnit;
     if (!from || from === unit || !isPressureUnitId(from) || !isPressureUnitId(unit)) return undefined;
@@ -183,7 +186,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
             )}
           </p>
           <p className="mt-1 text-sm">
-            Apply <span className="num font-semibold">{formatNumber(trimStep.targetDp, dpDecimals)}</span> {unitLabel}, run the transmitter&apos;s {TRIM_LABEL[trimStep.kind]?.toLowerCase()} with your
+            Apply <span className="num font-semibold">{formatFixed(trimStep.targetDp, dpDecimals)}</span> {unitLabel}, run the transmitter&apos;s {TRIM_LABEL[trimStep.kind]?.toLowerCase()} with your
             configurator until it reads <span className="num font-semibold">{formatNumber(trimStep.expectedMa, 3)} mA</span>. Stillpoint captures the reading before and after.
           </p>
         </div>
@@ -204,7 +207,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
               <span className="text-base font-normal text-ink">
                 {p?.capture && (
                   <>
-                    <span className="num">{formatNumber(p.capture.measuredMa, 4)} mA</span> at <span className="num">{formatNumber(p.capture.appliedDp, dpDecimals)}</span> {unitLabel}.{' '}
+                    <span className="num">{formatNumber(p.capture.measuredMa, 4)} mA</span> at <span className="num">{formatFixed(p.capture.appliedDp, dpDecimals)}</span> {unitLabel}.{' '}
                   </>
                 )}
                 {next ? (
@@ -233,9 +236,16 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
       <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_24rem]">
         <div className="flex min-w-0 flex-col gap-4">
           {current && active && (
-            <CurrentPoint runId={run.id} point={current} total={run.points.length} holdSeconds={run.holdSeconds} unitLabel={unitLabel} dpDecimals={dpDecimals} paused={run.status === 'paused'} />
+            <CurrentPoint runId={run.id} point={current} total={run.points.length} holdSeconds={run.holdSeconds} unitLabel={unitLabel} dpDecimals={dpDecimals} paused={run.status === 'paused'} targetFlow={flow ? flow.text(flow.at(current.targetDp)?.flow) : undefined} />
           )}
-          <Readouts values={values} unitLabel={unitLabel} rooted={rooted} tolerancePct={instrument?.tolerancePct} dpDecimals={dpDecimals} />
+          <Readouts
+            values={values}
+            unitLabel={unitLabel}
+            rooted={rooted}
+            tolerancePct={instrument?.tolerancePct}
+            dpDecimals={dpDecimals}
+            flow={flow ? { text: flow.text(liveFlow?.flow), departure: flow.departure(liveFlow?.pureRootDeparturePct) } : undefined}
+          />
           <div className="rounded-card border border-line bg-surface p-4 shadow-card">
             <LiveTrace unitLabel={unitLabel} toInstrumentUnit={toInstrumentUnit} target={current && active ? current : null} runId={run.id} pointIndex={current?.index ?? null} />
           </div>
@@ -249,6 +259,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
             rooted={rooted}
             canAct={canAct && active}
             onRedo={(i) => setRedoFor(run.points[i] ?? null)}
+            flow={flow}
           />
           <ShortcutHelp shortcuts={shortcuts} />
         </div>
@@ -360,7 +371,7 @@ function StreamDot({ status }: { status: LiveStatus }) {
 function ShortcutHelp({ shortcuts }: { shortcuts: readonly Shortcut[] }) {
   return (
     <section aria-label="Keyboard shortcuts" className="rounded-card border border-line bg-surface px-4 py-3 text-sm shadow-card" data-testid="shortcuts">
-      <h2 className="text-xs font-semibold tracking-wide text-ink-muted uppercase">Keys</h2>
+      <h2 className="text-xs font-semibold tracking-wide text-ink-muted">Keys</h2>
       <ul className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1.5">
         {shortcuts.map((s) => (
           <li key={s.key} className={cn('flex items-center gap-2', s.enabled === false && 'opacity-45')}>

@@ -2,7 +2,7 @@ import { useEffect, useState } from 'react';
 import type { RunPoint } from '../../../../shared/schemas/runs';
 import { Badge } from '../../../components/ui/badge';
 import { cn } from '../../../lib/cn';
-import { formatNumber } from '../../../lib/format';
+import { formatFixed, formatNumber } from '../../../lib/format';
 import { holdRemainingMs, useLiveRun } from '../../../stores/live-run';
 import { approachWords, nominalWords } from '../lib/live-values';
 
@@ -29,7 +29,26 @@ function useTicker(active: boolean, ms = 200): number {
  * The current point: its nominal, target and approach direction, its state, and the hold
  * countdown in numerals readable from two metres, with a ring that fills as the hold runs.
  */
-export function CurrentPoint({ runId, point, total, holdSeconds, unitLabel, dpDecimals, paused }: { runId: string; point: RunPoint; total: number; holdSeconds: number; unitLabel: string; dpDecimals: number; paused: boolean }) {
+export function CurrentPoint({
+  runId,
+  point,
+  total,
+  holdSeconds,
+  unitLabel,
+  dpDecimals,
+  paused,
+  targetFlow,
+}: {
+  runId: string;
+  point: RunPoint;
+  total: number;
+  holdSeconds: number;
+  unitLabel: string;
+  dpDecimals: number;
+  paused: boolean;
+  /** The point's target flow in engineering units (orifice primary element), e.g. "24.83 m³/h". */
+  targetFlow?: string | undefined;
+}) {
   const hold = useLiveRun((s) => (s.hold && s.hold.runId === runId && s.hold.index === point.index ? s.hold : null));
   const holding = point.state === 'holding' && !paused;
   const now = useTicker(holding && !!hold);
@@ -52,7 +71,14 @@ export function CurrentPoint({ runId, point, total, holdSeconds, unitLabel, dpDe
           </span>
         </p>
         <p className="mt-1 text-lg text-ink" data-testid="approach">
-          Set <span className="num font-semibold">{formatNumber(point.targetDp, dpDecimals)}</span> {unitLabel} — <span className="font-semibold">{approachWords(point.approach)}</span>
+          Set <span className="num font-semibold">{formatFixed(point.targetDp, dpDecimals)}</span> {unitLabel}
+          {targetFlow && (
+            <>
+              {' '}
+              (<span className="num" data-testid="target-flow">{targetFlow}</span>)
+            </>
+          )}{' '}
+          — <span className="font-semibold">{approachWords(point.approach)}</span>
         </p>
         <p className="num mt-1 text-sm text-ink-muted">
           window ±{formatNumber(point.window, dpDecimals + 1)} {unitLabel} · expect {formatNumber(point.expectedMa, 3)} mA

@@ -4,6 +4,7 @@ import 'uplot/dist/uPlot.min.css';
 import { liveSamples, type LiveSampleStore } from '../../../stores/live-samples';
 import { holdRemainingMs, useLiveRun } from '../../../stores/live-run';
 import { useThemeStore } from '../../../lib/theme';
+import { timeAxis } from '../../../lib/chart-axes';
 
 export interface TraceTarget {
   /** Target DP, instrument unit. */
@@ -123,7 +124,7 @@ export function LiveTrace({ windowSeconds = 60, unitLabel, toInstrumentUnit, tar
         ma: { auto: false, range: [3.5, 20.5] },
       },
       axes: [
-        { stroke: colors.ink, grid: { stroke: colors.grid, width: 1 }, ticks: { stroke: colors.grid } },
+        { stroke: colors.ink, grid: { stroke: colors.grid, width: 1 }, ticks: { stroke: colors.grid }, ...timeAxis() },
         { scale: 'dp', label: unitLabel, stroke: colors.dp, grid: { stroke: colors.grid, width: 1 }, ticks: { stroke: colors.grid }, size: 60 },
         { scale: 'ma', side: 1, label: 'mA', stroke: colors.ma, grid: { show: false }, ticks: { stroke: colors.grid }, size: 50 },
       ],

@@ -1,9 +1,10 @@
 import type { RunPoint } from '../../../../shared/schemas/runs';
 import { Badge } from '../../../components/ui/badge';
 import { cn } from '../../../lib/cn';
-import { formatNumber } from '../../../lib/format';
+import { formatFixed, formatNumber, formatSigned } from '../../../lib/format';
 import { nominalWords } from '../lib/live-values';
 import { resultsByPoint, type RunResults } from '../lib/results';
+import type { FlowView } from '../lib/flow';
 import { STATE_LABEL } from './current-point';
 
 /** Every point of the run with its state, flags and captured values; redo on captured points. */
@@ -15,6 +16,7 @@ export function PointList({
   canAct,
   onRedo,
   rooted,
+  flow,
 }: {
   points: readonly RunPoint[];
   currentIndex: number | null;
@@ -23,12 +25,14 @@ export function PointList({
   canAct: boolean;
   onRedo: (index: number) => void;
   rooted: boolean;
+  /** Flow in engineering units (orifice primary element): the target's, or the evaluated one once captured. */
+  flow?: FlowView | undefined;
 }) {
   const byPoint = resultsByPoint(points, results);
   return (
     <div className="overflow-hidden rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Points">
-        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted uppercase">
+        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted">
           <tr>
             <th scope="col" className="px-3 py-2">
               Point
@@ -69,7 +73,15 @@ export function PointList({
                       {p.approach === 'up' ? '↑' : '↓'}
                     </span>
                   </div>
-                  <div className="num pl-7 text-xs text-ink-faint">{formatNumber(p.targetDp, dpDecimals)}</div>
+                  <div className="num pl-7 text-xs text-ink-muted">
+                    {formatFixed(p.targetDp, dpDecimals)}
+                    {flow && (
+                      <>
+                        {' · '}
+                        <span data-testid={`point-flow-${p.index}`}>{flow.text(r?.flow?.flow ?? flow.at(p.targetDp)?.flow)}</span>
+                      </>
+                    )}
+                  </div>
                 </td>
                 <td className="px-3 py-2">
                   <div className="flex flex-wrap gap-1">
@@ -77,7 +89,7 @@ export function PointList({
                       {STATE_LABEL[p.state]}
                     </Badge>
                     {p.flags.map((f) => (
-                      <Badge key={f} tone={f} className="uppercase" >
+                      <Badge key={f} tone={f}>
                         {f}
                       </Badge>
                     ))}
@@ -87,7 +99,7 @@ export function PointList({
                   {p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}
                 </td>
                 <td className={cn('num px-3 py-2 text-right', r && r.decision !== 'pass' && 'text-danger')} data-testid={`point-error-${p.index}`}>
-                  {err === null ? '—' : `${err >= 0 ? '+' : '−'}${formatNumber(Math.abs(err), 3)}`}
+                  {err === null ? '—' : formatSigned(err, 3)}
                 </td>
                 <td className="px-2 py-2 text-right">
                   {p.state === 'captured' && canAct && (

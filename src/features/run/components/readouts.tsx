@@ -1,16 +1,13 @@
+import type { ReactNode } from 'react';
 import { cn } from '../../../lib/cn';
-import { formatNumber } from '../../../lib/format';
+import { formatFixed, formatNumber, formatSigned } from '../../../lib/format';
 import type { LiveValues } from '../lib/live-values';
 
-function fixed(v: number | null, decimals: number): string {
-  if (v === null || !Number.isFinite(v)) return '—';
-  return v.toFixed(decimals).replace(/^-/, '−');
-}
 
-function Readout({ label, value, unit, testId, tone, size = 'lg', sub }: { label: string; value: string; unit: string; testId: string; tone?: 'ok' | 'warn' | 'danger' | undefined; size?: 'lg' | 'md'; sub?: string | undefined }) {
+function Readout({ label, value, unit, testId, tone, size = 'lg', sub }: { label: string; value: string; unit: string; testId: string; tone?: 'ok' | 'warn' | 'danger' | undefined; size?: 'lg' | 'md'; sub?: ReactNode }) {
   return (
     <div className="min-w-0 rounded-card border border-line bg-surface px-4 py-3 shadow-card">
-      <dt className="text-xs font-semibold tracking-wide text-ink-muted uppercase">{label}</dt>
+      <dt className="text-xs font-semibold tracking-wide text-ink-muted">{label}</dt>
       <dd className="mt-1 flex items-baseline gap-2">
         <span
           data-testid={testId}
@@ -24,7 +21,7 @@ function Readout({ label, value, unit, testId, tone, size = 'lg', sub }: { label
         </span>
         <span className="text-sm font-medium text-ink-muted">{unit}</span>
       </dd>
-      {sub && <p className="num mt-1 text-xs text-ink-faint">{sub}</p>}
+      {sub && <p className="num mt-1 text-xs text-ink-muted">{sub}</p>}
     </div>
   );
 }
@@ -35,25 +32,48 @@ export interface ReadoutsProps {
   rooted: boolean;
   /** Tolerance, ± % of span, to colour the live error. */
   tolerancePct: number | undefined;
-  /** DP decimals: enough for the span (4 significant figures at full scale). */
+  /** DP decimals: the last digit steps by at most 0.01 % of span (shared/format `dpDecimals`). */
   dpDecimals: number;
+  /**
+   * Flow in engineering units at the live DP (orifice primary element, ISO 5167-2), shown beside
+   * % flow with the constant-C square-root departure; absent for other instruments.
+   */
+  flow?: { text: string; departure: string } | undefined;
 }
 
 /** Big live numerals: applied DP (unit and %), applied flow %, measured and expected mA, live error. */
-export function Readouts({ values: v, unitLabel, rooted, tolerancePct, dpDecimals }: ReadoutsProps) {
+export function Readouts({ values: v, unitLabel, rooted, tolerancePct, dpDecimals, flow }: ReadoutsProps) {
   const errTone =
     v.errorPctSpan === null || tolerancePct === undefined ? undefined : Math.abs(v.errorPctSpan) <= tolerancePct ? 'ok' : Math.abs(v.errorPctSpan) <= 2 * tolerancePct ? 'warn' : 'danger';
   return (
     <dl className="grid grid-cols-2 gap-3 lg:grid-cols-6 lg:[&>div]:col-span-2 lg:[&>div:nth-child(n+4)]:col-span-3" aria-label="Live readings">
-      <Readout label="Applied DP" value={fixed(v.appliedDp, dpDecimals)} unit={unitLabel} testId="live-dp" sub={v.dpPct === null ? undefined : `${formatNumber(v.dpPct, 2)} % of DP span`} />
+      <Readout label="Applied DP" value={formatFixed(v.appliedDp, dpDecimals)} unit={unitLabel} testId="live-dp" sub={v.dpPct === null ? undefined : `${formatNumber(v.dpPct, 2)} % of DP span`} />
       {rooted ? (
-        <Readout label="Applied flow" value={fixed(v.flowPct, 2)} unit="% flow" testId="live-flow" sub={v.dpPct === null ? undefined : `from ${formatNumber(v.dpPct, 3)} % DP`} />
+        <Readout
+          label="Applied flow"
+          value={formatFixed(v.flowPct, 2)}
+          unit="% flow"
+          testId="live-flow"
+          sub={
+            flow ? (
+              <>
+                <span className="font-semibold text-ink" data-testid="live-flow-eng">
+                  {flow.text}
+                </span>{' '}
+                <span title="How far the constant-C square-root law departs from ISO 5167-2 at this DP">(root {flow.departure})</span>
+                {v.dpPct !== null && <> · from {formatNumber(v.dpPct, 3)} % DP</>}
+              </>
+            ) : v.dpPct === null ? undefined : (
+              `from ${formatNumber(v.dpPct, 3)} % DP`
+            )
+          }
+        />
       ) : (
-        <Readout label="Applied DP %" value={fixed(v.dpPct, 2)} unit="% span" testId="live-dp-pct" />
+        <Readout label="Applied DP %" value={formatFixed(v.dpPct, 2)} unit="% span" testId="live-dp-pct" />
       )}
-      <Readout label="Measured" value={fixed(v.measuredMa, 3)} unit="mA" testId="live-ma" tone={v.ne43 && v.ne43 !== 'measurement' ? 'danger' : undefined} />
-      <Readout label="Expected" value={fixed(v.expectedMa, 3)} unit="mA" testId="live-expected" size="md" />
-      <Readout label="Error" value={v.errorPctSpan === null ? '—' : `${v.errorPctSpan >= 0 ? '+' : ''}${fixed(v.errorPctSpan, 3)}`} unit={rooted ? '% flow span' : '% span'} testId="live-error" tone={errTone} size="md" sub={tolerancePct === undefined ? undefined : `tolerance ±${formatNumber(tolerancePct, 3)} %`} />
+      <Readout label="Measured" value={formatFixed(v.measuredMa, 3)} unit="mA" testId="live-ma" tone={v.ne43 && v.ne43 !== 'measurement' ? 'danger' : undefined} />
+      <Readout label="Expected" value={formatFixed(v.expectedMa, 3)} unit="mA" testId="live-expected" size="md" />
+      <Readout label="Error" value={formatSigned(v.errorPctSpan, 3)} unit={rooted ? '% flow span' : '% span'} testId="live-error" tone={errTone} size="md" sub={tolerancePct === undefined ? undefined : `tolerance ±${formatNumber(tolerancePct, 3)} %`} />
     </dl>
   );
 }

@@ -1,5 +1,5 @@
 import { Badge, type BadgeTone } from '../../../components/ui/badge';
-import { formatNumber } from '../../../lib/format';
+import { flowDecimals, formatFixed, formatNumber, formatRootDeparture, formatSigned, unitLabel as unitText } from '../../../lib/format';
 import { nominalWords } from '../lib/live-values';
 import { hysteresisAt, spanWords, type RunResults } from '../lib/results';
 
@@ -11,8 +11,8 @@ export const DECISION: Record<string, { label: string; tone: BadgeTone }> = {
   fail: { label: 'Fail', tone: 'danger' },
 };
 
-const signed = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : `${v >= 0 ? '+' : '−'}${formatNumber(Math.abs(v), d)}`);
-const plain = (v: number | null | undefined, d: number) => (v === null || v === undefined ? '—' : formatNumber(v, d));
+const signed = (v: number | null | undefined, d: number) => formatSigned(v, d);
+const plain = (v: number | null | undefined, d: number) => formatFixed(v, d);
 
 /**
  * Per-point results of a run: applied DP and flow, expected and measured current, error,
@@ -40,17 +40,18 @@ export function ResultsTable({
   const overall = results.overallDecision ? DECISION[results.overallDecision] : undefined;
   // Flow in engineering units (ISO 5167-2) when the instrument has an orifice primary element.
   const flowUnit = results.points.find((p) => p.flow)?.flow?.unit;
+  const flowDec = flowDecimals(Math.max(0, ...results.points.map((p) => p.flow?.flow ?? 0)));
   return (
     <div className="flex flex-col gap-2" data-testid={testId}>
       <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
-          <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted uppercase">
+          <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted">
             <tr>
               <th scope="col" className="px-3 py-2 text-left">Point</th>
               <th scope="col" className="px-3 py-2 text-right">Applied DP ({unitLabel})</th>
               {rooted && <th scope="col" className="px-3 py-2 text-right">Applied flow %</th>}
-              {flowUnit && <th scope="col" className="px-3 py-2 text-right">Flow ({flowUnit}; C, ε; root departure %)</th>}
+              {flowUnit && <th scope="col" className="px-3 py-2 text-right">Flow ({unitText(flowUnit)}; C, ε; constant-C root departure)</th>}
               <th scope="col" className="px-3 py-2 text-right">Expected mA</th>
               <th scope="col" className="px-3 py-2 text-right">Measured mA</th>
               <th scope="col" className="px-3 py-2 text-right">Error % {span}</th>
@@ -76,9 +77,9 @@ export function ResultsTable({
                     <td className="num px-3 py-2 text-right" data-testid={`result-flow-${p.index}`}>
                       {p.flow ? (
                         <>
-                          {formatNumber(p.flow.flow, 4)}
+                          {formatFixed(p.flow.flow, flowDec)}
                           <span className="ml-1 text-xs text-ink-muted">
-                            (C {formatNumber(p.flow.C, 4)}, ε {formatNumber(p.flow.epsilon, 4)}; {p.flow.pureRootDeparturePct == null ? '—' : signed(p.flow.pureRootDeparturePct, 2)})
+                            (C {formatFixed(p.flow.C, 4)}, ε {formatFixed(p.flow.epsilon, 4)}; {formatRootDeparture(p.flow.pureRootDeparturePct)})
                           </span>
                         </>
                       ) : (

@@ -16,6 +16,7 @@ import {
   type OutputMode,
   type TransferSpec,
 } from '../../../../shared/calc';
+import { formatNumber } from '../../../lib/format';
 
 export interface InstrumentSpecInput {
   lrv: number;
@@ -84,7 +85,7 @@ export function nominalWords(p: { nominalPct: number; basis: 'flow' | 'dp' }): s
 }
 
 function formatPct(v: number): string {
-  return Number.isInteger(v) ? String(v) : v.toFixed(2).replace(/0+$/, '').replace(/\.$/, '');
+  return formatNumber(v, 2);
 }
 
 /** Words for an NE 43 class outside the measurement range, or null inside it. */

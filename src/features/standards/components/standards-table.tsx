@@ -1,7 +1,7 @@
 import { useMemo } from 'react';
 import type { AccuracySpec, DueState, Standard } from '../../../../shared/schemas/standards';
 import { DataTable, type ColumnDef } from '../../../components/ui/table';
-import { formatNumber, formatRange } from '../../../lib/format';
+import { formatNumber, formatRange, uncertaintyLabel, unitLabel } from '../../../lib/format';
 import { DueStateBadge } from './due-state-badge';
 
 export interface StandardsTableProps {
@@ -9,9 +9,10 @@ export interface StandardsTableProps {
   search?: string;
 }
 
-/** "±(0.02 % rdg + 0.01 % FS + 0.001)" or "U = 0.05 (k = 2)". */
-export function formatAccuracy(a: AccuracySpec, unit: string): string {
-  if (a.certificateU !== null) return `U = ${formatNumber(a.certificateU)} ${unit}${a.certificateK !== null ? ` (k = ${formatNumber(a.certificateK)})` : ''}`;
+/** "±(0.02 % rdg + 0.01 % FS + 0.001 kPa)" or "U (k=2) = 0.05 kPa", units in their one spelling. */
+export function formatAccuracy(a: AccuracySpec, unitId: string): string {
+  const unit = unitLabel(unitId);
+  if (a.certificateU !== null) return `${uncertaintyLabel(a.certificateK)} = ${formatNumber(a.certificateU)} ${unit}`;
   const parts: string[] = [];
   if (a.pctReading) parts.push(`${formatNumber(a.pctReading)} % rdg`);
   if (a.pctFullScale) parts.push(`${formatNumber(a.pctFullScale)} % FS`);
