@@ -61,9 +61,13 @@ beforeAll(async () => {
   // Bring the rig to the first point: it settles and starts its (long) hold.
   const first = started.body.points[0] as { targetDp: number };
   expect((await admin.post('/api/sim', { setpoint: { value: first.targetDp } })).status).toBe(200);
-  await expect
-    .poll(async () => ((await tech.get(`/api/runs/${runId}`)).body.points[0] as { state: string }).state, { timeout: 120_000, interval: 250 })
-    .toBe('holding');
+  const until = Date.now() + 120_000;
+  let state = '';
+  while (state !== 'holding' && Date.now() < until) {
+    state = ((await tech.get(`/api/runs/${runId}`)).body.points[0] as { state: string }).state;
+    if (state !== 'holding') await new Promise((r) => setTimeout(r, 200));
+  }
+  expect(state).toBe('holding');
 
   const records = (await lead.get('/api/records?status=submitted')).body.items as { jobId?: string; id?: string }[];
   expect(records.length).toBeGreaterThan(0);
@@ -100,7 +104,7 @@ const PAGES: PageCase[] = [
   { name: 'queue', who: 'tech', path: () => '/queue', ready: '[data-testid^="job-link-"]' },
   { name: 'job', who: 'tech', path: () => `/jobs/${jobId}`, ready: '[data-testid="step-preparation"]' },
   { name: 'capture', who: 'tech', path: () => `/runs/${runId}`, ready: '[data-testid="current-point"][data-state="holding"]' },
-  { name: 'review', who: 'lead', path: () => `/jobs/${reviewJobId}/review`, ready: 'h1' },
+  { name: 'review', who: 'lead', path: () => `/jobs/${reviewJobId}/review`, ready: '[data-testid="review-trace"][data-mode]' },
   { name: 'records', who: 'lead', path: () => '/records', ready: 'table tbody tr' },
   { name: 'audit', who: 'lead', path: () => '/audit', ready: 'table tbody tr' },
 ];

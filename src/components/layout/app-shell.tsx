@@ -101,7 +101,7 @@ export function AppShell({ me, onSignOut, signingOut = false, children }: AppShe
             <Link to="/password" className="hidden text-sm text-ink-muted underline-offset-2 hover:text-ink hover:underline sm:block" data-testid="change-password">
               Password
             </Link>
-            <Button variant="secondary" size="sm" className="hidden h-9 sm:inline-flex" onClick={onSignOut} loading={signingOut} data-testid="sign-out">
+            <Button variant="secondary" size="sm" className="h-9 max-sm:hidden" onClick={onSignOut} loading={signingOut} data-testid="sign-out">
               Sign out
             </Button>
           </div>

@@ -26,7 +26,7 @@ function Readout({ label, value, unit, testId, tone, size = 'lg', sub, className
         </span>
         <span className="text-sm font-medium text-ink-muted">{unit}</span>
       </dd>
-      {sub && <p className="num mt-1 text-xs text-ink-muted">{sub}</p>}
+      {sub && <dd className="num mt-1 text-xs text-ink-muted">{sub}</dd>}
     </div>
   );
 }
