@@ -302,7 +302,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
       if (!p.flags.includes('overshoot')) p.flags.push('overshoot');
       // No numbers here: the capture screen states the one back-off target, in the unit as the screen writes it.
       const side = p.plan.approach === 'up' ? 'below' : 'above';
-      this.warn(r, 'overshoot', `Overshoot at point ${p.plan.index + 1}: the applied DP went past the capture window on the approach from ${side}`, null);
+      this.warn(r, 'overshoot', `Overshoot at point ${p.plan.index + 1}: the applied DP went past the capture window; approach the target again from ${side}`, null);
     }
     if (st.state !== 'in-window') {
       if (p.state === 'settling' || p.state === 'holding') this.invalidateHold(r);
