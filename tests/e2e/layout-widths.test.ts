@@ -178,6 +178,7 @@ describe('every screen width', () => {
                   if (!v.ok) problems.push(`capture @${size.width} ${theme}: ${sel} not in the viewport ${JSON.stringify(v.box)}`);
                 }
               }
+              if (c.name === 'capture' && size.width !== 390 && size.width !== 1440) await page.screenshot({ path: path.join(SCREENS, `width-${c.name}-${size.width}-${theme}.png`) });
               if (size.width === 390 || size.width === 1440) {
                 await page.screenshot({ path: path.join(SCREENS, `width-${c.name}-${size.width}-${theme}.png`), fullPage: false });
                 for (const v of await axeSerious(page)) problems.push(`axe ${c.name} @${size.width} ${theme}: ${v}`);
@@ -191,6 +192,55 @@ describe('every screen width', () => {
       expect(problems, problems.join('\n')).toEqual([]);
     });
   }
+
+  it('the capture screen reads as paused everywhere; single-key shortcuts switch off, stay off after a reload, and are listed only when on', { timeout: 180_000 }, async () => {
+    const { context, page } = await signedIn('tech', 'light');
+    try {
+      await page.setViewportSize({ width: 1440, height: 900 });
+      await open(page, PAGES.find((p) => p.name === 'capture')!);
+      await page.getByRole('button', { name: 'Pause' }).click();
+      await page.locator('[data-testid="capture-screen"][data-run-status="paused"]').waitFor();
+      await page.locator('[data-testid="current-point-state"][data-state="paused"]').waitFor();
+      const card = (await page.getByTestId('current-point').textContent()) ?? '';
+      expect(card).toContain('Paused');
+      expect(card).not.toMatch(/Move towards the target|Approaching|Holding/);
+      expect(await page.getByTestId('point-row-0').textContent()).toContain('Paused');
+      await page.screenshot({ path: path.join(SCREENS, 'capture-paused-1440-light.png') });
+
+      // Shortcuts on: listed, and S toggles the sound.
+      const keys = page.getByTestId('shortcuts');
+      expect(await keys.locator('kbd').count()).toBeGreaterThan(0);
+      const sound = page.getByTestId('sound-toggle');
+      const before = await sound.textContent();
+      await page.locator('body').press('s');
+      await expect.poll(() => sound.textContent()).not.toBe(before);
+      // Off: nothing listed, and the key does nothing (a control key that acts at once, on the page).
+      await page.getByRole('switch', { name: 'Single-key shortcuts' }).uncheck();
+      await page.locator('[data-testid="shortcuts"][data-on="false"]').waitFor();
+      expect(await keys.locator('kbd').count()).toBe(0);
+      const off = await sound.textContent();
+      await page.locator('body').press('s');
+      await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
+      expect(await sound.textContent()).toBe(off);
+      await page.locator('body').press('p');
+      await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
+      expect(await page.getByTestId('capture-screen').getAttribute('data-run-status')).toBe('paused');
+      // Remembered for this user in this browser.
+      await page.reload();
+      await page.locator('[data-testid="shortcuts"][data-on="false"]').waitFor();
+
+      // The theme toggle names the theme it selects.
+      await page.getByRole('button', { name: 'Use bench theme' }).click();
+      expect(await page.evaluate(() => document.documentElement.dataset.theme)).toBe('bench');
+      await page.getByRole('button', { name: 'Use light theme' }).waitFor();
+
+      await page.getByRole('button', { name: 'Resume' }).click();
+      await page.locator('[data-testid="capture-screen"][data-run-status="running"]').waitFor();
+      expect(await page.getByTestId('current-point-state').getAttribute('data-state')).not.toBe('paused');
+    } finally {
+      await context.close();
+    }
+  });
 
   it('on a phone the navigation folds into a menu: a button with aria-expanded, Escape closes it and gives focus back', { timeout: 120_000 }, async () => {
     const { context, page } = await signedIn('lead', 'light');
