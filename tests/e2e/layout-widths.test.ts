@@ -265,7 +265,7 @@ describe('every screen width', () => {
       await toggle.click();
       await page.getByTestId('nav-records').click();
       await page.waitForURL(/\/records$/);
-      expect(await toggle.getAttribute('aria-expanded')).toBe('false');
+      await page.locator('[data-testid="menu-button"][aria-expanded="false"]').waitFor();
       // On a wide screen there is no menu button: the navigation is always shown.
       await page.setViewportSize({ width: 1440, height: 900 });
       expect(await toggle.isVisible()).toBe(false);

@@ -76,6 +76,10 @@ describe('AppShell', () => {
     fireEvent.keyDown(document, { key: 'Escape' });
     expect(button.getAttribute('aria-expanded')).toBe('false');
     expect(document.activeElement).toBe(button);
+    // A choice closes it, even the page already open.
+    fireEvent.click(button);
+    fireEvent.click(screen.getByTestId('nav-queue'));
+    expect(button.getAttribute('aria-expanded')).toBe('false');
   });
 });
 

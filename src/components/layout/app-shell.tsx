@@ -108,9 +108,14 @@ export function AppShell({ me, onSignOut, signingOut = false, children }: AppShe
         </div>
       </header>
       <div className="flex flex-1 flex-col lg:flex-row">
+        {/* A choice in the menu closes it (the current page's link included). */}
+        {/* eslint-disable-next-line jsx-a11y/click-events-have-key-events, jsx-a11y/no-static-element-interactions -- the links inside handle the keyboard; this only hears their clicks */}
         <div
           ref={panel}
           id={MAIN_NAV_ID}
+          onClick={(e) => {
+            if ((e.target as HTMLElement).closest('a')) setMenuOpen(false);
+          }}
           className={cn(
             'border-b border-line bg-surface px-3 py-3 shadow-card lg:block lg:w-52 lg:shrink-0 lg:border-r lg:border-b-0 lg:bg-surface/60 lg:py-5 lg:shadow-none',
             menuOpen ? 'block' : 'hidden',
