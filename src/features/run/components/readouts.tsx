@@ -46,15 +46,15 @@ export function Readouts({ values: v, unitLabel, rooted, tolerancePct, dpDecimal
   const errTone =
     v.errorPctSpan === null || tolerancePct === undefined ? undefined : Math.abs(v.errorPctSpan) <= tolerancePct ? 'ok' : Math.abs(v.errorPctSpan) <= 2 * tolerancePct ? 'warn' : 'danger';
   return (
-    // Phone: applied DP and measured current first, one per line, then the rest two by two. From 1024 px: three across, then two.
+    // Applied DP and measured current first (one per line on a phone, side by side from 640 px), then the rest; from 1024 px three across, then two.
     <dl className="grid grid-cols-2 gap-3 lg:grid-cols-6" aria-label="Live readings">
-      <Readout className="col-span-2" label="Applied DP" value={fixed(v.appliedDp, dpDecimals)} unit={unitLabel} testId="live-dp" sub={v.dpPct === null ? undefined : `${formatNumber(v.dpPct, 2)} % of DP span`} />
+      <Readout className="col-span-2 sm:col-span-1 lg:col-span-2" label="Applied DP" value={fixed(v.appliedDp, dpDecimals)} unit={unitLabel} testId="live-dp" sub={v.dpPct === null ? undefined : `${formatNumber(v.dpPct, 2)} % of DP span`} />
       {rooted ? (
         <Readout className="order-1 lg:order-none lg:col-span-2" label="Applied flow" value={fixed(v.flowPct, 2)} unit="% flow" testId="live-flow" sub={v.dpPct === null ? undefined : `from ${formatNumber(v.dpPct, 3)} % DP`} />
       ) : (
         <Readout className="order-1 lg:order-none lg:col-span-2" label="Applied DP %" value={fixed(v.dpPct, 2)} unit="% span" testId="live-dp-pct" />
       )}
-      <Readout className="col-span-2" label="Measured" value={fixed(v.measuredMa, 3)} unit="mA" testId="live-ma" tone={v.ne43 && v.ne43 !== 'measurement' ? 'danger' : undefined} />
+      <Readout className="col-span-2 sm:col-span-1 lg:col-span-2" label="Measured" value={fixed(v.measuredMa, 3)} unit="mA" testId="live-ma" tone={v.ne43 && v.ne43 !== 'measurement' ? 'danger' : undefined} />
       <Readout className="order-1 lg:order-none lg:col-span-3" label="Expected" value={fixed(v.expectedMa, 3)} unit="mA" testId="live-expected" size="md" />
       <Readout
         className="order-1 col-span-2 lg:order-none lg:col-span-3"
