@@ -36,7 +36,7 @@ let reviewJobId: string;
 
 beforeAll(async () => {
   // A long hold: the point stays in its hold (countdown running) for the whole test.
-  server = await startTestServer({ env: { HOLD_SECONDS: '900' } });
+  server = await startTestServer({ env: { HOLD_SECONDS: '3600' } });
   browser = await launchBrowser();
   admin = new ApiClient(server.url);
   await admin.login(demoEmail('admin'));
