@@ -431,6 +431,8 @@ function buildBanners({
   if (leak) leak.action = 'Check the fittings, the tubing and the manifold valves.';
   const over = out.get('overshoot');
   if (over && current) {
+    // The action below says where to go and from which side; the message only says what happened.
+    over.message = `The applied DP went past the target of point ${current.index + 1} on the approach.`;
     const side = current.approach === 'up' ? 'below' : 'above';
     const past = current.approach === 'up' ? current.targetDp - 3 * current.window : current.targetDp + 3 * current.window;
     over.action = (
