@@ -306,14 +306,9 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     const st = r.tracker!.push(tMs, value);
     if (st.overshoots > before.overshoots) {
       if (!p.flags.includes('overshoot')) p.flags.push('overshoot');
+      // No numbers here: the capture screen states the one back-off target, in the unit as the screen writes it.
       const side = p.plan.approach === 'up' ? 'below' : 'above';
-      const limit = p.plan.approach === 'up' ? p.plan.targetDp - p.plan.window : p.plan.targetDp + p.plan.window;
-      this.warn(
-        r,
-        'overshoot',
-        `Overshoot at point ${p.plan.index + 1}: the applied DP went past the window. Back off ${side} ${round(limit)} ${r.s.unit} and approach ${p.plan.targetDp} again from ${side}`,
-        null,
-      );
+      this.warn(r, 'overshoot', `Overshoot at point ${p.plan.index + 1}: the applied DP went past the capture window; approach the target again from ${side}`, null);
     }
     if (st.state !== 'in-window') {
       if (p.state === 'settling' || p.state === 'holding') this.invalidateHold(r);
@@ -373,7 +368,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
         this.warn(
           r,
           'leak',
-          `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(t.ratePctSpanPerMin).toFixed(3)} % of span per minute with the source isolated. Check the fittings; auto-capture waits until the hold is leak-free`,
+          `Leak at point ${p.plan.index + 1}: the applied DP moves ${Math.abs(t.ratePctSpanPerMin).toFixed(3)} % of span per minute with the source isolated; auto-capture waits until the hold is leak-free`,
           t.ratePctSpanPerMin,
         );
       }
@@ -558,10 +553,6 @@ export class CaptureEngines {
   activeRunId(benchId: string): string | null {
     return this.engines.get(benchId)?.activeRunId ?? null;
   }
-}
-
-function round(x: number): number {
-  return Math.round(x * 1e4) / 1e4;
 }
 
 /** The hold's Type A of the mean error as the capture stores it (mA). */

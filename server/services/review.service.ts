@@ -445,7 +445,7 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
     async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string; from?: string; to?: string }): Promise<RecordItem[]> {
       const rows = await repo.records(opts);
       const ids = rows.map((r) => r.id);
-      const [sigs, counts, finished] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids), repo.finishedRunsFor(ids)]);
+      const [sigs, counts, finished, zone] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids), repo.finishedRunsFor(ids), clock.zone()]);
       const last = new Map<string, SignatureRow>();
       for (const s of sigs) last.set(s.jobId, s);
       const items = rows.map((r) => {
@@ -457,7 +457,8 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
           ...toJob(r),
           lastSignature: last.has(r.id) ? toSignature(last.get(r.id)!) : null,
           revisions: counts.get(r.id) ?? 0,
-          calibratedOn: dated ? isoDate(dated.endedAt ?? dated.startedAt) : null,
+          // The calibration date in the site's zone, as the signature's calibration date is taken.
+          calibratedOn: dated ? dateInZone(dated.endedAt ?? dated.startedAt, zone) : null,
           asFound: found?.decision ?? null,
           asLeft: left?.decision ?? null,
         };

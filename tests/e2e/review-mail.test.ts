@@ -62,6 +62,9 @@ describe('team mail through SMTP to the local fake, shown in the Outbox', () => 
       await signIn(page, demoEmail('tech'));
       await page.goto(`${server.url}/jobs/${jobId}`);
       await page.getByTestId('submit-job').click();
+      // Submission asks first, listing what goes to the lead.
+      await page.getByTestId('submit-summary').waitFor();
+      await page.getByTestId('confirm-submit').click();
       await page.getByText('Submitted for review.').waitFor();
     } finally {
       await techContext.close();

@@ -188,10 +188,15 @@ describe('run flow (FT-101, rooted output)', () => {
       // Both on the error chart; return to service; submit.
       await page.goto(jobUrl);
       await page.getByTestId('as-left-results').waitFor();
+      // The decision step follows the state: no call for the as-left pass once it has passed.
+      expect(await page.getByTestId('decision-advice').textContent()).toMatch(/as-left pass is in tolerance/);
       await page.getByTestId('ack-returned').getByRole('button', { name: 'Confirm' }).click();
       await page.locator('[data-testid="ack-returned"][data-done="true"]').waitFor();
       await page.screenshot({ path: path.join(SCREENS, 'job-done-light.png'), fullPage: true });
       await page.getByTestId('submit-job').click();
+      // The confirmation lists what is submitted, the as-left decision among it.
+      expect(await page.getByTestId('submit-as-left').textContent()).toMatch(/^Pass/);
+      await page.getByTestId('confirm-submit').click();
       await page.getByTestId('submitted').waitFor();
       expect((await tech.get(`/api/jobs/${jobId}`)).body.status).toBe('submitted');
 

@@ -80,6 +80,8 @@ describe('capture-screen warnings', () => {
       const banner = page.getByTestId('warning-leak');
       await banner.waitFor({ timeout: 60_000 });
       expect(await banner.getAttribute('role')).toBe('alert');
+      // The action is said once, not again in the server's message.
+      expect(((await banner.textContent()) ?? '').match(/Check the fittings/g)).toHaveLength(1);
       const rate = Number((await page.getByTestId('leak-rate').textContent())!.replace('−', '-'));
       // The detector's first estimate; the true rate is 2 % of span per minute.
       expect(rate).toBeGreaterThan(0.1);
@@ -133,6 +135,9 @@ describe('capture-screen warnings', () => {
       const text = (await banner.textContent()) ?? '';
       expect(text).toContain('Overshoot');
       expect(text).toContain('Re-approach from below');
+      // One back-off target, in the screen's unit spelling (the server's message carries none).
+      expect(text.match(/go back to about/g)).toHaveLength(1);
+      expect(text).not.toMatch(/Back off/);
       expect(await page.getByTestId('approach').textContent()).toContain('approach from below');
       await page.screenshot({ path: path.join(SCREENS, 'warning-overshoot.png') });
       const run = await getRun(runId);

@@ -22,8 +22,10 @@ import { JobPhotos, StandardCertificates } from '../../features/jobs/components/
 import { ReturnNoticeBanner } from '../../features/jobs/components/return-notice';
 import { ReturnPanel } from '../../features/jobs/components/return-panel';
 import { RunLauncher } from '../../features/jobs/components/run-launcher';
+import { SubmitDialog } from '../../features/jobs/components/submit-dialog';
 import { BlockerList, StepRail, StepSection } from '../../features/jobs/components/step-frame';
 import { TrimPanel } from '../../features/jobs/components/trim-panel';
+import { decisionAdvice } from '../../features/jobs/lib/decision-text';
 import { jobSteps, latestRun, modeCheckProblem } from '../../features/jobs/lib/job-steps';
 import { useRuns } from '../../features/run/api/get-run';
 import { dpDecimalsFor } from '../../features/run/components/capture-screen';
@@ -63,6 +65,7 @@ export function Component() {
   const submit = useSubmitJob(id);
   const [starting, setStarting] = useState<string | null>(null);
   const [reply, setReply] = useState('');
+  const [confirmingSubmit, setConfirmingSubmit] = useState(false);
   const browserBench = useBrowserBenchId();
 
   const spec = useMemo(() => (instrument.data ? transferSpecOf(instrument.data) : undefined), [instrument.data]);
@@ -196,10 +199,8 @@ export function Component() {
             <div className="flex flex-col gap-4">
               <ResultsTable results={asFound} unitLabel={uLabel} rooted={rooted} outputMode={ins?.outputMode} dpDecimals={dpDecimals} caption="As-found results" testId="as-found-results" />
               {ins && <ErrorChart asFound={asFound} asLeft={asLeft} tolerancePct={ins.tolerancePct} labels={pointLabels} rooted={rooted} />}
-              <p className="text-sm text-ink-muted">
-                {asFound.overallDecision === 'pass'
-                  ? 'Found in tolerance: no adjustment is needed. Trim only if the site asks for it; an as-left run is then required.'
-                  : 'Found out of tolerance (or conditional): trim the transmitter, then run the as-left pass.'}
+              <p className="text-sm text-ink-muted" data-testid="decision-advice">
+                {decisionAdvice(asFound.overallDecision, asLeft?.overallDecision)}
               </p>
             </div>
           ) : (
@@ -266,19 +267,27 @@ export function Component() {
                   data-testid="submit-job"
                   disabled={!canEdit || j.submitBlockers.length > 0}
                   loading={submit.isPending}
-                  onClick={() =>
-                    submit.mutate(j.status === 'returned' ? { reply: reply.trim() } : undefined, {
-                      onSuccess: () => {
-                        setReply('');
-                        toast(j.status === 'returned' ? 'Resubmitted with your reply' : 'Submitted for review', { tone: 'success' });
-                      },
-                      onError: (e) => toast('Not submitted', { tone: 'error', description: e instanceof Error ? e.message : undefined }),
-                    })
-                  }
+                  onClick={() => setConfirmingSubmit(true)}
                 >
                   Submit for review
                 </Button>
               </div>
+              <SubmitDialog
+                open={confirmingSubmit}
+                job={j}
+                pending={submit.isPending}
+                onClose={() => setConfirmingSubmit(false)}
+                onConfirm={() =>
+                  submit.mutate(j.status === 'returned' ? { reply: reply.trim() } : undefined, {
+                    onSuccess: () => {
+                      setReply('');
+                      toast(j.status === 'returned' ? 'Resubmitted with your reply' : 'Submitted for review', { tone: 'success' });
+                    },
+                    onError: (e) => toast('Not submitted', { tone: 'error', description: e instanceof Error ? e.message : undefined }),
+                    onSettled: () => setConfirmingSubmit(false),
+                  })
+                }
+              />
               {submit.error && isApiError(submit.error) && submit.error.fields?.submit && <BlockerList items={submit.error.fields.submit} title="The server refused the submission" />}
             </div>
           )}

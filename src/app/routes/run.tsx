@@ -33,7 +33,7 @@ export function Component() {
   const canAct = !!me && me.role === 'technician' && !!job.data && job.data.assigneeId === me.id;
   return (
     <div className="flex min-h-dvh flex-col">
-      <header className="flex h-12 items-center gap-3 border-b border-line bg-surface/95 px-4">
+      <header className="flex h-12 items-center gap-3 border-b border-line bg-surface/95 px-3 sm:px-4">
         <Link to="/queue" className="flex items-center gap-2 text-accent" aria-label="Stillpoint queue">
           <Logo className="size-6" />
           <span className="text-base font-semibold tracking-tight text-ink">Stillpoint</span>
@@ -50,7 +50,7 @@ export function Component() {
         ) : run.isError ? (
           <ErrorNotice title="Could not load the run" error={run.error} onRetry={() => void run.refetch()} />
         ) : (
-          <CaptureScreen run={run.data} instrument={instrument.data} tag={job.data?.tag} canAct={canAct} />
+          <CaptureScreen run={run.data} instrument={instrument.data} tag={job.data?.tag} canAct={canAct} userId={me?.id} />
         )}
       </main>
     </div>

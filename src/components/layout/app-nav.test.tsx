@@ -1,9 +1,11 @@
-import { cleanup, screen, within } from '@testing-library/react';
+import { cleanup, fireEvent, screen, within } from '@testing-library/react';
 import { afterEach, describe, expect, it } from 'vitest';
 import type { Role } from '../../../shared/schemas/auth';
 import { renderWithProviders } from '../../test/render';
 import { AppNav } from './app-nav';
+import { useThemeStore } from '../../lib/theme';
 import { AppShell } from './app-shell';
+import { ThemeToggle } from './theme-toggle';
 
 afterEach(cleanup);
 
@@ -53,6 +55,41 @@ describe('AppShell', () => {
     expect(screen.getByTestId('current-role').textContent).toBe('Technician');
     expect(screen.queryByTestId('nav-users')).toBeNull();
     expect(screen.queryByTestId('nav-audit')).toBeNull();
-    expect(screen.getByRole('button', { name: /bench theme/i }).getAttribute('aria-pressed')).toBe('false');
+    // The theme toggle names the theme it selects.
+    expect(screen.getByRole('button', { name: 'Use bench theme' })).toBeTruthy();
+  });
+
+  it('folds the navigation into a menu: the button says whether it is open, Escape closes it and focus returns', () => {
+    renderWithProviders(
+      <AppShell me={{ id: 'u', email: 'l@x.test', name: 'Lee Lead', role: 'lead', siteName: 'North Works' }} onSignOut={() => {}}>
+        <p>page</p>
+      </AppShell>,
+    );
+    const button = screen.getByRole('button', { name: 'Menu' });
+    expect(button.getAttribute('aria-expanded')).toBe('false');
+    const panel = document.getElementById(button.getAttribute('aria-controls') ?? '')!;
+    expect(panel.className).toMatch(/(^|\s)hidden(\s|$)/);
+    fireEvent.click(button);
+    expect(button.getAttribute('aria-expanded')).toBe('true');
+    expect(panel.className).not.toMatch(/(^|\s)hidden(\s|$)/);
+    expect(document.activeElement).toBe(screen.getByTestId('nav-queue'));
+    fireEvent.keyDown(document, { key: 'Escape' });
+    expect(button.getAttribute('aria-expanded')).toBe('false');
+    expect(document.activeElement).toBe(button);
+    // A choice closes it, even the page already open.
+    fireEvent.click(button);
+    fireEvent.click(screen.getByTestId('nav-queue'));
+    expect(button.getAttribute('aria-expanded')).toBe('false');
+  });
+});
+
+describe('ThemeToggle', () => {
+  it('names the theme it selects, and switches', () => {
+    useThemeStore.getState().setTheme('light');
+    renderWithProviders(<ThemeToggle />);
+    fireEvent.click(screen.getByRole('button', { name: 'Use bench theme' }));
+    expect(document.documentElement.dataset.theme).toBe('bench');
+    expect(screen.getByRole('button', { name: 'Use light theme' })).toBeTruthy();
+    useThemeStore.getState().setTheme('light');
   });
 });

@@ -49,9 +49,9 @@ export function AppNav({ role, className }: AppNavProps) {
   const adminStart = items.findIndex((i) => i.area === 'audit');
   return (
     <nav aria-label="Main" className={className}>
-      <ul className="flex gap-1 md:flex-col">
+      <ul className="flex flex-col gap-1">
         {items.map((item, idx) => (
-          <li key={item.area} className={cn(idx === adminStart && 'md:mt-4 md:border-t md:border-line md:pt-4')}>
+          <li key={item.area} className={cn(idx === adminStart && 'mt-3 border-t border-line pt-3 lg:mt-4 lg:pt-4')}>
             <NavLink
               to={item.to}
               data-testid={`nav-${item.label.toLowerCase()}`}

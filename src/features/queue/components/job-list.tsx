@@ -46,11 +46,18 @@ export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideA
         const days = daysUntil(j.dueOn, today);
         const st = STATUS[j.status];
         return (
-          <li key={j.id} className={cn('grid grid-cols-[minmax(7rem,10rem)_1fr_auto] items-center gap-4 px-4 py-3', j.overdue && 'border-l-4 border-l-danger pl-3')}>
+          // On a phone: tag and status on the first line, the due date and assignee on the second (never under the status pill).
+          <li
+            key={j.id}
+            className={cn(
+              'grid grid-cols-[minmax(0,1fr)_auto] items-center gap-x-4 gap-y-1.5 px-4 py-3 sm:grid-cols-[minmax(7rem,10rem)_minmax(0,1fr)_auto] sm:gap-y-0',
+              j.overdue && 'border-l-4 border-l-danger pl-3',
+            )}
+          >
             <Link to={`/jobs/${j.id}`} className="num text-base font-semibold text-accent underline-offset-2 hover:underline" data-testid={`job-link-${j.tag}`}>
               {j.tag}
             </Link>
-            <div className="flex min-w-0 flex-wrap items-center gap-x-4 gap-y-1 text-sm">
+            <div className="col-span-2 row-start-2 flex min-w-0 flex-wrap items-center gap-x-4 gap-y-1 text-sm sm:col-span-1 sm:row-start-auto">
               <span className="text-ink-muted">
                 Due <span className="num text-ink">{j.dueOn}</span>{' '}
                 <span className={cn(j.overdue ? 'font-medium text-danger' : 'text-ink-faint')}>({relativeDays(days)})</span>
@@ -60,7 +67,7 @@ export function JobList({ jobs, label, today, emptyText = 'No jobs here.', hideA
                 <span className="text-ink-muted">{j.assigneeName ? <>Assigned to {j.assigneeName}</> : <span className="italic">Unassigned</span>}</span>
               )}
             </div>
-            <div className="flex items-center gap-3">
+            <div className="flex flex-wrap items-center justify-end gap-3">
               {actions?.(j)}
               <Badge tone={st.tone} dot>
                 {st.label}

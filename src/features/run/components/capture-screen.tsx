@@ -15,7 +15,7 @@ import { liveSamples, useLatestSamples } from '../../../stores/live-samples';
 import { useLiveRun } from '../../../stores/live-run';
 import { useRunAction } from '../api/run-actions';
 import { useCaptureSound, useSoundPref } from '../hooks/use-capture-sound';
-import { useShortcuts, type Shortcut } from '../hooks/use-shortcuts';
+import { useShortcutPref, useShortcuts, type Shortcut } from '../hooks/use-shortcuts';
 import { approachWords, liveValues, ne43Problem, nominalWords, transferSpecOf } from '../lib/live-values';
 import { flowViewOf } from '../lib/flow';
 import { parseResults } from '../lib/results';
@@ -25,6 +25,7 @@ import { ManualCaptureDialog } from './manual-capture-dialog';
 import { PointList } from './point-list';
 import { Readouts } from './readouts';
 import { ResultsTable } from './results-table';
+import { ShortcutHelp } from './shortcut-help';
 import { WarningBanner, type BannerItem } from './warning-banner';
 
 export const RUN_KIND_LABEL: Record<Run['kind'], string> = {
@@ -47,10 +48,12 @@ export interface CaptureScreenProps {
   tag: string | undefined;
   /** The signed-in user may act on the run (the assigned technician). */
   canAct: boolean;
+  /** The signed-in user's id: the shortcut switch is remembered per user in this browser. */
+  userId?: string | undefined;
 }
 
 /** The bench screen of a run: live numerals, trace, current point and hold, warnings, point list. */
-export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenProps) {
+export function CaptureScreen({ run, instrument, tag, canAct, userId }: CaptureScreenProps) {
   const queryClient = useQueryClient();
   const streamStatus = useLiveStream(queryClient, run.status === 'running' || run.status === 'paused' ? run.id : null);
   // Only this run's bench feeds the numerals and the trace.
@@ -134,26 +137,28 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
     { key: 'p', cap: 'P', label: run.status === 'paused' ? 'Resume' : 'Pause', enabled: canAct && active, run: () => void act({ type: run.status === 'paused' ? 'resume' : 'pause' }).catch(() => {}) },
     { key: 's', cap: 'S', label: muted ? 'Sound on' : 'Sound off', run: () => setMuted(!muted) },
   ];
-  useShortcuts(shortcuts);
+  const shortcutPref = useShortcutPref(userId);
+  useShortcuts(shortcuts, shortcutPref.on);
 
   const trimStep = run.kind === 'trim' && spec ? trimPlan(spec).steps.find((s) => s.kind === run.trim) : undefined;
 
   return (
     <div className="flex flex-col gap-4" data-testid="capture-screen" data-run-status={run.status}>
-      <header className="flex flex-wrap items-center gap-3">
-        <div className="min-w-0 flex-1">
+      <header className="flex flex-wrap items-center gap-x-3 gap-y-2">
+        <div className="min-w-0 flex-1 basis-72">
           <p className="text-sm text-ink-muted">
             <Link to={`/jobs/${run.jobId}`} className="font-medium text-accent underline-offset-2 hover:underline">
               ← {tag ?? 'Job'}
             </Link>{' '}
             · {instrument?.service}
           </p>
-          <h1 className="mt-0.5 flex flex-wrap items-center gap-3 text-2xl font-semibold tracking-tight text-ink">
+          <h1 className="mt-0.5 flex flex-wrap items-center gap-x-3 gap-y-1 text-xl font-semibold tracking-tight text-ink sm:text-2xl">
             <span className="num">{tag}</span> {RUN_KIND_LABEL[run.kind]}
             {run.trim && <span className="text-ink-muted">· {TRIM_LABEL[run.trim] ?? run.trim}</span>}
             <RunStatusBadge status={run.status} />
           </h1>
         </div>
+        <div className="flex flex-wrap items-center gap-2">
         <StreamDot status={streamStatus} />
         <Button variant="ghost" size="sm" onClick={() => setMuted(!muted)} aria-pressed={!muted} data-testid="sound-toggle">
           {muted ? 'Sound off' : 'Sound on'}
@@ -171,6 +176,7 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
             </Button>
           </>
         )}
+        </div>
       </header>
 
       {run.kind === 'mode-check' && <ModeCheckPanel run={run} measuredMa={values.measuredMa} registerMode={instrument?.outputMode} />}
@@ -233,7 +239,8 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
       )}
       {run.status === 'aborted' && <p className="rounded-card border border-line bg-sunken px-4 py-3 text-ink-muted">This run was aborted; its captures are kept but it does not count.</p>}
 
-      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_24rem]">
+      {/* The point table beside the live numbers from 1280 px; below them on narrower screens. */}
+      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_28rem]">
         <div className="flex min-w-0 flex-col gap-4">
           {current && active && (
             <CurrentPoint runId={run.id} point={current} total={run.points.length} holdSeconds={run.holdSeconds} unitLabel={unitLabel} dpDecimals={dpDecimals} paused={run.status === 'paused'} targetFlow={flow ? flow.text(flow.at(current.targetDp)?.flow) : undefined} />
@@ -258,10 +265,11 @@ export function CaptureScreen({ run, instrument, tag, canAct }: CaptureScreenPro
             dpDecimals={dpDecimals}
             rooted={rooted}
             canAct={canAct && active}
+            paused={run.status === 'paused'}
             onRedo={(i) => setRedoFor(run.points[i] ?? null)}
             flow={flow}
           />
-          <ShortcutHelp shortcuts={shortcuts} />
+          <ShortcutHelp shortcuts={shortcuts} on={shortcutPref.on} onChange={shortcutPref.setOn} />
         </div>
       </div>
 
@@ -368,22 +376,6 @@ function StreamDot({ status }: { status: LiveStatus }) {
   );
 }
 
-function ShortcutHelp({ shortcuts }: { shortcuts: readonly Shortcut[] }) {
-  return (
-    <section aria-label="Keyboard shortcuts" className="rounded-card border border-line bg-surface px-4 py-3 text-sm shadow-card" data-testid="shortcuts">
-      <h2 className="text-xs font-semibold tracking-wide text-ink-muted">Keys</h2>
-      <ul className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1.5">
-        {shortcuts.map((s) => (
-          <li key={s.key} className={cn('flex items-center gap-2', s.enabled === false && 'opacity-45')}>
-            <kbd className="num inline-flex min-w-6 justify-center rounded border border-line-strong bg-sunken px-1.5 py-0.5 text-xs text-ink">{s.cap}</kbd>
-            <span className="text-ink-muted">{s.label}</span>
-          </li>
-        ))}
-      </ul>
-    </section>
-  );
-}
-
 function ModeCheckPanel({ run, measuredMa, registerMode }: { run: Run; measuredMa: number | null; registerMode: string | undefined }) {
   const finding = run.modeCheck;
   const preview = measuredMa === null ? null : checkOutputMode(measuredMa);
@@ -447,9 +439,11 @@ function buildBanners({
       out.set('overshoot', { kind: 'overshoot', message: `The applied DP went past the target of point ${current.index + 1} on the approach.` });
   }
   const leak = out.get('leak');
-  if (leak) leak.action = 'Check the fittings, the tubing and the manifold valves. The point will not capture until the pressure holds.';
+  if (leak) leak.action = 'Check the fittings, the tubing and the manifold valves.';
   const over = out.get('overshoot');
   if (over && current) {
+    // The action below says where to go and from which side; the message only says what happened.
+    over.message = `The applied DP went past the target of point ${current.index + 1} on the approach.`;
     const side = current.approach === 'up' ? 'below' : 'above';
     const past = current.approach === 'up' ? current.targetDp - 3 * current.window : current.targetDp + 3 * current.window;
     over.action = (

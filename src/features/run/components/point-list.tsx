@@ -5,9 +5,13 @@ import { formatFixed, formatNumber, formatSigned } from '../../../lib/format';
 import { nominalWords } from '../lib/live-values';
 import { resultsByPoint, type RunResults } from '../lib/results';
 import type { FlowView } from '../lib/flow';
-import { STATE_LABEL } from './current-point';
+import { FLAG_LABEL, STATE_LABEL } from './current-point';
+import { StateMark } from './state-mark';
 
-/** Every point of the run with its state, flags and captured values; redo on captured points. */
+/**
+ * Every point of the run with its state, flags and captured values; redo on captured points.
+ * Narrow enough for a 28rem column; scrolls inside its own frame rather than being cut off.
+ */
 export function PointList({
   points,
   currentIndex,
@@ -17,8 +21,11 @@ export function PointList({
   onRedo,
   rooted,
   flow,
+  paused = false,
 }: {
   points: readonly RunPoint[];
+  /** The run is paused: the current point reads as paused, not as its last state. */
+  paused?: boolean;
   currentIndex: number | null;
   results: RunResults | null;
   dpDecimals: number;
@@ -30,20 +37,20 @@ export function PointList({
 }) {
   const byPoint = resultsByPoint(points, results);
   return (
-    <div className="overflow-hidden rounded-card border border-line bg-surface shadow-card">
+    <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full text-sm" aria-label="Points">
-        <thead className="bg-sunken/60 text-left text-xs font-semibold tracking-wide text-ink-muted">
+        <thead className="bg-sunken/60 text-left text-xs font-semibold text-ink-muted">
           <tr>
-            <th scope="col" className="px-3 py-2">
+            <th scope="col" className="px-2 py-2 first:pl-3">
               Point
             </th>
-            <th scope="col" className="px-3 py-2">
+            <th scope="col" className="px-2 py-2 first:pl-3">
               State
             </th>
-            <th scope="col" className="px-3 py-2 text-right">
+            <th scope="col" className="px-2 py-2 text-right">
               mA
             </th>
-            <th scope="col" className="px-3 py-2 text-right whitespace-nowrap" title={rooted ? 'Error, % of flow span' : 'Error, % of span'}>
+            <th scope="col" className="px-2 py-2 text-right whitespace-nowrap" title={rooted ? 'Error, % of flow span' : 'Error, % of span'}>
               Error %
             </th>
             <th scope="col" className="px-2 py-2">
@@ -65,8 +72,8 @@ export function PointList({
                 aria-current={current ? 'step' : undefined}
                 className={cn('border-t border-line', current && 'bg-accent-soft/50')}
               >
-                <td className="px-3 py-2">
-                  <div className="flex items-center gap-2">
+                <td className="py-2 pr-2 pl-3">
+                  <div className="flex items-center gap-2 whitespace-nowrap">
                     <span className={cn('num w-5 text-right text-ink-faint', current && 'text-accent')}>{p.index + 1}</span>
                     <span className="num font-medium text-ink">{nominalWords(p)}</span>
                     <span aria-label={p.approach === 'up' ? 'from below' : 'from above'} className="text-ink-muted">
@@ -83,25 +90,33 @@ export function PointList({
                     )}
                   </div>
                 </td>
-                <td className="px-3 py-2">
+                <td className="px-2 py-2">
                   <div className="flex flex-wrap gap-1">
-                    <Badge tone={p.state} dot>
-                      {STATE_LABEL[p.state]}
-                    </Badge>
+                    {current && paused ? (
+                      <Badge tone="warn">
+                        <StateMark state="paused" />
+                        Paused
+                      </Badge>
+                    ) : (
+                      <Badge tone={p.state}>
+                        <StateMark state={p.state} />
+                        {STATE_LABEL[p.state]}
+                      </Badge>
+                    )}
                     {p.flags.map((f) => (
                       <Badge key={f} tone={f}>
-                        {f}
+                        {FLAG_LABEL[f] ?? f}
                       </Badge>
                     ))}
                   </div>
                 </td>
-                <td className="num px-3 py-2 text-right" data-testid={`point-ma-${p.index}`}>
+                <td className="num px-2 py-2 text-right" data-testid={`point-ma-${p.index}`}>
                   {p.capture ? formatNumber(p.capture.measuredMa, 4) : '—'}
                 </td>
-                <td className={cn('num px-3 py-2 text-right', r && r.decision !== 'pass' && 'text-danger')} data-testid={`point-error-${p.index}`}>
+                <td className={cn('num px-2 py-2 text-right', r && r.decision !== 'pass' && 'text-danger')} data-testid={`point-error-${p.index}`}>
                   {err === null ? '—' : formatSigned(err, 3)}
                 </td>
-                <td className="px-2 py-2 text-right">
+                <td className="py-2 pr-2 text-right">
                   {p.state === 'captured' && canAct && (
                     <button type="button" onClick={() => onRedo(p.index)} className="rounded px-2 py-1 text-xs font-medium text-accent hover:bg-sunken" data-testid={`redo-${p.index}`}>
                       Redo
