@@ -31,7 +31,8 @@ export function toJob(r: JobRow, today = isoDate(new Date())): Job {
 export const EMPTY_CHECKLIST: Checklist = {
   standardIds: [],
   permitNo: null,
-  bypass: { required: false, description: '', recorded: null, removed: null },
+  // No default: the technician answers whether a bypass is needed.
+  bypass: { required: null, description: '', recorded: null, removed: null },
   operatorsInformed: null,
   isolated: null,
   vented: null,
@@ -131,10 +132,12 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (!chosen.some((s) => s.kind === 'current')) blockers.push('Choose a current meter');
       for (const s of chosen) if (s.problem) blockers.push(`${s.description} (${s.serial}): ${s.problem}`);
       if (!checklist.permitNo) blockers.push('Record the permit-to-work number');
+      if (checklist.bypass.required === null) blockers.push('Answer whether an interlock bypass is needed');
       if (checklist.bypass.required && !checklist.bypass.recorded) blockers.push('Record the interlock bypass');
       if (!checklist.operatorsInformed) blockers.push('Confirm the operators are informed');
       if (!checklist.isolated) blockers.push('Confirm the transmitter is isolated from the process');
       if (!checklist.vented) blockers.push('Confirm the transmitter is vented and drained');
+      if (instrument.hazardousMedium && !checklist.flushed) blockers.push('Confirm the hazardous medium is flushed (this tag is marked hazardous)');
 
       const results = (kind: string) => runs.filter((x) => x.kind === kind && x.status === 'complete');
       const decisionOf = (x: (typeof runs)[number]) => (x.results?.overallDecision ?? null);
@@ -213,6 +216,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
         c.bypass.removed = stamp;
       }
       for (const k of ['operatorsInformed', 'isolated', 'vented', 'flushed', 'returnedToService'] as const) if (patch[k]) c[k] = stamp;
+      if (patch.conditions) c.conditions = { ...patch.conditions, recorded: stamp };
       await jobs.update(id, { checklist: c, permitNo: c.permitNo, status: r.status === 'open' ? 'in-progress' : r.status });
       await audit.record(actor, 'job.checklist-changed', 'job', id, before, c);
       return service.detail(id);
