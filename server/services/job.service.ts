@@ -1,8 +1,9 @@
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type JobRow } from '../db/repositories/register.repository';
-import { userRepository } from '../db/repositories/user.repository';
+import { siteRepository, userRepository } from '../db/repositories/user.repository';
 import { badRequest, conflict, forbidden, locked, notFound } from '../errors';
-import { convertPressure, isPressureUnitId } from '../../shared/calc';
+import { convertPressure, DEFAULT_MINIMUM_TUR, isPressureUnitId, standardFit } from '../../shared/calc';
+import type { AccuracySpec } from '../../shared/schemas/standards';
 import type { Checklist, ChecklistPatch, Job, JobDetail } from '../../shared/schemas/jobs';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
@@ -64,6 +65,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
   const records = reviewRepository(db);
+  const sites = siteRepository(db);
   const freezer = createRecordFreezer(db, audit);
 
   async function assignable(assigneeId: string) {
@@ -151,10 +153,25 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (!checklist.returnedToService) submitBlockers.push('Confirm the loop is returned to service');
       if (r.status !== 'in-progress' && r.status !== 'open' && r.status !== 'returned') submitBlockers.push(`The job is ${r.status}`);
 
+      const minimumTur = (await sites.settings()).minimumTur ?? DEFAULT_MINIMUM_TUR;
+      const standardFits = [];
+      for (const s of await standards.all()) {
+        const fit = standardFit({ ...s, accuracy: s.accuracy as AccuracySpec }, instrument);
+        if (!fit) continue;
+        const tur = Number(fit.tur.toPrecision(3));
+        const warnings = [];
+        if (fit.tur < minimumTur) warnings.push(`TUR ${tur} : 1 is below the site minimum of ${minimumTur} : 1 at this tolerance`);
+        // A resolution coarser than a tenth of the tolerance cannot show a reading inside it well (common practice).
+        if (fit.resolutionPctOfTolerance > 10) warnings.push(`its resolution is ${Number(fit.resolutionPctOfTolerance.toPrecision(2))} % of the tolerance`);
+        standardFits.push({ id: s.id, tur, resolutionPctOfTolerance: fit.resolutionPctOfTolerance, minimumTur, warning: warnings.length ? warnings.join('; ') : null });
+      }
+
       return {
         ...toJob(r, today),
         checklist,
         standards: chosen,
+        standardFits,
+        hazardousMedium: instrument.hazardousMedium,
         runs: runs.map((x) => ({
           id: x.id,
           kind: x.kind,

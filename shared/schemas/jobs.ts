@@ -127,6 +127,20 @@ export const RunSummarySchema = z.object({
   overallDecision: z.string().nullable(),
 });
 
+/** How a register standard suits this job's instrument (shared/calc `standardFit`), for choosing. */
+export const StandardFitSchema = z.object({
+  id: z.string(),
+  /** Tolerance ÷ the standard's accuracy at the check point (URV, or 20 mA). */
+  tur: z.number(),
+  /** The standard's resolution as a % of the tolerance there. */
+  resolutionPctOfTolerance: z.number(),
+  /** The site's minimum TUR (or the default 4). */
+  minimumTur: z.number(),
+  /** Why it is a poor choice, in words, or null. */
+  warning: z.string().nullable(),
+});
+export type StandardFit = z.infer<typeof StandardFitSchema>;
+
 export const JobDetailSchema = JobSchema.extend({
   checklist: ChecklistSchema,
   standards: z.array(JobStandardSchema),
@@ -135,5 +149,9 @@ export const JobDetailSchema = JobSchema.extend({
   blockers: z.array(z.string()),
   /** Blockers for submission. */
   submitBlockers: z.array(z.string()),
+  /** TUR and resolution of each register standard at this instrument's tolerance. Additive. */
+  standardFits: z.array(StandardFitSchema).optional(),
+  /** The instrument's medium is hazardous: the flush is required. Additive. */
+  hazardousMedium: z.boolean().optional(),
 });
 export type JobDetail = z.infer<typeof JobDetailSchema>;
