@@ -409,13 +409,15 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const p = id ? loaded.get(id) : undefined;
       if (!p) return undefined;
       return {
+        runId: id!,
+        currentIndex: engines.has(benchId) ? (engines.get(benchId).snapshot()?.currentIndex ?? null) : null,
         unit: p.unit,
         lrv: p.instrument.lrv,
         urv: p.instrument.urv,
         outputMode: p.instrument.outputMode,
         cutoff: cutoffOf(p.instrument),
         holdSeconds: p.holdSeconds,
-        points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach })),
+        points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach, window: x.window })),
       };
     },
 

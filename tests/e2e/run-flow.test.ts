@@ -124,6 +124,10 @@ describe('run flow (FT-101, rooted output)', () => {
       await expect.poll(async () => (await prep.getByTestId('blockers').textContent()) ?? '').not.toContain('Choose a pressure reference standard');
       await page.getByLabel('Permit-to-work number').fill('PTW-2291');
       await page.getByRole('button', { name: 'Record permit' }).click();
+      // The bypass question has no default: answer it on purpose.
+      await page.getByRole('radio', { name: 'No bypass needed' }).check();
+      await page.getByRole('button', { name: 'Save', exact: true }).click();
+      await page.getByTestId('bypass-unanswered').waitFor({ state: 'detached' });
       for (const ack of ['ack-operators', 'ack-isolated', 'ack-vented', 'ack-flushed']) {
         await page.getByTestId(ack).getByRole('button', { name: 'Confirm' }).click();
         await page.locator(`[data-testid="${ack}"][data-done="true"]`).waitFor();
