@@ -28,7 +28,7 @@ export async function run(): Promise<BenchFigure[]> {
     const stds = (await tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
     const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
     const c = stds.find((s: { kind: string }) => s.kind === 'current');
-    await tech.req('PUT', `/api/jobs/${job.id}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-BENCH', operatorsInformed: true, isolated: true, vented: true });
+    await tech.req('PUT', `/api/jobs/${job.id}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-BENCH', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
     const started = await tech.post(`/api/jobs/${job.id}/runs`, { kind: 'as-found' });
     if (started.status !== 201) throw new Error(`could not start a run: ${JSON.stringify(started.body)}`);
     const runId: string = started.body.id;

@@ -26,6 +26,7 @@ import { createMailer, type Mailer } from './mail/mailer';
 import { createServices, type ServiceHooks, type Services } from './services';
 import { createFileService, type FileService } from './services/file.service';
 import { createMailService, type MailService } from './services/mail.service';
+import { createMailScheduler } from './services/mail-schedule.service';
 import { createFileStore } from './storage/file-store';
 import { createUploads } from './storage/upload';
 import { createBenchService, DEFAULT_BENCH_ID, journalDirOf, type BenchService } from './services/bench.service';
@@ -94,12 +95,12 @@ export interface Running {
   mail: MailService;
   /** The local fake SMTP server (SMTP_URL unset). */
   fakeSmtp?: FakeSmtp;
-  /** Runs the due-standards and weekly due-list mails now (the scheduler does so on start and then daily / weekly). */
+  /** Runs the due-standards and weekly due-list mails now, whatever the schedule says (the scheduler sends each slot once). */
   sendDueMail(): Promise<void>;
+  /** Resolves once the scheduler's start-up catch-up has run, with the schedules it sent. */
+  scheduledMail: Promise<string[]>;
   close(): Promise<void>;
 }
-
-const DAY_MS = 86_400_000;
 
 /** Session-signing secret: SESSION_SECRET, or one generated once into the data directory. */
 function loadSecret(env: Env, memory: boolean): Uint8Array {
@@ -253,15 +254,12 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 
-    // Due mail: standards due within 30 days on start and daily; the weekly due list on start and weekly.
+    // Due mail on a schedule (croner): each slot sent once, its last run kept in the database, so a
+    // restart sends nothing twice; a slot missed while the server was down goes at start.
     let dueRun: Promise<unknown> = Promise.resolve();
     const sendDueMail = () => (dueRun = dueRun.then(() => Promise.all([mail.standardsDue(), mail.weeklyDueList()]))).then(() => {});
-    void sendDueMail();
-    const timers = [
-      setInterval(() => void (dueRun = dueRun.then(() => mail.standardsDue())), DAY_MS),
-      setInterval(() => void (dueRun = dueRun.then(() => mail.weeklyDueList())), 7 * DAY_MS),
-    ];
-    for (const t of timers) t.unref();
+    const scheduler = createMailScheduler(database.db, mail, { onError: (err, what) => mailLog.warn({ err, what }, 'scheduled mail not sent') });
+    const scheduledMail = scheduler.start();
     let closing: Promise<void> | undefined;
     return {
       server,
@@ -280,9 +278,10 @@ export async function boot(opts: BootOptions): Promise<Running> {
       mail,
       fakeSmtp,
       sendDueMail,
+      scheduledMail,
       close: () =>
         (closing ??= (async () => {
-          for (const t of timers) clearInterval(t);
+          await scheduler.stop();
           await stream.close();
           await new Promise<void>((resolve) => {
             server.close(() => resolve());

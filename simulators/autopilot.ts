@@ -1,7 +1,10 @@
 /**
  * A careful technician at the pump, as a pure state machine: for each point it comes from the
  * correct side (below on the way up, above on the way down), lets the source settle, dwells for the
- * hold time, then moves on.
+ * hold time, then moves on. It follows the run: started mid-run it begins at the run's current
+ * point, and when the run moves to another point (a redo, a skip) it goes there
+ * ({@link followPoint}). After an overshoot past the point's window it backs off and approaches
+ * again, gently. Its index never passes the plan's last point.
  */
 import type { SourceState } from './rig-model';
 
@@ -11,6 +14,11 @@ export interface AutopilotPoint {
   targetDp: number;
   /** Direction of travel: approach from below (`up`) or from above (`down`). */
   direction: 'up' | 'down';
+  /**
+   * Half-width of the point's capture window, rig unit: passing the target by more than this on
+   * the approach is an overshoot, and the autopilot approaches again. Default: a sixth of the margin.
+   */
+  window?: number;
 }
 
 /** What the autopilot should do. */
@@ -26,6 +34,8 @@ export interface AutopilotPlan {
   overshoot?: { fraction: number; points?: number[] };
   /** Leak injected while dwelling, rig unit per minute. Default none. */
   leak?: { perMin: number; points?: number[] };
+  /** Point to begin at (the run's current point). Default 0. */
+  startIndex?: number;
 }
 
 /** Phase of the autopilot at the current point. */
@@ -41,6 +51,8 @@ export interface AutopilotState {
   requested: number | undefined;
   /** Index of a point the bench has captured: the dwell there ends at once (see {@link releasePoint}). */
   released?: number;
+  /** Index of the point being approached again after an overshoot (no deliberate overshoot then). */
+  reapproach?: number;
 }
 
 /** What the rig should do after a step. */
@@ -50,9 +62,24 @@ export interface AutopilotCommand {
   leakPerMin: number;
 }
 
-/** Starting state. */
-export function startAutopilot(nowS: number): AutopilotState {
-  return { index: 0, phase: 'pre-position', phaseStartS: nowS, requested: undefined };
+/**
+ * Starting state, at point `index` (the run's current point; default the first). An index past the
+ * plan's end starts done at the last point.
+ */
+export function startAutopilot(nowS: number, index = 0, points = Infinity): AutopilotState {
+  if (index >= points) return { index: Math.max(0, points - 1), phase: 'done', phaseStartS: nowS, requested: undefined };
+  return { index: Math.max(0, index), phase: 'pre-position', phaseStartS: nowS, requested: undefined };
+}
+
+/**
+ * The run is now at point `index` (or finished: null). A different point is approached afresh
+ * from its correct side; the same point keeps its progress; null ends the autopilot.
+ */
+export function followPoint(plan: AutopilotPlan, state: AutopilotState, index: number | null, nowS: number): AutopilotState {
+  if (index === null || index >= plan.points.length) return { ...state, index: Math.min(state.index, Math.max(0, plan.points.length - 1)), phase: 'done' };
+  if (index === state.index && state.phase !== 'done') return state;
+  const { released: _released, reapproach: _reapproach, ...rest } = state;
+  return { ...rest, index: Math.max(0, index), phase: 'pre-position', phaseStartS: nowS, requested: undefined };
 }
 
 function applies(list: number[] | undefined, index: number): boolean {
@@ -95,19 +122,30 @@ export function stepAutopilot(
       if (settled) return approach(plan, state, point, nowS);
       return { state, command: undefined };
     }
-    case 'approach':
+    case 'approach': {
+      // Past the window on the way in: back off to the correct side and come again, gently.
+      const past = point.window ?? margin / 6;
+      const overshot = below ? source.pressure > point.targetDp + past : source.pressure < point.targetDp - past;
+      if (overshot) {
+        const start = below ? (point.targetDp >= 0 ? Math.max(0, point.targetDp - margin) : point.targetDp - margin) : point.targetDp + margin;
+        return {
+          state: { ...state, phase: 'pre-position', phaseStartS: nowS, requested: start, reapproach: state.index },
+          command: { setpoint: { value: start, overshoot: 0 }, leakPerMin: 0 },
+        };
+      }
       if (settled && source.setpoint === point.targetDp) {
         const leak = plan.leak && applies(plan.leak.points, state.index) ? plan.leak.perMin : 0;
         return { state: { ...state, phase: 'dwell', phaseStartS: nowS }, command: { leakPerMin: leak } };
       }
       return { state, command: undefined };
+    }
     case 'dwell': {
       // Like a technician watching the screen: move on once the point is captured, or after the longest dwell.
       const captured = state.released === state.index;
       if (!captured && nowS - state.phaseStartS < (plan.holdSeconds ?? 30) / speed) return { state, command: undefined };
-      const index = state.index + 1;
-      const phase: AutopilotPhase = index >= plan.points.length ? 'done' : 'pre-position';
-      return { state: { ...state, index, phase, phaseStartS: nowS }, command: { leakPerMin: 0 } };
+      // Never past the plan's end: after the last point it stays there, done.
+      if (state.index + 1 >= plan.points.length) return { state: { ...state, phase: 'done', phaseStartS: nowS }, command: { leakPerMin: 0 } };
+      return { state: { ...state, index: state.index + 1, phase: 'pre-position', phaseStartS: nowS, requested: undefined }, command: { leakPerMin: 0 } };
     }
   }
 }
@@ -123,7 +161,8 @@ function approach(
   point: AutopilotPoint,
   nowS: number,
 ): { state: AutopilotState; command: AutopilotCommand } {
-  const overshoot = plan.overshoot && applies(plan.overshoot.points, state.index) ? plan.overshoot.fraction : 0;
+  // A deliberate overshoot is made once per point: the approach after it is careful.
+  const overshoot = plan.overshoot && applies(plan.overshoot.points, state.index) && state.reapproach !== state.index ? plan.overshoot.fraction : 0;
   return {
     state: { ...state, phase: 'approach', phaseStartS: nowS, requested: point.targetDp },
     command: { setpoint: { value: point.targetDp, overshoot }, leakPerMin: 0 },

@@ -8,7 +8,7 @@ import { ScpiMeterEmulator } from './scpi-meter-emulator';
 import { createSimBinding, type SimBinding } from './sim-binding';
 import type { DeviceFaults } from './line-device';
 import { seededRng, type Rng } from '../shared/random';
-import { defaultMargin, releasePoint, startAutopilot, stepAutopilot, type AutopilotPlan, type AutopilotState } from './autopilot';
+import { defaultMargin, followPoint, releasePoint, startAutopilot, stepAutopilot, type AutopilotPlan, type AutopilotState } from './autopilot';
 import {
   appliedPressure,
   DEFAULT_SOURCE,
@@ -181,7 +181,15 @@ export class SimRig {
   private startAutopilot(plan: AutopilotPlan): void {
     const margin = plan.approachMargin ?? defaultMargin(plan);
     this.plan = { ...plan, approachMargin: margin };
-    this.pilot = startAutopilot(this.lastMs / 1000);
+    this.pilot = startAutopilot(this.lastMs / 1000, plan.startIndex ?? 0, plan.points.length);
+    this.pilotStep();
+  }
+
+  /** Tells the autopilot the run is now at point `index` (null: the run ended), so it goes there. */
+  followAutopilotPoint(index: number | null): void {
+    if (!this.plan || !this.pilot) return;
+    this.advance();
+    this.pilot = followPoint(this.plan, this.pilot, index, this.lastMs / 1000);
     this.pilotStep();
   }
 

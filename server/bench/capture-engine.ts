@@ -38,6 +38,11 @@ export interface EngineRunSettings {
   progressEveryMs?: number;
   /** The technician who performs the run (named on every hands-free capture); null when unknown. */
   performer?: { id: string; email: string } | null;
+  /**
+   * Applied DP, instrument unit, above which the run warns `overrange` (the URV plus the site's
+   * margin); no over-range warning when absent.
+   */
+  overrangeAbove?: number;
 }
 
 /** A point as the engine sees it. */
@@ -49,7 +54,7 @@ export interface EnginePoint {
   warning: string | null;
 }
 
-export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock';
+export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock' | 'overrange';
 export type RunStatus = 'running' | 'paused' | 'complete' | 'aborted';
 
 /** Events of the engine: the run events of the capture path's event map, exactly as they are stored and sent. */
@@ -89,6 +94,8 @@ interface Active {
   subWindowMs: number;
   ne43Warned: boolean;
   unitWarned: boolean;
+  /** Over the over-range limit since the last warning (warned once per excursion). */
+  overrangeWarned?: boolean;
   lastMa: number | undefined;
   /** Source of the latest sample of each device taken into the hold. */
   sources: { pressure: SampleSource | null; current: SampleSource | null };
@@ -302,6 +309,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
   private onPressure(r: Active, tMs: number, wallMs: number, raw: number, unit: string | null): void {
     const p = r.points[r.current!]!;
     const value = this.toRunUnit(r, raw, unit);
+    this.checkOverrange(r, value);
     const before = r.tracker!.status();
     const st = r.tracker!.push(tMs, value);
     if (st.overshoots > before.overshoots) {
@@ -326,6 +334,17 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     r.hold!.pushDp(tMs, value);
     r.trend!.pushDp(tMs, value);
     this.evaluate(r, tMs);
+  }
+
+  /** Warns once per excursion when the applied DP goes past the URV by more than the site's margin. */
+  private checkOverrange(r: Active, value: number): void {
+    const limit = r.s.overrangeAbove;
+    if (limit === undefined) return;
+    if (value > limit) {
+      if (r.overrangeWarned) return;
+      r.overrangeWarned = true;
+      this.warn(r, 'overrange', `The applied pressure ${round(value)} ${r.s.unit} is past the over-range limit of ${round(limit)} ${r.s.unit}: release pressure now to protect the transmitter`, null);
+    } else if (value < limit - 0.02 * r.s.dpSpan) r.overrangeWarned = false; // re-arm once clearly back below (2 % of span; our own choice)
   }
 
   private onCurrent(r: Active, tMs: number, wallMs: number, value: number): void {

@@ -13,13 +13,18 @@ import type { BenchHub } from './hub';
 
 /** Transfer data a run gives the simulated transmitter when the autopilot drives it. */
 export interface SimRunContext {
+  /** The run (the autopilot follows its `run.changed` events). Optional for older callers. */
+  runId?: string;
+  /** The point the run is on now, or null when none. Default: the first. */
+  currentIndex?: number | null;
   unit: string;
   lrv: number;
   urv: number;
   outputMode: OutputMode;
   cutoff: { mode: 'none' } | { mode: 'clamp'; flowPct: number } | { mode: 'linear'; breakpointDpPct: number };
   holdSeconds: number;
-  points: { targetDp: number; approach: 'up' | 'down' }[];
+  /** Each point's target, approach and capture-window half-width (instrument unit). */
+  points: { targetDp: number; approach: 'up' | 'down'; window?: number }[];
 }
 
 /** Body of `POST /api/sim` once validated (SimControl, with the autopilot tied to the current run). */
@@ -60,11 +65,17 @@ export function createSimControl(o: SimControlOptions): SimController {
     if (!rig) throw conflict('The simulated rig is not running: this server uses real instruments (BENCH=serial)');
     return rig;
   };
+  /** The run the autopilot was started for. */
+  let following: string | undefined;
   // The autopilot leaves a point once the capture is stored: point.captured reaches the hub only then.
   const unsubscribe = rig
     ? o.hub.subscribe('sim-autopilot', (batch) => {
         for (const e of batch) {
-          if (e.kind === 'message' && e.message.type === 'point.captured' && e.message.benchId === o.benchId) rig.releaseAutopilotPoint(e.message.index);
+          if (e.kind !== 'message') continue;
+          const m = e.message;
+          if (m.type === 'point.captured' && m.benchId === o.benchId) rig.releaseAutopilotPoint(m.index);
+          // The run moved to another point (next, redo) or ended: the autopilot follows it.
+          if (m.type === 'run.changed' && following === m.runId) rig.followAutopilotPoint(m.status === 'running' || m.status === 'paused' ? m.currentIndex : null);
         }
       })
     : () => {};
@@ -74,7 +85,10 @@ export function createSimControl(o: SimControlOptions): SimController {
       const rig = need();
       const { autopilot, ...rest } = req;
       const control: SimControl = { ...rest };
-      if (autopilot === 'stop') control.autopilot = 'stop';
+      if (autopilot === 'stop') {
+        control.autopilot = 'stop';
+        following = undefined;
+      }
       else if (autopilot) {
         const ctx = o.runContext();
         if (!ctx) throw notFound('No run is active on the bench: start a run before the autopilot');
@@ -93,14 +107,22 @@ export function createSimControl(o: SimControlOptions): SimController {
         // (in real time: the engine's hold is not sped up), so a point that cannot be captured is left.
         const dwellS = autopilot.holdSeconds ?? ctx.holdSeconds * 4 + 10;
         const plan: AutopilotPlan = {
-          points: ctx.points.map((p) => ({ targetDp: toRig(p.targetDp), direction: p.approach })),
+          points: ctx.points.map((p) => ({
+            targetDp: toRig(p.targetDp),
+            direction: p.approach,
+            ...(p.window !== undefined ? { window: Math.abs(toRig(p.targetDp + p.window) - toRig(p.targetDp)) } : {}),
+          })),
+          // Start where the run is, not at point 1.
+          startIndex: ctx.currentIndex ?? 0,
           holdSeconds: dwellS * speed,
           speed,
           ...(autopilot.overshoot ? { overshoot: autopilot.overshoot } : {}),
           ...(autopilot.leak ? { leak: { perMin: toRig(autopilot.leak.perMin), points: autopilot.leak.points } } : {}),
         };
         control.autopilot = plan;
+        following = ctx.runId;
       }
+      if (req.setpoint) following = undefined; // a manual setpoint stops the autopilot
       return rig.apply(control);
     },
     snapshot() {

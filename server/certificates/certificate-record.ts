@@ -200,6 +200,14 @@ export function captureStatements(runs: readonly FrozenRun[], names: ReadonlyMap
   return { handsFree, manual, remarks };
 }
 
+/** The ambient conditions and condition on receipt recorded on the job's checklist, if any. */
+function conditionsOf(checklist: unknown): { temperatureC: number | null; humidityPctRh: number | null; onReceipt: string | null } | undefined {
+  const c = (checklist as { conditions?: { temperatureC?: unknown; humidityPctRh?: unknown; onReceipt?: unknown } } | null)?.conditions;
+  if (!c) return undefined;
+  const n = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+  return { temperatureC: n(c.temperatureC), humidityPctRh: n(c.humidityPctRh), onReceipt: typeof c.onReceipt === 'string' && c.onReceipt ? c.onReceipt : null };
+}
+
 /** Everything the certificate shows, from the frozen record and the signatures of its revision. */
 export function certificateFromRecord(record: FrozenRecord, ctx: CertificateContext): CertificateData {
   const { instrument: ins, job } = record;
@@ -210,6 +218,7 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
   const approval = ctx.approved ? ctx.signatures.filter((s) => s.decision === 'approve').at(-1) : undefined;
   const performedEnd = (left ?? found)?.endedAt ?? undefined;
   const returned = (job.checklist as { returnedToService?: { byName?: string; at?: string } | null } | null)?.returnedToService ?? null;
+  const conditions = conditionsOf(job.checklist);
   const assignee = job.assigneeName ?? 'Technician';
   const names = new Map(record.performers.map((p) => [p.id, p.name]));
   const captures = captureStatements(record.runs, names, zone);
@@ -239,7 +248,16 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
       outputMode: ins.outputMode,
       cutoff: { mode: ins.cutoffMode, value: ins.cutoffValue },
       tolerancePctSpan: ins.tolerancePct,
+      ...(conditions?.onReceipt ? { condition: conditions.onReceipt } : {}),
     },
+    ...(conditions && (conditions.temperatureC !== null || conditions.humidityPctRh !== null)
+      ? {
+          environment: {
+            ...(conditions.temperatureC !== null ? { temperatureC: conditions.temperatureC } : {}),
+            ...(conditions.humidityPctRh !== null ? { humidityPctRh: conditions.humidityPctRh } : {}),
+          },
+        }
+      : {}),
     method: {
       procedure: 'Stillpoint hands-free capture: standard plan, up then down',
       basis: points[0]?.basis ?? 'dp',
@@ -254,6 +272,7 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
       description: s.description,
       serial: s.serial,
       certificateNumber: s.certificateNo,
+      ...(s.calibratingLab ? { calibratedBy: s.calibratingLab } : {}),
       dueDate: s.dueOn,
     })),
     decisionRule: plan.decisionRule ?? 'guard-band',

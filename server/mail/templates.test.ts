@@ -88,13 +88,14 @@ describe('mail templates', () => {
       appUrl,
       weekOf: '2025-03-10',
       items: [
-        { tag: 'FT-101', dueDate: '2025-03-12', overdue: false, assignee: 'Ana' },
+        { tag: 'FT-101', service: 'Boiler 1 feedwater flow', dueDate: '2025-03-12', overdue: false, assignee: 'Ana' },
         { tag: 'LT-9', dueDate: '2025-02-01', overdue: true },
       ],
     });
     expect(m.subject).toBe('Week of 2025-03-10: 1 overdue, 1 due');
-    expect(m.text).toMatch(/Overdue\n\n.*\n.*\n {2}2025-02-01 +LT-9 +unassigned/);
-    expect(m.text).toMatch(/2025-03-12 +FT-101 +Ana/);
+    // Every column filled: a tag with no service recorded says so with a dash, not a blank.
+    expect(m.text).toMatch(/Overdue\n\n.*\n.*\n {2}2025-02-01 +LT-9 +— +unassigned/);
+    expect(m.text).toMatch(/2025-03-12 +FT-101 +Boiler 1 feedwater flow +Ana/);
     expect(weeklyDueListMail({ appUrl, weekOf: '2025-03-10', items: [] }).text).toContain('Nothing is due or overdue.');
   });
 

@@ -297,7 +297,7 @@ export function weeklyDueListMail(d: WeeklyDueListData): RenderedMail {
   const overdue = d.items.filter((i) => i.overdue);
   const due = d.items.filter((i) => !i.overdue);
   const byDate = (a: DueItem, b: DueItem) => formatDate(a.dueDate).localeCompare(formatDate(b.dueDate)) || a.tag.localeCompare(b.tag);
-  const rows = (items: DueItem[]) => [...items].sort(byDate).map((i) => [formatDate(i.dueDate), i.tag, i.service ?? '', i.assignee ?? 'unassigned']);
+  const rows = (items: DueItem[]) => [...items].sort(byDate).map((i) => [formatDate(i.dueDate), i.tag, i.service || '—', i.assignee ?? 'unassigned']);
   const head = ['Due', 'Tag', 'Service', 'Assigned to'];
   const blocks: Block[] = [
     { kind: 'p', text: `Calibrations for the week of ${formatDate(d.weekOf)}: ${overdue.length} overdue, ${due.length} due.` },

@@ -68,6 +68,7 @@ export const STANDARD_COLUMNS = [
   'certificateNo',
   'calibratedOn',
   'dueOn',
+  'calibratingLab',
 ] as const;
 const STANDARD_REQUIRED = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'];
 
@@ -252,6 +253,7 @@ function standardFromCells(c: Record<string, string>) {
     },
     resolution: num(c.resolution),
     certificateNo: text(c.certificateNo) ?? '',
+    calibratingLab: text(c.calibratingLab) ?? '',
     calibratedOn: text(c.calibratedOn) ?? '',
     dueOn: text(c.dueOn) ?? '',
   };

@@ -1,8 +1,9 @@
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type JobRow } from '../db/repositories/register.repository';
-import { userRepository } from '../db/repositories/user.repository';
+import { siteRepository, userRepository } from '../db/repositories/user.repository';
 import { badRequest, conflict, forbidden, locked, notFound } from '../errors';
-import { convertPressure, isPressureUnitId } from '../../shared/calc';
+import { convertPressure, DEFAULT_MINIMUM_TUR, isPressureUnitId, standardFit } from '../../shared/calc';
+import type { AccuracySpec } from '../../shared/schemas/standards';
 import type { Checklist, ChecklistPatch, Job, JobDetail, ReturnNotice } from '../../shared/schemas/jobs';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
@@ -33,7 +34,8 @@ export function toJob(r: JobRow, today = isoDate(new Date())): Job {
 export const EMPTY_CHECKLIST: Checklist = {
   standardIds: [],
   permitNo: null,
-  bypass: { required: false, description: '', recorded: null, removed: null },
+  // No default: the technician answers whether a bypass is needed.
+  bypass: { required: null, description: '', recorded: null, removed: null },
   operatorsInformed: null,
   isolated: null,
   vented: null,
@@ -67,6 +69,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
   const instruments = instrumentRepository(db);
   const standards = standardRepository(db);
   const records = reviewRepository(db);
+  const sites = siteRepository(db);
   const freezer = createRecordFreezer(db, audit);
   const clock = createSiteClock(db);
 
@@ -138,10 +141,12 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (!chosen.some((s) => s.kind === 'current')) blockers.push('Choose a current meter');
       for (const s of chosen) if (s.problem) blockers.push(`${s.description} (${s.serial}): ${s.problem}`);
       if (!checklist.permitNo) blockers.push('Record the permit-to-work number');
+      if (checklist.bypass.required === null) blockers.push('Answer whether an interlock bypass is needed');
       if (checklist.bypass.required && !checklist.bypass.recorded) blockers.push('Record the interlock bypass');
       if (!checklist.operatorsInformed) blockers.push('Confirm the operators are informed');
       if (!checklist.isolated) blockers.push('Confirm the transmitter is isolated from the process');
       if (!checklist.vented) blockers.push('Confirm the transmitter is vented and drained');
+      if (instrument.hazardousMedium && !checklist.flushed) blockers.push('Confirm the hazardous medium is flushed (this tag is marked hazardous)');
 
       const results = (kind: string) => runs.filter((x) => x.kind === kind && x.status === 'complete');
       const decisionOf = (x: (typeof runs)[number]) => (x.results?.overallDecision ?? null);
@@ -155,11 +160,26 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
       if (!checklist.returnedToService) submitBlockers.push('Confirm the loop is returned to service');
       if (r.status !== 'in-progress' && r.status !== 'open' && r.status !== 'returned') submitBlockers.push(`The job is ${r.status}`);
 
+      const minimumTur = (await sites.settings()).minimumTur ?? DEFAULT_MINIMUM_TUR;
+      const standardFits = [];
+      for (const s of await standards.all()) {
+        const fit = standardFit({ ...s, accuracy: s.accuracy as AccuracySpec }, instrument);
+        if (!fit) continue;
+        const tur = Number(fit.tur.toPrecision(3));
+        const warnings = [];
+        if (fit.tur < minimumTur) warnings.push(`TUR ${tur} : 1 is below the site minimum of ${minimumTur} : 1 at this tolerance`);
+        // A resolution coarser than a tenth of the tolerance cannot show a reading inside it well (common practice).
+        if (fit.resolutionPctOfTolerance > 10) warnings.push(`its resolution is ${Number(fit.resolutionPctOfTolerance.toPrecision(2))} % of the tolerance`);
+        standardFits.push({ id: s.id, tur, resolutionPctOfTolerance: fit.resolutionPctOfTolerance, minimumTur, warning: warnings.length ? warnings.join('; ') : null });
+      }
+
       return {
         ...toJob(r, today),
         returned: r.status === 'returned' ? await service.lastReturn(id, r.revision) : null,
         checklist,
         standards: chosen,
+        standardFits,
+        hazardousMedium: instrument.hazardousMedium,
         runs: runs.map((x) => ({
           id: x.id,
           kind: x.kind,
@@ -227,6 +247,7 @@ export function createJobService(db: Db, audit: AuditService, notify?: (notice: 
         c.bypass.removed = stamp;
       }
       for (const k of ['operatorsInformed', 'isolated', 'vented', 'flushed', 'returnedToService'] as const) if (patch[k]) c[k] = stamp;
+      if (patch.conditions) c.conditions = { ...patch.conditions, recorded: stamp };
       await jobs.update(id, { checklist: c, permitNo: c.permitNo, status: r.status === 'open' ? 'in-progress' : r.status });
       await audit.record(actor, 'job.checklist-changed', 'job', id, before, c);
       return service.detail(id);

@@ -137,9 +137,10 @@ export function createMailService(db: Db, deps: { mailer?: Mailer; appUrl: () =>
       const today = on ?? (await clock.today());
       await guard('jobs.weekly-due', async () => {
         const horizon = addDays(today, 7);
+        const services = new Map((await instruments.all()).map((i) => [i.id, i.service]));
         const items = (await jobs.list())
           .filter((j) => j.status !== 'approved' && j.dueOn <= horizon)
-          .map((j) => ({ tag: j.tag, jobId: j.id, dueDate: j.dueOn, overdue: j.dueOn < today, assignee: j.assigneeName ?? undefined }));
+          .map((j) => ({ tag: j.tag, service: services.get(j.instrumentId) || undefined, jobId: j.id, dueDate: j.dueOn, overdue: j.dueOn < today, assignee: j.assigneeName ?? undefined }));
         n = items.length;
         for (const l of await leads()) send([l.email], weeklyDueListMail({ appUrl: deps.appUrl(), recipientName: l.name, weekOf: today, items }));
       });

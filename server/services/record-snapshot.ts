@@ -128,6 +128,7 @@ export function createRecordFreezer(db: Db, audit: AuditService) {
           tolerancePct: instrument.tolerancePct,
           intervalDays: instrument.intervalDays,
           primaryElement: instrument.primaryElement ?? null,
+          hazardousMedium: instrument.hazardousMedium,
         },
         // In the order the technician chose them.
         standards: job.checklist.standardIds
@@ -147,6 +148,7 @@ export function createRecordFreezer(db: Db, audit: AuditService) {
             calibratedOn: s.calibratedOn,
             dueOn: s.dueOn,
             certificateFileId: s.certificateFileId,
+            calibratingLab: s.calibratingLab,
           })),
         site: { name: site?.name ?? 'Stillpoint', domain: site?.domain ?? '', settings: siteSettings(site?.settings) },
         runs: await Promise.all(runs.map(frozenRun)),

@@ -27,7 +27,7 @@ import {
 } from '../../shared/calc';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type { PointCapture, PointFlag, PointState, Run, RunKind, RunPoint, StartRunBody } from '../../shared/schemas/runs';
-import type { SiteSettings } from '../../shared/schemas/settings';
+import { DEFAULT_OVERRANGE_MARGIN_PCT, type SiteSettings } from '../../shared/schemas/settings';
 import type { RunEvent } from '../../shared/schemas/stream';
 import { CaptureEngines, EngineRefusal, type EngineRunSettings } from '../bench/capture-engine';
 import type { BenchHub } from '../bench/hub';
@@ -76,6 +76,8 @@ interface FrozenPlan {
   coverage?: { coverageProbability?: number; coverageFactor?: number; minimumTur?: number };
   /** The technician who started the run (absent on runs started before it was recorded: see `runs.started_by`). */
   performer?: { id: string; email: string };
+  /** Over-range warning margin above the URV, % of span (site setting frozen at start); absent on older runs (default). */
+  overrangeMarginPct?: number;
 }
 
 /** What the run service is given by the composition root. */
@@ -247,7 +249,9 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
   }
 
   function engineSettings(row: RunRow, p: FrozenPlan, performer: { id: string; email: string } | null): EngineRunSettings {
-    return { runId: row.id, benchId: p.benchId, unit: p.unit, dpSpan: Math.abs(span(specOf(p.instrument).range)), holdSeconds: p.holdSeconds, performer };
+    const dpSpan = Math.abs(span(specOf(p.instrument).range));
+    const overrangeAbove = Math.max(p.instrument.lrv, p.instrument.urv) + ((p.overrangeMarginPct ?? DEFAULT_OVERRANGE_MARGIN_PCT) / 100) * dpSpan;
+    return { runId: row.id, benchId: p.benchId, unit: p.unit, dpSpan, holdSeconds: p.holdSeconds, performer, overrangeAbove };
   }
 
   /** The run's performer: frozen in the plan, or (older runs) the user who started it. */
@@ -410,13 +414,15 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const p = id ? loaded.get(id) : undefined;
       if (!p) return undefined;
       return {
+        runId: id!,
+        currentIndex: engines.has(benchId) ? (engines.get(benchId).snapshot()?.currentIndex ?? null) : null,
         unit: p.unit,
         lrv: p.instrument.lrv,
         urv: p.instrument.urv,
         outputMode: p.instrument.outputMode,
         cutoff: cutoffOf(p.instrument),
         holdSeconds: p.holdSeconds,
-        points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach })),
+        points: p.points.map((x) => ({ targetDp: x.targetDp, approach: x.approach, window: x.window })),
       };
     },
 
@@ -466,7 +472,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const { points, warnings } = planFor(body.kind, body.trim, instrument, windowPctOfSpan);
       const performer = { id: actor.id, email: actor.email };
       const coverage = { coverageProbability: site.coverageProbability, coverageFactor: site.coverageFactor, minimumTur: site.minimumTur };
-      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, performer, coverage };
+      const frozen: FrozenPlan = { benchId, trim: body.trim ?? null, unit: inst.unit, holdSeconds, windowPctOfSpan, decisionRule, instrument, standardIds: job.standardIds, points, warnings, performer, coverage, overrangeMarginPct: site.overrangeMarginPct ?? DEFAULT_OVERRANGE_MARGIN_PCT };
       const row = await runsRepo.create({ jobId, kind: body.kind, status: 'running', plan: frozen, startedBy: actor.id }, points.length);
       await audit.record(actor, 'run.started', 'run', row.id, undefined, { jobId, kind: body.kind, trim: frozen.trim, holdSeconds, points: points.length, benchId });
       loaded.set(row.id, frozen);

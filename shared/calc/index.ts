@@ -14,3 +14,4 @@ export * from './decision';
 export * from './evaluate';
 export * from './orifice';
 export * from './intervals';
+export * from './standard-fit';

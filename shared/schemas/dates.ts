@@ -38,8 +38,9 @@ function dayFromToday(days: number, now = Date.now()): string {
 
 /** Any real date from {@link MIN_DATE} on (no upper bound: use {@link PastDateSchema} or {@link DueDateSchema}). */
 export const IsoDateSchema = z
-  .string({ message: 'Use YYYY-MM-DD' })
+  .string({ message: 'Enter a date' })
   .trim()
+  .min(1, { message: 'Enter a date', abort: true })
   .regex(SHAPE, { message: 'Use YYYY-MM-DD', abort: true })
   .refine(isRealDate, { message: 'No such date', abort: true })
   .refine((s) => s >= MIN_DATE, { message: `Dates before ${MIN_DATE} are not taken`, abort: true });

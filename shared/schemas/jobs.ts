@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { DueDateSchema } from './dates';
+import { atMost, numberField } from './numbers';
 
 /** Life of a job (our names). */
 export const JOB_STATUSES = ['open', 'in-progress', 'submitted', 'returned', 'approved'] as const;
@@ -8,10 +9,10 @@ export type JobStatus = z.infer<typeof JobStatusSchema>;
 
 
 export const CreateJobBodySchema = z.object({
-  instrumentId: z.string().uuid('Choose an instrument'),
-  assigneeId: z.string().uuid().nullable().default(null),
+  instrumentId: z.string({ error: 'Choose an instrument' }).uuid('Choose an instrument'),
+  assigneeId: z.string().uuid('Choose a technician from the list').nullable().default(null),
   dueOn: DueDateSchema,
-  notes: z.string().max(2000).default(''),
+  notes: z.string().max(2000, atMost(2000)).default(''),
 });
 export type CreateJobBody = z.input<typeof CreateJobBodySchema>;
 
@@ -42,8 +43,8 @@ export const ChecklistSchema = z.object({
   standardIds: z.array(z.string()),
   permitNo: z.string().nullable(),
   bypass: z.object({
-    /** Whether an interlock bypass is needed for this work. */
-    required: z.boolean(),
+    /** Whether an interlock bypass is needed for this work; null until the technician answers (no default). */
+    required: z.boolean().nullable(),
     /** Which interlock or trip is bypassed. */
     description: z.string(),
     recorded: SignedStepSchema,
@@ -54,10 +55,37 @@ export const ChecklistSchema = z.object({
   vented: SignedStepSchema,
   flushed: SignedStepSchema,
   returnedToService: SignedStepSchema,
+  /** Conditions at the bench for the certificate; absent until recorded. */
+  conditions: z
+    .object({
+      temperatureC: z.number().nullable(),
+      humidityPctRh: z.number().nullable(),
+      onReceipt: z.string().nullable(),
+      recorded: SignedStepSchema,
+    })
+    .optional(),
 });
 export type Checklist = z.infer<typeof ChecklistSchema>;
 
 /** Changes to the checklist; the server stamps who and when on each step set true. */
+/**
+ * Plausible ambient conditions for calibration work, in the workshop or at the manifold outdoors:
+ * −30 to +60 °C and 0–100 %rh (our own bounds, common practice for field instruments; a value
+ * outside is a typing error, e.g. °F entered as °C).
+ */
+export const AMBIENT_BOUNDS = { temperatureC: { min: -30, max: 60 }, humidityPctRh: { min: 0, max: 100 } } as const;
+
+export const ConditionsPatchSchema = z.object({
+  temperatureC: numberField('ambient temperature')
+    .min(AMBIENT_BOUNDS.temperatureC.min, `The ambient temperature must be at least ${AMBIENT_BOUNDS.temperatureC.min} °C`)
+    .max(AMBIENT_BOUNDS.temperatureC.max, `The ambient temperature must be at most ${AMBIENT_BOUNDS.temperatureC.max} °C`),
+  humidityPctRh: numberField('relative humidity')
+    .min(AMBIENT_BOUNDS.humidityPctRh.min, 'The relative humidity cannot be below 0 %rh')
+    .max(AMBIENT_BOUNDS.humidityPctRh.max, 'The relative humidity cannot be above 100 %rh'),
+  onReceipt: z.string().trim().min(1, 'Describe the condition on receipt (e.g. clean, no visible damage)').max(500, atMost(500)),
+});
+export type ConditionsPatch = z.infer<typeof ConditionsPatchSchema>;
+
 export const ChecklistPatchSchema = z
   .object({
     standardIds: z.array(z.string().uuid('Not a valid standard')).max(6).optional(),
@@ -70,6 +98,8 @@ export const ChecklistPatchSchema = z
     vented: z.literal(true).optional(),
     flushed: z.literal(true).optional(),
     returnedToService: z.literal(true).optional(),
+    /** Ambient temperature and humidity and the condition on receipt (for the certificate). */
+    conditions: ConditionsPatchSchema.optional(),
   })
   .refine((v) => Object.keys(v).length > 0, { message: 'Nothing to change' })
   .refine((v) => !v.bypass?.required || v.bypass.description.length > 0, { message: 'Say which interlock is bypassed', path: ['bypass', 'description'] });
@@ -109,6 +139,20 @@ export const ReturnNoticeSchema = z.object({
 });
 export type ReturnNotice = z.infer<typeof ReturnNoticeSchema>;
 
+/** How a register standard suits this job's instrument (shared/calc `standardFit`), for choosing. */
+export const StandardFitSchema = z.object({
+  id: z.string(),
+  /** Tolerance ÷ the standard's accuracy at the check point (URV, or 20 mA). */
+  tur: z.number(),
+  /** The standard's resolution as a % of the tolerance there. */
+  resolutionPctOfTolerance: z.number(),
+  /** The site's minimum TUR (or the default 4). */
+  minimumTur: z.number(),
+  /** Why it is a poor choice, in words, or null. */
+  warning: z.string().nullable(),
+});
+export type StandardFit = z.infer<typeof StandardFitSchema>;
+
 export const JobDetailSchema = JobSchema.extend({
   checklist: ChecklistSchema,
   standards: z.array(JobStandardSchema),
@@ -119,6 +163,10 @@ export const JobDetailSchema = JobSchema.extend({
   submitBlockers: z.array(z.string()),
   /** While the job stands returned: the lead's comment, who returned it and when. Additive. */
   returned: ReturnNoticeSchema.nullable().optional(),
+  /** TUR and resolution of each register standard at this instrument's tolerance. Additive. */
+  standardFits: z.array(StandardFitSchema).optional(),
+  /** The instrument's medium is hazardous: the flush is required. Additive. */
+  hazardousMedium: z.boolean().optional(),
 });
 export type JobDetail = z.infer<typeof JobDetailSchema>;
 

@@ -35,3 +35,23 @@ export const decimalIndex = (label: string, min: number, max: number) =>
     .regex(/^(0|[1-9]\d{0,8})$/, `${label} must be a whole number in decimal digits`)
     .transform(Number)
     .pipe(z.number().int().min(min, `${label} must be at least ${min}`).max(max, `${label} is too large`));
+
+/**
+ * A finite number field whose messages read in plain words: "Enter the LRV as a number" when the
+ * box is empty or not a number (the form passes NaN for an empty number box). Bounds take their
+ * own messages, so a value out of range never reads as "not a number".
+ */
+export const numberField = (label: string) =>
+  z.number({ error: (iss) => (iss.code === 'invalid_type' ? `Enter the ${label} as a number` : undefined) }).finite(`Enter the ${label} as a finite number`);
+
+/** A text field's "too long" message in plain words. */
+export const atMost = (n: number) => `Keep this to ${n} characters or fewer`;
+
+/**
+ * Options for an object refinement that must run even when other fields have errors (zod skips
+ * object refinements after a type error anywhere, so the form would show errors one at a time):
+ * it runs whenever the fields it reads are themselves valid.
+ */
+export const whenValid = (...keys: string[]) => ({
+  when: (payload: { issues: ReadonlyArray<{ path?: ReadonlyArray<PropertyKey> | undefined }> }) => !payload.issues.some((i) => keys.includes(String(i.path?.[0]))),
+});

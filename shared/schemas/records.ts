@@ -137,6 +137,8 @@ export const FrozenRecordSchema = z.object({
     tolerancePct: z.number(),
     intervalDays: z.number(),
     primaryElement: z.unknown().nullable(),
+    /** The medium was marked hazardous (flush required). Additive: absent in records frozen before it. */
+    hazardousMedium: z.boolean().optional(),
   }),
   standards: z.array(
     z.object({
@@ -153,6 +155,8 @@ export const FrozenRecordSchema = z.object({
       calibratedOn: z.string(),
       dueOn: z.string(),
       certificateFileId: z.string().nullable(),
+      /** The laboratory that calibrated it. Additive: absent in records frozen before it. */
+      calibratingLab: z.string().optional(),
     }),
   ),
   site: z.object({ name: z.string(), domain: z.string(), settings: z.record(z.string(), z.unknown()) }),

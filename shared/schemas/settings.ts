@@ -23,6 +23,12 @@ export const SiteSettingsSchema = z.object({
   coverageFactor: z.number().positive().max(10).optional().catch(undefined),
   /** Minimum TUR for a decision (unset by default); below it a point is undecided. */
   minimumTur: z.number().positive().max(100).optional().catch(undefined),
+  /**
+   * Margin above the URV, % of span, past which the applied pressure raises an `overrange` warning
+   * during a run (default 10: our own choice, common practice to keep well inside the transmitter's
+   * overpressure rating, which the site procedure and the maker's data govern).
+   */
+  overrangeMarginPct: z.number().min(0).max(100).optional().catch(undefined),
   /** End-of-period reliability target for interval analysis, 0–1 (default 0.95). */
   intervalReliabilityTarget: z.number().gt(0).lt(1).optional().catch(undefined),
   /** Confidence of the interval test's binomial limits, 0–1 (default 0.5). */
@@ -40,6 +46,9 @@ export const SiteSettingsSchema = z.object({
   timeZone: z.string().refine(isTimeZone, 'Choose a known time zone, e.g. Europe/London').optional().catch(undefined),
 });
 export type SiteSettings = z.infer<typeof SiteSettingsSchema>;
+
+/** Default of {@link SiteSettings.overrangeMarginPct}, % of span. */
+export const DEFAULT_OVERRANGE_MARGIN_PCT = 10;
 
 /** Parse stored settings JSON text; unreadable text gives the defaults (an empty object). */
 export function parseSiteSettings(text: string | null | undefined): SiteSettings {

@@ -68,7 +68,8 @@ export const StreamEventSchemas = {
     type: z.literal('run.warned'),
     runId: z.string(),
     index: z.number().int(),
-    kind: z.enum(['leak', 'overshoot', 'unstable', 'disconnect', 'ne43', 'clock']),
+    /** `overrange`: the applied DP went past the URV by more than the site's margin (protect the transmitter). */
+    kind: z.enum(['leak', 'overshoot', 'unstable', 'disconnect', 'ne43', 'clock', 'overrange']),
     message: z.string(),
     /** Leak rate, % of span per minute, for a leak. */
     ratePctSpanPerMin: z.number().nullable(),

@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { EmailSchema, PASSWORD_MIN_LENGTH, RoleSchema } from './auth';
+import { EmailSchema, PASSWORD_MIN_LENGTH, RoleSchema, ROLES } from './auth';
+import { atMost } from './numbers';
 
 export const UserSchema = z.object({
   id: z.string(),
@@ -19,13 +20,13 @@ export type User = z.infer<typeof UserSchema>;
 
 export const PasswordSchema = z
   .string()
-  .min(PASSWORD_MIN_LENGTH, `At least ${PASSWORD_MIN_LENGTH} characters`)
-  .max(256, 'At most 256 characters');
+  .min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`)
+  .max(256, atMost(256));
 
 export const InviteUserBodySchema = z.object({
   email: EmailSchema,
-  name: z.string().trim().min(1, 'Enter a name').max(120),
-  role: RoleSchema,
+  name: z.string().trim().min(1, 'Enter a name').max(120, atMost(120)),
+  role: z.enum(ROLES, { error: 'Choose a role' }),
   /** Initial password, given to the person out of band; checked against the common-password list. */
   password: PasswordSchema,
 });

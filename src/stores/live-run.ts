@@ -5,7 +5,7 @@
  */
 import { create } from 'zustand';
 
-export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock';
+export type WarningKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock' | 'overrange';
 
 export interface LiveWarning {
   kind: WarningKind;

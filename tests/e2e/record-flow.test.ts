@@ -37,7 +37,7 @@ beforeAll(async () => {
   const stds = (await c.tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
   const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
   const cur = stds.find((s: { kind: string }) => s.kind === 'current');
-  const r = await c.tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, cur.id], permitNo: 'PTW-4410', operatorsInformed: true, isolated: true, vented: true });
+  const r = await c.tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, cur.id], permitNo: 'PTW-4410', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
   expect(r.body.blockers).toEqual([]);
 }, 600_000);
 

@@ -64,7 +64,10 @@ async function runHandsFree(page: Page, startTestId: string, timeoutMs = 240_000
   await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
   const runId = page.url().split('/').pop()!;
   await page.getByTestId('capture-screen').waitFor();
-  await sim({ autopilot: { speed: 4 } });
+  // A one-point trim run can be captured hands-free before the autopilot starts (the pump still sits
+  // at the point the previous run ended on); then there is no active run left to drive.
+  const r = await admin.post('/api/sim', { autopilot: { speed: 4 } });
+  if (r.status !== 200) expect((await tech.get(`/api/runs/${runId}`)).body.status, JSON.stringify(r.body)).toBe('complete');
   await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: timeoutMs });
   return runId;
 }
@@ -113,7 +116,7 @@ describe('run flow (FT-101, rooted output)', () => {
       // Preparation: an expired standard is refused with the server's reason, verbatim.
       await page.getByRole('checkbox', { name: /Handheld loop meter/ }).check();
       await page.getByRole('button', { name: 'Save standards' }).click();
-      await expect.poll(() => page.getByTestId('standard-problem').first().textContent()).toMatch(/^Cannot be used: calibration expired on /);
+      await expect.poll(() => page.getByTestId('standard-problem').first().textContent(), { timeout: 15_000 }).toMatch(/^Cannot be used: calibration expired on /);
       const prep = page.getByTestId('step-preparation');
       expect(await prep.getByTestId('blockers').textContent()).toContain('Handheld loop meter (QDU-MM-0118): calibration expired on');
 
@@ -121,9 +124,13 @@ describe('run flow (FT-101, rooted output)', () => {
       await page.getByRole('checkbox', { name: /0–100 kPa module/ }).check();
       await page.getByRole('checkbox', { name: /Bench multimeter/ }).check();
       await page.getByRole('button', { name: 'Save standards' }).click();
-      await expect.poll(async () => (await prep.getByTestId('blockers').textContent()) ?? '').not.toContain('Choose a pressure reference standard');
+      await expect.poll(async () => (await prep.getByTestId('blockers').textContent()) ?? '', { timeout: 15_000 }).not.toContain('Choose a pressure reference standard');
       await page.getByLabel('Permit-to-work number').fill('PTW-2291');
       await page.getByRole('button', { name: 'Record permit' }).click();
+      // The bypass question has no default: answer it on purpose.
+      await page.getByRole('radio', { name: 'No bypass needed' }).check();
+      await page.getByRole('button', { name: 'Save', exact: true }).click();
+      await page.getByTestId('bypass-unanswered').waitFor({ state: 'detached' });
       for (const ack of ['ack-operators', 'ack-isolated', 'ack-vented', 'ack-flushed']) {
         await page.getByTestId(ack).getByRole('button', { name: 'Confirm' }).click();
         await page.locator(`[data-testid="${ack}"][data-done="true"]`).waitFor();

@@ -80,7 +80,7 @@ beforeAll(async () => {
   const stds = (await tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
   const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
   const c = stds.find((s: { kind: string }) => s.kind === 'current');
-  await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-WS', operatorsInformed: true, isolated: true, vented: true });
+  await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-WS', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
 });
 
 afterAll(async () => {

@@ -43,11 +43,11 @@ describe('instrument CSV import', () => {
     const byRow = Object.fromEntries(rep.rows.map((x: { row: number }) => [x.row, x]));
     expect(byRow[1]).toMatchObject({ ok: true, key: 'FT-901', line: 2, value: { tag: 'FT-901', lrv: 0, urv: 100, lastCalibratedOn: '2026-01-15' } });
     expect(byRow[2]).toMatchObject({ ok: false, key: 'FT-903', line: 3 });
-    expect(byRow[2].errors.lrv).toEqual(['LRV must be a number']);
+    expect(byRow[2].errors.lrv).toEqual(['Enter the LRV as a number']);
     expect(byRow[3]).toMatchObject({ ok: true, value: { service: 'Test header, north', notes: 'quoted, with comma' } });
     expect(byRow[4].errors.unit).toBeDefined();
     expect(byRow[5].errors.tag).toEqual(['Already registered']);
-    expect(byRow[6].errors).toMatchObject({ urv: ['LRV and URV must differ'], lastCalibratedOn: ['No such date'] });
+    expect(byRow[6].errors).toMatchObject({ urv: ['The LRV and URV must differ'], lastCalibratedOn: ['No such date'] });
     expect(byRow[6].errors.intervalDays).toBeDefined();
     expect(await total()).toBe(n0);
     expect(await auditCount('instrument.created')).toBe(0);
@@ -140,19 +140,19 @@ describe('CSV export', () => {
 });
 
 describe('standards CSV', () => {
-  const SH = 'kind,description,serial,rangeMin,rangeMax,unit,pctReading,pctFullScale,floor,certificateU,certificateK,resolution,certificateNo,calibratedOn,dueOn';
+  const SH = 'kind,description,serial,rangeMin,rangeMax,unit,pctReading,pctFullScale,floor,certificateU,certificateK,resolution,certificateNo,calibratedOn,dueOn,calibratingLab';
   it('dry-runs, refuses bad rows, then imports and exports', async () => {
-    const good = 'pressure,Test module 0–7 bar,T-STD-1,0,700,kPa,0.02,0.01,0,,,0.01,TCL-1,2026-01-01,2027-01-01';
-    const bad = 'current,Meter with dates reversed,T-STD-2,0,24,mA,0.05,0,0.002,,,0.001,TCL-2,2026-06-01,2026-01-01';
+    const good = 'pressure,Test module 0–7 bar,T-STD-1,0,700,kPa,0.02,0.01,0,,,0.01,TCL-1,2026-01-01,2027-01-01,Harbourside Pressure Laboratory';
+    const bad = 'current,Meter with dates reversed,T-STD-2,0,24,mA,0.05,0,0.002,,,0.001,TCL-2,2026-06-01,2026-01-01,';
     const r = await lead.post('/api/standards/import', { csv: [SH, good, bad].join('\n') });
     expect(r.body).toMatchObject({ valid: 1, invalid: 1 });
-    expect(r.body.rows[1].errors.dueOn).toEqual(['Due date must follow the calibration date']);
+    expect(r.body.rows[1].errors.dueOn).toEqual(['The due date must come after the calibration date']);
     expect((await lead.post('/api/standards/import', { csv: [SH, good, bad].join('\n'), confirm: 'true' })).status).toBe(400);
     expect((await lead.get('/api/standards?q=T-STD')).body.total).toBe(0);
     const ok = await lead.post('/api/standards/import', { csv: [SH, good].join('\n'), confirm: true });
     expect(ok.status).toBe(201);
     const std = (await lead.get('/api/standards?q=T-STD-1')).body.items[0];
-    expect(std).toMatchObject({ serial: 'T-STD-1', rangeMax: 700, accuracy: { pctReading: 0.02, pctFullScale: 0.01, floor: 0, certificateU: null } });
+    expect(std).toMatchObject({ serial: 'T-STD-1', calibratingLab: 'Harbourside Pressure Laboratory', rangeMax: 700, accuracy: { pctReading: 0.02, pctFullScale: 0.01, floor: 0, certificateU: null } });
     const text = await (await fetch(`${srv.url}/api/standards/export.csv`, { headers: { cookie: lead.cookie } })).text();
     expect(text.split('\r\n')[0]).toBe(SH);
     expect(text).toContain('T-STD-1');

@@ -21,3 +21,16 @@ export const outboxMessages = pgTable(
   },
   (t) => [index('outbox_messages_received_idx').on(t.receivedAt)],
 );
+
+/**
+ * Scheduled mail: the last slot each schedule ran for. A schedule claims a slot (its most recent
+ * due time) by moving `lastSlot` forward in one statement before sending, so a restart, or a second
+ * server on the same database, never sends the same slot twice.
+ */
+export const mailSchedules = pgTable('mail_schedules', {
+  name: text('name').primaryKey(),
+  /** The scheduled time this schedule last ran for. */
+  lastSlot: timestamp('last_slot', { withTimezone: true }).notNull(),
+  /** When it actually ran. */
+  lastRunAt: timestamp('last_run_at', { withTimezone: true }).notNull(),
+});

@@ -1,4 +1,4 @@
-import { date, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { boolean, date, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 
 export const instruments = pgTable('instruments', {
   id: uuid('id').primaryKey().defaultRandom(),
@@ -15,6 +15,8 @@ export const instruments = pgTable('instruments', {
   tolerancePct: doublePrecision('tolerance_pct').notNull(),
   intervalDays: integer('interval_days').notNull(),
   primaryElement: jsonb('primary_element'),
+  /** The process medium is hazardous: the flush before opening is required. */
+  hazardousMedium: boolean('hazardous_medium').notNull().default(false),
   notes: text('notes').notNull().default(''),
   lastCalibratedOn: date('last_calibrated_on'),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
@@ -32,6 +34,8 @@ export const standards = pgTable('standards', {
   accuracy: jsonb('accuracy').notNull(),
   resolution: doublePrecision('resolution').notNull(),
   certificateNo: text('certificate_no').notNull(),
+  /** The laboratory that calibrated the standard ('' when not recorded). */
+  calibratingLab: text('calibrating_lab').notNull().default(''),
   calibratedOn: date('calibrated_on').notNull(),
   dueOn: date('due_on').notNull(),
   certificateFileId: text('certificate_file_id'),

@@ -13,3 +13,13 @@ describe('SafetyNote', () => {
     expect(text).toContain('Follow your site procedures, local codes and licensed practice; Stillpoint does not replace them.');
   });
 });
+
+describe('SafetyNote on return to service', () => {
+  it('shows the return cautions open, not behind a disclosure, and still defers to site procedures', () => {
+    render(<SafetyNote stage="return" />);
+    const note = screen.getByRole('complementary', { name: 'Safety cautions' });
+    expect(note.querySelector('details')).toBeNull();
+    expect(note.textContent).toContain('Remove any interlock bypass');
+    expect(note.textContent).toContain('Follow your site procedures, local codes and licensed practice');
+  });
+});

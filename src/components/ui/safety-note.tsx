@@ -3,6 +3,8 @@ import { cn } from '../../lib/cn';
 export interface SafetyNoteProps {
   /** One-line summary with the full list behind a disclosure. */
   compact?: boolean;
+  /** Which cautions: before the work (default) or on returning the loop to service. */
+  stage?: 'before' | 'return';
   className?: string;
 }
 
@@ -13,14 +15,21 @@ const CAUTIONS = [
   'Do not overpressure the transmitter or the calibrator: check both ranges and the static pressure rating first.',
 ];
 
+const RETURN_CAUTIONS = [
+  'Remove any interlock bypass, and have it recorded as removed, before the loop goes back to the operators.',
+  'Restore the manifold in the order the procedure gives (equalising valve closed last) so the transmitter never sees full static pressure on one side.',
+  'Check for leaks at every fitting you opened, and that drains and vents are closed.',
+  'Tell the control room the reading is live again, and watch it return to a plausible process value.',
+];
+
 const DEFER = 'Follow your site procedures, local codes and licensed practice; Stillpoint does not replace them.';
 
 /** The usual cautions shown before bench or field work on a transmitter. */
-export function SafetyNote({ compact = false, className }: SafetyNoteProps) {
+export function SafetyNote({ compact = false, stage = 'before', className }: SafetyNoteProps) {
   const body = (
     <>
       <ul className="mt-2 list-disc space-y-1 pl-5">
-        {CAUTIONS.map((c) => (
+        {(stage === 'return' ? RETURN_CAUTIONS : CAUTIONS).map((c) => (
           <li key={c}>{c}</li>
         ))}
       </ul>
@@ -38,7 +47,7 @@ export function SafetyNote({ compact = false, className }: SafetyNoteProps) {
           <path d="M10 8v4" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />
           <circle cx="10" cy="14.3" r="0.9" fill="currentColor" />
         </svg>
-        Safety
+        {stage === 'return' ? 'Safety on return to service' : 'Safety'}
       </div>
       {compact ? (
         <details className="mt-1">

@@ -16,12 +16,16 @@ function Num({ label, value, onChange, step = 0.05, unit, testId }: { label: str
   );
 }
 
+const PHASE_WORDS: Record<string, string> = { 'pre-position': 'moving to the start side', approach: 'approaching', dwell: 'holding' };
+
 /** Demo mode (admin, BENCH=sim): drive the simulated rig — transmitter errors, noise, leak, overshoot, faults, autopilot. */
 export function SimControls() {
   const snap = useSimSnapshot(true);
   const control = useSimControl();
   const t = snap.data?.transmitter;
   const s = snap.data?.sourceConfig;
+  const source = (snap.data as { source?: { setpoint?: unknown } } | undefined)?.source;
+  const setpointNow = typeof source?.setpoint === 'number' ? source.setpoint : undefined;
   const [form, setForm] = useState<Record<string, string>>({});
   const val = (k: string, current: number | undefined) => form[k] ?? (current === undefined ? '' : String(current));
   const set = (k: string) => (v: string) => setForm((f) => ({ ...f, [k]: v }));
@@ -50,7 +54,15 @@ export function SimControls() {
         {snap.data?.autopilot && (
           <>
             {' '}
-            · autopilot at point <span className="num">{snap.data.autopilot.index + 1}</span>/<span className="num">{snap.data.autopilot.points}</span> ({snap.data.autopilot.phase})
+            ·{' '}
+            {snap.data.autopilot.phase === 'done' ? (
+              'autopilot finished'
+            ) : (
+              <>
+                autopilot at point <span className="num">{Math.min(snap.data.autopilot.index + 1, snap.data.autopilot.points)}</span> of{' '}
+                <span className="num">{snap.data.autopilot.points}</span> ({PHASE_WORDS[snap.data.autopilot.phase] ?? snap.data.autopilot.phase})
+              </>
+            )}
           </>
         )}
       </p>
@@ -101,6 +113,22 @@ export function SimControls() {
           </div>
         </fieldset>
         <fieldset className="flex flex-col gap-3">
+          <legend className="text-sm font-semibold text-ink">Pump setpoint</legend>
+          <p className="text-sm text-ink-muted">Move the pump by hand to a pressure (stops the autopilot). Overshoot is the fraction of the step the pump goes past on the way.</p>
+          <div className="flex flex-wrap gap-4">
+            <Num label="Setpoint" unit={snap.data?.unit ?? ''} step={0.1} value={val('setpoint', setpointNow)} onChange={set('setpoint')} testId="sim-setpoint" />
+            <Num label="Overshoot" unit="fraction of step" step={0.05} value={val('spOver', 0)} onChange={set('spOver')} testId="sim-setpoint-overshoot" />
+          </div>
+          <div className="flex flex-wrap gap-2">
+            <Button size="sm" onClick={() => send({ setpoint: { value: n('setpoint', setpointNow), overshoot: Math.max(0, n('spOver', 0)) } }, 'Pump moving to the setpoint')} data-testid="sim-setpoint-go">
+              Move the pump
+            </Button>
+            <Button size="sm" variant="secondary" onClick={() => send({ setpoint: { value: 0 } }, 'Vented to zero')}>
+              Vent to zero
+            </Button>
+          </div>
+        </fieldset>
+        <fieldset className="flex flex-col gap-3">
           <legend className="text-sm font-semibold text-ink">Faults</legend>
           <div className="flex flex-wrap gap-2">
             {(['pressure', 'current'] as const).map((d) => {
@@ -118,7 +146,10 @@ export function SimControls() {
         </fieldset>
         <fieldset className="flex flex-col gap-3">
           <legend className="text-sm font-semibold text-ink">Autopilot</legend>
-          <p className="text-sm text-ink-muted">A careful technician at the pump for the bench&apos;s active run: approaches each point from the correct side and dwells for the hold.</p>
+          <p className="text-sm text-ink-muted">
+            A careful technician at the pump for the bench&apos;s active run: starts at the run&apos;s current point, follows it when you redo a point, approaches from the correct side
+            (again after an overshoot) and dwells for the hold.
+          </p>
           <div className="flex flex-wrap gap-2">
             <Button size="sm" onClick={() => send({ autopilot: { speed: 4 } }, 'Autopilot started')} data-testid="sim-autopilot">
               Start autopilot

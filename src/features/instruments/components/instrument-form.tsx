@@ -1,20 +1,21 @@
 import { zodResolver } from '@hookform/resolvers/zod';
+import { useRef, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { PRESSURE_UNIT_IDS } from '../../../../shared/calc/units';
-import { CUTOFF_MODES, INSTRUMENT_KINDS, InstrumentInputSchema, OUTPUT_MODES, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
+import { CUTOFF_MODES, INSTRUMENT_KINDS, InstrumentInputSchema, isReversedRange, OUTPUT_MODES, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { isApiError } from '../../../lib/api-client';
+import { applyServerErrors } from '../../../lib/form-errors';
 import { unitLabel } from '../../../lib/format';
 import { useSaveInstrument } from '../api/get-instruments';
 import { OUTPUT_MODE_LABELS } from './instruments-table';
 
-const FIELDS = ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'notes'] as const;
+const FIELDS = ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'hazardousMedium', 'notes'] as const;
 const CUTOFF_LABELS = { none: 'None', clamp: 'Clamp to zero below the cutoff', linear: 'Linear below the breakpoint' } as const;
 const KIND_LABELS = { 'dp-flow': 'DP flow', pressure: 'Pressure', 'dp-level': 'DP level' } as const;
 
 function toInput(i: Instrument | null): InstrumentInput {
-  if (!i) return { tag: '', kind: 'dp-flow', service: '', location: '', lrv: 0, urv: 100, unit: 'kPa', outputMode: 'sqrt-transmitter', cutoffMode: 'none', cutoffValue: 0, tolerancePct: 0.5, intervalDays: 365, primaryElement: null, notes: '' };
+  if (!i) return { tag: '', kind: 'dp-flow', service: '', location: '', lrv: 0, urv: 100, unit: 'kPa', outputMode: 'sqrt-transmitter', cutoffMode: 'none', cutoffValue: 0, tolerancePct: 0.5, intervalDays: 365, primaryElement: null, hazardousMedium: false, notes: '' };
   return {
     tag: i.tag,
     kind: i.kind,
@@ -29,6 +30,7 @@ function toInput(i: Instrument | null): InstrumentInput {
     tolerancePct: i.tolerancePct,
     intervalDays: i.intervalDays,
     primaryElement: i.primaryElement,
+    hazardousMedium: i.hazardousMedium,
     notes: i.notes,
   };
 }
@@ -36,26 +38,25 @@ function toInput(i: Instrument | null): InstrumentInput {
 /** Create or edit an instrument with the shared schema; the server's field errors appear in place. */
 export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: Instrument | null; onSaved: (i: Instrument) => void; onCancel: () => void }) {
   const save = useSaveInstrument(instrument?.id ?? null);
+  // A reversed range is legitimate for some level and pressure service: asked about once, not refused.
+  const [askReversed, setAskReversed] = useState(false);
+  const reversedConfirmed = useRef(false);
   const {
     register,
     handleSubmit,
     setError,
     formState: { errors, isSubmitting },
-  } = useForm<InstrumentInput>({ resolver: zodResolver(InstrumentInputSchema) as never, defaultValues: toInput(instrument) });
+  } = useForm<InstrumentInput>({ resolver: zodResolver(InstrumentInputSchema) as never, defaultValues: toInput(instrument), criteriaMode: 'all' });
   const onSubmit = handleSubmit(async (values) => {
+    if (isReversedRange(values) && !reversedConfirmed.current) {
+      setAskReversed(true);
+      return;
+    }
+    setAskReversed(false);
     try {
       onSaved(await save.mutateAsync(values));
     } catch (e) {
-      if (!isApiError(e)) return setError('root', { message: 'Something went wrong. Try again.' });
-      let placed = false;
-      for (const f of FIELDS) {
-        const m = e.fieldMessage(f);
-        if (m) {
-          setError(f, { message: m }, { shouldFocus: !placed });
-          placed = true;
-        }
-      }
-      if (!placed) setError('root', { message: e.message });
+      applyServerErrors(e, setError, FIELDS);
     }
   });
   const num = { valueAsNumber: true } as const;
@@ -78,7 +79,34 @@ export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: 
       <TextField label="Cutoff value (%)" type="number" step="any" error={errors.cutoffValue?.message} {...register('cutoffValue', num)} />
       <TextField label="Tolerance (± % of span)" type="number" step="any" error={errors.tolerancePct?.message} {...register('tolerancePct', num)} />
       <TextField label="Interval (days)" type="number" step="1" error={errors.intervalDays?.message} {...register('intervalDays', num)} />
+      <label className="flex items-start gap-2 text-sm sm:col-span-2">
+        <input type="checkbox" className="mt-0.5 size-4 accent-[var(--sp-accent)]" {...register('hazardousMedium')} />
+        <span>
+          <span className="font-medium text-ink">Hazardous medium</span>
+          <span className="block text-ink-muted">Toxic, flammable or hot (e.g. fuel gas, steam): the flush before opening becomes a required step on every job.</span>
+        </span>
+      </label>
       <TextField label="Notes" className="sm:col-span-2" error={errors.notes?.message} {...register('notes')} />
+      {askReversed && (
+        <div role="alert" data-testid="reversed-range" className="rounded-md border border-warn/50 bg-warn-soft px-3 py-3 text-sm text-ink sm:col-span-2">
+          <p className="font-medium">The LRV is above the URV: the output falls as the pressure rises.</p>
+          <p className="mt-1 text-ink-muted">That is right for some level and pressure service (a wet leg, a reverse-acting loop). On a flow transmitter it is usually a typing error.</p>
+          <div className="mt-2 flex flex-wrap gap-2">
+            <Button
+              size="sm"
+              onClick={() => {
+                reversedConfirmed.current = true;
+                void onSubmit();
+              }}
+            >
+              Save with the reversed range
+            </Button>
+            <Button size="sm" variant="secondary" onClick={() => setAskReversed(false)}>
+              Let me correct it
+            </Button>
+          </div>
+        </div>
+      )}
       <div className="flex justify-end gap-2 sm:col-span-2">
         <Button variant="secondary" onClick={onCancel}>
           Cancel

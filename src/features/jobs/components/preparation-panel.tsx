@@ -8,6 +8,7 @@ import { SafetyNote } from '../../../components/ui/safety-note';
 import { toast } from '../../../components/ui/toast';
 import { isApiError } from '../../../lib/api-client';
 import { cn } from '../../../lib/cn';
+import { ConditionsForm } from './conditions-form';
 import { formatStamp, SignedStep } from './signed-step';
 
 const DUE = { 'in-date': { label: 'In date', tone: 'ok' }, 'due-soon': { label: 'Due soon', tone: 'warn' }, expired: { label: 'Expired', tone: 'danger' } } as const;
@@ -88,7 +89,7 @@ export function PreparationPanel({ job, register, canEdit, save, saving }: Prepa
           />
           <SignedStep
             testId="ack-flushed"
-            label="Hazardous media flushed (where the site procedure asks for it)"
+            label={job.hazardousMedium ? 'Hazardous medium flushed (required: this tag is marked hazardous)' : 'Hazardous media flushed (where the site procedure asks for it)'}
             detail="Impulse lines and body flushed of toxic, flammable or hot media before opening."
             value={c.flushed}
             pending={pendingKey === 'flushed'}
@@ -97,6 +98,8 @@ export function PreparationPanel({ job, register, canEdit, save, saving }: Prepa
           />
         </div>
       </div>
+
+      <ConditionsForm job={job} locked={locked} save={save} />
     </div>
   );
 }
@@ -118,6 +121,7 @@ function StandardsChooser({
   const chosen = selected ?? job.checklist.standardIds;
   const dirty = selected !== null && [...selected].sort().join() !== [...job.checklist.standardIds].sort().join();
   const checked = new Map(job.standards.map((s) => [s.id, s]));
+  const fits = new Map((job.standardFits ?? []).map((f) => [f.id, f]));
   const toggle = (id: string) => setSelected((prev) => {
     const base = prev ?? job.checklist.standardIds;
     return base.includes(id) ? base.filter((x) => x !== id) : [...base, id];
@@ -134,6 +138,7 @@ function StandardsChooser({
           {register.map((s) => {
             const on = chosen.includes(s.id);
             const check = checked.get(s.id);
+            const fit = fits.get(s.id);
             const due = DUE[s.dueState];
             return (
               <li key={s.id}>
@@ -156,6 +161,17 @@ function StandardsChooser({
                       {s.kind === 'pressure' ? 'Pressure reference' : 'Current meter'} · <span className="num">{s.serial}</span> · cert{' '}
                       <span className="num">{s.certificateNo}</span> · due <span className="num">{s.dueOn}</span>
                     </span>
+                    {fit && (
+                      <span className="mt-0.5 block text-ink-muted" data-testid="standard-fit">
+                        TUR <span className="num text-ink">{formatRatio(fit.tur)} : 1</span> at this tolerance · resolution{' '}
+                        <span className="num text-ink">{formatRatio(fit.resolutionPctOfTolerance)} %</span> of the tolerance
+                      </span>
+                    )}
+                    {fit?.warning && (
+                      <span className="mt-0.5 block font-medium text-warn" data-testid="standard-fit-warning">
+                        Caution: {fit.warning}
+                      </span>
+                    )}
                     {check?.problem && (
                       <span className="mt-1 block font-medium text-danger" data-testid="standard-problem">
                         Cannot be used: {check.problem}
@@ -178,6 +194,11 @@ function StandardsChooser({
       )}
     </fieldset>
   );
+}
+
+/** A ratio or percentage to three significant figures, without trailing zeros. */
+function formatRatio(v: number): string {
+  return String(Number(v.toPrecision(3)));
 }
 
 function PermitField({ job, locked, pending, onSave }: { job: JobDetail; locked: boolean; pending: boolean; onSave: (v: string) => void }) {
@@ -227,23 +248,30 @@ function BypassBlock({
   const b = job.checklist.bypass;
   const [required, setRequired] = useState<boolean | null>(null);
   const [description, setDescription] = useState<string | null>(null);
+  // No default: until the technician answers, neither choice is selected.
   const req = required ?? b.required;
   const desc = description ?? b.description;
-  const dirty = req !== b.required || desc.trim() !== b.description;
+  const dirty = req !== null && (req !== b.required || desc.trim() !== b.description);
   const descError = req && description !== null && desc.trim() === '' ? 'Say which interlock is bypassed' : undefined;
   const fixed = !!b.recorded;
 
   return (
     <fieldset className="rounded-md border border-line p-4">
       <legend className="px-1 text-sm font-semibold tracking-wide text-ink-muted">Interlock bypass</legend>
+      <p className="mb-2 text-sm text-ink">Is an interlock bypass needed for this work?</p>
       <div className="flex flex-wrap gap-4 text-sm" role="radiogroup" aria-label="Is an interlock bypass needed?">
         <label className="flex items-center gap-2">
-          <input type="radio" name="bypass" checked={!req} disabled={locked || fixed} onChange={() => setRequired(false)} /> No bypass needed
+          <input type="radio" name="bypass" checked={req === false} disabled={locked || fixed} onChange={() => setRequired(false)} /> No bypass needed
         </label>
         <label className="flex items-center gap-2">
-          <input type="radio" name="bypass" checked={req} disabled={locked || fixed} onChange={() => setRequired(true)} /> A bypass is needed
+          <input type="radio" name="bypass" checked={req === true} disabled={locked || fixed} onChange={() => setRequired(true)} /> A bypass is needed
         </label>
       </div>
+      {b.required === null && !locked && (
+        <p className="mt-2 text-sm text-warn" data-testid="bypass-unanswered">
+          Not answered yet: choose one and save. The run waits for the answer.
+        </p>
+      )}
       {req && (
         <TextField
           className="mt-3 max-w-xl"
@@ -261,9 +289,9 @@ function BypassBlock({
           <Button
             size="sm"
             variant="secondary"
-            disabled={!dirty || (req && desc.trim() === '')}
+            disabled={!dirty || req === null || (req && desc.trim() === '')}
             loading={pendingKey === 'bypass'}
-            onClick={() => void run('bypass', { bypass: { required: req, description: req ? desc.trim() : '' } }, 'Bypass need saved')}
+            onClick={() => void run('bypass', { bypass: { required: req === true, description: req ? desc.trim() : '' } }, 'Bypass need saved')}
           >
             Save
           </Button>

@@ -12,7 +12,7 @@ export function ReturnPanel({ job, canEdit, save, saving }: { job: JobDetail; ca
     void save(patch).catch((e: unknown) => toast('Not saved', { tone: 'error', description: isApiError(e) || e instanceof Error ? e.message : undefined }));
   return (
     <div className="flex flex-col gap-3">
-      <SafetyNote compact />
+      <SafetyNote stage="return" />
       <div className="divide-y divide-line">
         {c.bypass.recorded && (
           <SignedStep

@@ -1,10 +1,13 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { CreateJobBodySchema, type CreateJobBody } from '../../../../shared/schemas/jobs';
 import type { NeedsJob } from '../../../../shared/schemas/records';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { isApiError } from '../../../lib/api-client';
+import { applyServerErrors } from '../../../lib/form-errors';
 import { relativeDays, siteToday } from '../../../lib/format';
 import { useCreateJob } from '../api/get-queue';
 
@@ -42,36 +45,50 @@ export function NeedsJobList({ items, technicians, canPlan }: { items: NeedsJob[
   );
 }
 
+const JOB_FIELDS = ['assigneeId', 'dueOn', 'notes'] as const;
+
 function CreateJobDialog({ item, technicians, onClose }: { item: NeedsJob; technicians: Array<{ id: string; name: string }>; onClose: () => void }) {
   const create = useCreateJob();
   const today = siteToday();
-  const [assigneeId, setAssigneeId] = useState('');
-  const [dueOn, setDueOn] = useState(item.nextDueOn && item.nextDueOn > today ? item.nextDueOn : today);
-  const [error, setError] = useState<string | null>(null);
+  const {
+    register,
+    handleSubmit,
+    setError,
+    formState: { errors, isSubmitting },
+  } = useForm<CreateJobBody>({
+    resolver: zodResolver(CreateJobBodySchema) as never,
+    criteriaMode: 'all',
+    defaultValues: { instrumentId: item.instrumentId, assigneeId: null, dueOn: item.nextDueOn && item.nextDueOn > today ? item.nextDueOn : today, notes: '' },
+  });
+  const onSubmit = handleSubmit(async (values) => {
+    try {
+      await create.mutateAsync(values);
+      onClose();
+    } catch (e) {
+      applyServerErrors(e, setError, JOB_FIELDS);
+    }
+  });
   return (
     <Dialog open onClose={onClose} title={`New job for ${item.tag}`} description={item.service}>
-      <form
-        className="flex flex-col gap-4"
-        onSubmit={(e) => {
-          e.preventDefault();
-          create.mutate(
-            { instrumentId: item.instrumentId, assigneeId: assigneeId || null, dueOn },
-            { onSuccess: onClose, onError: (err) => setError(isApiError(err) ? (err.fieldMessage('assigneeId') ?? err.fieldMessage('dueOn') ?? err.message) : String(err)) },
-          );
-        }}
-      >
-        {error && (
+      <form className="flex flex-col gap-4" onSubmit={onSubmit} noValidate aria-label={`New job for ${item.tag}`}>
+        {errors.root?.message && (
           <p role="alert" className="text-sm text-danger">
-            {error}
+            {errors.root.message}
           </p>
         )}
-        <SelectField label="Technician" value={assigneeId} onChange={(e) => setAssigneeId(e.target.value)} options={[{ value: '', label: 'Not assigned yet' }, ...technicians.map((t) => ({ value: t.id, label: t.name }))]} />
-        <TextField label="Due on" type="date" value={dueOn} onChange={(e) => setDueOn(e.target.value)} />
+        <SelectField
+          label="Technician"
+          options={[{ value: '', label: 'Not assigned yet' }, ...technicians.map((t) => ({ value: t.id, label: t.name }))]}
+          error={errors.assigneeId?.message}
+          {...register('assigneeId', { setValueAs: (v: string | null) => v || null })}
+        />
+        <TextField label="Due on" type="date" error={errors.dueOn?.message} {...register('dueOn')} />
+        <TextField label="Notes for the technician" hint="Optional: access, spares, anything the job needs." error={errors.notes?.message} {...register('notes')} />
         <div className="flex justify-end gap-2">
           <Button variant="secondary" onClick={onClose}>
             Cancel
           </Button>
-          <Button type="submit" loading={create.isPending}>
+          <Button type="submit" loading={isSubmitting || create.isPending}>
             Create job
           </Button>
         </div>

@@ -462,6 +462,6 @@ function buildBanners({
   if (ne && !out.has('ne43')) out.set('ne43', { kind: 'ne43', message: ne });
   if (values.unitProblem) out.set('unit', { kind: 'unit', message: values.unitProblem });
   if (streamStatus === 'reconnecting') out.set('stream', { kind: 'stream', message: 'The live connection to the bench dropped; reconnecting and catching up. Captures continue on the server.' });
-  const order: BannerItem['kind'][] = ['disconnect', 'leak', 'overshoot', 'ne43', 'unstable', 'clock', 'unit', 'stream'];
+  const order: BannerItem['kind'][] = ['overrange', 'disconnect', 'leak', 'overshoot', 'ne43', 'unstable', 'clock', 'unit', 'stream'];
   return order.flatMap((k) => (out.has(k) ? [out.get(k)!] : []));
 }

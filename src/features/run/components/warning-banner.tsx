@@ -2,7 +2,7 @@ import type { ReactNode } from 'react';
 import { cn } from '../../../lib/cn';
 import { formatNumber } from '../../../lib/format';
 
-export type BannerKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock' | 'unit' | 'stream';
+export type BannerKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock' | 'unit' | 'stream' | 'overrange';
 
 const STYLE: Record<BannerKind, { title: string; className: string }> = {
   leak: { title: 'Leak', className: 'border-flag-leak bg-flag-leak/12 text-flag-leak' },
@@ -13,6 +13,7 @@ const STYLE: Record<BannerKind, { title: string; className: string }> = {
   clock: { title: 'Sender clock not plausible', className: 'border-warn bg-warn-soft text-warn' },
   unit: { title: 'Unit mismatch', className: 'border-danger bg-danger-soft text-danger' },
   stream: { title: 'Live data interrupted', className: 'border-warn bg-warn-soft text-warn' },
+  overrange: { title: 'Over range', className: 'border-danger bg-danger-soft text-danger' },
 };
 
 export interface BannerItem {

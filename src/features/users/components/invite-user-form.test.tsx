@@ -58,7 +58,7 @@ describe('InviteUserForm', () => {
     renderWithProviders(<InviteUserForm onInvited={() => {}} />);
     fireEvent.input(screen.getByLabelText('Initial password'), { target: { value: 'short' } });
     fireEvent.click(screen.getByRole('button', { name: 'Invite' }));
-    expect(await screen.findByText('At least 10 characters')).toBeTruthy();
+    expect(await screen.findByText('Use at least 10 characters')).toBeTruthy();
     expect(screen.getByText('Enter a name')).toBeTruthy();
     expect(f.calls).toHaveLength(0);
   });

@@ -4,7 +4,7 @@ import { ROLES } from '../../../../shared/schemas/auth';
 import { InviteUserBodySchema, type InviteUserBody, type User } from '../../../../shared/schemas/users';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { isApiError } from '../../../lib/api-client';
+import { applyServerErrors } from '../../../lib/form-errors';
 import { ROLE_LABELS } from '../../../lib/authorization';
 import { useInviteUser } from '../api/invite-user';
 
@@ -23,6 +23,7 @@ export function InviteUserForm({ onInvited, onCancel }: InviteUserFormProps) {
     formState: { errors, isSubmitting },
   } = useForm<InviteUserBody, unknown, InviteUserBody>({
     resolver: zodResolver(InviteUserBodySchema),
+    criteriaMode: 'all',
     defaultValues: { email: '', name: '', role: 'technician', password: '' },
   });
   const invite = useInviteUser();
@@ -32,20 +33,8 @@ export function InviteUserForm({ onInvited, onCancel }: InviteUserFormProps) {
       const user = await invite.mutateAsync(values);
       onInvited(user);
     } catch (e) {
-      if (!isApiError(e)) {
-        setError('root', { message: 'Something went wrong. Try again.' });
-        return;
-      }
-      // Server field errors go next to their field; anything else above the form.
-      let placed = false;
-      for (const f of FIELDS) {
-        const msg = e.fieldMessage(f);
-        if (msg) {
-          setError(f, { message: msg }, { shouldFocus: !placed });
-          placed = true;
-        }
-      }
-      if (!placed) setError('root', { message: e.message });
+      // Server field errors go next to their field, all at once; anything else above the form.
+      applyServerErrors(e, setError, FIELDS);
     }
   });
 

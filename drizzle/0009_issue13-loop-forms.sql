@@ -10,6 +10,14 @@ CREATE TABLE "return_replies" (
 	CONSTRAINT "return_replies_signature_uq" UNIQUE("signature_id")
 );
 --> statement-breakpoint
+CREATE TABLE "mail_schedules" (
+	"name" text PRIMARY KEY NOT NULL,
+	"last_slot" timestamp with time zone NOT NULL,
+	"last_run_at" timestamp with time zone NOT NULL
+);
+--> statement-breakpoint
+ALTER TABLE "instruments" ADD COLUMN "hazardous_medium" boolean DEFAULT false NOT NULL;--> statement-breakpoint
+ALTER TABLE "standards" ADD COLUMN "calibrating_lab" text DEFAULT '' NOT NULL;--> statement-breakpoint
 ALTER TABLE "attachments" ADD COLUMN "removed_at" timestamp with time zone;--> statement-breakpoint
 ALTER TABLE "attachments" ADD COLUMN "removed_by" uuid;--> statement-breakpoint
 ALTER TABLE "attachments" ADD COLUMN "removed_reason" text;--> statement-breakpoint
