@@ -20,6 +20,7 @@ import {
 import type { CapturedBy, PointCapture, PointFlag, PointState, SampleSource } from '../../shared/schemas/runs';
 import type { RunEvent } from '../../shared/schemas/stream';
 import type { BenchHub, HubEntry } from './hub';
+import { dpDecimals, formatFixed, unitLabel } from '../../shared/format';
 
 /** Run settings frozen at start. */
 export interface EngineRunSettings {
@@ -301,7 +302,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     if (isPressureUnitId(unit) && isPressureUnitId(r.s.unit)) return convertPressure(value, unit, r.s.unit);
     if (!r.unitWarned) {
       r.unitWarned = true;
-      this.warn(r, 'unstable', `The calibrator reads in ${unit}, which cannot be converted to ${r.s.unit}`, null);
+      this.warn(r, 'unstable', `The calibrator reads in ${unitLabel(unit)}, which cannot be converted to ${unitLabel(r.s.unit)}`, null);
     }
     return value;
   }
@@ -343,7 +344,7 @@ export class CaptureEngine extends EventEmitter<{ event: [EngineEvent] }> {
     if (value > limit) {
       if (r.overrangeWarned) return;
       r.overrangeWarned = true;
-      this.warn(r, 'overrange', `The applied pressure ${round(value)} ${r.s.unit} is past the over-range limit of ${round(limit)} ${r.s.unit}: release pressure now to protect the transmitter`, null);
+      this.warn(r, 'overrange', `The applied pressure ${formatFixed(value, dpDecimals(r.s.dpSpan))} ${unitLabel(r.s.unit)} is past the over-range limit of ${formatFixed(limit, dpDecimals(r.s.dpSpan))} ${unitLabel(r.s.unit)}: release pressure now to protect the transmitter`, null);
     } else if (value < limit - 0.02 * r.s.dpSpan) r.overrangeWarned = false; // re-arm once clearly back below (2 % of span; our own choice)
   }
 
