@@ -28,11 +28,11 @@ function run(cmd: string, args: string[]): string {
   return r.stdout;
 }
 
-/** The certificate's number format: fixed decimals, ASCII minus, a plus sign on signed values, no negative zero. */
+/** A value as the certificate prints it: the one sign rule of shared/format (U+2212, + when signed, no signed zero). */
 function printed(n: number, decimals: number, signed = false): string {
-  const s = n.toFixed(decimals);
-  const clean = /^-0\.?0*$/.test(s) ? s.slice(1) : s;
-  return signed && !clean.startsWith('-') ? `+${clean}` : clean;
+  const s = n.toFixed(decimals).replace(/^-/, '\u2212');
+  const clean = /^\u22120\.?0*$/.test(s) ? s.slice(1) : s;
+  return signed && !clean.startsWith('\u2212') && !/^0\.?0*$/.test(clean) ? `+${clean}` : clean;
 }
 
 let srv: TestServer;
