@@ -10,7 +10,7 @@ export async function demoStandards(srv: TestServer) {
 
 /** The technician completes the checklist of a job (standards, permit, acknowledgements, return to service). */
 export async function completeChecklist(tech: ApiClient, jobId: string, standardIds: string[]) {
-  const a = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds, permitNo: 'PTW-T-0099' });
+  const a = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds, permitNo: 'PTW-T-0099', bypass: { required: false, description: '' } });
   if (a.status !== 200) throw new Error(`checklist: ${a.status} ${JSON.stringify(a.body)}`);
   const b = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { operatorsInformed: true, isolated: true, vented: true, returnedToService: true });
   if (b.status !== 200) throw new Error(`checklist: ${b.status} ${JSON.stringify(b.body)}`);
