@@ -26,6 +26,7 @@ import type { Db } from '../db/client';
 import { instrumentRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
 import { reviewRepository } from '../db/repositories/review.repository';
 import { userRepository } from '../db/repositories/user.repository';
+import { orificeSpecOf, PrimaryElementSchema } from '../../shared/schemas/instruments';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import { createAuditService, type AuditService } from './audit.service';
 import { addDays, isoDate } from './dates';
@@ -130,7 +131,17 @@ export async function recordCompletedRun(db: Db, s: CompletedRunSpec): Promise<{
   const endedAt = new Date(t0 + pts.length * perPoint * 1000 + 2000);
   const decisionRule = s.decisionRule ?? 'guard-band';
   const evaluated = evaluateCalibration({
-    instrument: { lrv: i.lrv, urv: i.urv, unit: i.unit as PressureUnitId, outputMode: i.outputMode as OutputMode, cutoffMode: i.cutoffMode, cutoffValue: i.cutoffValue, tolerancePctSpan: i.tolerancePct },
+    instrument: {
+      lrv: i.lrv,
+      urv: i.urv,
+      unit: i.unit as PressureUnitId,
+      outputMode: i.outputMode as OutputMode,
+      cutoffMode: i.cutoffMode,
+      cutoffValue: i.cutoffValue,
+      tolerancePctSpan: i.tolerancePct,
+      // Flow in engineering units for a tag with an orifice, as a live run evaluates it.
+      primaryElement: primaryElementOf(i.primaryElement),
+    },
     standards: { pressure: pressureSpec(s.pressureStandard), current: currentSpec(s.currentStandard) },
     decisionRule,
     readings: captured.map(({ p, capture }) => ({
@@ -425,4 +436,10 @@ function demoChecklist(pressureId: string, currentId: string, who: { id: string;
     vented: s,
     returnedToService: stamp(who, new Date(at.getTime() + 3 * 3600_000)),
   };
+}
+
+/** The orifice spec of an instrument's stored primary element, or null (none, or not an orifice). */
+function primaryElementOf(stored: unknown): ReturnType<typeof orificeSpecOf> | null {
+  const pe = PrimaryElementSchema.nullable().catch(null).parse(stored ?? null);
+  return pe ? (orificeSpecOf(pe) ?? null) : null;
 }
