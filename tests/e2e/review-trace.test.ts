@@ -84,8 +84,9 @@ describe('the lead reviews a point’s raw trace and signs', () => {
       await page.getByTestId('signatures').getByText('Bram Oduya').waitFor();
       await page.getByRole('button', { name: 'Correct (new revision)' }).waitFor();
       const trail = page.getByTestId('job-audit');
-      await trail.getByText('signature.failed').waitFor();
-      await trail.getByText('job.approved').waitFor();
+      // The trail reads in words (the slugs stay in the stored rows).
+      await trail.getByText('Signature refused: wrong password').waitFor();
+      await trail.getByText('Approved', { exact: true }).waitFor();
 
       expect(offHost).toEqual([]);
       expect(errors).toEqual([]);

@@ -10,7 +10,7 @@ const PASSWORD = 'stillpoint-demo';
 const SHARED = ['queue', 'instruments', 'standards', 'bench', 'records'];
 const CASES = [
   { user: 'tech', role: 'Technician', nav: SHARED },
-  { user: 'lead', role: 'Lead', nav: [...SHARED, 'audit'] },
+  { user: 'lead', role: 'Lead', nav: [...SHARED, 'review', 'audit'] },
   { user: 'admin', role: 'Admin', nav: [...SHARED, 'audit', 'users', 'outbox'] },
   { user: 'auditor', role: 'Auditor', nav: [...SHARED, 'audit'] },
 ] as const;
