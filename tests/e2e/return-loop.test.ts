@@ -98,8 +98,13 @@ describe('the return loop in the browser', () => {
 
     // 3. The technician replies and resubmits.
     await techPage.getByLabel(/Your reply to Bram Oduya/).fill(REPLY);
+    await techPage.waitForSelector('[data-testid="submit-job"]:not([disabled])');
     await techPage.getByTestId('submit-job').click();
-    await techPage.getByText('Submitted for review.').waitFor();
+    // Submission freezes the record: on a loaded machine give it time, and report a refusal in its own words.
+    const done = techPage.getByText('Submitted for review.');
+    const refused = techPage.getByText('Not submitted');
+    await done.or(refused).first().waitFor({ timeout: 90_000 });
+    if (await refused.count()) throw new Error(`resubmission refused: ${await techPage.locator('body').innerText()}`);
     await techPage.getByTestId('return-notice').waitFor({ state: 'detached' });
     const resubmitted = await mailText(/^Resubmitted for review: FT-101$/, demoEmail('lead'));
     expect(resubmitted).toContain(REPLY);
