@@ -28,8 +28,9 @@ describe('capture engine: over-range warning', () => {
   it('warns once when the applied pressure passes the URV by more than the margin, naming the value and the limit', () => {
     const warned = run((t) => (t < 2 ? 12 * t : 30), 6, limit);
     expect(warned).toHaveLength(1);
-    expect(warned[0]!.message).toContain('30 kPa');
-    expect(warned[0]!.message).toContain('27.5 kPa');
+    // DP written as the screens write it: the span's decimals (shared/format dpDecimals: 3 for a 25 kPa span).
+    expect(warned[0]!.message).toContain('30.000 kPa');
+    expect(warned[0]!.message).toContain('27.500 kPa');
   });
 
   it('stays quiet within the margin, and warns again after the pressure came back down and went over again', () => {
