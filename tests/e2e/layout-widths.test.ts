@@ -51,7 +51,7 @@ beforeAll(async () => {
   const stds = (await tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
   const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
   const c = stds.find((s: { kind: string }) => s.kind === 'current');
-  const r = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-88', operatorsInformed: true, isolated: true, vented: true });
+  const r = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-88', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
   expect(r.body.blockers).toEqual([]);
   const sim = await admin.post('/api/sim', { source: { leakPerMin: 0, overshoot: 0, noise: 0 }, setpoint: { value: 0 } });
   expect(sim.status).toBe(200);
