@@ -90,7 +90,7 @@ describe('the return loop in the browser', () => {
     const notice = techPage.getByTestId('return-notice');
     await notice.waitFor();
     expect(await notice.getByTestId('return-comment').innerText()).toBe(COMMENT);
-    expect(await notice.innerText()).toMatch(/Returned by Bram Oduya on \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
+    expect(await notice.innerText()).toMatch(/Returned by Bram Oduya on \d{4}-\d{2}-\d{2} \d{2}:\d{2}/);
     // The notice is the first thing under the page header, above the steps.
     const noticeTop = (await notice.boundingBox())!.y;
     const submitTop = (await techPage.getByTestId('submit-job').boundingBox())!.y;
@@ -100,6 +100,8 @@ describe('the return loop in the browser', () => {
     await techPage.getByLabel(/Your reply to Bram Oduya/).fill(REPLY);
     await techPage.waitForSelector('[data-testid="submit-job"]:not([disabled])');
     await techPage.getByTestId('submit-job').click();
+    // Submit asks for a confirmation that lists what goes to the lead.
+    await techPage.getByTestId('confirm-submit').click();
     // Submission freezes the record: on a loaded machine give it time, and report a refusal in its own words.
     const done = techPage.getByText('Submitted for review.');
     const refused = techPage.getByText('Not submitted');
@@ -118,7 +120,7 @@ describe('the return loop in the browser', () => {
     const text = await exchange.innerText();
     expect(text).toContain(COMMENT);
     expect(text).toMatch(/Bram Oduya returned it/);
-    expect(text).toMatch(/replied on resubmission \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
+    expect(text).toMatch(/replied on resubmission \d{4}-\d{2}-\d{2} \d{2}:\d{2}/);
     await leadPage.getByRole('button', { name: 'Approve…' }).click();
     const approve = leadPage.getByRole('dialog');
     await approve.getByLabel('Your password').fill(DEMO_PASSWORD);

@@ -90,6 +90,8 @@ describe('uploads in the browser', () => {
     await photos.getByTestId('job-photos-input').setInputFiles({ name: 'as-found nameplate.png', mimeType: 'image/png', buffer: tinyPng() });
     const photo = photos.getByRole('img', { name: 'photo: as-found nameplate.png' });
     await photo.waitFor();
+    // Thumbnails load lazily: bring it into view (the preparation step above it is long) before checking it decoded.
+    await photo.scrollIntoViewIfNeeded();
     await techPage.waitForFunction((el) => (el as HTMLImageElement).complete && (el as HTMLImageElement).naturalWidth > 0, await photo.elementHandle());
     await techPage.getByTestId('job-certificates').getByTestId('certificate-link').first().waitFor();
     await techCtx.close();
@@ -100,6 +102,7 @@ describe('uploads in the browser', () => {
     await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
     const reviewPhoto = leadPage.getByTestId('review-photos').getByRole('img', { name: 'photo: as-found nameplate.png' });
     await reviewPhoto.waitFor();
+    await reviewPhoto.scrollIntoViewIfNeeded();
     await leadPage.waitForFunction((el) => (el as HTMLImageElement).complete && (el as HTMLImageElement).naturalWidth > 0, await reviewPhoto.elementHandle());
     expect(await leadPage.getByTestId('review-photos').getByRole('button', { name: /Remove/ }).count()).toBe(0);
     const certLink = leadPage.getByTestId('standards-used').getByTestId('certificate-link');
