@@ -43,7 +43,9 @@ export function ResultsTable({
   const flowDec = flowDecimals(Math.max(0, ...results.points.map((p) => p.flow?.flow ?? 0)));
   return (
     <div className="flex flex-col gap-2" data-testid={testId}>
-      <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+      {/* A region that may scroll sideways on a narrow screen must be reachable by keyboard (WCAG 2.1.1). */}
+      {/* eslint-disable-next-line jsx-a11y/no-noninteractive-tabindex */}
+      <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card" role="region" aria-label={`${caption}, scrollable`} tabIndex={0}>
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted">
