@@ -190,6 +190,9 @@ export class SimRig {
     if (!this.plan || !this.pilot) return;
     this.advance();
     this.pilot = followPoint(this.plan, this.pilot, index, this.lastMs / 1000);
+    // The run ended (or was aborted) while the autopilot's own leak acted: the leak ends with it, as
+    // it does when the autopilot finishes a plan, so the next run does not start on a leaking rig.
+    if (this.pilot.phase === 'done' && this.plan.leak) this.sourceConfig = { ...this.sourceConfig, leakPerMin: 0 };
     this.pilotStep();
   }
 
