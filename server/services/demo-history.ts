@@ -330,26 +330,7 @@ export async function seedDemoHistory(
       }
       // Frozen as the lead signed it (the same record and hash a real submission and signature make).
       const signedAt = new Date(startedAt.getTime() + 2 * 86_400_000);
-      const detail: JobDetail = {
-        id: job.id,
-        instrumentId: inst.id,
-        tag: inst.tag,
-        status: 'submitted',
-        assigneeId: assignee.id,
-        assigneeName: assignee.name,
-        dueOn: on,
-        overdue: false,
-        permitNo: job.permitNo,
-        notes: job.notes,
-        revision: 1,
-        createdAt: job.createdAt.toISOString(),
-        updatedAt: job.updatedAt.toISOString(),
-        checklist: job.checklist as JobDetail['checklist'],
-        standards: [],
-        runs: [],
-        blockers: [],
-        submitBlockers: [],
-      };
+      const detail = demoJobDetail(job, inst, assignee);
       const hash = await freeze(detail, { id: assignee.id, name: assignee.name }, new Date(startedAt.getTime() + 86_400_000));
       await repo.insertSignature({
         jobId: job.id,
@@ -392,26 +373,7 @@ export async function seedDemoHistory(
     // Submitted: frozen at submission, as the review expects.
     const submittedAt = new Date(al.endedAt.getTime() + 60 * 60_000);
     await freeze(
-      {
-        id: job.id,
-        instrumentId: pending.id,
-        tag: pending.tag,
-        status: 'submitted',
-        assigneeId: tech.id,
-        assigneeName: tech.name,
-        dueOn: job.dueOn,
-        overdue: false,
-        permitNo: job.permitNo,
-        notes: job.notes,
-        revision: 1,
-        createdAt: job.createdAt.toISOString(),
-        updatedAt: job.updatedAt.toISOString(),
-        checklist: job.checklist as JobDetail['checklist'],
-        standards: [],
-        runs: [],
-        blockers: [],
-        submitBlockers: [],
-      },
+      demoJobDetail(job, pending, tech),
       { id: tech.id, name: tech.name },
       submittedAt,
     );
@@ -442,4 +404,32 @@ function demoChecklist(pressureId: string, currentId: string, who: { id: string;
 function primaryElementOf(stored: unknown): ReturnType<typeof orificeSpecOf> | null {
   const pe = PrimaryElementSchema.nullable().catch(null).parse(stored ?? null);
   return pe ? (orificeSpecOf(pe) ?? null) : null;
+}
+
+/** A demo job as the job service details it when it is submitted (what the frozen record is built from). */
+function demoJobDetail(
+  job: { id: string; dueOn: string; permitNo: string | null; notes: string; createdAt: Date; updatedAt: Date; checklist: unknown },
+  inst: { id: string; tag: string },
+  assignee: { id: string; name: string },
+): JobDetail {
+  return {
+    id: job.id,
+    instrumentId: inst.id,
+    tag: inst.tag,
+    status: 'submitted',
+    assigneeId: assignee.id,
+    assigneeName: assignee.name,
+    dueOn: job.dueOn,
+    overdue: false,
+    permitNo: job.permitNo,
+    notes: job.notes,
+    revision: 1,
+    createdAt: job.createdAt.toISOString(),
+    updatedAt: job.updatedAt.toISOString(),
+    checklist: job.checklist as JobDetail['checklist'],
+    standards: [],
+    runs: [],
+    blockers: [],
+    submitBlockers: [],
+  };
 }

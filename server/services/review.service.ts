@@ -1,4 +1,3 @@
-import { createHash } from 'node:crypto';
 import type { Db } from '../db/client';
 import { reviewRepository, type RunWithPoints, type SignatureRow } from '../db/repositories/review.repository';
 import { AppError, conflict, forbidden, locked, notFound } from '../errors';
@@ -16,7 +15,7 @@ import type {
   Signature,
   SnapshotRun,
 } from '../../shared/schemas/records';
-import { canonical, type AuditService } from './audit.service';
+import type { AuditService } from './audit.service';
 import type { AuthService, SessionUser } from './auth.service';
 import { createSiteClock } from './site-clock';
 import { dateInZone } from '../../shared/format/dates';
@@ -68,17 +67,6 @@ export function toSnapshotRun(r: RunWithPoints): SnapshotRun {
     endedAt: r.endedAt?.toISOString() ?? null,
     points: r.points.map((p) => ({ index: p.index, state: p.state, flags: p.flags, capture: p.capture ?? null, reason: p.reason })),
   };
-}
-
-/**
- * sha256 over the canonical JSON of a job detail and its runs: the record hash of records signed
- * before submissions were frozen (the demo history still writes these). New signatures carry
- * `frozenRecordHash` of the frozen record instead (record-snapshot.ts).
- */
-export function recordHash(job: JobDetail, runs: SnapshotRun[]): string {
-  // Volatile fields (blockers depend on today's date) are left out of what is signed.
-  const { blockers: _b, submitBlockers: _s, overdue: _o, updatedAt: _u, returned: _r, ...stable } = job;
-  return createHash('sha256').update(canonical({ job: stable, runs })).digest('hex');
 }
 
 /** Ids of the people who performed the work: the assignee, whoever started a run or captured a point. */
