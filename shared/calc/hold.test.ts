@@ -188,15 +188,8 @@ describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)'
   // default), white noise σ = 0.001 kPa (seeded). Relaxation after a step: 50 + A·exp(−t/τ) with
   // A = 0.5 kPa; thermal relaxation with τ of tens of seconds is common practice.
   function noise(seed: number) {
-    let a = seed >>> 0;
-    const u = () => {
-      a = (a + 0x6d2b79f5) >>> 0;
-      let t = a;
-      t = Math.imul(t ^ (t >>> 15), t | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-    };
-    return () => 0.001 * Math.sqrt(-2 * Math.log(u() + 1e-300)) * Math.cos(2 * Math.PI * u());
+    const g = normalSource(seededRng(seed));
+    return () => 0.001 * g();
   }
   const LIMIT = 0.1; // kPa/min
   function run(trace: (tS: number) => number, seconds: number, seed: number, check: (r: ReturnType<HoldAnalyzer['result']>, tS: number) => void) {
@@ -227,6 +220,28 @@ describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)'
       if (tau >= 10) expect(relaxationSeen).toBe(true);
     });
   }
+  // A trend that reverses is not a relaxation, whatever its s₃/s₁: a rise of 0.3 kPa/min (3 × the
+  // limit) for 20 s that turns into a fall at the same rate (a disturbance, or a leak that a valve
+  // change reverses) must not be excused as settling while the rise still dominates the fit (it is
+  // undetermined), and the fall that persists is flagged. Product criterion (hold.ts TrendVerdict), not a published value.
+  it('a trend that rises then falls is never classed as relaxation; the persistent fall is flagged', () => {
+    const r0 = 0.3; // kPa/min
+    const kinds = new Set<string>();
+    let last: ReturnType<HoldAnalyzer['result']> | undefined;
+    run(
+      (t) => 50 + (r0 / 60) * (t < 20 ? t : 40 - t),
+      50,
+      7,
+      (r, t) => {
+        if (t >= 30) kinds.add(r.trend.kind);
+        last = r;
+      },
+    );
+    expect(kinds.has('relaxation')).toBe(false);
+    expect(kinds.has('undetermined')).toBe(true);
+    expect(last?.trend.kind).toBe('leak');
+    expect(last?.trend.leakBeyondLimit).toBe(true);
+  });
   for (const f of [0.2, 0.5, 1, 2, 5]) {
     it(`a leak of ${f} × the limit is always flagged once three sub-windows are in, rate within 10 %`, () => {
       const rate = f * LIMIT; // kPa/min

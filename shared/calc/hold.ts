@@ -58,7 +58,7 @@ export interface HoldSettings {
  * decay over 2W means τ > 2W/ln(1/0.8) ≈ 9·W, 90 s at the default W = 10 s, which no longer
  * settles within a hold); otherwise it is a `leak` with rate S. A relaxation whose decay is lost
  * in the noise reads as a leak at its current (small) rate; only a leak beyond the leak limit is
- * flagged (`leakBeyondLimit`).
+ * flagged (`leakBeyondLimit`). `undetermined`: fewer than three sub-windows, or s₁ and s₃ significant and of opposite signs (a reversal).
  */
 export interface TrendVerdict {
   kind: 'none' | 'relaxation' | 'leak' | 'undetermined';
@@ -207,9 +207,19 @@ export class HoldAnalyzer {
     const ratio = a.slope !== 0 ? c.slope / a.slope : 0;
     // Decay: the first sub-window slope exceeds the last, in the direction of the trend, by more
     // than SLOPE_SIGNIFICANCE standard errors of their difference.
-    const decaying = Math.sign(slope) * (a.slope - c.slope) > SLOPE_SIGNIFICANCE * Math.hypot(a.se, c.se);
+    const dir = Math.sign(slope);
+    const decaying = dir * (a.slope - c.slope) > SLOPE_SIGNIFICANCE * Math.hypot(a.se, c.se);
+    // An exponential decay keeps its sign. A trend whose first and last sub-window slopes are both
+    // significant (beyond SLOPE_SIGNIFICANCE standard errors) and of opposite signs has reversed (a
+    // rise then a fall): neither a decay nor a steady leak, it is `undetermined` until the three
+    // sub-windows agree again (a fall that persists is then a leak).
+    const reversed =
+      Math.sign(a.slope) !== Math.sign(c.slope) && Math.abs(a.slope) > SLOPE_SIGNIFICANCE * a.se && Math.abs(c.slope) > SLOPE_SIGNIFICANCE * c.se;
     let kind: TrendVerdict['kind'] = 'none';
-    if (Number.isFinite(se) && Math.abs(slope) > SLOPE_SIGNIFICANCE * se) kind = decaying && ratio < LEAK_PERSISTENCE_RATIO ? 'relaxation' : 'leak';
+    if (Number.isFinite(se) && Math.abs(slope) > SLOPE_SIGNIFICANCE * se) {
+      if (reversed) kind = 'undetermined';
+      else kind = decaying && ratio < LEAK_PERSISTENCE_RATIO ? 'relaxation' : 'leak';
+    }
     const rate = kind === 'leak' ? slope : c.slope;
     return { kind, ratePerMin: rate, ratePctSpanPerMin: pct(rate), decayRatio: ratio, windows: this.subWindows };
   }
