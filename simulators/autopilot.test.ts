@@ -119,6 +119,10 @@ describe('autopilot follows the run (issue 13)', () => {
     const trace = fly(rig, clock, 40);
     const firstOver = trace.findIndex((s) => s.p > 50 + 0.5);
     expect(firstOver).toBeGreaterThan(-1); // the deliberate overshoot happened
+    // It stays past the window long enough for a bench reading it a few times a second to see it
+    // (the autopilot backs off only once the pump has settled, as a technician would).
+    const pastFor = trace.slice(firstOver).findIndex((s) => s.p <= 50 + 0.5);
+    expect(trace[firstOver + pastFor]!.t - trace[firstOver]!.t).toBeGreaterThanOrEqual(500);
     const after = trace.slice(firstOver);
     const backOff = after.findIndex((s) => s.phase === 'pre-position');
     expect(backOff).toBeGreaterThan(-1); // it went back to pre-position...

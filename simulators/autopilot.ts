@@ -53,6 +53,8 @@ export interface AutopilotState {
   released?: number;
   /** Index of the point being approached again after an overshoot (no deliberate overshoot then). */
   reapproach?: number;
+  /** The approach went past the window: the autopilot backs off once the pump has settled. */
+  overshot?: boolean;
 }
 
 /** What the rig should do after a step. */
@@ -123,13 +125,17 @@ export function stepAutopilot(
       return { state, command: undefined };
     }
     case 'approach': {
-      // Past the window on the way in: back off to the correct side and come again, gently.
+      // Past the window on the way in: like a technician who sees it on the screen, let the pump
+      // settle, then back off to the correct side and come again, gently. (Reacting within one model
+      // step would make the excursion shorter than a reading interval, unseen by the bench.)
       const past = point.window ?? margin / 6;
-      const overshot = below ? source.pressure > point.targetDp + past : source.pressure < point.targetDp - past;
-      if (overshot) {
+      const pastNow = below ? source.pressure > point.targetDp + past : source.pressure < point.targetDp - past;
+      if (pastNow && !state.overshot) return { state: { ...state, overshot: true }, command: undefined };
+      if (state.overshot) {
+        if (!settled) return { state, command: undefined };
         const start = below ? (point.targetDp >= 0 ? Math.max(0, point.targetDp - margin) : point.targetDp - margin) : point.targetDp + margin;
         return {
-          state: { ...state, phase: 'pre-position', phaseStartS: nowS, requested: start, reapproach: state.index },
+          state: { ...state, phase: 'pre-position', phaseStartS: nowS, requested: start, reapproach: state.index, overshot: false },
           command: { setpoint: { value: start, overshoot: 0 }, leakPerMin: 0 },
         };
       }
