@@ -101,7 +101,7 @@ export function Component() {
               </div>
             ))}
           </section>
-          <section className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+          <section className="relative overflow-x-auto rounded-card border border-line bg-surface shadow-card">
             <table className="w-full text-sm" aria-label="Drift per point">
               <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
                 <tr>

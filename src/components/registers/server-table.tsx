@@ -95,7 +95,7 @@ export function ServerTable<T>({ caption, storageKey, columns, rows, rowKey, tot
           {loading && ' · loading…'}
         </span>
       </div>
-      <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+      <div className="relative overflow-x-auto rounded-card border border-line bg-surface shadow-card">
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-sunken/60">

@@ -36,6 +36,11 @@ export interface DataTableProps<T> {
   empty?: ReactNode;
   rowClassName?: (row: Row<T>) => string | undefined;
   className?: string;
+  /**
+   * Below the `sm` breakpoint, read each row as a block of labelled lines (the headers stay as a
+   * row of sort buttons) instead of a table scrolled sideways inside its frame.
+   */
+  stackOnPhone?: boolean;
 }
 
 const containsText: FilterFn<unknown> = (row, columnId, value: string) => {
@@ -57,7 +62,9 @@ export function DataTable<T>({
   empty,
   rowClassName,
   className,
+  stackOnPhone = false,
 }: DataTableProps<T>) {
+  const phone = (cls: string) => (stackOnPhone ? cls : undefined);
   const [sorting, setSorting] = useState<SortingState>(initialSorting);
   const table = useReactTable<T>({
     data: data as T[],
@@ -73,12 +80,12 @@ export function DataTable<T>({
   const rows = table.getRowModel().rows;
 
   return (
-    <div className={cn('overflow-x-auto rounded-card border border-line bg-surface shadow-card', className)}>
-      <table className="w-full border-collapse text-sm">
+    <div className={cn('relative overflow-x-auto rounded-card border border-line bg-surface shadow-card', className)}>
+      <table className={cn('w-full border-collapse text-sm', phone('max-sm:block'))}>
         <caption className="sr-only">{caption}</caption>
-        <thead className="bg-sunken/60">
+        <thead className={cn('bg-sunken/60', phone('max-sm:block max-sm:border-b max-sm:border-line'))}>
           {table.getHeaderGroups().map((hg) => (
-            <tr key={hg.id}>
+            <tr key={hg.id} className={phone('max-sm:flex max-sm:flex-wrap max-sm:px-1')}>
               {hg.headers.map((h) => {
                 const meta = h.column.columnDef.meta as ColumnMeta | undefined;
                 const sorted = h.column.getIsSorted();
@@ -92,6 +99,8 @@ export function DataTable<T>({
                     className={cn(
                       'border-b border-line px-3 py-2.5 text-left text-xs font-semibold tracking-wide text-ink-muted whitespace-nowrap',
                       meta?.numeric && 'text-right',
+                      phone('max-sm:border-b-0 max-sm:px-2 max-sm:py-1.5'),
+                      phone(label === null || !canSort ? 'max-sm:hidden' : ''),
                     )}
                   >
                     {canSort ? (
@@ -115,20 +124,35 @@ export function DataTable<T>({
             </tr>
           ))}
         </thead>
-        <tbody>
+        <tbody className={phone('max-sm:block')}>
           {rows.length === 0 ? (
-            <tr>
-              <td colSpan={table.getVisibleLeafColumns().length} className="px-3 py-10 text-center text-ink-muted">
+            <tr className={phone('max-sm:block')}>
+              <td colSpan={table.getVisibleLeafColumns().length} className={cn('px-3 py-10 text-center text-ink-muted', phone('max-sm:block'))}>
                 {empty ?? 'Nothing to show.'}
               </td>
             </tr>
           ) : (
             rows.map((row) => (
-              <tr key={row.id} className={cn('border-b border-line last:border-b-0 hover:bg-sunken/50', rowClassName?.(row))}>
+              <tr key={row.id} className={cn('border-b border-line last:border-b-0 hover:bg-sunken/50', phone('max-sm:block max-sm:py-2'), rowClassName?.(row))}>
                 {row.getVisibleCells().map((cell) => {
                   const meta = cell.column.columnDef.meta as ColumnMeta | undefined;
+                  const header = cell.column.columnDef.header;
                   return (
-                    <td key={cell.id} className={cn('px-3 py-2.5 align-middle', meta?.numeric && 'num text-right', meta?.className)}>
+                    <td
+                      key={cell.id}
+                      className={cn(
+                        'px-3 py-2.5 align-middle',
+                        meta?.numeric && 'num text-right',
+                        meta?.className,
+                        phone('max-sm:flex max-sm:items-baseline max-sm:gap-3 max-sm:py-0.5 max-sm:text-left'),
+                      )}
+                    >
+                      {stackOnPhone && typeof header === 'string' && header && (
+                        <span className="w-28 shrink-0 font-sans text-xs text-ink-muted sm:hidden" aria-hidden="true">
+                          {header}
+                        </span>
+                      )}
+                      {stackOnPhone && !(typeof header === 'string' && header) && <span className="w-28 shrink-0 sm:hidden" aria-hidden="true" />}
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}
                     </td>
                   );

@@ -88,6 +88,7 @@ export function RecordsTable({ records, search }: { records: RecordItem[]; searc
       globalFilter={search}
       initialSorting={[{ id: 'calibrated', desc: true }]}
       getRowId={(r) => r.id}
+      stackOnPhone
       empty={search ? `No records match “${search}”.` : 'No submitted or approved records yet.'}
     />
   );

@@ -26,7 +26,7 @@ export function PointTable({ run, selectedIndex, onSelect, outputMode, dpDecimal
   const flowUnit = flows[0]?.unit;
   const flowDec = flowDecimals(Math.max(0, ...flows.map((f) => f.flow)));
   return (
-    <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card">
+    <div className="relative overflow-x-auto rounded-card border border-line bg-surface shadow-card">
       <table className="w-full border-collapse text-sm" aria-label={`Points of the ${run.kind} run`}>
         <thead className="bg-sunken/60 text-left text-xs tracking-wide text-ink-muted">
           <tr>

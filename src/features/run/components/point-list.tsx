@@ -39,7 +39,7 @@ export function PointList({
   return (
     // A region that may scroll sideways on a narrow screen must be reachable by keyboard (WCAG 2.1.1).
     // eslint-disable-next-line jsx-a11y/no-noninteractive-tabindex
-    <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card" role="region" aria-label="Points, scrollable" tabIndex={0}>
+    <div className="relative overflow-x-auto rounded-card border border-line bg-surface shadow-card" role="region" aria-label="Points, scrollable" tabIndex={0}>
       <table className="w-full text-sm" aria-label="Points">
         <thead className="bg-sunken/60 text-left text-xs font-semibold text-ink-muted">
           <tr>

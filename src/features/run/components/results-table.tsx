@@ -45,7 +45,7 @@ export function ResultsTable({
     <div className="flex flex-col gap-2" data-testid={testId}>
       {/* A region that may scroll sideways on a narrow screen must be reachable by keyboard (WCAG 2.1.1). */}
       {/* eslint-disable-next-line jsx-a11y/no-noninteractive-tabindex */}
-      <div className="overflow-x-auto rounded-card border border-line bg-surface shadow-card" role="region" aria-label={`${caption}, scrollable`} tabIndex={0}>
+      <div className="relative overflow-x-auto rounded-card border border-line bg-surface shadow-card" role="region" aria-label={`${caption}, scrollable`} tabIndex={0}>
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-sunken/60 text-xs font-semibold tracking-wide text-ink-muted">
