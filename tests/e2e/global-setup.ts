@@ -52,7 +52,7 @@ function newest(p: string): number {
 /** The server serves dist/; build it once when missing or older than the client sources. */
 function ensureClientBuild(): void {
   const built = path.join(root, 'dist', 'index.html');
-  const inputs = ['src', 'shared', 'index.html', 'tailwind.config.ts', 'vite.config.ts'].map((p) => path.join(root, p));
+  const inputs = ['src', 'shared', 'index.html', 'vite.config.ts'].map((p) => path.join(root, p));
   const sourceTime = Math.max(...inputs.map(newest));
   if (existsSync(built) && statSync(built).mtimeMs >= sourceTime) return;
   console.log('[e2e] building the client (npx vite build)…');
