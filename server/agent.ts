@@ -18,6 +18,7 @@ import { BenchDevices } from './bench/bench-devices';
 import { defaultBinding } from './bench/transport';
 import { parseAgentEnv } from './env';
 import { SIM_PATHS, SimRig } from '../simulators/sim-rig';
+import { backoffDelay } from '../shared/backoff';
 
 /** Options of {@link startAgent}. */
 export interface AgentOptions {
@@ -122,7 +123,7 @@ export async function startAgent(o: AgentOptions) {
       if (stopped) return;
       link.reconnects++;
       failures++;
-      const delay = Math.min(o.maxBackoffMs ?? 10_000, 500 * 2 ** Math.min(failures - 1, 10));
+      const delay = backoffDelay(failures, { initialMs: 500, maxMs: o.maxBackoffMs ?? 10_000 });
       retry = setTimeout(connect, delay);
     });
   }

@@ -17,6 +17,7 @@
 import type { HubEntry } from './hub';
 import type { DamagedBatch, JournalRow, SampleJournal } from './journal';
 import { isRowRefusal, refusalReason, unstorableReason, type QuarantineItem, type PreparedBatch, type SampleSink, type SampleWriterOptions, type SampleWriterStats } from './sample-writer-types';
+import { backoffDelay } from '../../shared/backoff';
 
 export { isRowRefusal, unstorableReason, type QuarantineItem, type PreparedBatch, type SampleSink, type SampleWriterOptions, type SampleWriterStats } from './sample-writer-types';
 
@@ -181,7 +182,7 @@ export class SampleWriter {
     this.stats.failingSinceMs ??= this.wallNow();
     this.stats.lastFailure = { message: error instanceof Error ? error.message : String(error), atMs: this.wallNow() };
     // Timer-driven retries back off: flushMs, then doubling up to maxBackoffMs.
-    this.retryAt = this.lastFailureMs + Math.min(this.maxBackoffMs, this.flushMs * 2 ** Math.min(n - 1, 20));
+    this.retryAt = this.lastFailureMs + backoffDelay(n, { initialMs: this.flushMs, maxMs: this.maxBackoffMs });
     // A journaled row may be written twice; the sink and the replay skip stored seqs.
     this.pending = rows.concat(this.pending);
     this.stats.pending = this.pending.length;

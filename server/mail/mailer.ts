@@ -5,6 +5,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import nodemailer from 'nodemailer';
+import { backoffDelay } from '../../shared/backoff';
 
 /** The logging calls the mailer makes; a pino logger fits. */
 export interface MailLogger {
@@ -174,7 +175,7 @@ export function createMailer(options: MailerOptions): Mailer {
       if (closing) return giveUp(job, 'closed', error);
       if (isPermanent(e)) return giveUp(job, 'permanent_failure', error);
       if (job.attempts >= maxAttempts) return giveUp(job, 'attempts_exhausted', error);
-      const delayMs = Math.min(maxDelayMs, baseDelayMs * 2 ** (job.attempts - 1));
+      const delayMs = backoffDelay(job.attempts, { initialMs: baseDelayMs, maxMs: maxDelayMs });
       log.warn({ mailId: job.id, attempt: job.attempts, delayMs, err: error }, 'mail: delivery failed, will retry');
       report(options.onRetry, { id: job.id, error, attempt: job.attempts, delayMs });
       const timer = setTimeout(() => {

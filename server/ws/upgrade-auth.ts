@@ -9,6 +9,7 @@ import { SESSION_COOKIE } from '../http/middleware/auth';
 import type { AuthService, SessionUser } from '../services/auth.service';
 import type { BenchRegistry } from '../services/bench-registry.service';
 import type { ForwardPrincipal } from '../services/forward.service';
+import { parseCookie } from 'cookie';
 
 export { SESSION_COOKIE };
 
@@ -18,20 +19,6 @@ export type StreamPrincipal = ForwardPrincipal;
 /** Outcome of {@link authenticateUpgrade}. `user` is null for an agent. */
 export type UpgradeAuth = { ok: true; user: SessionUser | null; principal: StreamPrincipal } | { ok: false; status: 401 | 403; message: string };
 
-function parseCookies(header: string | undefined): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const part of (header ?? '').split(';')) {
-    const i = part.indexOf('=');
-    if (i < 0) continue;
-    const k = part.slice(0, i).trim();
-    try {
-      out[k] = decodeURIComponent(part.slice(i + 1).trim());
-    } catch {
-      out[k] = part.slice(i + 1).trim();
-    }
-  }
-  return out;
-}
 
 /**
  * Authenticates an upgrade request. A Bearer token must be an active agent's (a revoked or unknown
@@ -45,7 +32,7 @@ export async function authenticateUpgrade(req: http.IncomingMessage, auth: AuthS
     if (!bench) return { ok: false, status: 401, message: 'Unknown or revoked bench token' };
     return { ok: true, user: null, principal: { kind: 'agent', benchId: bench.id } };
   }
-  const token = parseCookies(req.headers.cookie)[SESSION_COOKIE];
+  const token = parseCookie(req.headers.cookie ?? '')[SESSION_COOKIE];
   let user: SessionUser | undefined;
   if (token) {
     try {

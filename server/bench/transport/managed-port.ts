@@ -6,6 +6,7 @@ import { EventEmitter } from 'node:events';
 import { SerialPortStream } from '@serialport/stream';
 import type { BindingInterface, OpenOptions } from './binding-types';
 import type { DeviceConnectedEvent, DeviceDisconnectedEvent, DevicePort, PortStatusEvent } from './device-port';
+import { backoffDelay } from '../../../shared/backoff';
 
 /** Backoff between reopen attempts. */
 export interface ReconnectOptions {
@@ -211,8 +212,7 @@ export class ManagedPort extends EventEmitter<ManagedPortEvents> implements Devi
   private nextDelay(first = false): number | undefined {
     if (!this.backoff) return undefined;
     const { initialDelayMs, maxDelayMs, factor } = this.backoff;
-    const n = first ? 0 : Math.max(0, this.failures - 1);
-    return Math.min(maxDelayMs, initialDelayMs * factor ** n);
+    return backoffDelay(first ? 1 : this.failures, { initialMs: initialDelayMs, maxMs: maxDelayMs, factor });
   }
 
   private schedule(delayMs: number): void {
