@@ -1,6 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { AttachmentListSchema, AttachmentSchema, type Attachment } from '../../shared/schemas/files';
 import { ApiError, api, apiRequest, toApiError } from './api-client';
+import { queryKeys } from './query-keys';
 
 /** What files belong to: a standard's certificates, an instrument's datasheets, a job's as-found photos. */
 export type AttachmentTarget = { entity: 'standard' | 'instrument' | 'job'; id: string };
@@ -56,8 +57,8 @@ export function useAttachmentActions(t: AttachmentTarget) {
   const refresh = () =>
     Promise.all([
       qc.invalidateQueries({ queryKey: attachmentsKey(t) }),
-      t.entity === 'standard' ? qc.invalidateQueries({ queryKey: ['standards'] }) : undefined,
-      t.entity === 'standard' || t.entity === 'job' ? qc.invalidateQueries({ queryKey: ['jobs'] }) : undefined,
+      t.entity === 'standard' ? qc.invalidateQueries({ queryKey: queryKeys.standards }) : undefined,
+      t.entity === 'standard' || t.entity === 'job' ? qc.invalidateQueries({ queryKey: queryKeys.jobs }) : undefined,
     ]);
   const upload = useMutation({ mutationFn: (file: File) => uploadAttachment(t, file), onSuccess: refresh });
   const remove = useMutation({ mutationFn: ({ id, reason }: { id: string; reason: string }) => removeAttachment(id, reason), onSuccess: refresh });

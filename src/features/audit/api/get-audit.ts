@@ -2,6 +2,7 @@ import { useInfiniteQuery, useMutation } from '@tanstack/react-query';
 import { z } from 'zod';
 import { AuditEntrySchema, AuditVerifySchema, type AuditEntry } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 const PAGE = 200;
 const ReplySchema = z.object({ items: z.array(AuditEntrySchema) });
@@ -21,7 +22,7 @@ export async function getAudit(f: AuditFilter, afterId: number, signal?: AbortSi
 
 export function useAuditTrail(f: AuditFilter) {
   return useInfiniteQuery({
-    queryKey: ['audit', f.entity ?? '', f.entityId ?? ''],
+    queryKey: queryKeys.audit(f.entity, f.entityId),
     queryFn: ({ pageParam, signal }) => getAudit(f, pageParam, signal),
     initialPageParam: 0,
     getNextPageParam: (last) => (last.length === PAGE ? last[last.length - 1]!.id : undefined),

@@ -3,8 +3,9 @@ import { MeSchema, type Me } from '../../../../shared/schemas/auth';
 import { api } from '../../../lib/api-client';
 import { setSiteTimeZone } from '../../../lib/format';
 import { SESSION_CHECK } from '../../../lib/query-client';
+import { queryKeys } from '../../../lib/query-keys';
 
-export const meQueryKey = ['auth', 'me'] as const;
+export const meQueryKey = queryKeys.me;
 
 /** GET /api/auth/me → the signed-in user, or ApiError 401. */
 export async function getMe(signal?: AbortSignal): Promise<Me> {

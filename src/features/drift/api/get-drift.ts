@@ -2,6 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { InstrumentSchema } from '../../../../shared/schemas/instruments';
 import { DriftReportSchema, type AcceptIntervalBody, type DriftReport } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 export const driftQueryKey = (id: string) => ['instruments', id, 'drift'] as const;
 
@@ -23,6 +24,6 @@ export function useAcceptInterval(id: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: AcceptIntervalBody) => api.post(`/api/instruments/${encodeURIComponent(id)}/interval`, body, { schema: InstrumentSchema }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['instruments'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.instruments }),
   });
 }

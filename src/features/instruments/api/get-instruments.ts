@@ -2,8 +2,9 @@ import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient }
 import { z } from 'zod';
 import { InstrumentSchema, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
 import { api, apiRequest } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
-export const instrumentsQueryKey = ['instruments'] as const;
+export const instrumentsQueryKey = queryKeys.instruments;
 
 const InstrumentsReplySchema = z.object({ items: z.array(InstrumentSchema), total: z.number() });
 export type InstrumentsReply = z.infer<typeof InstrumentsReplySchema>;
@@ -29,7 +30,7 @@ export function getInstruments(p: InstrumentListParams = {}, signal?: AbortSigna
 
 export function instrumentsQueryOptions(p: InstrumentListParams = {}) {
   const full = { ...DEFAULTS, ...p, q: p.q?.trim() ?? '' };
-  return queryOptions({ queryKey: [...instrumentsQueryKey, 'list', full], queryFn: ({ signal }) => getInstruments(full, signal) });
+  return queryOptions({ queryKey: queryKeys.instrumentList(full), queryFn: ({ signal }) => getInstruments(full, signal) });
 }
 
 export function useInstruments(p: InstrumentListParams = {}) {

@@ -1,6 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { OutboxMessageSchema, type OutboxMessage } from '../../../../shared/schemas/outbox';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** GET /api/outbox/:id → one message with its text. */
 export async function getOutboxMessage(id: string, signal?: AbortSignal): Promise<OutboxMessage> {
@@ -8,7 +9,7 @@ export async function getOutboxMessage(id: string, signal?: AbortSignal): Promis
 }
 
 export function outboxMessageQueryOptions(id: string) {
-  return queryOptions({ queryKey: ['outbox', id], queryFn: ({ signal }) => getOutboxMessage(id, signal), staleTime: Infinity });
+  return queryOptions({ queryKey: queryKeys.outboxMessage(id), queryFn: ({ signal }) => getOutboxMessage(id, signal), staleTime: Infinity });
 }
 
 export function useOutboxMessage(id: string | null) {

@@ -2,6 +2,7 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { OutboxSummarySchema, type OutboxSummary } from '../../../../shared/schemas/outbox';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** GET /api/outbox → the messages the local mail server received, newest first. */
 export async function getOutbox(signal?: AbortSignal): Promise<OutboxSummary[]> {
@@ -10,7 +11,7 @@ export async function getOutbox(signal?: AbortSignal): Promise<OutboxSummary[]> 
 }
 
 export function outboxQueryOptions() {
-  return queryOptions({ queryKey: ['outbox'], queryFn: ({ signal }) => getOutbox(signal), refetchInterval: 10_000 });
+  return queryOptions({ queryKey: queryKeys.outbox, queryFn: ({ signal }) => getOutbox(signal), refetchInterval: 10_000 });
 }
 
 export function useOutbox() {

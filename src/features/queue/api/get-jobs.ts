@@ -2,8 +2,9 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { JobSchema, type Job } from '../../../../shared/schemas/jobs';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
-export const jobsQueryKey = ['jobs'] as const;
+export const jobsQueryKey = queryKeys.jobs;
 
 const JobsReplySchema = z.object({ items: z.array(JobSchema) });
 

@@ -2,6 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { JobSchema, type CreateJobBody } from '../../../../shared/schemas/jobs';
 import { QueueSchema, type Queue } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** GET /api/queue?withinDays= → open jobs (own first) and instruments that need a job. */
 export function getQueue(withinDays: number, signal?: AbortSignal): Promise<Queue> {
@@ -9,7 +10,7 @@ export function getQueue(withinDays: number, signal?: AbortSignal): Promise<Queu
 }
 
 export function queueQueryOptions(withinDays = 30) {
-  return queryOptions({ queryKey: ['jobs', 'queue', withinDays], queryFn: ({ signal }) => getQueue(withinDays, signal) });
+  return queryOptions({ queryKey: queryKeys.queue(withinDays), queryFn: ({ signal }) => getQueue(withinDays, signal) });
 }
 
 export function useQueue(withinDays: number, enabled = true) {
@@ -21,7 +22,7 @@ export function useCreateJob() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: CreateJobBody) => api.post('/api/jobs', body, { schema: JobSchema }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['jobs'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.jobs }),
   });
 }
 
@@ -30,6 +31,6 @@ export function useAssignJob() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ jobId, assigneeId }: { jobId: string; assigneeId: string }) => api.post(`/api/jobs/${encodeURIComponent(jobId)}/assign`, { assigneeId }, { schema: JobSchema }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['jobs'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.jobs }),
   });
 }

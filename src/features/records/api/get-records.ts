@@ -2,6 +2,7 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { RecordItemSchema, type RecordItem } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 export type RecordsFilter = 'all' | 'approved' | 'submitted';
 
@@ -22,7 +23,7 @@ export async function getRecords(status: RecordsFilter, dates: RecordsDates = NO
 }
 
 export function recordsQueryOptions(status: RecordsFilter = 'all', dates: RecordsDates = NO_DATES) {
-  return queryOptions({ queryKey: ['records', status, dates.from, dates.to], queryFn: ({ signal }) => getRecords(status, dates, signal) });
+  return queryOptions({ queryKey: queryKeys.recordList(status, dates.from, dates.to), queryFn: ({ signal }) => getRecords(status, dates, signal) });
 }
 
 export function useRecords(status: RecordsFilter, dates: RecordsDates = NO_DATES) {

@@ -1,6 +1,7 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { ReviewTraceSchema, type ReviewTrace } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 export interface TraceWindow {
   from: number;
@@ -15,7 +16,7 @@ export function getReviewTrace(runId: string, w: TraceWindow | null, signal?: Ab
 
 export function reviewTraceQueryOptions(runId: string, w: TraceWindow | null) {
   return queryOptions({
-    queryKey: ['runs', runId, 'review-trace', w ? Math.floor(w.from) : null, w ? Math.ceil(w.to) : null] as const,
+    queryKey: queryKeys.reviewTrace(runId, w),
     queryFn: ({ signal }) => getReviewTrace(runId, w, signal),
     staleTime: 5 * 60_000,
   });

@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { JobDetailSchema } from '../../../../shared/schemas/jobs';
 import { RevisionSchema, SignatureSchema, type ReviewBody, type RevisionBody } from '../../../../shared/schemas/records';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
 const SignReplySchema = z.object({ job: JobDetailSchema, signature: SignatureSchema });
 
@@ -15,8 +16,8 @@ export function useSignJob(jobId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: ReviewBody) => signJob(jobId, body),
-    onSettled: () => qc.invalidateQueries({ queryKey: ['jobs'] }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['records'] }),
+    onSettled: () => qc.invalidateQueries({ queryKey: queryKeys.jobs }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.records }),
   });
 }
 
@@ -29,7 +30,7 @@ export function useOpenRevision(jobId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: RevisionBody) => openRevision(jobId, body),
-    onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: ['jobs'] }), qc.invalidateQueries({ queryKey: ['records'] })]),
+    onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: queryKeys.jobs }), qc.invalidateQueries({ queryKey: queryKeys.records })]),
   });
 }
 

@@ -2,8 +2,9 @@ import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient }
 import { z } from 'zod';
 import { StandardSchema, type Standard, type StandardInput } from '../../../../shared/schemas/standards';
 import { api, apiRequest } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
-export const standardsQueryKey = ['standards'] as const;
+export const standardsQueryKey = queryKeys.standards;
 
 const StandardsReplySchema = z.object({ items: z.array(StandardSchema), total: z.number() });
 export type StandardsReply = z.infer<typeof StandardsReplySchema>;
@@ -27,7 +28,7 @@ export function getStandards(p: StandardListParams = {}, signal?: AbortSignal): 
 
 export function standardsQueryOptions(p: StandardListParams = {}) {
   const full = { ...DEFAULTS, ...p, q: p.q?.trim() ?? '' };
-  return queryOptions({ queryKey: [...standardsQueryKey, 'list', full], queryFn: ({ signal }) => getStandards(full, signal) });
+  return queryOptions({ queryKey: queryKeys.standardList(full), queryFn: ({ signal }) => getStandards(full, signal) });
 }
 
 export function useStandards(p: StandardListParams = {}) {

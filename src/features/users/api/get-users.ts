@@ -2,8 +2,9 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { UserSchema } from '../../../../shared/schemas/users';
 import { api } from '../../../lib/api-client';
+import { queryKeys } from '../../../lib/query-keys';
 
-export const usersQueryKey = ['users'] as const;
+export const usersQueryKey = queryKeys.users;
 
 const UsersReplySchema = z.object({ items: z.array(UserSchema) });
 
