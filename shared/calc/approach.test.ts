@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { ApproachTracker, trackApproach } from './approach';
+import { ApproachTracker, backOffTarget, trackApproach } from './approach';
 
 describe('approach tracker (approach direction: common practice, REFERENCE.md)', () => {
   it('upward approach, overshoot, back-off and re-approach', () => {
@@ -40,5 +40,18 @@ describe('approach tracker (approach direction: common practice, REFERENCE.md)',
         expect(trackApproach(s, vals.map((value, tMs) => ({ tMs, value })))).toEqual(last);
       }),
     );
+  });
+});
+
+describe('backOffTarget', () => {
+  it('lies on the approach side, outside the window, so the tracker re-arms when it is reached', () => {
+    for (const approach of ['up', 'down'] as const) {
+      const p = { targetDp: 50, window: 0.5, approach };
+      const b = backOffTarget(p);
+      expect(b).toBe(approach === 'up' ? 48.5 : 51.5);
+      const t = new ApproachTracker({ target: 50, window: 0.5, direction: approach });
+      t.push(0, approach === 'up' ? 51 : 49); // starts beyond: overshoot side
+      expect(t.push(1, b).state).toBe('approaching');
+    }
   });
 });

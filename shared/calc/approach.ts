@@ -112,3 +112,16 @@ export function trackApproach(settings: ApproachSettings, samples: Iterable<{ tM
   for (const x of samples) s = t.push(x.tMs, x.value);
   return s;
 }
+
+/** How far past the window a back-off goes, in windows (product choice: clear of the window with room to approach slowly). */
+export const BACK_OFF_WINDOWS = 3;
+
+/**
+ * Where to back off to after an overshoot: on the approach side, {@link BACK_OFF_WINDOWS} windows
+ * from the target (the tracker needs only to leave the window; the margin leaves room for a slow
+ * approach). The one rule the capture screen's guidance and the engine use.
+ */
+export function backOffTarget(p: { targetDp: number; window: number; approach: Direction }): number {
+  const d = BACK_OFF_WINDOWS * p.window;
+  return p.approach === 'up' ? p.targetDp - d : p.targetDp + d;
+}
