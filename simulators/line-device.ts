@@ -13,6 +13,8 @@ export interface SimDevice {
   disconnect(): void;
   /** Bytes the host wrote. */
   receive(data: Uint8Array): void;
+  /** Modem control lines the host set (RTS keys an RS-232 HART modem); most devices ignore them. */
+  setLines?(lines: { rts?: boolean; dtr?: boolean }): void;
 }
 
 /** Faults a device can be told to show. */

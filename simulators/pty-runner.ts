@@ -1,5 +1,5 @@
 /**
- * `npm run sim`: the simulated pressure calibrator and current meter on pseudo-terminals, so real
+ * `npm run sim`: the simulated pressure calibrator, current meter and HART transmitter on pseudo-terminals, so real
  * serial code (Stillpoint with `BENCH=serial`, or a terminal program) can open them.
  * Options: `--dir <path>` for the pty links (default a temporary directory).
  */
@@ -19,6 +19,8 @@ async function main(): Promise<void> {
   console.log('Stillpoint simulated instruments are running. Open:');
   console.log(`  pressure calibrator  ${sim.hostPaths.pressure}  (9600 baud, ${JSON.stringify(SIMCAL_PROFILE.lineEnding)}; "${SIMCAL_PROFILE.queryCommand}" → "DP <value> ${sim.rig.unit}")`);
   console.log(`  current meter (SCPI) ${sim.hostPaths.current}  (9600 baud, "\\n"; *IDN?, CONF:CURR:DC, READ?)`);
+  const tag = sim.rig.hart.state.config.tag;
+  console.log(`  hart                 ${sim.hostPaths.hart}  (1200 bit/s 8O1; HART transmitter ${tag}, polling address 0; commands 0–3, 13, 15, 38, 40, 43, 45, 46)`);
   console.log('Press Ctrl+C to stop.');
   let stopping = false;
   const shutdown = (): void => {

@@ -40,8 +40,8 @@ export interface PtySimOptions {
 
 /** A running pty simulation. */
 export interface PtySim {
-  /** Paths for the host to open, e.g. `<dir>/pressure` and `<dir>/current`. */
-  hostPaths: { pressure: string; current: string };
+  /** Paths for the host to open: `<dir>/pressure`, `<dir>/current` and `<dir>/hart`. */
+  hostPaths: { pressure: string; current: string; hart: string };
   rig: SimRig;
   /** Closes the device ends, kills socat and waits for it to exit. */
   stop(): Promise<void>;
@@ -66,9 +66,16 @@ function exited(child: ChildProcess): Promise<void> {
   return new Promise((resolve) => child.once('exit', () => resolve()));
 }
 
+/** Line settings of each simulated device: the calibrator and meter at 9600 8N1, HART at 1200 8O1 (HCF_SPEC-054, from memory). */
+export const PTY_LINE_SETTINGS = {
+  pressure: { baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1 },
+  current: { baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1 },
+  hart: { baudRate: 1200, dataBits: 8, parity: 'odd', stopBits: 1 },
+} as const;
+
 /** Wires an emulator to the device end of a pty through the real serial binding. */
-async function attachDevice(devicePath: string, device: SimDevice): Promise<SerialPort> {
-  const port = new SerialPort({ path: devicePath, baudRate: 9600, autoOpen: false });
+async function attachDevice(devicePath: string, device: SimDevice, line: (typeof PTY_LINE_SETTINGS)[keyof typeof PTY_LINE_SETTINGS]): Promise<SerialPort> {
+  const port = new SerialPort({ path: devicePath, ...line, autoOpen: false });
   await new Promise<void>((resolve, reject) => port.open((error) => (error ? reject(error) : resolve())));
   port.on('error', () => {});
   port.on('data', (chunk: Buffer) => device.receive(Uint8Array.from(chunk)));
@@ -80,8 +87,8 @@ async function attachDevice(devicePath: string, device: SimDevice): Promise<Seri
 }
 
 /**
- * Starts socat pty pairs for the pressure calibrator and the current meter and attaches the rig's
- * emulators. Rejects with {@link SOCAT_MISSING} when socat is not installed.
+ * Starts socat pty pairs for the pressure calibrator, the current meter and the HART transmitter
+ * and attaches the rig's emulators. Rejects with {@link SOCAT_MISSING} when socat is not installed.
  */
 export async function startPtySim(options: PtySimOptions = {}): Promise<PtySim> {
   const socat = await findSocat();
@@ -106,10 +113,11 @@ export async function startPtySim(options: PtySimOptions = {}): Promise<PtySim> 
     await Promise.all(children.map(exited));
   };
   try {
-    const hostPaths = { pressure: path.join(dir, 'pressure'), current: path.join(dir, 'current') };
+    const hostPaths = { pressure: path.join(dir, 'pressure'), current: path.join(dir, 'current'), hart: path.join(dir, 'hart') };
     for (const [name, device] of [
       ['pressure', rig.calibrator],
       ['current', rig.meter],
+      ['hart', rig.hart],
     ] as const) {
       const host = hostPaths[name];
       const deviceEnd = path.join(dir, `${name}-device`);
@@ -120,7 +128,7 @@ export async function startPtySim(options: PtySimOptions = {}): Promise<PtySim> 
       children.push(child);
       await waitFor(deviceEnd, (options.startTimeoutS ?? 5) * 1000, child);
       await waitFor(host, (options.startTimeoutS ?? 5) * 1000, child);
-      ports.push(await attachDevice(deviceEnd, device));
+      ports.push(await attachDevice(deviceEnd, device, PTY_LINE_SETTINGS[name]));
     }
     return { hostPaths, rig, stop };
   } catch (error) {

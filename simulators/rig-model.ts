@@ -138,6 +138,12 @@ export interface TransmitterConfig {
   lowFailureMa: number;
   /** High failure current, mA. Default 21.0 mA (NE 43: ≥ 21.0). */
   highFailureMa: number;
+  /** Error of the output stage (D/A) at 4 mA, mA: what the loop-current zero trim corrects. Default 0. */
+  daErrorAt4Ma: number;
+  /** Error of the output stage (D/A) at 20 mA, mA: what the loop-current gain trim corrects. Default 0. */
+  daErrorAt20Ma: number;
+  /** PV damping, s: the first-order time constant of the sensed pressure. Default 0 (none). */
+  dampingS: number;
 }
 
 /** Defaults of {@link TransmitterConfig}: an ideal linear 0–100 transmitter. */
@@ -154,7 +160,43 @@ export const DEFAULT_TRANSMITTER: TransmitterConfig = {
   failure: 'none',
   lowFailureMa: 3.6,
   highFailureMa: 21.0,
+  daErrorAt4Ma: 0,
+  daErrorAt20Ma: 0,
+  dampingS: 0,
 };
+
+/**
+ * What the transmitter keeps of its trims and output mode, set over HART: a sensor zero offset
+ * (command 43), loop-current corrections at 4 and 20 mA (commands 45 and 46), and a fixed output
+ * current (command 40), or null for the measured output.
+ */
+export interface TransmitterTrim {
+  /** Added to the sensed pressure, rig unit. */
+  sensorZero: number;
+  /** Correction taken off the D/A input at 4 mA, mA. */
+  loopAt4Ma: number;
+  /** Correction taken off the D/A input at 20 mA, mA. */
+  loopAt20Ma: number;
+  /** Fixed loop current, mA, or null. */
+  fixedMa: number | null;
+}
+
+/** Factory trims: no corrections, measured output. */
+export const NO_TRIM: TransmitterTrim = Object.freeze({ sensorZero: 0, loopAt4Ma: 0, loopAt20Ma: 0, fixedMa: null });
+
+/** A value that is `at4` at 4 mA and `at20` at 20 mA, straight between. */
+function acrossSpan(at4: number, at20: number, ma: number): number {
+  return at4 + ((at20 - at4) * (ma - 4)) / 16;
+}
+
+/** The current the output stage drives for a commanded current: the trims' correction first, then the D/A's own error. */
+export function analogOutput(config: TransmitterConfig, trim: TransmitterTrim, commandedMa: number): number {
+  const dacInput = commandedMa - acrossSpan(trim.loopAt4Ma, trim.loopAt20Ma, commandedMa);
+  return dacInput + acrossSpan(config.daErrorAt4Ma, config.daErrorAt20Ma, dacInput);
+}
+
+/** Fixed-current limits of the simulated output stage, mA (a simulator choice). */
+export const FIXED_CURRENT_LIMITS = { low: 3.5, high: 23 } as const;
 
 /** NE 43 measurement band including saturation, mA (REFERENCE.md, NAMUR NE 43 2021). */
 export const NE43_SATURATION = { low: 3.8, high: 20.5 } as const;
@@ -195,26 +237,53 @@ export function rootedFlowFraction(dpFraction: number, cutoff: LowFlowCutoff): n
   }
 }
 
+/** What the transmitter puts out for one applied pressure. */
+export interface TransmitterReading {
+  /** Loop current at the terminals, mA (what a meter reads). */
+  currentMa: number;
+  /** Current the transmitter believes it drives, mA (what it reports over HART). */
+  commandedMa: number;
+  /** Sensed pressure, rig unit: the digital PV. */
+  pv: number;
+  /** Output as a fraction of range after the transfer function (0 at 4 mA, 1 at 20 mA). */
+  outputFraction: number;
+  /** The measured output was held at the NE 43 saturation limits. */
+  saturated: boolean;
+  state: TransmitterState;
+}
+
 /**
  * Loop current for an applied pressure. The sensor errors act on the DP fraction (before any root),
  * as in a real transmitter: hysteresis as a play (dead band) of width `hysteresisPct`, then the
- * non-linearity bow, then zero and span. Output `I = 4 + 16·y` mA plus noise, held in the NE 43
- * band 3.8–20.5 mA, or the failure current when a failure is forced.
+ * non-linearity bow, then zero and span, then the sensor zero trim; that sensed pressure is the
+ * digital PV. The output `4 + 16·y` mA (or the fixed current) passes the loop trims and the D/A
+ * error, plus noise; a measured output is held in the NE 43 band 3.8–20.5 mA. A forced failure
+ * drives its failure current.
  */
 export function transmitterOutput(
   config: TransmitterConfig,
   state: TransmitterState,
   pressure: number,
   rng: Rng,
-): { currentMa: number; state: TransmitterState } {
+  trim: TransmitterTrim = NO_TRIM,
+): TransmitterReading {
   const next = trackHysteresis(config, state, pressure);
   const played = next.playFraction;
-  if (config.failure === 'low') return { currentMa: config.lowFailureMa, state: next };
-  if (config.failure === 'high') return { currentMa: config.highFailureMa, state: next };
   const bowed = played + (config.nonLinearityPct / 100) * 4 * played * (1 - played);
   const measured = config.zeroErrorPct / 100 + (1 + config.spanErrorPct / 100) * bowed;
-  const y = config.outputMode === 'sqrt-transmitter' ? rootedFlowFraction(measured, config.cutoff) : measured;
+  const span = config.urv - config.lrv;
+  const pv = config.lrv + measured * span + trim.sensorZero;
+  const sensedFraction = measured + trim.sensorZero / span;
+  const y = config.outputMode === 'sqrt-transmitter' ? rootedFlowFraction(sensedFraction, config.cutoff) : sensedFraction;
+  const failure = config.failure === 'low' ? config.lowFailureMa : config.failure === 'high' ? config.highFailureMa : undefined;
+  if (failure !== undefined) return { currentMa: failure, commandedMa: failure, pv, outputFraction: y, saturated: false, state: next };
   const noise = config.outputNoiseMa > 0 ? config.outputNoiseMa * gaussian(rng) : 0;
-  const current = 4 + 16 * y + noise;
-  return { currentMa: Math.min(NE43_SATURATION.high, Math.max(NE43_SATURATION.low, current)), state: next };
+  if (trim.fixedMa !== null) {
+    const fixed = Math.min(FIXED_CURRENT_LIMITS.high, Math.max(FIXED_CURRENT_LIMITS.low, trim.fixedMa));
+    return { currentMa: analogOutput(config, trim, fixed) + noise, commandedMa: fixed, pv, outputFraction: y, saturated: false, state: next };
+  }
+  const wanted = 4 + 16 * y;
+  const commanded = Math.min(NE43_SATURATION.high, Math.max(NE43_SATURATION.low, wanted));
+  const current = analogOutput(config, trim, commanded) + noise;
+  return { currentMa: Math.min(NE43_SATURATION.high, Math.max(NE43_SATURATION.low, current)), commandedMa: commanded, pv, outputFraction: y, saturated: commanded !== wanted, state: next };
 }

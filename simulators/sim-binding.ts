@@ -108,8 +108,9 @@ export class SimPortBinding implements BindingPortInterface {
     this.openOptions.baudRate = options.baudRate;
   }
 
-  async set(_options: SetOptions): Promise<void> {
+  async set(options: SetOptions): Promise<void> {
     this.check();
+    this.slot.device.setLines?.({ ...(options.rts !== undefined ? { rts: options.rts } : {}), ...(options.dtr !== undefined ? { dtr: options.dtr } : {}) });
   }
 
   async get(): Promise<PortStatus> {

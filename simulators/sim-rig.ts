@@ -5,6 +5,8 @@
  */
 import { PressureCalibratorEmulator } from './pressure-calibrator-emulator';
 import { ScpiMeterEmulator } from './scpi-meter-emulator';
+import { HartTransmitterEmulator, type HartFaults } from './hart-transmitter-emulator';
+import type { HartDeviceConfig } from './hart-device-commands';
 import { createSimBinding, type SimBinding } from './sim-binding';
 import type { DeviceFaults } from './line-device';
 import { seededRng, type Rng } from '../shared/random';
@@ -12,6 +14,7 @@ import { defaultMargin, followPoint, releasePoint, startAutopilot, stepAutopilot
 import {
   appliedPressure,
   DEFAULT_SOURCE,
+  NO_TRIM,
   DEFAULT_TRANSMITTER,
   restingSource,
   setSetpoint,
@@ -21,11 +24,20 @@ import {
   type SourceConfig,
   type SourceState,
   type TransmitterConfig,
+  type TransmitterReading,
   type TransmitterState,
+  type TransmitterTrim,
 } from './rig-model';
 
 /** Default serial paths of the simulated devices. */
-export const SIM_PATHS = { pressure: '/dev/sim-pressure', current: '/dev/sim-current' } as const;
+export const SIM_PATHS = { pressure: '/dev/sim-pressure', current: '/dev/sim-current', hart: '/dev/sim-hart' } as const;
+
+/** HART device faults, plus its cable and a raised "configuration changed" flag. */
+export interface SimHartFaults extends Partial<HartFaults> {
+  unplugged?: boolean;
+  /** Raise the device's "configuration changed" status bit now. */
+  configChanged?: boolean;
+}
 
 /** Faults for one device; every field optional, omitted fields unchanged. */
 export interface SimDeviceFaults {
@@ -57,7 +69,11 @@ export interface SimControl {
   /** Move the pump to a setpoint now (stops the autopilot). */
   setpoint?: { value: number; overshoot?: number };
   /** Device faults. */
-  faults?: { pressure?: SimDeviceFaults; current?: SimDeviceFaults };
+  faults?: { pressure?: SimDeviceFaults; current?: SimDeviceFaults; hart?: SimHartFaults };
+  /** The HART device's own configuration (tag, descriptor, date, unit code, write protect, …). */
+  hart?: Partial<HartDeviceConfig>;
+  /** Set the transmitter's trims or fixed current directly (e.g. back to factory trims between tests). */
+  trim?: Partial<TransmitterTrim>;
   /** Start an autopilot run, or `'stop'`. */
   autopilot?: AutopilotPlan | 'stop';
 }
@@ -74,6 +90,8 @@ export interface SimRigSnapshot {
   currentMa: number;
   autopilot: { index: number; phase: string; points: number } | undefined;
   devices: { pressure: { path: string; plugged: boolean; open: boolean }; current: { path: string; plugged: boolean; open: boolean } };
+  /** The HART device: its port, configuration, trims and fixed current (null: the loop follows the PV). */
+  hart: { path: string; plugged: boolean; open: boolean; config: HartDeviceConfig; configChanged: boolean; trim: TransmitterTrim; faults: HartFaults };
 }
 
 /** Options of {@link SimRig}. */
@@ -87,7 +105,9 @@ export interface SimRigOptions {
   /** Seed of all randomness. Default 1. */
   seed?: number;
   /** Device paths. Default {@link SIM_PATHS}. */
-  paths?: { pressure: string; current: string };
+  paths?: { pressure: string; current: string; hart?: string };
+  /** HART device configuration and answer timing (turnaround, wire time). */
+  hart?: { config?: Partial<HartDeviceConfig>; turnaroundMs?: number; wireTime?: boolean; needsRts?: boolean };
   /** Clock, ms. Default `performance.now`. */
   now?: () => number;
   /** Binding to attach the devices to. Default: a new one. */
@@ -102,14 +122,19 @@ export class SimRig {
   readonly binding: SimBinding;
   readonly calibrator: PressureCalibratorEmulator;
   readonly meter: ScpiMeterEmulator;
+  readonly hart: HartTransmitterEmulator;
   readonly unit: string;
-  readonly paths: { pressure: string; current: string };
+  readonly paths: { pressure: string; current: string; hart: string };
   private readonly now: () => number;
   private readonly rng: Rng;
   private sourceConfig: SourceConfig;
   private transmitter: TransmitterConfig;
   private source: SourceState = restingSource(0);
   private transmitterState: TransmitterState = { playFraction: undefined };
+  /** Trims and fixed current the transmitter holds (set over HART). */
+  private trim: TransmitterTrim = { ...NO_TRIM };
+  /** The pressure the transmitter senses through its damping, rig unit. */
+  private damped = 0;
   private lastMs: number;
   private plan: AutopilotPlan | undefined;
   private pilot: AutopilotState | undefined;
@@ -119,7 +144,7 @@ export class SimRig {
     this.now = options.now ?? (() => performance.now());
     this.rng = seededRng(options.seed ?? 1);
     this.unit = options.unit ?? 'inH2O@68F';
-    this.paths = options.paths ?? { ...SIM_PATHS };
+    this.paths = { hart: SIM_PATHS.hart, ...(options.paths ?? SIM_PATHS) };
     this.sourceConfig = { ...DEFAULT_SOURCE, ...options.source };
     this.transmitter = { ...DEFAULT_TRANSMITTER, ...options.transmitter };
     this.lastMs = this.now();
@@ -134,6 +159,18 @@ export class SimRig {
     this.binding = options.binding ?? createSimBinding();
     this.binding.attach(this.paths.pressure, this.calibrator, { serialNumber: 'SIMCAL-0007' });
     this.binding.attach(this.paths.current, this.meter, { serialNumber: 'SIMDMM-0001' });
+    this.hart = new HartTransmitterEmulator({
+      ...options.hart,
+      rng: seededRng((options.seed ?? 1) + 303),
+      link: {
+        unit: this.unit,
+        transmitter: () => this.transmitter,
+        read: () => this.readTransmitter(),
+        trim: () => ({ ...this.trim }),
+        setTrim: (trim) => (this.trim = { ...this.trim, ...trim }),
+      },
+    });
+    this.binding.attach(this.paths.hart, this.hart, { serialNumber: 'SIMHART-00B2C7' });
   }
 
   /** Applies a control input; returns the state afterwards. */
@@ -147,6 +184,9 @@ export class SimRig {
     }
     if (control.faults?.pressure) this.applyFaults('pressure', control.faults.pressure);
     if (control.faults?.current) this.applyFaults('current', control.faults.current);
+    if (control.faults?.hart) this.applyHartFaults(control.faults.hart);
+    if (control.hart) this.hart.state.config = { ...this.hart.state.config, ...control.hart };
+    if (control.trim) this.trim = { ...this.trim, ...control.trim };
     if (control.autopilot === 'stop') this.stopAutopilot();
     else if (control.autopilot) this.startAutopilot(control.autopilot);
     return this.snapshot();
@@ -169,6 +209,7 @@ export class SimRig {
       currentMa: this.lastCurrentMa,
       autopilot: this.pilot && this.plan ? { index: this.pilot.index, phase: this.pilot.phase, points: this.plan.points.length } : undefined,
       devices: { pressure: device(this.paths.pressure), current: device(this.paths.current) },
+      hart: { ...device(this.paths.hart), config: { ...this.hart.state.config }, configChanged: this.hart.state.configChanged, trim: { ...this.trim }, faults: { ...this.hart.faults } },
     };
   }
 
@@ -176,6 +217,7 @@ export class SimRig {
   dispose(): void {
     this.calibrator.disconnect();
     this.meter.disconnect();
+    this.hart.disconnect();
   }
 
   private startAutopilot(plan: AutopilotPlan): void {
@@ -221,17 +263,44 @@ export class SimRig {
     if (faults.unplugged === false) this.binding.replug(path);
   }
 
+  private applyHartFaults(faults: SimHartFaults): void {
+    const { unplugged, configChanged, ...rest } = faults;
+    const clamp = (v: number | undefined, was: number): number => (v === undefined ? was : Math.min(1, Math.max(0, v)));
+    const f = this.hart.faults;
+    this.hart.faults = {
+      ...f,
+      ...rest,
+      noAnswer: clamp(rest.noAnswer, f.noAnswer),
+      checksumErrors: clamp(rest.checksumErrors, f.checksumErrors),
+      lateReplyMs: Math.max(0, rest.lateReplyMs ?? f.lateReplyMs),
+    };
+    if (configChanged) this.hart.state.configChanged = true;
+    if (unplugged === true) this.binding.unplug(this.paths.hart);
+    if (unplugged === false) this.binding.replug(this.paths.hart);
+  }
+
   private readPressure(): number {
     this.advance();
     return appliedPressure(this.source);
   }
 
+  /** The loop current now, mA, as a meter in the loop reads it (for tests and the HART trims' reference). */
+  readLoopCurrent(): number {
+    return this.readTransmitter().currentMa;
+  }
+
   private readCurrent(): number {
+    return this.readLoopCurrent();
+  }
+
+  /** The transmitter's output now: the loop current the meter reads and the PV HART reports come from this one model. */
+  private readTransmitter(): TransmitterReading {
     this.advance();
-    const out = transmitterOutput(this.transmitter, this.transmitterState, appliedPressure(this.source), this.rng);
+    const sensed = this.transmitter.dampingS > 0 ? this.damped : appliedPressure(this.source);
+    const out = transmitterOutput(this.transmitter, this.transmitterState, sensed, this.rng, this.trim);
     this.transmitterState = out.state;
     this.lastCurrentMa = out.currentMa;
-    return out.currentMa;
+    return out;
   }
 
   /** Brings the model to the clock's time in steps of at most 50 ms (the approach is exponential; steps keep the autopilot responsive). */
@@ -242,6 +311,8 @@ export class SimRig {
       const config = this.plan ? { ...this.sourceConfig, timeConstantS: this.sourceConfig.timeConstantS / (this.plan.speed ?? 1) } : this.sourceConfig;
       this.source = stepSource(this.source, config, stepMs / 1000, this.rng);
       this.lastMs += stepMs;
+      const damping = this.transmitter.dampingS;
+      this.damped = damping > 0 ? this.damped + (appliedPressure(this.source) - this.damped) * (1 - Math.exp(-stepMs / 1000 / damping)) : appliedPressure(this.source);
       // The transmitter's hysteresis follows the pressure path even between meter reads.
       this.transmitterState = trackHysteresis(this.transmitter, this.transmitterState, appliedPressure(this.source));
       this.pilotStep();

@@ -5,3 +5,6 @@ export * from './line/line-calibrator-driver';
 export * from './poller';
 export * from './protocol-parser';
 export * from './scpi/scpi-meter-driver';
+export * from './hart/hart-errors';
+export * from './hart/hart-link';
+export * from './hart/hart-master-driver';

@@ -40,4 +40,6 @@ export interface DevicePort {
   onData(listener: (chunk: Uint8Array) => void): () => void;
   /** Subscribes to connect / disconnect; returns the unsubscribe function. */
   onStatus(listener: (event: PortStatusEvent) => void): () => void;
+  /** Sets modem control lines (RTS keys the carrier of an RS-232 HART modem). Absent on ports that cannot. */
+  setControlLines?(lines: { rts?: boolean; dtr?: boolean }): Promise<void>;
 }

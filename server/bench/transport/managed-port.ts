@@ -117,6 +117,12 @@ export class ManagedPort extends EventEmitter<ManagedPortEvents> implements Devi
     });
   }
 
+  setControlLines(lines: { rts?: boolean; dtr?: boolean }): Promise<void> {
+    const stream = this.stream;
+    if (!stream || this._state !== 'connected') return Promise.reject(new Error(`set control lines on ${this.path}: port not connected`));
+    return new Promise((resolve, reject) => stream.set(lines, (error) => (error ? reject(error) : resolve())));
+  }
+
   onData(listener: (chunk: Uint8Array) => void): () => void {
     this.on('data', listener);
     return () => this.off('data', listener);

@@ -12,6 +12,8 @@ export interface HartCommandCodec<Req, Res> {
   readonly name: string;
   /** Whether the command changes the device (refused under write protect), for the record. */
   readonly writes: boolean;
+  /** Set when neither request nor reply carries data (decoders then return `undefined` as the value). */
+  readonly noData?: true;
   encodeRequest(request: Req): Uint8Array;
   decodeRequest(data: Uint8Array): Req | undefined;
   encodeResponse(response: Res): Uint8Array;
@@ -78,6 +80,7 @@ export function emptyCodec(command: number, name: string, writes: boolean): Hart
     command,
     name,
     writes,
+    noData: true,
     encodeRequest: () => none,
     decodeRequest: () => undefined,
     encodeResponse: () => none,

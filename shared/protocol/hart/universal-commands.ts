@@ -35,7 +35,7 @@ export interface HartIdentity {
 }
 
 /** The five bytes of a long address from a command 0 reply (from memory: low six bits of byte 1, byte 2, device id). */
-export function uniqueIdOf(identity: HartIdentity): Uint8Array {
+export function uniqueIdOf(identity: Pick<HartIdentity, 'expandedDeviceType' | 'deviceId'>): Uint8Array {
   return bytesOf((identity.expandedDeviceType >> 8) & 0x3f, identity.expandedDeviceType & 0xff, writeUint(identity.deviceId, 3));
 }
 
