@@ -115,8 +115,9 @@ function loadSecret(env: Env, memory: boolean): Uint8Array {
 }
 
 /** Serial ports of the local bench with BENCH=serial. */
-function serialPaths(env: Env): { pressure: string; current: string } | undefined {
-  return env.BENCH_PRESSURE_PORT && env.BENCH_CURRENT_PORT ? { pressure: env.BENCH_PRESSURE_PORT, current: env.BENCH_CURRENT_PORT } : undefined;
+function serialPaths(env: Env): { pressure: string; current: string; hart?: string } | undefined {
+  if (!env.BENCH_PRESSURE_PORT || !env.BENCH_CURRENT_PORT) return undefined;
+  return { pressure: env.BENCH_PRESSURE_PORT, current: env.BENCH_CURRENT_PORT, ...(env.BENCH_HART_PORT ? { hart: env.BENCH_HART_PORT } : {}) };
 }
 
 /**
@@ -210,7 +211,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       hub,
       engines: runs.engines,
       journalDir: o.journalDir ?? (memory ? opts.journalDir : journalDirOf(env.DATA_DIR)),
-      local: paths ? { binding: rig ? rig.binding : defaultBinding(), paths } : undefined,
+      local: paths ? { binding: rig ? rig.binding : defaultBinding(), paths, hartModem: env.BENCH_HART_MODEM } : undefined,
       benchId: o.benchId,
       flushMs: o.flushMs,
       profile: o.profile,

@@ -27,6 +27,10 @@ const EnvSchema = z.object({
   /** Serial ports of the local bench with BENCH=serial: the pressure calibrator and the current meter (both or neither). */
   BENCH_PRESSURE_PORT: z.string().min(1).optional(),
   BENCH_CURRENT_PORT: z.string().min(1).optional(),
+  /** Serial port of a HART modem on the local bench with BENCH=serial (optional). */
+  BENCH_HART_PORT: z.string().min(1).optional(),
+  /** How that modem is keyed: `usb` (by itself) or `rts` (an RS-232 modem keyed by RTS). */
+  BENCH_HART_MODEM: z.enum(['usb', 'rts']).default('usb'),
   /** Hold time in seconds before a stable point is captured (common practice: at least 30 s). */
   HOLD_SECONDS: z.coerce.number().positive().max(3600).default(30),
   /** SMTP URL for mail; unset starts a local fake SMTP server and the Outbox. */

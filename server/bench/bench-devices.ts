@@ -6,6 +6,8 @@
 import { SIMCAL_PROFILE, type DeviceKind, type LineProtocolProfile } from '../../shared/protocol';
 import { LineCalibratorDriver, ScpiMeterDriver, type BenchDriver, type DriverStats } from './protocols';
 import { openPort, type BindingInterface, type ManagedPort } from './transport';
+import { HartModem, type HartModemStatus } from './hart-modem';
+import type { HartModemType } from './protocols';
 
 /** Options of {@link BenchDevices}. */
 export interface BenchDevicesOptions {
@@ -13,6 +15,8 @@ export interface BenchDevicesOptions {
   binding: BindingInterface;
   paths: { pressure: string; current: string };
   profile?: LineProtocolProfile;
+  /** A HART modem on the bench (optional): its port and how it is keyed. */
+  hart?: { path: string; modem?: HartModemType; pollMs?: number };
   /** Readings/s per device. Default 10. */
   pollRateHz?: number;
   onSample(device: DeviceKind, raw: string, value: number | null, unit: string | null): void;
@@ -25,6 +29,8 @@ export class BenchDevices {
   private readonly ports: Record<DeviceKind, ManagedPort>;
   private readonly drivers: Record<DeviceKind, BenchDriver>;
   private readonly meter: ScpiMeterDriver;
+  /** The HART modem, when the bench has one. */
+  readonly hart: HartModem | undefined;
 
   constructor(private readonly o: BenchDevicesOptions) {
     this.benchId = o.benchId;
@@ -34,6 +40,7 @@ export class BenchDevices {
     const calibrator = new LineCalibratorDriver(pressure, o.profile ?? SIMCAL_PROFILE, { pollRateHz: o.pollRateHz ?? 10 });
     this.meter = new ScpiMeterDriver(current, { pollRateHz: o.pollRateHz ?? 10 });
     this.drivers = { pressure: calibrator, current: this.meter };
+    this.hart = o.hart ? new HartModem({ path: o.hart.path, binding: o.binding, modem: o.hart.modem, pollMs: o.hart.pollMs }) : undefined;
     for (const device of ['pressure', 'current'] as const) {
       const d = this.drivers[device];
       // Decoded readings and rejected lines are both kept: every raw line is part of the record.
@@ -63,15 +70,18 @@ export class BenchDevices {
     this.ports.current.open().then(configure, () => {});
     this.ports.pressure.open().catch(() => {});
     this.drivers.pressure.startPolling(this.o.pollRateHz ?? 10);
+    this.hart?.start();
   }
 
   /** Whether each device is connected, with its path and counters. */
-  status(): Record<DeviceKind, { path: string; connected: boolean; state: string; stats: DriverStats }> {
+  status(): Record<DeviceKind, { path: string; connected: boolean; state: string; stats: DriverStats }> & { hart?: HartModemStatus } {
     const one = (d: DeviceKind) => ({ path: this.ports[d].path, connected: this.ports[d].connected, state: this.ports[d].state, stats: this.drivers[d].stats });
-    return { pressure: one('pressure'), current: one('current') };
+    return { pressure: one('pressure'), current: one('current'), ...(this.hart ? { hart: this.hart.status() } : {}) };
   }
 
   async stop(): Promise<void> {
+    // First, while the port is still open: the HART modem leaves fixed current if it may be on.
+    await this.hart?.stop();
     for (const d of Object.values(this.drivers)) d.close();
     await Promise.all(Object.values(this.ports).map((p) => p.close()));
   }

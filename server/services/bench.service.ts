@@ -37,7 +37,7 @@ export interface BenchServiceOptions {
    * The local bench's devices: the serialport binding (real, or the simulated rig's) and the two
    * ports' paths. Omit for no local devices (agents-only servers, BENCH=serial without ports).
    */
-  local?: { binding: BindingInterface; paths: { pressure: string; current: string } };
+  local?: { binding: BindingInterface; paths: { pressure: string; current: string; hart?: string }; hartModem?: 'usb' | 'rts' };
   benchId?: string;
   /** Sample writer interval, ms. Default 250. */
   flushMs?: number;
@@ -113,6 +113,7 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
         benchId,
         binding: o.local.binding,
         paths: o.local.paths,
+        ...(o.local.paths.hart ? { hart: { path: o.local.paths.hart, modem: o.local.hartModem ?? 'usb' } } : {}),
         profile: o.profile,
         onSample: (device, raw, value, unit) => hub.ingestSample({ benchId, device, raw, value, unit }),
         onStatus: (ev) =>

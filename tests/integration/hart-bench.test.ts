@@ -1,0 +1,54 @@
+/**
+ * The HART modem as a bench device of the real server (BENCH=sim): GET /api/bench shows it with the
+ * transmitter it found, and stopping the server leaves fixed current even when Stillpoint did not
+ * set it (the device's "loop current fixed" status bit is enough).
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+
+let srv: TestServer | undefined;
+let admin: ApiClient;
+
+beforeAll(async () => {
+  srv = await startTestServer();
+  admin = new ApiClient(srv.url);
+  await admin.login(demoEmail('admin'));
+}, 120_000);
+
+afterAll(async () => {
+  await srv?.close();
+});
+
+type HartStatus = { connected: boolean; modem: string; baudRate: number; device: { deviceId: number } | null; loopCurrentFixed: boolean; deviceStatus: string[]; lastCommand: { command: number; outcome: string } | null; stats: { transactions: number } };
+
+async function hartStatus(): Promise<HartStatus | undefined> {
+  const body = (await admin.get('/api/bench')).body as { benchId: string; benches: { benchId: string; local: { hart?: HartStatus } | null }[] };
+  return body.benches.find((b) => b.benchId === body.benchId)?.local?.hart;
+}
+
+async function until<T>(read: () => Promise<T>, ok: (v: T) => boolean, what: string, timeoutMs = 10_000): Promise<T> {
+  const end = performance.now() + timeoutMs;
+  for (;;) {
+    const v = await read();
+    if (ok(v)) return v;
+    if (performance.now() > end) throw new Error(`timed out waiting for ${what}: ${JSON.stringify(v)}`);
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
+describe('HART modem on the bench', () => {
+  it('is listed with its port settings, the transmitter found by command 0 and its counters', async () => {
+    const hart = await until(hartStatus, (h) => !!h?.device && (h?.stats.transactions ?? 0) >= 2, 'the HART device to be found');
+    expect(hart).toMatchObject({ connected: true, modem: 'usb', baudRate: 1200, device: { deviceId: 0x00b2c7 }, loopCurrentFixed: false, lastCommand: { outcome: 'ok' } });
+  });
+
+  it('leaves fixed current when the server stops, also when the device reports it fixed by someone else', async () => {
+    const rig = srv!.rig!;
+    rig.apply({ trim: { fixedMa: 12 } }); // as if a handheld had fixed the loop
+    await until(hartStatus, (h) => h?.loopCurrentFixed === true, 'the driver to see "loop current fixed"');
+    expect((await hartStatus())?.deviceStatus).toContain('loop current fixed');
+    await srv!.close();
+    srv = undefined;
+    expect(rig.snapshot().hart.trim.fixedMa).toBeNull();
+  });
+});
