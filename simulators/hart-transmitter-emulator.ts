@@ -61,6 +61,11 @@ export class HartTransmitterEmulator implements SimDevice {
     this.needsRts = options.needsRts ?? false;
   }
 
+  /** The rig's transmitter as this device sees it. */
+  get link(): HartTransmitterLink {
+    return this.options.link;
+  }
+
   /** The device's long address (command 0's unique identifier). */
   get uniqueId(): Uint8Array {
     return uniqueIdOf(this.state.config);

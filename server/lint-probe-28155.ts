@@ -1,0 +1,4 @@
+export async function f(): Promise<void> {}
+export function g() {
+  f();
+}
