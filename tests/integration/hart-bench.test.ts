@@ -42,6 +42,16 @@ describe('HART modem on the bench', () => {
     expect(hart).toMatchObject({ connected: true, modem: 'usb', baudRate: 1200, device: { deviceId: 0x00b2c7 }, loopCurrentFixed: false, lastCommand: { outcome: 'ok' } });
   });
 
+  it('takes the HART device’s configuration, trims and faults through POST /api/sim, and refuses what it cannot hold', async () => {
+    const ok = await admin.post('/api/sim', { hart: { tag: 'pt-7', writeProtect: true }, transmitter: { daErrorAt4Ma: 0.05, dampingS: 0.2 }, faults: { hart: { checksumErrors: 0.25 } } });
+    expect(ok.status).toBe(200);
+    expect(ok.body.hart).toMatchObject({ config: { tag: 'pt-7', writeProtect: true }, faults: { checksumErrors: 0.25 }, trim: { fixedMa: null } });
+    const bad = await admin.post('/api/sim', { hart: { tag: 'MUCH-TOO-LONG', unitCode: 200 } });
+    expect(bad.status).toBe(400);
+    expect(Object.keys(bad.body.error.fields ?? {}).sort()).toEqual(['hart.tag', 'hart.unitCode']);
+    expect((await admin.post('/api/sim', { hart: { writeProtect: false }, transmitter: { daErrorAt4Ma: 0, dampingS: 0 }, faults: { hart: { checksumErrors: 0 } } })).status).toBe(200);
+  });
+
   it('leaves fixed current when the server stops, also when the device reports it fixed by someone else', async () => {
     const rig = srv!.rig!;
     rig.apply({ trim: { fixedMa: 12 } }); // as if a handheld had fixed the loop

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { isPackableAscii, unitOfCode } from '../../../../shared/protocol/hart';
 import type { SimController } from '../../../bench/sim-control';
 import { input, validate } from '../../middleware/validate';
 import { routeTable } from '../../route-table';
@@ -13,6 +14,35 @@ const DeviceFaultsSchema = z
     wrongUnit: z.string().max(20).nullable(),
     overflow: z.boolean(),
     burstBytes: z.number().int().min(0).max(4096),
+  })
+  .partial()
+  .strict();
+
+const HartFaultsSchema = z
+  .object({
+    unplugged: z.boolean(),
+    noAnswer: finite.min(0).max(1),
+    checksumErrors: finite.min(0).max(1),
+    busy: z.boolean(),
+    lateReplyMs: finite.min(0).max(60_000),
+    garbage: z.boolean(),
+    configChanged: z.boolean(),
+  })
+  .partial()
+  .strict();
+
+const packed = (chars: number) => z.string().refine((v) => isPackableAscii(v, chars), `at most ${chars} characters from space to underscore (packed ASCII)`);
+
+/** The simulated HART device's own configuration. */
+const HartConfigSchema = z
+  .object({
+    tag: packed(8),
+    descriptor: packed(16),
+    date: z.object({ year: z.number().int().min(1900).max(2155), month: z.number().int().min(1).max(12), day: z.number().int().min(1).max(31) }).strict(),
+    unitCode: z.number().int().refine((c) => unitOfCode(c) !== undefined, 'a HART unit code Stillpoint maps (common table 2)'),
+    writeProtect: z.boolean(),
+    alarmSelection: z.number().int().min(0).max(255),
+    pollingAddress: z.number().int().min(0).max(63),
   })
   .partial()
   .strict();
@@ -40,6 +70,9 @@ export const SimBodySchema = z
         failure: z.enum(['none', 'low', 'high']),
         lowFailureMa: finite.min(0).max(4),
         highFailureMa: finite.min(20).max(25),
+        daErrorAt4Ma: finite.min(-1).max(1),
+        daErrorAt20Ma: finite.min(-1).max(1),
+        dampingS: finite.min(0).max(60),
       })
       .partial()
       .strict(),
@@ -55,7 +88,12 @@ export const SimBodySchema = z
       .partial()
       .strict(),
     setpoint: z.object({ value: finite, overshoot: finite.min(0).max(2).optional() }).strict(),
-    faults: z.object({ pressure: DeviceFaultsSchema, current: DeviceFaultsSchema }).partial().strict(),
+    faults: z.object({ pressure: DeviceFaultsSchema, current: DeviceFaultsSchema, hart: HartFaultsSchema }).partial().strict(),
+    hart: HartConfigSchema,
+    trim: z
+      .object({ sensorZero: finite, loopAt4Ma: finite.min(-1).max(1), loopAt20Ma: finite.min(-1).max(1), fixedMa: finite.min(3.5).max(23).nullable() })
+      .partial()
+      .strict(),
     autopilot: z.union([
       z.literal('stop'),
       z

@@ -1,4 +1,0 @@
-export async function f(): Promise<void> {}
-export function g() {
-  f();
-}

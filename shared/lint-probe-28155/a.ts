@@ -1,2 +1,0 @@
-import { b } from './b';
-export const a = () => b();
