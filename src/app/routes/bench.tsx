@@ -51,7 +51,7 @@ export function Component() {
           <StoragePanel status={bench.data} canAcknowledge={me?.role === 'admin' || me?.role === 'lead'} />
           <p className="text-sm text-ink-muted">
             Sequence <span className="num text-ink">{bench.data.latestSeq}</span>, stored up to <span className="num text-ink">{bench.data.storedSeq ?? '—'}</span>. Port roles and protocol
-            profiles are set in the server&apos;s configuration (<span className="num">BENCH_PRESSURE_PORT</span>, <span className="num">BENCH_CURRENT_PORT</span>); this server offers no
+            profiles are set in the server&apos;s configuration (<span className="num">BENCH_PRESSURE_PORT</span>, <span className="num">BENCH_CURRENT_PORT</span>, <span className="num">BENCH_HART_PORT</span>); this server offers no
             port editing or connection test over the API yet.
           </p>
           {me?.role === 'admin' && bench.data.mode === 'sim' && <SimControls />}

@@ -35,6 +35,25 @@ const LocalDevice = z
   })
   .passthrough();
 
+/** The bench's HART modem (server/bench/hart-modem.ts `HartModemStatus`). */
+const HartModem = z
+  .object({
+    path: z.string(),
+    connected: z.boolean(),
+    state: z.string(),
+    modem: z.enum(['usb', 'rts']),
+    baudRate: z.number(),
+    protocol: z.string(),
+    device: z.object({ deviceId: z.number(), expandedDeviceType: z.number(), universalRevision: z.number() }).nullable(),
+    loopCurrentFixed: z.boolean(),
+    deviceStatus: z.array(z.string()),
+    lastCommand: z.object({ command: z.number(), name: z.string(), at: z.number(), outcome: z.enum(['ok', 'error']), responseCode: z.number().optional() }).nullable(),
+    lastError: z.object({ code: z.string(), message: z.string(), at: z.number() }).nullable(),
+    stats: z.object({ sent: z.number(), retries: z.number(), timeouts: z.number(), checksumErrors: z.number(), busy: z.number(), transactions: z.number(), errors: z.number() }).partial(),
+  })
+  .passthrough();
+export type HartModemStatus = z.infer<typeof HartModem>;
+
 /** GET /api/bench: devices and their state, counters and storage acknowledgement. */
 export const BenchStatusSchema = z
   .object({
@@ -58,7 +77,7 @@ export const BenchStatusSchema = z
           runId: z.string().nullable().optional(),
           activeRunId: z.string().nullable().optional(),
           devices: z.record(z.string(), Counters),
-          local: z.object({ pressure: LocalDevice, current: LocalDevice }).nullable().optional(),
+          local: z.object({ pressure: LocalDevice, current: LocalDevice, hart: HartModem.optional() }).nullable().optional(),
         })
         .passthrough(),
     ),

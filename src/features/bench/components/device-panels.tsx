@@ -3,6 +3,7 @@ import { cn } from '../../../lib/cn';
 import { formatNumber, unitLabel } from '../../../lib/format';
 import { useLiveRun } from '../../../stores/live-run';
 import type { BenchStatus } from '../api/get-bench';
+import { HartModemPanel } from './hart-modem-panel';
 
 const ROLE = { pressure: 'Pressure reference (applied DP)', current: 'Current meter (loop mA)' } as const;
 const PROTOCOL = { pressure: 'Line protocol (calibrator profile)', current: 'SCPI (IEEE 488.2)' } as const;
@@ -80,6 +81,7 @@ export function DevicePanels({ status }: { status: BenchStatus }) {
                 </article>
               );
             })}
+            {b.local?.hart && <HartModemPanel hart={b.local.hart} />}
           </div>
         </section>
       ))}
