@@ -31,7 +31,7 @@ describe('HartModemPanel', () => {
     expect(screen.getByText('RS-232, carrier keyed by RTS')).toBeTruthy();
     expect(screen.getByText('1200 bit/s 8O1')).toBeTruthy();
     expect(screen.getByTestId('hart-device').textContent).toBe('device 00B2C7 · type 3A51 · HART 7');
-    expect(screen.getByTestId('hart-last-command').textContent).toBe('45 (trim loop current zero), failed 5 s ago');
+    expect(screen.getByTestId('hart-last-command').textContent).toBe('command 45 (trim loop current zero), failed 5 s ago');
     expect(screen.getByText('Loop current fixed')).toBeTruthy();
     expect(screen.getByText('configuration changed, loop current fixed')).toBeTruthy();
     expect(screen.getByTestId('hart-last-error').textContent).toContain('in write protect mode');

@@ -11,12 +11,12 @@ function ago(ms: number): string {
 
 const hex = (n: number, digits: number): string => n.toString(16).toUpperCase().padStart(digits, '0');
 
-/** Counter cell that turns to the warning colour when above zero. */
-function Count({ label, value }: { label: string; value: number | undefined }) {
+/** Counter cell; a count of trouble turns to the warning colour when above zero. */
+function Count({ label, value, trouble = true }: { label: string; value: number | undefined; trouble?: boolean }) {
   return (
     <>
       <dt className="text-ink-muted">{label}</dt>
-      <dd className={cn('num', (value ?? 0) > 0 ? 'text-warn' : 'text-ink')}>{value ?? 0}</dd>
+      <dd className={cn('num', trouble && (value ?? 0) > 0 ? 'text-warn' : 'text-ink')}>{value ?? 0}</dd>
     </>
   );
 }
@@ -50,16 +50,23 @@ export function HartModemPanel({ hart }: { hart: HartModemStatus }) {
         <dt className="text-ink-muted">Modem</dt>
         <dd className="text-ink">{MODEM[hart.modem]}</dd>
         <dt className="text-ink-muted">Transmitter</dt>
-        <dd className="num text-ink" data-testid="hart-device">
-          {hart.device ? `device ${hex(hart.device.deviceId, 6)} · type ${hex(hart.device.expandedDeviceType, 4)} · HART ${hart.device.universalRevision}` : 'not found yet'}
+        <dd className="text-ink" data-testid="hart-device">
+          {hart.device ? (
+            <>
+              device <span className="num">{hex(hart.device.deviceId, 6)}</span> · type <span className="num">{hex(hart.device.expandedDeviceType, 4)}</span> · HART{' '}
+              <span className="num">{hart.device.universalRevision}</span>
+            </>
+          ) : (
+            'not found yet'
+          )}
         </dd>
         <dt className="text-ink-muted">Last command</dt>
         <dd className={cn('text-ink', hart.lastCommand?.outcome === 'error' && 'text-danger')} data-testid="hart-last-command">
-          {hart.lastCommand ? `${hart.lastCommand.command} (${hart.lastCommand.name}), ${hart.lastCommand.outcome === 'ok' ? 'answered' : 'failed'} ${ago(hart.lastCommand.at)}` : 'none yet'}
+          {hart.lastCommand ? `command ${hart.lastCommand.command} (${hart.lastCommand.name}), ${hart.lastCommand.outcome === 'ok' ? 'answered' : 'failed'} ${ago(hart.lastCommand.at)}` : 'none yet'}
         </dd>
         <dt className="text-ink-muted">Device status</dt>
         <dd className="text-ink">{hart.deviceStatus.length > 0 ? hart.deviceStatus.join(', ') : 'nothing reported'}</dd>
-        <Count label="Transactions" value={s.transactions} />
+        <Count label="Transactions" value={s.transactions} trouble={false} />
         <Count label="Failed" value={s.errors} />
         <Count label="Retries" value={s.retries} />
         <Count label="Timeouts" value={s.timeouts} />
