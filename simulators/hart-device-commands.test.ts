@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { CMD15_INFO, CMD1_PV, CMD2_CURRENT, CMD40_FIXED_CURRENT, CMD45_TRIM_ZERO, CMD46_TRIM_GAIN, DEVICE_STATUS } from '../shared/protocol/hart';
+import { convertPressure } from '../shared/calc';
 import { answerHartCommand, deviceStatus } from './hart-device-commands';
 import { SimRig } from './sim-rig';
 
@@ -62,6 +63,17 @@ describe('simulated HART transmitter', () => {
     expect(ask(40, CMD40_FIXED_CURRENT.encodeRequest({ currentMa: 12 })).responseCode).toBe(11);
     expect(ask(82).responseCode).toBe(64);
     expect(ask(40, new Uint8Array(2)).responseCode).toBe(5);
+  });
+
+  it('reports the PV and the range in the device’s own unit code', () => {
+    const { r, ask } = rig();
+    r.apply({ setpoint: { value: 40 }, hart: { unitCode: 12 } }); // 12: kPa (common table 2, from memory)
+    r.snapshot();
+    const info = CMD15_INFO.decodeResponse(ask(15).data);
+    expect(info?.rangeUnitCode).toBe(12);
+    expect(info?.urv).toBeCloseTo(convertPressure(100, 'inH2O@68F', 'kPa'), 4);
+    expect(CMD1_PV.decodeResponse(ask(1).data)).toMatchObject({ unitCode: 12 });
+    expect(CMD1_PV.decodeResponse(ask(1).data)?.value).toBeCloseTo(convertPressure(40, 'inH2O@68F', 'kPa'), 3);
   });
 
   it('reports a square-root transfer function and the damping from the transmitter model', () => {
