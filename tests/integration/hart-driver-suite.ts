@@ -27,8 +27,8 @@ export const HART_SUITE_RIG = { source: { timeConstantS: 0.02, isolateBand: 0.00
 /** HART line settings: 1200 bit/s, 8 data bits, odd parity, 1 stop bit (from memory of the FSK physical layer, HCF_SPEC-054). */
 export const HART_LINE = { baudRate: 1200, lineSettings: { dataBits: 8, parity: 'odd', stopBits: 1 } } as const;
 
-/** Short timeouts so fault tests finish quickly; still well above the simulated device's ~0.35 s answer. */
-const FAST: HartDriverOptions = { timeoutMs: 600, retries: 2, busyRetries: 2, busyDelayMs: 20 };
+/** Timeouts short enough for the fault tests, with room for a loaded machine above the simulated device's ~0.35 s answer. */
+const FAST: HartDriverOptions = { timeoutMs: 1000, retries: 2, busyRetries: 2, busyDelayMs: 20 };
 
 const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
 
@@ -170,7 +170,7 @@ export function defineHartSuite(name: string, setup: () => Promise<HartSuiteEnv>
       d.on('cleanup.failed', (e) => cleanup.push(e));
       const error = await d.withFixedCurrent(4, () => d.trimLoopZero(4)).catch((e: unknown) => e);
       expect(error).toBeInstanceOf(HartTimeoutError);
-      expect((error as Error).message).toBe(`HART command 40 (enter/exit fixed current mode) on ${env.path}: no reply in 600 ms (3 attempts)`);
+      expect((error as Error).message).toBe(`HART command 40 (enter/exit fixed current mode) on ${env.path}: no reply in 1000 ms (3 attempts)`);
       // The exit could not get through either; the loop is still fixed and the driver knows it.
       expect(cleanup[0]).toBeInstanceOf(HartTimeoutError);
       expect(d.loopCurrentFixed).toBe(true);
