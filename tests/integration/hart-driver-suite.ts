@@ -8,6 +8,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { describeDeviceStatus } from '../../shared/protocol/hart';
 import { openPort, type BindingInterface, type ManagedPort } from '../../server/bench/transport';
 import { HartBusyError, HartChecksumError, HartMasterDriver, HartTimeoutError, HartWriteProtectedError, type HartDriverOptions, type HartTransaction } from '../../server/bench/protocols';
+import { HART_LINE_SETTINGS } from '../../server/bench/hart-modem';
 import { NO_HART_FAULTS } from '../../simulators/hart-transmitter-emulator';
 import type { SimRig } from '../../simulators/sim-rig';
 
@@ -24,8 +25,9 @@ export interface HartSuiteEnv {
 /** Rig settings of both runs: a fast pump so the PV settles in tens of milliseconds. */
 export const HART_SUITE_RIG = { source: { timeConstantS: 0.02, isolateBand: 0.001 }, transmitter: { lrv: 0, urv: 100 }, latencyMs: 2 } as const;
 
-/** HART line settings: 1200 bit/s, 8 data bits, odd parity, 1 stop bit (from memory of the FSK physical layer, HCF_SPEC-054). */
-export const HART_LINE = { baudRate: 1200, lineSettings: { dataBits: 8, parity: 'odd', stopBits: 1 } } as const;
+const { baudRate, ...lineSettings } = HART_LINE_SETTINGS;
+/** The bench's HART line settings (1200 bit/s 8O1) as `openPort` takes them. */
+export const HART_LINE = { baudRate, lineSettings };
 
 /** Timeouts short enough for the fault tests, with room for a loaded machine above the simulated device's ~0.35 s answer. */
 const FAST: HartDriverOptions = { timeoutMs: 1000, retries: 2, busyRetries: 2, busyDelayMs: 20 };
