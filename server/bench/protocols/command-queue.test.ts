@@ -1,30 +1,17 @@
-import { EventEmitter } from 'node:events';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { classifyScpiMeterLine } from '../../../shared/protocol';
-import type { DevicePort, PortStatusEvent } from '../transport/device-port';
+import { HandPort } from '../../../tests/helpers/hand-port';
 import { BadReplyError, CommandQueue, CommandTimeoutError, PortUnavailableError } from './command-queue';
 import { ProtocolParser } from './protocol-parser';
 
-/** A hand-driven port: records writes, lets the test answer. Not a module mock. */
-class ScriptedPort implements DevicePort {
-  readonly path = '/dev/ttyUSB0';
-  connected = true;
+/** A hand-driven port: records writes, lets the test answer. */
+class ScriptedPort extends HandPort {
   readonly written: string[] = [];
-  private readonly events = new EventEmitter();
+  constructor() {
+    super('/dev/ttyUSB0');
+  }
   async write(data: string | Uint8Array): Promise<void> {
     this.written.push(String(data));
-  }
-  onData(listener: (chunk: Uint8Array) => void): () => void {
-    this.events.on('data', listener);
-    return () => this.events.off('data', listener);
-  }
-  onStatus(listener: (event: PortStatusEvent) => void): () => void {
-    this.events.on('status', listener);
-    return () => this.events.off('status', listener);
-  }
-  disconnect(): void {
-    this.connected = false;
-    this.events.emit('status', { type: 'device.disconnected', path: this.path, at: 0, reason: 'unplugged' });
   }
 }
 

@@ -3,40 +3,27 @@
  * request is not a reply, nor is a reply to another command or another device. Frames are literal
  * bytes (layout from memory of HCF_SPEC-081; checksums recomputed by hand).
  */
-import { EventEmitter } from 'node:events';
 import { describe, expect, it } from 'vitest';
-import type { DevicePort, PortStatusEvent } from '../../transport/device-port';
+import { HandPort } from '../../../../tests/helpers/hand-port';
 import { HartLink } from './hart-link';
 import { HartPortError, HartTimeoutError } from './hart-errors';
 
 const hex = (text: string): Uint8Array => Uint8Array.from(text.split(' '), (b) => parseInt(b, 16));
 
 /** Echoes every write (as some modems do) and then plays the scripted answers. */
-class EchoingPort implements DevicePort {
-  readonly path = '/dev/ttyHART0';
-  connected = true;
+class EchoingPort extends HandPort {
   readonly written: Uint8Array[] = [];
   answers: string[] = [];
-  private readonly events = new EventEmitter();
+  constructor() {
+    super('/dev/ttyHART0');
+  }
   async write(data: string | Uint8Array): Promise<void> {
     const bytes = typeof data === 'string' ? new TextEncoder().encode(data) : data;
     this.written.push(bytes);
     setImmediate(() => {
-      this.events.emit('data', bytes);
-      for (const a of this.answers.splice(0)) this.events.emit('data', hex(a));
+      this.feed(bytes);
+      for (const a of this.answers.splice(0)) this.feed(hex(a));
     });
-  }
-  onData(listener: (chunk: Uint8Array) => void): () => void {
-    this.events.on('data', listener);
-    return () => this.events.off('data', listener);
-  }
-  onStatus(listener: (event: PortStatusEvent) => void): () => void {
-    this.events.on('status', listener);
-    return () => this.events.off('status', listener);
-  }
-  unplug(): void {
-    this.connected = false;
-    this.events.emit('status', { type: 'device.disconnected', path: this.path, at: 0, reason: 'unplugged' });
   }
 }
 
@@ -65,7 +52,7 @@ describe('HartLink', () => {
     expect(error).toBeInstanceOf(HartTimeoutError);
     expect((error as Error).message).toBe('HART command 0 (read unique identifier) on /dev/ttyHART0: no reply in 50 ms (2 attempts)');
     const waiting = link.transact(POLL0, 0, new Uint8Array(0), 5_000);
-    setTimeout(() => port.unplug(), 10);
+    setTimeout(() => port.disconnect(), 10);
     await expect(waiting).rejects.toBeInstanceOf(HartPortError);
     await expect(link.transact(POLL0, 0, new Uint8Array(0))).rejects.toThrow('HART command 0 (read unique identifier) on /dev/ttyHART0: port not connected');
     link.close();
