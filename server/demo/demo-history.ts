@@ -28,10 +28,10 @@ import { reviewRepository } from '../db/repositories/review.repository';
 import { userRepository } from '../db/repositories/user.repository';
 import { orificeSpecOf, PrimaryElementSchema } from '../../shared/schemas/instruments';
 import type { JobDetail } from '../../shared/schemas/jobs';
-import { createAuditService, type AuditService } from './audit.service';
-import { addDays, isoDate } from './dates';
-import { EMPTY_CHECKLIST } from './job.service';
-import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
+import { createAuditService, type AuditService } from '../services/audit.service';
+import { addDays, isoDate } from '../services/dates';
+import { EMPTY_CHECKLIST } from '../services/job.service';
+import { createRecordFreezer, frozenRecordHash } from '../services/record-snapshot';
 
 const DEMO_DOMAIN = 'stillpoint-demo.test';
 /** The bench id run plans name (the server's own bench). */
