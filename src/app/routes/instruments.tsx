@@ -1,5 +1,6 @@
 import type { QueryClient } from '@tanstack/react-query';
 import type { Instrument } from '../../../shared/schemas/instruments';
+import { INSTRUMENT_COLUMNS as INSTRUMENT_CSV_COLUMNS } from '../../../shared/schemas/register-csv';
 import { RegisterPage, type RegisterPageConfig } from '../../components/registers/register-page';
 import { DATASHEET } from '../../components/ui/attachments';
 import { useMe } from '../../features/auth/api/get-me';
@@ -25,12 +26,9 @@ const INSTRUMENTS: RegisterPageConfig<Instrument> = {
       </>
     ),
   noun: 'instrument',
-  nouns: 'instruments',
   registerName: 'Instrument register',
-  storageKey: 'sp.columns.instruments',
   searchPlaceholder: 'Search tag, service, location…',
-  apiPath: '/api/instruments',
-  csvColumns: ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'lastCalibratedOn', 'notes', 'pe.*'],
+  csvColumns: INSTRUMENT_CSV_COLUMNS,
   initialSort: { sort: 'tag', dir: 'asc' },
   columns: INSTRUMENT_COLUMNS,
   rowName: (i) => i.tag,
@@ -38,10 +36,7 @@ const INSTRUMENTS: RegisterPageConfig<Instrument> = {
   files: {
     label: 'Datasheets',
     description: (i) => `${i.service} · ${i.location}`,
-    target: (i) => ({ entity: 'instrument', id: i.id }),
     spec: DATASHEET,
-    emptyText: 'No datasheet uploaded.',
-    testId: 'instrument-datasheets',
   },
   renderForm: ({ row, onSaved, onCancel }) => <InstrumentForm instrument={row} onSaved={onSaved} onCancel={onCancel} />,
 };

@@ -1,5 +1,6 @@
 import type { QueryClient } from '@tanstack/react-query';
 import type { Standard } from '../../../shared/schemas/standards';
+import { STANDARD_COLUMNS as STANDARD_CSV_COLUMNS } from '../../../shared/schemas/register-csv';
 import { RegisterPage, type RegisterPageConfig } from '../../components/registers/register-page';
 import { CERTIFICATE } from '../../components/ui/attachments';
 import { Stat } from '../../components/ui/stat';
@@ -31,12 +32,9 @@ const STANDARDS: RegisterPageConfig<Standard> = {
   title: 'Standards',
   description: () => 'Reference standards used on the bench. An expired standard cannot be used for a run; one due within 30 days is flagged.',
   noun: 'standard',
-  nouns: 'standards',
   registerName: 'Standards register',
-  storageKey: 'sp.columns.standards',
   searchPlaceholder: 'Search description, serial, certificate…',
-  apiPath: '/api/standards',
-  csvColumns: ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'pctReading', 'pctFullScale', 'floor', 'certificateU', 'certificateK', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'],
+  csvColumns: STANDARD_CSV_COLUMNS,
   initialSort: { sort: 'dueOn', dir: 'asc' },
   columns: STANDARD_COLUMNS,
   rowName: (s) => s.serial,
@@ -44,10 +42,7 @@ const STANDARDS: RegisterPageConfig<Standard> = {
   files: {
     label: 'Certificates',
     description: (s) => `${s.description} · certificate ${s.certificateNo}. The newest upload is the standard's certificate; records that used an earlier one keep it.`,
-    target: (s) => ({ entity: 'standard', id: s.id }),
     spec: CERTIFICATE,
-    emptyText: 'No certificate uploaded.',
-    testId: 'standard-certificates',
   },
   renderForm: ({ row, onSaved, onCancel }) => <StandardForm standard={row} onSaved={onSaved} onCancel={onCancel} />,
   summary: (total) => <DueCounts total={total} />,

@@ -24,25 +24,22 @@ export interface RegisterFiles<T> {
   /** The row button and the dialog's title start: "Datasheets", "Certificates". */
   label: string;
   description: (row: T) => string;
-  target: (row: T) => AttachmentTarget;
   spec: AttachmentKindSpec;
-  emptyText: string;
-  testId: string;
 }
 
 /** What one register (instruments, standards) puts into the shared page. */
 export interface RegisterPageConfig<T extends { id: string }> {
   title: string;
   description: (total: number | undefined) => ReactNode;
-  /** Singular and plural nouns: "instrument", "instruments". */
-  noun: string;
-  nouns: string;
+  /**
+   * What one row is ("instrument"): its files are kept under it, and its plural names the API
+   * path (`/api/instruments`) and the remembered columns.
+   */
+  noun: Exclude<AttachmentTarget['entity'], 'job'>;
   /** The register's name in captions and errors: "Instrument register". */
   registerName: string;
-  storageKey: string;
   searchPlaceholder: string;
-  /** The API path of the register: `/api/instruments`. */
-  apiPath: string;
+  /** The CSV layout (shared with the server); grouped columns (`pe.…`) are named once as `pe.*`. */
   csvColumns: readonly string[];
   initialSort: SortState;
   columns: RegisterColumn<T>[];
@@ -57,12 +54,19 @@ export interface RegisterPageConfig<T extends { id: string }> {
 
 const PAGE_SIZE = 25;
 
+/** Column names for the import dialog: a group of `prefix.field` columns is shown once as `prefix.*`. */
+export function csvColumnNames(columns: readonly string[]): string[] {
+  return [...new Set(columns.map((c) => (c.includes('.') ? `${c.slice(0, c.indexOf('.'))}.*` : c)))];
+}
+
 /**
  * One register page: a server-paged, searchable table with CSV export, and for those who may edit
  * it (`canEdit`) CSV import, add and edit forms; every row opens its files.
  */
 export function RegisterPage<T extends { id: string }>({ config, canEdit }: { config: RegisterPageConfig<T>; canEdit: boolean }) {
   const c = config;
+  const nouns = `${c.noun}s`;
+  const apiPath = `/api/${nouns}`;
   const [search, setSearch] = useState('');
   const q = useDeferredValue(search);
   const [sort, setSort] = useState<SortState>(c.initialSort);
@@ -74,7 +78,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
   const table = list.data && (
     <ServerTable
       caption={c.registerName}
-      storageKey={c.storageKey}
+      storageKey={`sp.columns.${nouns}`}
       columns={c.columns}
       rows={list.data.items}
       rowKey={(row) => row.id}
@@ -88,7 +92,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
       }}
       onPage={setPage}
       loading={list.isFetching}
-      empty={q ? `No ${c.nouns} match “${q}”.` : `No ${c.nouns} registered yet.`}
+      empty={q ? `No ${nouns} match “${q}”.` : `No ${nouns} registered yet.`}
       rowActions={(row) => (
         <>
           <Button size="sm" variant="ghost" onClick={() => setFilesOf(row)} aria-label={`${c.files.label} of ${c.rowName(row)}`}>
@@ -111,7 +115,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
         actions={
           <div className="flex flex-wrap items-center gap-2">
             <SearchInput
-              label={`Search ${c.nouns}`}
+              label={`Search ${nouns}`}
               placeholder={c.searchPlaceholder}
               value={search}
               onValueChange={(v) => {
@@ -119,7 +123,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
                 setPage(1);
               }}
             />
-            <a href={`${c.apiPath}/export.csv`} className="inline-flex h-9 items-center rounded-md border border-line-strong px-3 text-sm hover:bg-sunken" download>
+            <a href={`${apiPath}/export.csv`} className="inline-flex h-9 items-center rounded-md border border-line-strong px-3 text-sm hover:bg-sunken" download>
               Export CSV
             </a>
             {canEdit && (
@@ -171,18 +175,25 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
         className="w-[min(40rem,calc(100vw-2rem))]"
       >
         {filesOf && (
-          <AttachmentList target={c.files.target(filesOf)} spec={c.files.spec} canUpload={canEdit} canRemove={canEdit} emptyText={c.files.emptyText} testId={c.files.testId} />
+          <AttachmentList
+            target={{ entity: c.noun, id: filesOf.id }}
+            spec={c.files.spec}
+            canUpload={canEdit}
+            canRemove={canEdit}
+            emptyText={`No ${c.files.spec.noun} uploaded.`}
+            testId={`${c.noun}-${c.files.label.toLowerCase()}`}
+          />
         )}
       </Dialog>
       <CsvImportDialog
         open={importing}
         onClose={() => setImporting(false)}
-        endpoint={`${c.apiPath}/import`}
-        title={`Import ${c.nouns} from CSV`}
-        columns={c.csvColumns}
+        endpoint={`${apiPath}/import`}
+        title={`Import ${nouns} from CSV`}
+        columns={csvColumnNames(c.csvColumns)}
         onImported={(n) => {
           setImporting(false);
-          toast(`${n} ${c.nouns} imported`, { tone: 'success' });
+          toast(`${n} ${nouns} imported`, { tone: 'success' });
           void list.refetch();
         }}
       />
