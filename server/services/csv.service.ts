@@ -10,7 +10,7 @@ import {
 import { reviewRepository } from '../db/repositories/review.repository';
 import { badRequest } from '../errors';
 import { InstrumentInputSchema } from '../../shared/schemas/instruments';
-import type { ImportReport, ImportRow } from '../../shared/schemas/records';
+import type { ImportReport, ImportRow } from '../../shared/schemas/register-csv';
 import { INSTRUMENT_COLUMNS, INSTRUMENT_REQUIRED, STANDARD_COLUMNS, STANDARD_REQUIRED } from '../../shared/schemas/register-csv';
 import { StandardInputSchema } from '../../shared/schemas/standards';
 import { PastDateSchema } from '../../shared/schemas/dates';

@@ -5,7 +5,7 @@
 import type { Db } from '../db/client';
 import { reviewRepository } from '../db/repositories/review.repository';
 import { notFound } from '../errors';
-import type { ReviewTrace } from '../../shared/schemas/records';
+import type { ReviewTrace } from '../../shared/schemas/trace';
 
 /** Whole-run traces kept in memory (a few runs under review at once). */
 const OVERVIEW_CACHE = 16;

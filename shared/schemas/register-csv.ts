@@ -1,3 +1,5 @@
+import { z } from 'zod';
+
 /**
  * The CSV layouts of the two registers, shared by the server (import and export) and the client
  * (the import dialog names the columns).
@@ -55,3 +57,39 @@ export const STANDARD_COLUMNS = [
   'calibratingLab',
 ] as const;
 export const STANDARD_REQUIRED: readonly string[] = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'resolution', 'certificateNo', 'calibratedOn', 'dueOn'];
+
+/** CSV import body: the text (or a file in a multipart form), dry run unless `confirm` is true. */
+export const ImportBodySchema = z.object({
+  csv: z.string().min(1, 'The file is empty').max(2_000_000, 'The file is larger than 2 MB'),
+  confirm: z
+    .union([z.boolean(), z.enum(['true', 'false', '1', '0'])])
+    .default(false)
+    .transform((v) => v === true || v === 'true' || v === '1'),
+});
+
+export const ImportRowSchema = z.object({
+  /** 1-based data row (the header is row 0). */
+  row: z.number().int(),
+  /** Line in the file where the row starts. */
+  line: z.number().int(),
+  /** Key shown in the preview (tag or serial). */
+  key: z.string(),
+  ok: z.boolean(),
+  /** Field → messages. */
+  errors: z.record(z.string(), z.array(z.string())),
+  /** The parsed values (as they would be written) when ok. */
+  value: z.record(z.string(), z.unknown()).nullable(),
+});
+export type ImportRow = z.infer<typeof ImportRowSchema>;
+
+export const ImportReportSchema = z.object({
+  dryRun: z.boolean(),
+  total: z.number().int(),
+  valid: z.number().int(),
+  invalid: z.number().int(),
+  /** Problems with the file as a whole (missing columns, unknown columns, parse errors). */
+  fileErrors: z.array(z.string()),
+  rows: z.array(ImportRowSchema),
+  written: z.number().int(),
+});
+export type ImportReport = z.infer<typeof ImportReportSchema>;

@@ -1,6 +1,6 @@
 import { useEffect, useRef } from 'react';
 import type uPlot from 'uplot';
-import type { DriftPoint } from '../../../../shared/schemas/records';
+import type { DriftPoint } from '../../../../shared/schemas/drift';
 import { cssVar, mountChart } from '../../../lib/chart';
 import { dateAxis } from '../../../lib/chart-axes';
 import { useThemeStore } from '../../../lib/theme';

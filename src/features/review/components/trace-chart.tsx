@@ -1,6 +1,6 @@
 import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
-import type { ReviewTrace } from '../../../../shared/schemas/records';
+import type { ReviewTrace } from '../../../../shared/schemas/trace';
 import type { Run } from '../../../../shared/schemas/runs';
 import { Button } from '../../../components/ui/button';
 import { ChartKey } from '../../../components/ui/chart-key';
