@@ -3,7 +3,7 @@
  * per time bucket over a long one, with the whole-run view of a finished run kept in memory.
  */
 import type { Db } from '../db/client';
-import { reviewRepository } from '../db/repositories/review.repository';
+import { traceRepository } from '../db/repositories/trace.repository';
 import { notFound } from '../errors';
 import type { ReviewTrace } from '../../shared/schemas/trace';
 
@@ -13,7 +13,7 @@ const OVERVIEW_CACHE = 16;
 export const TRACE_DEFAULTS = { buckets: 1200, maxRaw: 12_000 } as const;
 
 export function createReviewTraces(db: Db) {
-  const repo = reviewRepository(db);
+  const repo = traceRepository(db);
 
   async function computeTrace(
     runId: string,
