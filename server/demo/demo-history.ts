@@ -10,6 +10,7 @@
 import {
   buildPlan,
   convertPressure,
+  cutoffOfSetting,
   evaluateCalibration,
   isPressureUnitId,
   maFromDp,
@@ -39,8 +40,7 @@ const BENCH_ID = 'bench-1';
 
 
 function cutoffOf(i: InstrumentRow): Cutoff {
-  if (i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)) return { mode: 'none' };
-  return i.cutoffMode === 'clamp' ? { mode: 'clamp', flowPct: i.cutoffValue } : { mode: 'linear', breakpointDpPct: i.cutoffValue };
+  return cutoffOfSetting({ outputMode: i.outputMode as OutputMode, cutoffMode: i.cutoffMode, cutoffValue: i.cutoffValue });
 }
 function specOf(i: InstrumentRow): TransferSpec {
   return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit as PressureUnitId }, mode: i.outputMode as OutputMode, cutoff: cutoffOf(i) };

@@ -2,7 +2,7 @@
  * A run's plan, frozen at start into `runs.plan`: the instrument as used, the points and the
  * settings; the test points of each kind of run and the capture engine's settings come from it.
  */
-import { buildPlan, DECISION_RULES, isPressureUnitId, span, trimPlan, type Cutoff, type DecisionRule, type OutputMode, type PlanPoint, type PressureUnitId, type TransferSpec } from '../../shared/calc';
+import { buildPlan, cutoffOfSetting, DECISION_RULES, isPressureUnitId, span, trimPlan, type Cutoff, type DecisionRule, type OutputMode, type PlanPoint, type PressureUnitId, type TransferSpec } from '../../shared/calc';
 import { PrimaryElementSchema, type PrimaryElement } from '../../shared/schemas/instruments';
 import type { RunKind, StartRunBody } from '../../shared/schemas/runs';
 import { DEFAULT_OVERRANGE_MARGIN_PCT, type SiteSettings } from '../../shared/schemas/settings';
@@ -43,8 +43,7 @@ export interface FrozenPlan {
 }
 
 export function cutoffOf(i: FrozenPlan['instrument']): Cutoff {
-  if (i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)) return { mode: 'none' };
-  return i.cutoffMode === 'clamp' ? { mode: 'clamp', flowPct: i.cutoffValue } : { mode: 'linear', breakpointDpPct: i.cutoffValue };
+  return cutoffOfSetting(i);
 }
 
 export function specOf(i: FrozenPlan['instrument']): TransferSpec {

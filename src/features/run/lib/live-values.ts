@@ -11,7 +11,7 @@ import {
   isPressureUnitId,
   maFromDp,
   SIGNAL_SPAN_MA,
-  type Cutoff,
+  cutoffOfSetting,
   type Ne43Class,
   type OutputMode,
   type TransferSpec,
@@ -31,13 +31,7 @@ export interface InstrumentSpecInput {
 /** Transfer spec of an instrument, or undefined when its unit is not one we know. */
 export function transferSpecOf(i: InstrumentSpecInput): TransferSpec | undefined {
   if (!isPressureUnitId(i.unit) || i.lrv === i.urv) return undefined;
-  const cutoff: Cutoff =
-    i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)
-      ? { mode: 'none' }
-      : i.cutoffMode === 'clamp'
-        ? { mode: 'clamp', flowPct: i.cutoffValue }
-        : { mode: 'linear', breakpointDpPct: i.cutoffValue };
-  return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit }, mode: i.outputMode, cutoff };
+  return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit }, mode: i.outputMode, cutoff: cutoffOfSetting(i) };
 }
 
 export interface LiveValues {
