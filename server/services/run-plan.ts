@@ -2,7 +2,7 @@
  * A run's plan, frozen at start into `runs.plan`: the instrument as used, the points and the
  * settings; the test points of each kind of run and the capture engine's settings come from it.
  */
-import { buildPlan, cutoffOfSetting, DECISION_RULES, isPressureUnitId, span, trimPlan, type Cutoff, type DecisionRule, type OutputMode, type PlanPoint, type PressureUnitId, type TransferSpec } from '../../shared/calc';
+import { buildPlan, cutoffOfSetting, type CutoffSetting, DECISION_RULES, isPressureUnitId, span, trimPlan, type Cutoff, type DecisionRule, type PlanPoint, type PressureUnitId, type TransferSpec } from '../../shared/calc';
 import { PrimaryElementSchema, type PrimaryElement } from '../../shared/schemas/instruments';
 import type { RunKind, StartRunBody } from '../../shared/schemas/runs';
 import { DEFAULT_OVERRANGE_MARGIN_PCT, type SiteSettings } from '../../shared/schemas/settings';
@@ -18,15 +18,12 @@ export interface FrozenPlan {
   holdSeconds: number;
   windowPctOfSpan: number;
   decisionRule: DecisionRule;
-  instrument: {
+  instrument: CutoffSetting & {
     id: string;
     tag: string;
     lrv: number;
     urv: number;
     unit: string;
-    outputMode: OutputMode;
-    cutoffMode: 'none' | 'clamp' | 'linear';
-    cutoffValue: number;
     tolerancePct: number;
     /** Orifice primary element as registered at start (parsed with PrimaryElementSchema); absent on older runs. */
     primaryElement?: PrimaryElement | null;

@@ -12,19 +12,17 @@ import {
   maFromDp,
   SIGNAL_SPAN_MA,
   cutoffOfSetting,
+  type CutoffSetting,
   type Ne43Class,
-  type OutputMode,
   type TransferSpec,
 } from '../../../../shared/calc';
 import { formatNumber } from '../../../lib/format';
 
-export interface InstrumentSpecInput {
+/** An instrument's range and output as the register holds them. */
+export interface InstrumentSpecInput extends CutoffSetting {
   lrv: number;
   urv: number;
   unit: string;
-  outputMode: OutputMode;
-  cutoffMode: 'none' | 'clamp' | 'linear';
-  cutoffValue: number;
   tolerancePct: number;
 }
 
