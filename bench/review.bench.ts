@@ -13,7 +13,7 @@ import { reviewRepository } from '../server/db/repositories/review.repository';
 import { userRepository } from '../server/db/repositories/user.repository';
 import { parseEnv } from '../server/env';
 import { createLogger } from '../server/logger';
-import { recordCompletedRun } from '../server/services/demo-history';
+import { recordCompletedRun } from '../server/demo/demo-history';
 import { launchBrowser } from '../tests/helpers/browser';
 import setupE2e from '../tests/e2e/global-setup';
 

@@ -32,7 +32,7 @@ import { createUploads } from './storage/upload';
 import { createBenchService, DEFAULT_BENCH_ID, journalDirOf, type BenchService } from './services/bench.service';
 import { createBenchRegistry, type BenchRegistry } from './services/bench-registry.service';
 import { createForwardService, type ForwardService } from './services/forward.service';
-import { seedDemo } from './services/demo-seed.service';
+import { seedDemo } from './demo/demo-seed';
 import { createHealth } from './services/health.service';
 import { createSessionEvents } from './services/session-events';
 import { createRunService, type RunService } from './services/run.service';

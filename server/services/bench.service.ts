@@ -10,7 +10,7 @@ import type { Logger } from 'pino';
 import { checkEdgeLine, classifyScpiMeterLine, previewLine, createCalibratorClassifier, SIMCAL_PROFILE, type DeviceKind, type LineClassifier, type LineProtocolProfile } from '../../shared/protocol';
 import type { ClientMessage } from '../../shared/schemas/stream';
 import { BenchDevices } from '../bench/bench-devices';
-import type { CaptureEngines } from '../bench/capture-engine';
+import type { CaptureEngines } from '../bench/capture-engines';
 import type { ClockIssue, SenderClock } from '../bench/forward-clock';
 import type { BenchHub, ConsumerHandler, SampleSource } from '../bench/hub';
 import { SampleJournal, type DamagedBatch } from '../bench/journal';

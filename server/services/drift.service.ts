@@ -5,7 +5,8 @@ import { reviewRepository, type RunRow } from '../db/repositories/review.reposit
 import { badRequest, notFound } from '../errors';
 import { driftPerInterval, predictErrorAtDue, recommendIntervals, staircaseInterval, type CalibrationEvent } from '../../shared/calc';
 import type { Instrument } from '../../shared/schemas/instruments';
-import type { DriftPoint, DriftReport, IntervalRecommendation, NeedsJob, Queue } from '../../shared/schemas/records';
+import type { DriftPoint, DriftReport, IntervalRecommendation } from '../../shared/schemas/drift';
+import type { NeedsJob, Queue } from '../../shared/schemas/queue';
 import type { Actor, AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
 import { daysBetween } from './dates';

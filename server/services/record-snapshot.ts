@@ -7,6 +7,7 @@
 import { createHash } from 'node:crypto';
 import type { Db } from '../db/client';
 import { reviewRepository, type RunWithPoints } from '../db/repositories/review.repository';
+import { toSnapshotRun } from './review-rows';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import { FrozenRecordSchema, type FrozenRecord, type FrozenRun, type PointEvent } from '../../shared/schemas/records';
 import { canonical, type AuditService } from './audit.service';
@@ -66,16 +67,8 @@ export function createRecordFreezer(db: Db, audit: AuditService) {
   async function frozenRun(r: RunWithPoints): Promise<FrozenRun> {
     const plan = r.plan as { trim?: string | null } | null;
     return {
-      id: r.id,
-      kind: r.kind,
-      status: r.status,
+      ...toSnapshotRun(r),
       trim: plan?.trim ?? null,
-      plan: r.plan,
-      results: r.results ?? null,
-      startedBy: r.startedBy,
-      startedAt: r.startedAt.toISOString(),
-      endedAt: r.endedAt?.toISOString() ?? null,
-      points: r.points.map((p) => ({ index: p.index, state: p.state, flags: p.flags, capture: p.capture ?? null, reason: p.reason })),
       events: await pointEvents(r.id),
     };
   }

@@ -1,28 +1,27 @@
 import type { Db } from '../db/client';
-import { reviewRepository, type RunWithPoints, type SignatureRow } from '../db/repositories/review.repository';
+import { reviewRepository, type RunWithPoints } from '../db/repositories/review.repository';
 import { AppError, conflict, forbidden, locked, notFound } from '../errors';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import type {
   AuditEntry,
   FrozenRecord,
   Inbox,
-  RecordItem,
   Revision,
   RevisionSummary,
   ReviewBundle,
   ReviewExchange,
-  ReviewTrace,
   Signature,
-  SnapshotRun,
 } from '../../shared/schemas/records';
 import type { AuditService } from './audit.service';
 import type { AuthService, SessionUser } from './auth.service';
 import { createSiteClock } from './site-clock';
 import { dateInZone } from '../../shared/format/dates';
 import type { JobService } from './job.service';
-import { toJob } from './job.service';
 import type { RegisterService } from './register.service';
 import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
+import { createRecordList } from './record-list';
+import { summary, toSignature, toSnapshotRun } from './review-rows';
+import { createReviewTraces } from './review-trace';
 
 /** Something the review flow tells the team about (mail); never allowed to block or fail the action. */
 export type ReviewNotice =
@@ -37,36 +36,6 @@ export interface ReviewServiceDeps {
   registers: RegisterService;
   /** Called after a successful action; errors are swallowed. */
   notify?: (notice: ReviewNotice) => void | Promise<void>;
-}
-
-export function toSignature(r: SignatureRow): Signature {
-  return {
-    id: r.id,
-    jobId: r.jobId,
-    revision: r.revision,
-    decision: r.decision,
-    meaning: r.meaning,
-    comment: r.comment,
-    signerId: r.signerId,
-    signerName: r.signerName,
-    signerEmail: r.signerEmail,
-    signedAt: r.signedAt.toISOString(),
-    recordHash: r.recordHash,
-  };
-}
-
-export function toSnapshotRun(r: RunWithPoints): SnapshotRun {
-  return {
-    id: r.id,
-    kind: r.kind,
-    status: r.status,
-    plan: r.plan,
-    results: r.results ?? null,
-    startedBy: r.startedBy,
-    startedAt: r.startedAt.toISOString(),
-    endedAt: r.endedAt?.toISOString() ?? null,
-    points: r.points.map((p) => ({ index: p.index, state: p.state, flags: p.flags, capture: p.capture ?? null, reason: p.reason })),
-  };
 }
 
 /** Ids of the people who performed the work: the assignee, whoever started a run or captured a point. */
@@ -141,62 +110,10 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
   }
 
 
-  async function computeTrace(
-    runId: string,
-    q: { from?: number; to?: number; buckets: number; maxRaw: number },
-    span: { n: number; from: number | null; to: number | null },
-  ): Promise<ReviewTrace> {
-    if (span.from === null || span.to === null) {
-      return { runId, mode: 'raw', t0: 0, from: 0, to: 0, span: { from: null, to: null }, total: 0, bucketMs: null, x: [], dp: { v: [] }, ma: { v: [] }, raw: [] };
-    }
-    const whole = q.from === undefined && q.to === undefined;
-    const from = Math.max(q.from ?? span.from, span.from);
-    const to = Math.max(from, Math.min(q.to ?? span.to, span.to));
-    const t0 = Math.floor(from);
-    const total = whole ? span.n : await repo.traceCount(runId, from, to);
-    const spanOut = { from: span.from, to: span.to };
-    if (total <= q.maxRaw) {
-      const rows = total ? await repo.traceRaw(runId, from, to, q.maxRaw) : [];
-      const x: number[] = [];
-      const dp: Array<number | null> = [];
-      const ma: Array<number | null> = [];
-      const raw: string[] = [];
-      for (const r of rows) {
-        x.push(r.wallMs - t0);
-        dp.push(r.device === 'pressure' ? r.value : null);
-        ma.push(r.device === 'current' ? r.value : null);
-        raw.push(r.raw);
-      }
-      return { runId, mode: 'raw', t0, from, to, span: spanOut, total, bucketMs: null, x, dp: { v: dp }, ma: { v: ma }, raw };
-    }
-    const bucketMs = Math.max(1, (to - from) / q.buckets);
-    const rows = await repo.traceBuckets(runId, from, to, bucketMs);
-    const index = new Map<number, number>();
-    const x: number[] = [];
-    const out = { dp: { v: [] as Array<number | null>, lo: [] as Array<number | null>, hi: [] as Array<number | null> }, ma: { v: [] as Array<number | null>, lo: [] as Array<number | null>, hi: [] as Array<number | null> } };
-    for (const r of rows) {
-      let k = index.get(r.b);
-      if (k === undefined) {
-        k = x.length;
-        index.set(r.b, k);
-        x.push(from - t0 + (r.b + 0.5) * bucketMs);
-        for (const ch of [out.dp, out.ma]) {
-          ch.v.push(null);
-          ch.lo.push(null);
-          ch.hi.push(null);
-        }
-      }
-      const ch = r.device === 'pressure' ? out.dp : out.ma;
-      ch.v[k] = r.mean === null ? null : Number(r.mean);
-      ch.lo[k] = r.lo === null ? null : Number(r.lo);
-      ch.hi[k] = r.hi === null ? null : Number(r.hi);
-    }
-    return { runId, mode: 'envelope', t0, from, to, span: spanOut, total, bucketMs, x, ...out };
-  }
-
-  const overviews = new Map<string, { version: string; value: Promise<ReviewTrace> }>();
-
+  const traces = createReviewTraces(db);
   const service = {
+    ...traces,
+    ...createRecordList(db),
     /** Refuses (423) any change to a job whose current revision is approved. For run and capture services. */
     async assertEditable(jobId: string): Promise<void> {
       const j = await jobs.get(jobId);
@@ -246,7 +163,7 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       };
       // The page opens the first completed as-found run (else the first completed run): start its trace now.
       const first = runs.find((r) => r.status === 'complete' && r.kind === 'as-found') ?? runs.find((r) => r.status === 'complete');
-      if (first) service.warmTrace(first.id);
+      if (first) traces.warmTrace(first.id);
       return bundle;
     },
 
@@ -395,72 +312,8 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
       return (await repo.signatures(jobId)).map(toSignature);
     },
 
-    /**
-     * The raw trace of a run for review: every sample in a small window, or a min/mean/max
-     * envelope per time bucket over a long one (computed in the database, so a one-hour run opens
-     * fast). The whole-run view is kept per run while its samples do not change.
-     */
-    async trace(runId: string, q: { from?: number; to?: number; buckets: number; maxRaw: number }): Promise<ReviewTrace> {
-      const state = await repo.runState(runId);
-      if (!state) throw notFound('No such run');
-      if (q.from === undefined && q.to === undefined) {
-        // A completed run's samples no longer change: its whole-run view is kept until the run changes state.
-        if (state.status !== 'running' && state.status !== 'paused') {
-          const key = `${runId}|${q.buckets}|${q.maxRaw}`;
-          const version = `${state.status}|${state.endedAt?.getTime() ?? ''}`;
-          const hit = overviews.get(key);
-          if (hit && hit.version === version) return hit.value;
-          const value = repo.traceSpan(runId).then((span) => computeTrace(runId, q, span));
-          overviews.set(key, { version, value });
-          value.catch(() => overviews.delete(key));
-          while (overviews.size > OVERVIEW_CACHE) overviews.delete(overviews.keys().next().value!);
-          return value;
-        }
-      }
-      return computeTrace(runId, q, await repo.traceSpan(runId));
-    },
-
-    /** Starts computing a run's whole-run trace so that the review page's request finds it ready. */
-    warmTrace(runId: string): void {
-      service.trace(runId, TRACE_DEFAULTS).catch(() => {});
-    },
-
-    /**
-     * Submitted and approved jobs with their last signature, number of revisions, calibration date
-     * and as-found / as-left results; newest calibration first (a record awaiting review sorts by
-     * its calibration date like any other). `from`/`to` filter on the calibration date.
-     */
-    async records(opts: { status: 'approved' | 'submitted' | 'all'; q?: string; from?: string; to?: string }): Promise<RecordItem[]> {
-      const rows = await repo.records(opts);
-      const ids = rows.map((r) => r.id);
-      const [sigs, counts, finished, zone] = await Promise.all([repo.signaturesFor(ids), repo.revisionCounts(ids), repo.finishedRunsFor(ids), clock.zone()]);
-      const last = new Map<string, SignatureRow>();
-      for (const s of sigs) last.set(s.jobId, s);
-      const items = rows.map((r) => {
-        const mine = finished.filter((x) => x.jobId === r.id);
-        const found = mine.filter((x) => x.kind === 'as-found').at(-1);
-        const left = mine.filter((x) => x.kind === 'as-left').at(-1);
-        const dated = left ?? found;
-        return {
-          ...toJob(r),
-          lastSignature: last.has(r.id) ? toSignature(last.get(r.id)!) : null,
-          revisions: counts.get(r.id) ?? 0,
-          // The calibration date in the site's zone, as the signature's calibration date is taken.
-          calibratedOn: dated ? dateInZone(dated.endedAt ?? dated.startedAt, zone) : null,
-          asFound: found?.decision ?? null,
-          asLeft: left?.decision ?? null,
-        };
-      });
-      return items
-        .filter((x) => (!opts.from || (x.calibratedOn !== null && x.calibratedOn >= opts.from)) && (!opts.to || (x.calibratedOn !== null && x.calibratedOn <= opts.to)))
-        .sort((a, b) => (b.calibratedOn ?? b.updatedAt).localeCompare(a.calibratedOn ?? a.updatedAt) || b.updatedAt.localeCompare(a.updatedAt));
-    },
   };
   return service;
-}
-
-function summary(r: { revision: number; reason: string; createdAt: Date; createdByName: string }): RevisionSummary {
-  return { revision: r.revision, reason: r.reason, createdAt: r.createdAt.toISOString(), createdByName: r.createdByName };
 }
 
 export type ReviewService = ReturnType<typeof createReviewService>;
@@ -477,8 +330,3 @@ export interface RecordCheck {
   storedHashMatches: boolean | null;
   signatures: Array<Signature & { valid: boolean }>;
 }
-
-/** Whole-run traces kept in memory (a few runs under review at once). */
-const OVERVIEW_CACHE = 16;
-/** Defaults of the review trace query (ReviewTraceQuerySchema). */
-export const TRACE_DEFAULTS = { buckets: 1200, maxRaw: 12_000 } as const;

@@ -21,6 +21,7 @@ import type { AuthService, SessionUser } from '../services/auth.service';
 import type { BenchService } from '../services/bench.service';
 import type { SessionEvents } from '../services/session-events';
 import { handleForwarded, parseClientMessage } from './client-messages';
+import { drained } from './socket-drain';
 import { createReplaySlots } from './replay-slots';
 import { createSessionSockets } from './session-sockets';
 import { authenticateUpgrade, type StreamPrincipal } from './upgrade-auth';
@@ -247,32 +248,6 @@ export function attachStreamServer(o: StreamServerOptions) {
 
   const gone = (c: Client) => c.ended || c.ws.readyState !== c.ws.OPEN;
 
-  /** Resolves once the socket has drained below the low-water mark (or closed); false when it stalled. */
-  /**
-   * Resolves once a page has been handed to the OS (`written`: the write callback of its last
-   * message, which waits while the socket's kernel buffer is full) and the socket holds no more than
-   * the low-water mark; false when that took longer than the stall limit (the client does not read).
-   */
-  async function drained(c: Client, written: Promise<void>): Promise<boolean> {
-    let timer: NodeJS.Timeout | undefined;
-    const stalled = new Promise<boolean>((resolve) => {
-      timer = setTimeout(() => resolve(true), stallMs);
-    });
-    try {
-      if (await Promise.race([written.then(() => false), stalled])) return false;
-      const until = performance.now() + stallMs;
-      while (!gone(c) && c.ws.bufferedAmount > lowWater) {
-        if (performance.now() > until) return false;
-        await new Promise((r) => setTimeout(r, 5));
-      }
-    } finally {
-      clearTimeout(timer);
-    }
-    // Let HTTP requests and live deliveries in between pages.
-    await new Promise((r) => setImmediate(r));
-    return true;
-  }
-
   /** Replays (since, latest] in pages while live messages wait, then hands over to live delivery. */
   async function resume(c: Client, since: number, latest: number): Promise<void> {
     c.held = [];
@@ -294,7 +269,7 @@ export function attachStreamServer(o: StreamServerOptions) {
         });
         stats.replayed += page.length;
         c.lastSent = Math.max(c.lastSent, page[page.length - 1]!.seq);
-        if (!(await drained(c, written))) {
+        if (!(await drained(c.ws, written, { stallMs, lowWater, gone: () => gone(c) }))) {
           o.logger.warn({ user: c.user?.id ?? null, principal: c.principal }, 'stream resume stalled: the client does not read; dropped');
           c.ws.terminate();
           return;

@@ -25,6 +25,41 @@ export interface ChannelStats {
 /** Milliseconds per minute (slopes are per minute). */
 export const MS_PER_MIN = 60_000;
 
+/**
+ * Standard errors by which an estimate must exceed a limit before it counts: 2 (about 95 % for a
+ * normal estimate). Product choice for slopes and leaks, not a published value; for the
+ * autocorrelation lags of {@link typeAOfMean} it is Box & Jenkins' usual bound (stated from memory).
+ */
+export const SIGNIFICANCE_SE = 2;
+
+/**
+ * The one significance test: `x` exceeds `limit` (default 0) by more than {@link SIGNIFICANCE_SE}
+ * standard errors `se`. One-sided in `x`: pass `Math.abs(x)` for a two-sided test.
+ */
+export function exceedsBySe(x: number, se: number, limit = 0): boolean {
+  return x - SIGNIFICANCE_SE * se > limit;
+}
+
+/** Raw moments of (time, value) pairs, as {@link ChannelAccumulator.moments} returns them. */
+export interface Moments {
+  n: number;
+  meanT: number;
+  meanY: number;
+  m2t: number;
+  m2y: number;
+  cty: number;
+}
+
+/**
+ * Least-squares slope of value on time and its standard error, both per ms, from raw moments:
+ * slope 0 below two samples or with no time spread, standard error Infinity below three.
+ */
+export function slopeOfMoments(m: Pick<Moments, 'n' | 'm2t' | 'm2y' | 'cty'>): { slope: number; se: number } {
+  const slope = m.n >= 2 && m.m2t > 0 ? m.cty / m.m2t : 0;
+  const se = m.n >= 3 && m.m2t > 0 ? Math.sqrt(Math.max(0, m.m2y - (m.cty * m.cty) / m.m2t) / (m.n - 2) / m.m2t) : Infinity;
+  return { slope, se };
+}
+
 /** Incremental statistics of one channel; O(1) per sample. Timestamps in ms, non-decreasing. */
 export class ChannelAccumulator {
   private n = 0;
@@ -70,19 +105,14 @@ export class ChannelAccumulator {
   }
 
   /** Raw moments for merging windows (Chan et al.'s pairwise update): mean time is absolute, ms. */
-  moments(): { n: number; meanT: number; meanY: number; m2t: number; m2y: number; cty: number } {
+  moments(): Moments {
     return { n: this.n, meanT: this.t0 + this.meanT, meanY: this.meanY, m2t: this.m2t, m2y: this.m2y, cty: this.cty };
   }
 
   /** Current statistics. */
   stats(): ChannelStats {
     const n = this.n;
-    const slope = n >= 2 && this.m2t > 0 ? this.cty / this.m2t : 0;
-    let se = Infinity;
-    if (n >= 3 && this.m2t > 0) {
-      const sse = Math.max(0, this.m2y - (this.cty * this.cty) / this.m2t);
-      se = Math.sqrt(sse / (n - 2) / this.m2t);
-    }
+    const { slope, se } = slopeOfMoments({ n, m2t: this.m2t, m2y: this.m2y, cty: this.cty });
     return {
       n,
       mean: n > 0 ? this.meanY : NaN,
@@ -146,7 +176,7 @@ export function typeAOfMean(y: ArrayLike<number>, length = y.length): TypeAOfMea
     let ck = 0;
     for (let i = 0; i + k < n; i++) ck += (y[i]! - mean) * (y[i + k]! - mean);
     const rho = ck / c0;
-    if (Math.abs(rho) <= 2 * Math.sqrt((1 + 2 * sumSq) / n)) break;
+    if (!exceedsBySe(Math.abs(rho), Math.sqrt((1 + 2 * sumSq) / n))) break;
     gamma += 2 * (1 - k / n) * rho;
     sumSq += rho * rho;
     lags = k;

@@ -11,9 +11,9 @@
  * setting, and each default is a product default / common practice, not a standard's value.
  */
 
-import { BoundedSeries, ChannelAccumulator, MS_PER_MIN, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
+import { BoundedSeries, ChannelAccumulator, exceedsBySe, MS_PER_MIN, slopeOfMoments, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
 
-export { BoundedSeries, ChannelAccumulator, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
+export { BoundedSeries, ChannelAccumulator, exceedsBySe, SIGNIFICANCE_SE, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
 
 /** Hold settings. Defaults are product defaults / common practice. */
 export interface HoldSettings {
@@ -105,8 +105,8 @@ export interface HoldResult {
   holdComplete: boolean;
   /** stable, complete and no leak: the point may be captured. */
   capturable: boolean;
-  /** Why not stable or capturable (empty when capturable). */
-  reasons: string[];
+  /** Why not stable or capturable (empty when capturable); {@link HOLD_REASON_TEXT} words them. */
+  reasons: HoldReason[];
   /**
    * Leak versus relaxation over the last three sub-windows (see {@link TrendVerdict}); `leakBeyondLimit`
    * is a leak whose rate exceeds the leak limit.
@@ -114,11 +114,19 @@ export interface HoldResult {
   trend: TrendVerdict & { leakBeyondLimit: boolean };
 }
 
-/**
- * Standard errors by which a fitted slope must exceed a slope or leak limit before it counts:
- * 2 (about 95 % one-sided for a normal estimate). Product choice, not a published value.
- */
-export const SLOPE_SIGNIFICANCE = 2;
+/** Why a hold is not (yet) stable or capturable. */
+export type HoldReason = 'too-few-samples' | 'dp-band' | 'ma-band' | 'dp-drift' | 'ma-drift' | 'leak' | 'hold-time';
+
+/** Each {@link HoldReason} in words. */
+export const HOLD_REASON_TEXT: Record<HoldReason, string> = {
+  'too-few-samples': 'too few samples',
+  'dp-band': 'applied DP outside the stability band',
+  'ma-band': 'current outside the stability band',
+  'dp-drift': 'applied DP drifting',
+  'ma-drift': 'current drifting',
+  leak: 'leak',
+  'hold-time': 'hold time not reached',
+};
 
 /** Two-channel hold analyser (applied DP and mA), fed one sample at a time. */
 export class HoldAnalyzer {
@@ -202,21 +210,20 @@ export class HoldAnalyzer {
       my += (dy * nb) / N;
       n = N;
     }
-    const slope = m2t > 0 ? (cty / m2t) * MS_PER_MIN : 0;
-    const se = n > 2 && m2t > 0 ? Math.sqrt(Math.max(0, m2y - (cty * cty) / m2t) / (n - 2) / m2t) * MS_PER_MIN : Infinity;
+    const fit = slopeOfMoments({ n, m2t, m2y, cty });
+    const slope = fit.slope * MS_PER_MIN;
+    const se = fit.se * MS_PER_MIN;
     const ratio = a.slope !== 0 ? c.slope / a.slope : 0;
     // Decay: the first sub-window slope exceeds the last, in the direction of the trend, by more
-    // than SLOPE_SIGNIFICANCE standard errors of their difference.
-    const dir = Math.sign(slope);
-    const decaying = dir * (a.slope - c.slope) > SLOPE_SIGNIFICANCE * Math.hypot(a.se, c.se);
+    // than SIGNIFICANCE_SE standard errors of their difference.
+    const decaying = exceedsBySe(Math.sign(slope) * (a.slope - c.slope), Math.hypot(a.se, c.se));
     // An exponential decay keeps its sign. A trend whose first and last sub-window slopes are both
-    // significant (beyond SLOPE_SIGNIFICANCE standard errors) and of opposite signs has reversed (a
+    // significant (beyond SIGNIFICANCE_SE standard errors) and of opposite signs has reversed (a
     // rise then a fall): neither a decay nor a steady leak, it is `undetermined` until the three
     // sub-windows agree again (a fall that persists is then a leak).
-    const reversed =
-      Math.sign(a.slope) !== Math.sign(c.slope) && Math.abs(a.slope) > SLOPE_SIGNIFICANCE * a.se && Math.abs(c.slope) > SLOPE_SIGNIFICANCE * c.se;
+    const reversed = Math.sign(a.slope) !== Math.sign(c.slope) && exceedsBySe(Math.abs(a.slope), a.se) && exceedsBySe(Math.abs(c.slope), c.se);
     let kind: TrendVerdict['kind'] = 'none';
-    if (Number.isFinite(se) && Math.abs(slope) > SLOPE_SIGNIFICANCE * se) {
+    if (Number.isFinite(se) && exceedsBySe(Math.abs(slope), se)) {
       if (reversed) kind = 'undetermined';
       else kind = decaying && ratio < LEAK_PERSISTENCE_RATIO ? 'relaxation' : 'leak';
     }
@@ -242,29 +249,29 @@ export class HoldAnalyzer {
 
   /** Verdict from the samples so far. */
   result(): HoldResult {
-    // A slope counts against a limit only where it exceeds it by more than SLOPE_SIGNIFICANCE
+    // A slope counts against a limit only where it exceeds it by more than SIGNIFICANCE_SE
     // standard errors, so that noise over a short hold is not read as drift or a leak.
-    const beyond = (slope: number, se: number, limit: number) => Math.abs(slope) - SLOPE_SIGNIFICANCE * (Number.isFinite(se) ? se : 0) > limit;
+    const beyond = (slope: number, se: number, limit: number) => exceedsBySe(Math.abs(slope), Number.isFinite(se) ? se : 0, limit);
     const s = this.s;
     const dp = this.dp.stats();
     const ma = this.ma.stats();
-    const reasons: string[] = [];
+    const reasons: HoldReason[] = [];
     const enough = dp.n >= s.minSamples && ma.n >= s.minSamples;
-    if (!enough) reasons.push('too few samples');
+    if (!enough) reasons.push('too-few-samples');
     const dpBand = (s.dpBandPctSpan / 100) * s.dpSpan;
     const dpSlopeLimit = (s.slopeLimitPctSpanPerMin / 100) * s.dpSpan;
     const maSlopeLimit = (s.slopeLimitPctSpanPerMin / 100) * 16;
-    if (dp.band > dpBand) reasons.push('applied DP outside the stability band');
-    if (ma.band > s.maBandMa) reasons.push('current outside the stability band');
-    if (beyond(dp.slopePerMin, dp.slopeSePerMin, dpSlopeLimit)) reasons.push('applied DP drifting');
-    if (beyond(ma.slopePerMin, ma.slopeSePerMin, maSlopeLimit)) reasons.push('current drifting');
+    if (dp.band > dpBand) reasons.push('dp-band');
+    if (ma.band > s.maBandMa) reasons.push('ma-band');
+    if (beyond(dp.slopePerMin, dp.slopeSePerMin, dpSlopeLimit)) reasons.push('dp-drift');
+    if (beyond(ma.slopePerMin, ma.slopeSePerMin, maSlopeLimit)) reasons.push('ma-drift');
     const stable = reasons.length === 0;
     const leakLimit = s.leakLimitUnitPerMin ?? (s.leakLimitPctSpanPerMin / 100) * s.dpSpan;
     const leak = dp.n >= s.minSamples && dp.durationMs >= s.leakMinDurationMs && beyond(dp.slopePerMin, dp.slopeSePerMin, leakLimit);
     if (leak) reasons.push('leak');
     const durationMs = Math.min(dp.durationMs, ma.durationMs);
     const holdComplete = durationMs >= s.holdTimeMs;
-    if (!holdComplete) reasons.push('hold time not reached');
+    if (!holdComplete) reasons.push('hold-time');
     const trend = this.trend();
     return {
       trend: { ...trend, leakBeyondLimit: trend.kind === 'leak' && Math.abs(trend.ratePerMin) > leakLimit },

@@ -43,6 +43,19 @@ export type Cutoff = { mode: 'none' } | { mode: 'clamp'; flowPct: number } | { m
 /** All cutoff modes. */
 export const CUTOFF_MODES = ['none', 'clamp', 'linear'] as const;
 
+/** A register's cutoff setting: its mode and value (% flow for clamp, % DP for the linear breakpoint). */
+export interface CutoffSetting {
+  outputMode: OutputMode;
+  cutoffMode: (typeof CUTOFF_MODES)[number];
+  cutoffValue: number;
+}
+
+/** The cutoff a register's setting means: none on a linear output, with mode none or with no positive value. */
+export function cutoffOfSetting(i: CutoffSetting): Cutoff {
+  if (i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)) return { mode: 'none' };
+  return i.cutoffMode === 'clamp' ? { mode: 'clamp', flowPct: i.cutoffValue } : { mode: 'linear', breakpointDpPct: i.cutoffValue };
+}
+
 /** Everything needed to map DP to output and back. */
 export interface TransferSpec {
   range: Range;

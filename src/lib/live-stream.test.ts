@@ -4,7 +4,8 @@ import type { Run } from '../../shared/schemas/runs';
 import { LiveSampleStore } from '../stores/live-samples';
 import { useLiveRun } from '../stores/live-run';
 import { STREAM_CLOSE } from '../../shared/schemas/stream';
-import { applyStreamMessage, backoffDelay, LiveStream, type SocketLike } from './live-stream';
+import { applyStreamMessage } from './apply-stream-message';
+import { backoffDelay, LiveStream, type SocketLike } from './live-stream';
 import { queryKeys } from './query-keys';
 
 class FakeSocket implements SocketLike {

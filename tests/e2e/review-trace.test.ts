@@ -1,6 +1,6 @@
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemoHistory } from '../../server/services/demo-history';
+import { seedDemoHistory } from '../../server/demo/demo-history';
 import { launchBrowser, recordOffHostRequests } from '../helpers/browser';
 import { DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 

@@ -7,7 +7,7 @@ import { openDatabase } from '../../server/db/client';
 import { demoSeedPolicy, parseEnv, type Env } from '../../server/env';
 import { createLogger } from '../../server/logger';
 import { createServices } from '../../server/services';
-import { seedDemo } from '../../server/services/demo-seed.service';
+import { seedDemo } from '../../server/demo/demo-seed';
 
 export const DEMO_PASSWORD = 'stillpoint-demo';
 export const demoEmail = (role: 'tech' | 'tech2' | 'lead' | 'admin' | 'auditor') => `${role}@stillpoint-demo.test`;

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemoHistory } from '../../server/services/demo-history';
+import { seedDemoHistory } from '../../server/demo/demo-history';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 let srv: TestServer;

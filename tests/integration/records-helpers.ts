@@ -1,5 +1,5 @@
 import { instrumentRepository, standardRepository } from '../../server/db/repositories/register.repository';
-import { recordCompletedRun } from '../../server/services/demo-history';
+import { recordCompletedRun } from '../../server/demo/demo-history';
 import type { ApiClient, TestServer } from '../helpers/test-server';
 
 /** In-date pressure module and bench multimeter of the demo site (both cover the demo's DP tags). */

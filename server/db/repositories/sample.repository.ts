@@ -1,10 +1,11 @@
-import { and, asc, between, count, desc, eq, gt, gte, isNull, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, between, count, desc, eq, gt, isNull, sql, type SQL } from 'drizzle-orm';
 import { pgliteWorkerOf, type Db } from '../client';
-import { GzipPages } from '../gzip-pages';
-import type { PgliteWorkerClient } from '../pglite-worker-client';
 import type { JournalRow } from '../../bench/journal';
 import { samplesCsv, wellFormed } from '../../bench/samples-csv';
 import { sampleQuarantine, samples } from '../schema';
+import { createSampleTrace } from './sample-trace';
+
+export { TRACE_PAGE_ROWS, type TraceQuery } from './sample-trace';
 
 export { samplesCsv };
 
@@ -46,36 +47,6 @@ export interface QuarantinedSample {
 // eslint-disable-next-line no-control-regex
 const storable = (t: string) => (wellFormed(t) && !/[\u0000-\u001f\u007f]/.test(t) ? t : JSON.stringify(t));
 
-/** A string literal for SQL that cannot take bind parameters (COPY); standard_conforming_strings is on. */
-const literal = (s: string) => `'${s.replaceAll("'", "''")}'`;
-function finite(n: number): string {
-  if (!Number.isFinite(n)) throw new Error(`not a finite number: ${n}`);
-  return String(n);
-}
-
-/** Trace query of {@link SampleRepository.traceJson}. */
-export interface TraceQuery {
-  /** Wall-clock ms since epoch, inclusive. */
-  from?: number;
-  to?: number;
-  device?: string;
-  /** Most samples returned. */
-  limit: number;
-}
-
-/** Samples per piece of a trace reply (about 120 B each as JSON). */
-export const TRACE_PAGE_ROWS = 10_000;
-const OPEN = Buffer.from('{"items":[');
-
-interface TracePage {
-  /** JSON items, each after a comma (`,v1,v2`), no brackets. */
-  bytes: Buffer;
-  count: number;
-  /** More rows match after this page (whether or not the caller wants them). */
-  more: boolean;
-  last?: { wallMs: number; seq: number };
-}
-
 /**
  * PGlite runs no autovacuum, so nothing refreshes the planner's statistics of `samples` as it
  * grows, and a trace page planned without them sorts the whole run instead of walking the index.
@@ -89,22 +60,6 @@ const analyzeState = new WeakMap<object, { tableRows: number; since: number; run
 const ANALYZE_THRESHOLD = 50;
 const ANALYZE_SCALE = 0.1;
 const ANALYZE_NAP_MS = 60_000;
-
-/** Compresses a document given in pieces, a gzip member flushed after each piece. */
-async function* gzipHere(pieces: AsyncGenerator<Buffer>): AsyncGenerator<Buffer> {
-  const gz = new GzipPages();
-  let ended = false;
-  try {
-    for await (const p of pieces) {
-      const out = await gz.push([p]);
-      if (out.length) yield out;
-    }
-    ended = true;
-    yield await gz.end(new Uint8Array(0));
-  } finally {
-    if (!ended) gz.destroy();
-  }
-}
 
 export function sampleRepository(db: Db) {
   const pglite = pgliteWorkerOf(db);
@@ -140,68 +95,6 @@ export function sampleRepository(db: Db) {
     }
   }
 
-  /**
-   * The trace document in pieces: the opening once the first page is in hand (so a failing first
-   * query fails before any byte is sent), one piece a page (`,v1,v2…`, the first page without its
-   * comma: a view, no copy), then the closing.
-   */
-  async function* trace(runId: string, q: TraceQuery, pageRows: number): AsyncGenerator<Buffer> {
-    const limit = Math.max(0, Math.floor(q.limit));
-    let opened = false;
-    let sent = 0;
-    let after: TracePage['last'];
-    let truncated = false;
-    for (;;) {
-      const want = Math.min(pageRows, limit - sent);
-      const page = pglite ? await pglitePage(runId, q, after, want) : await pgPage(runId, q, after, want);
-      if (!opened) {
-        yield OPEN;
-        opened = true;
-      }
-      if (page.count > 0) {
-        yield sent === 0 ? page.bytes.subarray(1) : page.bytes;
-        sent += page.count;
-        after = page.last;
-      }
-      if (!page.more) break;
-      if (sent >= limit) {
-        truncated = true;
-        break;
-      }
-    }
-    yield Buffer.from(`],"truncated":${truncated}}`);
-  }
-
-  /** The same document gzip-compressed in the PGlite worker, page by page, so only compressed bytes reach this thread. */
-  async function* gzipTraceInWorker(w: PgliteWorkerClient, runId: string, q: TraceQuery, pageRows: number): AsyncGenerator<Buffer> {
-    const limit = Math.max(0, Math.floor(q.limit));
-    const stream = w.newGzipStream();
-    let ended = false;
-    try {
-      let sent = 0;
-      let after: TracePage['last'];
-      let truncated = false;
-      for (;;) {
-        const want = Math.min(pageRows, limit - sent);
-        const page = await pglitePage(runId, q, after, want, { stream, ...(sent === 0 ? { before: OPEN.toString(), dropComma: true } : {}) });
-        if (page.bytes.length) yield page.bytes;
-        if (page.count > 0) {
-          sent += page.count;
-          after = page.last;
-        }
-        if (!page.more) break;
-        if (sent >= limit) {
-          truncated = true;
-          break;
-        }
-      }
-      ended = true;
-      yield await w.gzipEnd(stream, `],"truncated":${truncated}}`);
-    } finally {
-      if (!ended) await w.gzipEnd(stream).catch(() => undefined);
-    }
-  }
-
   async function analyzeIfGrown(added: number): Promise<void> {
     if (!pglite) return; // a PostgreSQL server's autovacuum does this
     let st = analyzeState.get(pglite);
@@ -223,77 +116,6 @@ export function sampleRepository(db: Db) {
     }
   }
 
-  /** One keyset page on PGlite: JSON built by PostgreSQL, framed in the worker. */
-  async function pglitePage(
-    runId: string,
-    q: TraceQuery,
-    after: TracePage['last'],
-    want: number,
-    gzip?: { stream: number; before?: string; dropComma?: boolean },
-  ): Promise<TracePage> {
-    const where = [`run_id = ${literal(runId)}`];
-    if (q.from !== undefined) where.push(`wall_ms >= ${finite(q.from)}`);
-    if (q.to !== undefined) where.push(`wall_ms <= ${finite(q.to)}`);
-    if (q.device) where.push(`device = ${literal(q.device)}`);
-    if (after) where.push(`(wall_ms, seq) > (${finite(after.wallMs)}, ${finite(after.seq)})`);
-    // Hand-built JSON (float8 text is JSON's number syntax and round-trips exactly; a non-finite
-    // value becomes null, as in JSON.stringify). The key column is "wall_ms seq".
-    const select =
-      `SELECT wall_ms::text || ' ' || seq, '{"seq":' || seq || ',"device":' || to_json(device) || ',"wallMs":' || wall_ms ` +
-      `|| ',"value":' || CASE WHEN value IS NULL OR value IN ('NaN', 'Infinity', '-Infinity') THEN 'null' ELSE value::text END ` +
-      `|| ',"unit":' || coalesce(to_json(unit)::text, 'null') || ',"raw":' || to_json(raw) ` +
-      `|| ',"source":{"kind":' || to_json(source_kind) || ',"id":' || to_json(coalesce(source_id, bench_id)) || '}' ` +
-      `|| ',"clientWallMs":' || CASE WHEN client_wall_ms IS NULL OR client_wall_ms IN ('NaN', 'Infinity', '-Infinity') THEN 'null' ELSE client_wall_ms::text END || '}' ` +
-      `FROM samples WHERE ${where.join(' AND ')} ORDER BY wall_ms, seq LIMIT ${want + 1}`;
-    const r = await pglite!.copyJsonPage(select, want, gzip);
-    const [w, s] = (r.lastKey ?? '').split(' ');
-    return { bytes: r.bytes, count: r.count, more: r.more, ...(r.lastKey ? { last: { wallMs: Number(w), seq: Number(s) } } : {}) };
-  }
-
-  /** One keyset page on a PostgreSQL server, serialised here. */
-  async function pgPage(runId: string, q: TraceQuery, after: TracePage['last'], want: number): Promise<TracePage> {
-    const where: SQL[] = [eq(samples.runId, runId)];
-    if (q.from !== undefined) where.push(gte(samples.wallMs, q.from));
-    if (q.to !== undefined) where.push(lte(samples.wallMs, q.to));
-    if (q.device) where.push(eq(samples.device, q.device));
-    if (after) where.push(sql`(${samples.wallMs}, ${samples.seq}) > (${after.wallMs}, ${after.seq})`);
-    const rows = await db
-      .select({
-        seq: samples.seq,
-        device: samples.device,
-        wallMs: samples.wallMs,
-        value: samples.value,
-        unit: samples.unit,
-        raw: samples.raw,
-        sourceKind: samples.sourceKind,
-        sourceId: samples.sourceId,
-        benchId: samples.benchId,
-        clientWallMs: samples.clientWallMs,
-      })
-      .from(samples)
-      .where(and(...where))
-      .orderBy(asc(samples.wallMs), asc(samples.seq))
-      .limit(want + 1);
-    const more = rows.length > want;
-    if (more) rows.length = want;
-    const items = rows.map((r) => ({
-      seq: Number(r.seq),
-      device: r.device,
-      wallMs: r.wallMs,
-      value: r.value,
-      unit: r.unit,
-      raw: r.raw,
-      source: { kind: r.sourceKind, id: r.sourceId ?? r.benchId },
-      clientWallMs: r.clientWallMs,
-    }));
-    const lastRow = items.at(-1);
-    return {
-      bytes: Buffer.from(items.length ? `,${JSON.stringify(items).slice(1, -1)}` : ''),
-      count: items.length,
-      more,
-      ...(lastRow ? { last: { wallMs: lastRow.wallMs, seq: lastRow.seq } } : {}),
-    };
-  }
 
   return {
     /**
@@ -376,21 +198,8 @@ export function sampleRepository(db: Db) {
         return rows.map((r) => Number(r.seq)).sort((a, b) => a - b);
       },
     },
-    /**
-     * Samples of a run between two wall-clock times, in time order, as the UTF-8 JSON
-     * `{ "items": TraceSample[], "truncated": boolean }` (at most `limit` items; `truncated` when
-     * there are more), yielded in pieces of at most `pageRows` samples; with `gzip`, the pieces
-     * are one gzip stream of that document. Each piece is one keyset page on (wall_ms, seq), so a
-     * long run's trace never holds the database for longer than a page (the sample writer goes in
-     * between) and never puts tens of MB on this thread at once. On PGlite the rows are turned
-     * into JSON by PostgreSQL under COPY, and compressed, in the worker: this thread neither
-     * parses nor serialises them, and with gzip sees about a tenth of the bytes.
-     */
-    traceJson(runId: string, q: TraceQuery, opts: { pageRows?: number; gzip?: boolean } = {}): AsyncGenerator<Buffer> {
-      const pageRows = opts.pageRows ?? TRACE_PAGE_ROWS;
-      if (!opts.gzip) return trace(runId, q, pageRows);
-      return pglite ? gzipTraceInWorker(pglite, runId, q, pageRows) : gzipHere(trace(runId, q, pageRows));
-    },
+    /** The run's trace as JSON pages (see {@link createSampleTrace}). */
+    traceJson: createSampleTrace(db),
     /** Samples after a seq, oldest first (stream resume, durability checks). */
     async after(seq: number, limit: number, benchId?: string): Promise<SampleRow[]> {
       const where: SQL[] = [gt(samples.seq, seq)];

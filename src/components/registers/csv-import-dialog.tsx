@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { ImportReportSchema, type ImportReport } from '../../../shared/schemas/records';
+import { ImportReportSchema, type ImportReport } from '../../../shared/schemas/register-csv';
 import { api, isApiError } from '../../lib/api-client';
 import { cn } from '../../lib/cn';
 import { Button } from '../ui/button';

@@ -105,3 +105,13 @@ export function SelectField({ label, error, hint, className, id, options, ref, .
     </FieldFrame>
   );
 }
+
+/** An error of a whole form (not of one field), announced as it appears; nothing when there is none. */
+export function FormError({ message, id, className }: { message: string | undefined; id?: string; className?: string }) {
+  if (!message) return null;
+  return (
+    <div id={id} role="alert" className={cn('rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger', className)}>
+      {message}
+    </div>
+  );
+}

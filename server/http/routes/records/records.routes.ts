@@ -1,4 +1,5 @@
-import { QueueQuerySchema, RecordsQuerySchema } from '../../../../shared/schemas/records';
+import { QueueQuerySchema } from '../../../../shared/schemas/queue';
+import { RecordsQuerySchema } from '../../../../shared/schemas/records';
 import type { DriftService } from '../../../services/drift.service';
 import type { ReviewService } from '../../../services/review.service';
 import { currentUser } from '../../middleware/auth';

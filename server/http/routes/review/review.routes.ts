@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { ReviewBodySchema, ReviewTraceQuerySchema, RevisionBodySchema } from '../../../../shared/schemas/records';
+import { ReviewBodySchema, RevisionBodySchema } from '../../../../shared/schemas/records';
+import { ReviewTraceQuerySchema } from '../../../../shared/schemas/trace';
 import { IdParamSchema } from '../../../../shared/schemas/users';
 import type { ReviewService } from '../../../services/review.service';
 import { currentUser } from '../../middleware/auth';

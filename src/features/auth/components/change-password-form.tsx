@@ -3,7 +3,7 @@ import { useForm } from 'react-hook-form';
 import { z } from 'zod';
 import { ChangePasswordBodySchema, type Me } from '../../../../shared/schemas/auth';
 import { Button } from '../../../components/ui/button';
-import { TextField } from '../../../components/ui/field';
+import { TextField, FormError } from '../../../components/ui/field';
 import { isApiError } from '../../../lib/api-client';
 import { useChangePassword } from '../api/change-password';
 
@@ -47,11 +47,7 @@ export function ChangePasswordForm({ onChanged, required = false }: ChangePasswo
 
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4" aria-describedby={errors.root ? 'password-error' : undefined}>
-      {errors.root?.message && (
-        <div id="password-error" role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
-          {errors.root.message}
-        </div>
-      )}
+      <FormError message={errors.root?.message} id="password-error" />
       <TextField
         label={required ? 'Password you were given' : 'Current password'}
         type="password"

@@ -2,7 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { LoginBodySchema, type Me } from '../../../../shared/schemas/auth';
 import { Button } from '../../../components/ui/button';
-import { TextField } from '../../../components/ui/field';
+import { TextField, FormError } from '../../../components/ui/field';
 import { isApiError } from '../../../lib/api-client';
 import { useLogin } from '../api/login';
 
@@ -54,11 +54,7 @@ export function SignInForm({ onSignedIn }: SignInFormProps) {
 
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4" aria-describedby={errors.root ? 'sign-in-error' : undefined}>
-      {errors.root?.message && (
-        <div id="sign-in-error" role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
-          {errors.root.message}
-        </div>
-      )}
+      <FormError message={errors.root?.message} id="sign-in-error" />
       <TextField
         label="Email"
         type="email"

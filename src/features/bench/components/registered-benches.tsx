@@ -3,7 +3,7 @@ import type { BenchRecord, RegisteredBench } from '../../../../shared/schemas/be
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
-import { TextField } from '../../../components/ui/field';
+import { TextField, FormError } from '../../../components/ui/field';
 import { toast } from '../../../components/ui/toast';
 import { isApiError } from '../../../lib/api-client';
 import { isoDay } from '../../../lib/format';
@@ -177,11 +177,7 @@ function RegisterBenchDialog({ onClose, onRegistered }: { onClose: () => void; o
           submit();
         }}
       >
-        {errors.root && (
-          <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
-            {errors.root}
-          </div>
-        )}
+        <FormError message={errors.root} />
         <TextField label="Bench name" hint="Lower-case letters, digits and hyphens, e.g. workshop-2" value={id} onChange={(e) => setId(e.target.value)} error={errors.id} />
         <TextField label="Where it is" value={label} onChange={(e) => setLabel(e.target.value)} error={errors.label} />
       </form>

@@ -1,6 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { InstrumentSchema } from '../../../../shared/schemas/instruments';
-import { DriftReportSchema, type AcceptIntervalBody, type DriftReport } from '../../../../shared/schemas/records';
+import { DriftReportSchema, type AcceptIntervalBody, type DriftReport } from '../../../../shared/schemas/drift';
 import { api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
 

@@ -1,13 +1,9 @@
 import { useEffect, useRef } from 'react';
-import uPlot from 'uplot';
-import 'uplot/dist/uPlot.min.css';
-import type { DriftPoint } from '../../../../shared/schemas/records';
+import type uPlot from 'uplot';
+import type { DriftPoint } from '../../../../shared/schemas/drift';
+import { cssVar, mountChart } from '../../../lib/chart';
 import { dateAxis } from '../../../lib/chart-axes';
 import { useThemeStore } from '../../../lib/theme';
-
-function cssVar(name: string, fallback: string): string {
-  return getComputedStyle(document.documentElement).getPropertyValue(name).trim() || fallback;
-}
 
 /** A palette of our own for up to ten points (up and down series share a hue, down dashed). */
 const HUES = [188, 28, 262, 140, 340, 210, 48, 300, 100, 0];
@@ -88,8 +84,7 @@ export function DriftChart({ points, tolerance, dueOn, height = 300 }: { points:
       data.push(times.map((t) => (last && t === last.atMs / 1000 ? last.asLeft : dueSec !== null && t === dueSec && p.predictedAtDue !== null ? p.predictedAtDue : null)));
       series.push({ label: `${p.nominalPct} % predicted`, stroke: col, width: 1, dash: [2, 4], spanGaps: true, points: { show: false } });
     });
-    const opts: uPlot.Options = {
-      width: el.clientWidth || 700,
+    const opts = {
       height,
       legend: { show: false },
       scales: { x: { time: true }, y: { range: (_u, lo, hi) => [Math.min(lo, -tolerance * 1.2), Math.max(hi, tolerance * 1.2)] } },
@@ -126,14 +121,8 @@ export function DriftChart({ points, tolerance, dueOn, height = 300 }: { points:
           },
         ],
       },
-    };
-    const plot = new uPlot(opts, data as uPlot.AlignedData, el);
-    const ro = new ResizeObserver(() => plot.setSize({ width: el.clientWidth, height }));
-    ro.observe(el);
-    return () => {
-      ro.disconnect();
-      plot.destroy();
-    };
+    } satisfies Omit<uPlot.Options, 'width'>;
+    return mountChart(el, opts, data as uPlot.AlignedData, 700).destroy;
   }, [points, tolerance, dueOn, height, theme]);
   return (
     <figure className="m-0">

@@ -1,9 +1,14 @@
 import { Link } from 'react-router';
-import type { Instrument } from '../../../../shared/schemas/instruments';
+import type { Instrument, OutputMode } from '../../../../shared/schemas/instruments';
 import { Badge } from '../../../components/ui/badge';
 import type { RegisterColumn } from '../../../components/registers/server-table';
 import { daysUntil, formatNumber, formatRange, relativeDays } from '../../../lib/format';
-import { OUTPUT_MODE_LABELS } from './instruments-table';
+
+export const OUTPUT_MODE_LABELS: Record<OutputMode, string> = {
+  linear: 'Linear',
+  'sqrt-transmitter': '√ in transmitter',
+  'sqrt-host': '√ in host',
+};
 
 const dash = <span className="text-ink-faint">—</span>;
 

@@ -3,12 +3,13 @@ import { useRef, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { PRESSURE_UNIT_IDS } from '../../../../shared/calc/units';
 import { CUTOFF_MODES, INSTRUMENT_KINDS, InstrumentInputSchema, isReversedRange, OUTPUT_MODES, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
+import { RegisterForm } from '../../../components/registers/register-form';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { applyServerErrors } from '../../../lib/form-errors';
 import { unitLabel } from '../../../lib/format';
 import { useSaveInstrument } from '../api/get-instruments';
-import { OUTPUT_MODE_LABELS } from './instruments-table';
+import { OUTPUT_MODE_LABELS } from './instrument-columns';
 
 const FIELDS = ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'hazardousMedium', 'notes'] as const;
 const CUTOFF_LABELS = { none: 'None', clamp: 'Clamp to zero below the cutoff', linear: 'Linear below the breakpoint' } as const;
@@ -61,12 +62,14 @@ export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: 
   });
   const num = { valueAsNumber: true } as const;
   return (
-    <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-4 sm:grid-cols-2" aria-label={instrument ? `Edit ${instrument.tag}` : 'New instrument'}>
-      {errors.root?.message && (
-        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger sm:col-span-2">
-          {errors.root.message}
-        </div>
-      )}
+    <RegisterForm
+      label={instrument ? `Edit ${instrument.tag}` : 'New instrument'}
+      onSubmit={onSubmit}
+      onCancel={onCancel}
+      rootError={errors.root?.message}
+      submitting={isSubmitting}
+      submitLabel={instrument ? 'Save changes' : 'Add instrument'}
+    >
       <TextField label="Tag" error={errors.tag?.message} {...register('tag')} />
       <SelectField label="Kind" options={INSTRUMENT_KINDS.map((k) => ({ value: k, label: KIND_LABELS[k] }))} error={errors.kind?.message} {...register('kind')} />
       <TextField label="Service" error={errors.service?.message} {...register('service')} />
@@ -107,14 +110,6 @@ export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: 
           </div>
         </div>
       )}
-      <div className="flex justify-end gap-2 sm:col-span-2">
-        <Button variant="secondary" onClick={onCancel}>
-          Cancel
-        </Button>
-        <Button type="submit" loading={isSubmitting}>
-          {instrument ? 'Save changes' : 'Add instrument'}
-        </Button>
-      </div>
-    </form>
+    </RegisterForm>
   );
 }

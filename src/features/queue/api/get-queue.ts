@@ -1,6 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { JobSchema, type CreateJobBody } from '../../../../shared/schemas/jobs';
-import { QueueSchema, type Queue } from '../../../../shared/schemas/records';
+import { QueueSchema, type Queue } from '../../../../shared/schemas/queue';
 import { api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
 

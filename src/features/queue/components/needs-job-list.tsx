@@ -2,7 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { CreateJobBodySchema, type CreateJobBody } from '../../../../shared/schemas/jobs';
-import type { NeedsJob } from '../../../../shared/schemas/records';
+import type { NeedsJob } from '../../../../shared/schemas/queue';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';

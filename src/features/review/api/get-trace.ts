@@ -1,5 +1,5 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
-import { ReviewTraceSchema, type ReviewTrace } from '../../../../shared/schemas/records';
+import { ReviewTraceSchema, type ReviewTrace } from '../../../../shared/schemas/trace';
 import { api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
 

@@ -3,7 +3,7 @@ import { useForm } from 'react-hook-form';
 import { ReviewBodySchema, SIGNATURE_MEANINGS, type ReviewBody, type ReviewDecision } from '../../../../shared/schemas/records';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
-import { SelectField, TextField } from '../../../components/ui/field';
+import { SelectField, TextField, FormError } from '../../../components/ui/field';
 import { isApiError } from '../../../lib/api-client';
 import { useSignJob } from '../api/sign-job';
 
@@ -64,11 +64,7 @@ export function SignDialog({ jobId, tag, revision, decision, signerName, signerE
       }
     >
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4" aria-label="Electronic signature">
-        {errors.root?.message && (
-          <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
-            {errors.root.message}
-          </div>
-        )}
+        <FormError message={errors.root?.message} />
         <div className="rounded-md border border-line bg-sunken/60 px-3 py-2 text-sm">
           Signing as <strong>{signerName}</strong> <span className="text-ink-muted">({signerEmail})</span>. The date and time are recorded in UTC.
         </div>

@@ -1,17 +1,12 @@
 import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
-import 'uplot/dist/uPlot.min.css';
-import type { ReviewTrace } from '../../../../shared/schemas/records';
+import type { ReviewTrace } from '../../../../shared/schemas/trace';
 import type { Run } from '../../../../shared/schemas/runs';
 import { Button } from '../../../components/ui/button';
-import { timeAxis } from '../../../lib/chart-axes';
+import { ChartKey } from '../../../components/ui/chart-key';
+import { cssVar, drawClipped, mountChart, shadeDpBand, shadeSpan, traceAxes, traceColours, traceSeries } from '../../../lib/chart';
 import { useThemeStore } from '../../../lib/theme';
 import type { TraceWindow } from '../api/get-trace';
-
-function cssVar(name: string, fallback: string): string {
-  if (typeof window === 'undefined') return fallback;
-  return getComputedStyle(document.documentElement).getPropertyValue(name).trim() || fallback;
-}
 
 const FLAG_VARS: Record<string, string> = {
   leak: '--sp-flag-leak',
@@ -61,12 +56,7 @@ export function TraceChart({ run, trace, unitLabel, selectedIndex, view, onViewC
     const el = host.current;
     if (!el) return;
     const c = {
-      dp: cssVar('--sp-accent', '#2b6a73'),
-      ma: cssVar('--sp-state-approaching', '#5a5bc2'),
-      grid: cssVar('--sp-line', '#dde1db'),
-      ink: cssVar('--sp-ink-muted', '#4b5854'),
-      hold: cssVar('--sp-state-holding', '#1b8796'),
-      band: cssVar('--sp-state-settling', '#b7861a'),
+      ...traceColours(),
       captured: cssVar('--sp-state-captured', '#2e8753'),
       warn: cssVar('--sp-warn', '#94600f'),
       flags: Object.fromEntries(Object.entries(FLAG_VARS).map(([k, v]) => [k, cssVar(v, '#c0356a')])),
@@ -75,81 +65,60 @@ export function TraceChart({ run, trace, unitLabel, selectedIndex, view, onViewC
 
     const overlay = (u: uPlot) => {
       const { run: r, selectedIndex: sel } = live.current;
-      const ctx = u.ctx;
-      const { left, top, width, height: h } = u.bbox;
-      ctx.save();
-      ctx.beginPath();
-      ctx.rect(left, top, width, h);
-      ctx.clip();
-      ctx.font = `${11 * dpr()}px Inter, sans-serif`;
-      for (const p of r?.points ?? []) {
-        const cap = p.capture;
-        if (!cap) continue;
-        const x0 = u.valToPos(cap.startMs / 1000, 'x', true);
-        const x1 = u.valToPos(cap.endMs / 1000, 'x', true);
-        if (x1 < left || x0 > left + width) continue;
-        const selected = p.index === sel;
-        ctx.fillStyle = c.hold;
-        ctx.globalAlpha = selected ? 0.22 : 0.1;
-        ctx.fillRect(x0, top, Math.max(1, x1 - x0), h);
-        ctx.globalAlpha = 1;
-        // Captured means across the hold: DP on its axis, current on its own.
-        ctx.lineWidth = 2 * dpr();
-        ctx.setLineDash([]);
-        for (const [val, scale, col] of [
-          [cap.appliedDp, 'dp', c.dp],
-          [cap.measuredMa, 'ma', c.ma],
-        ] as const) {
-          const y = u.valToPos(val, scale, true);
-          ctx.strokeStyle = col;
-          ctx.beginPath();
-          ctx.moveTo(x0, y);
-          ctx.lineTo(x1, y);
-          ctx.stroke();
-          ctx.fillStyle = c.captured;
-          ctx.beginPath();
-          ctx.arc(x1, y, 3 * dpr(), 0, Math.PI * 2);
-          ctx.fill();
+      const { left, top, width } = u.bbox;
+      drawClipped(u, (ctx) => {
+        ctx.font = `${11 * dpr()}px Inter, sans-serif`;
+        for (const p of r?.points ?? []) {
+          const cap = p.capture;
+          if (!cap) continue;
+          const x0 = u.valToPos(cap.startMs / 1000, 'x', true);
+          const x1 = u.valToPos(cap.endMs / 1000, 'x', true);
+          if (x1 < left || x0 > left + width) continue;
+          const selected = p.index === sel;
+          shadeSpan(u, x0, x1, c.hold, selected ? 0.22 : 0.1);
+          // Captured means across the hold: DP on its axis, current on its own.
+          ctx.lineWidth = 2 * dpr();
+          ctx.setLineDash([]);
+          for (const [val, scale, col] of [
+            [cap.appliedDp, 'dp', c.dp],
+            [cap.measuredMa, 'ma', c.ma],
+          ] as const) {
+            const y = u.valToPos(val, scale, true);
+            ctx.strokeStyle = col;
+            ctx.beginPath();
+            ctx.moveTo(x0, y);
+            ctx.lineTo(x1, y);
+            ctx.stroke();
+            ctx.fillStyle = c.captured;
+            ctx.beginPath();
+            ctx.arc(x1, y, 3 * dpr(), 0, Math.PI * 2);
+            ctx.fill();
+          }
+          // Flags and warnings as labelled marks along the top of the hold.
+          let ty = top + 4 * dpr();
+          const label = (text: string, col: string) => {
+            ctx.fillStyle = col;
+            ctx.fillRect(x0, ty, 3 * dpr(), 12 * dpr());
+            ctx.fillText(text, x0 + 5 * dpr(), ty + 10 * dpr());
+            ty += 14 * dpr();
+          };
+          if (selected || x1 - x0 > 30 * dpr()) label(`#${p.index + 1}`, c.ink);
+          for (const f of p.flags) label(f, c.flags[f] ?? c.warn);
+          if (p.warning) label('warning', c.warn);
+          if (selected) shadeDpBand(u, p.targetDp - p.window, p.targetDp + p.window, c.band, 0.16);
         }
-        // Flags and warnings as labelled marks along the top of the hold.
-        let ty = top + 4 * dpr();
-        const label = (text: string, col: string) => {
-          ctx.fillStyle = col;
-          ctx.fillRect(x0, ty, 3 * dpr(), 12 * dpr());
-          ctx.fillText(text, x0 + 5 * dpr(), ty + 10 * dpr());
-          ty += 14 * dpr();
-        };
-        if (selected || x1 - x0 > 30 * dpr()) label(`#${p.index + 1}`, c.ink);
-        for (const f of p.flags) label(f, c.flags[f] ?? c.warn);
-        if (p.warning) label('warning', c.warn);
-        if (selected) {
-          const yHi = u.valToPos(p.targetDp + p.window, 'dp', true);
-          const yLo = u.valToPos(p.targetDp - p.window, 'dp', true);
-          ctx.fillStyle = c.band;
-          ctx.globalAlpha = 0.16;
-          ctx.fillRect(left, Math.min(yHi, yLo), width, Math.max(2, Math.abs(yLo - yHi)));
-          ctx.globalAlpha = 1;
-        }
-      }
-      ctx.restore();
+      });
     };
 
-    const opts: uPlot.Options = {
-      width: el.clientWidth || 720,
+    const opts = {
       height,
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
       select: { show: true, left: 0, top: 0, width: 0, height: 0 },
       scales: { x: { time: true }, dp: { auto: true, range: safeRange }, ma: { auto: true, range: safeRange } },
-      axes: [
-        { stroke: c.ink, grid: { stroke: c.grid, width: 1 }, ticks: { stroke: c.grid }, ...timeAxis() },
-        { scale: 'dp', label: unitLabel, stroke: c.dp, grid: { stroke: c.grid, width: 1 }, ticks: { stroke: c.grid }, size: 64 },
-        { scale: 'ma', side: 1, label: 'mA', stroke: c.ma, grid: { show: false }, ticks: { stroke: c.grid }, size: 56 },
-      ],
+      axes: traceAxes(c, unitLabel, { dp: 64, ma: 56 }),
       series: [
-        {},
-        { label: 'Applied DP', scale: 'dp', stroke: c.dp, width: 1.5, spanGaps: true, points: { show: false } },
-        { label: 'Loop current', scale: 'ma', stroke: c.ma, width: 1.5, spanGaps: true, points: { show: false } },
+        ...traceSeries(c, 1.5),
         { label: 'DP min', scale: 'dp', stroke: 'transparent', spanGaps: true, points: { show: false } },
         { label: 'DP max', scale: 'dp', stroke: 'transparent', spanGaps: true, points: { show: false } },
         { label: 'mA min', scale: 'ma', stroke: 'transparent', spanGaps: true, points: { show: false } },
@@ -179,15 +148,12 @@ export function TraceChart({ run, trace, unitLabel, selectedIndex, view, onViewC
           },
         ],
       },
-    };
+    } satisfies Omit<uPlot.Options, 'width'>;
     const t = live.current.trace;
-    const plot = new uPlot(opts, t ? toData(t) : [[], [], [], [], [], [], []], el);
-    plotRef.current = plot;
-    const ro = new ResizeObserver(() => plot.setSize({ width: el.clientWidth, height }));
-    ro.observe(el);
+    const chart = mountChart(el, opts, t ? toData(t) : [[], [], [], [], [], [], []], 720);
+    plotRef.current = chart.plot;
     return () => {
-      ro.disconnect();
-      plot.destroy();
+      chart.destroy();
       plotRef.current = null;
       delete el.dataset.drawn;
     };
@@ -266,11 +232,11 @@ export function TraceChart({ run, trace, unitLabel, selectedIndex, view, onViewC
       />
       {empty && <p className="text-sm text-ink-muted">No raw samples are stored for this run.</p>}
       <figcaption className="flex flex-wrap gap-x-5 gap-y-1 text-xs text-ink-muted">
-        <Legend swatch="bg-accent" label={`Applied DP (${unitLabel}, left)`} />
-        <Legend swatch="bg-state-approaching" label="Loop current (mA, right)" />
-        <Legend swatch="bg-state-holding/30" label="Hold window" />
-        <Legend swatch="bg-state-captured" label="Captured means" />
-        <Legend swatch="bg-flag-leak" label="Flags and warnings" />
+        <ChartKey swatch="bg-accent" label={`Applied DP (${unitLabel}, left)`} />
+        <ChartKey swatch="bg-state-approaching" label="Loop current (mA, right)" />
+        <ChartKey swatch="bg-state-holding/30" label="Hold window" />
+        <ChartKey swatch="bg-state-captured" label="Captured means" />
+        <ChartKey swatch="bg-flag-leak" label="Flags and warnings" />
       </figcaption>
     </figure>
   );
@@ -285,13 +251,4 @@ function safeRange(_u: uPlot, min: number | null, max: number | null): uPlot.Ran
 
 function formatMs(ms: number): string {
   return ms >= 1000 ? `${(ms / 1000).toFixed(ms >= 10_000 ? 0 : 1)} s` : `${Math.round(ms)} ms`;
-}
-
-function Legend({ swatch, label }: { swatch: string; label: string }) {
-  return (
-    <span className="inline-flex items-center gap-1.5">
-      <span aria-hidden="true" className={`inline-block h-2.5 w-4 rounded-sm ${swatch}`} />
-      {label}
-    </span>
-  );
 }

@@ -1,23 +1,23 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useEffect, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router';
-import { checkOutputMode, convertPressure, isPressureUnitId, isRootedOutput, trimPlan } from '../../../../shared/calc';
+import { convertPressure, isPressureUnitId, trimPlan } from '../../../../shared/calc';
 import type { Instrument } from '../../../../shared/schemas/instruments';
 import type { Run, RunPoint } from '../../../../shared/schemas/runs';
-import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
 import { toast } from '../../../components/ui/toast';
-import { cn } from '../../../lib/cn';
 import { dpDecimals as dpDecimalsOfSpan, formatFixed, formatNumber, unitLabel as unitText } from '../../../lib/format';
-import { useLiveStream, useLiveStreamNotice, type LiveStatus } from '../../../lib/live-stream';
+import { useLiveStream } from '../../../lib/live-stream';
 import { liveSamples, useLatestSamples } from '../../../stores/live-samples';
 import { useLiveRun } from '../../../stores/live-run';
 import { useRunAction } from '../api/run-actions';
 import { useCaptureSound, useSoundPref } from '../hooks/use-capture-sound';
 import { useShortcutPref, useShortcuts, type Shortcut } from '../hooks/use-shortcuts';
-import { approachWords, liveValues, ne43Problem, nominalWords, transferSpecOf } from '../lib/live-values';
+import { approachWords, liveValues, nominalWords, transferSpecOf } from '../lib/live-values';
+import { buildBanners } from '../lib/banners';
 import { flowViewOf } from '../lib/flow';
+import { RUN_KIND_LABEL, TRIM_LABEL } from '../lib/labels';
 import { parseResults } from '../lib/results';
 import { CurrentPoint } from './current-point';
 import { LiveTrace } from './live-trace';
@@ -26,21 +26,9 @@ import { PointList } from './point-list';
 import { Readouts } from './readouts';
 import { ResultsTable } from './results-table';
 import { ShortcutHelp } from './shortcut-help';
-import { WarningBanner, type BannerItem } from './warning-banner';
-
-export const RUN_KIND_LABEL: Record<Run['kind'], string> = {
-  'mode-check': 'Output-mode check',
-  'as-found': 'As-found',
-  trim: 'Trim',
-  'as-left': 'As-left',
-};
-
-const TRIM_LABEL: Record<string, string> = { 'zero-trim': 'Zero trim', 'lower-trim': 'Lower trim', 'span-trim': 'Span trim' };
-
-/** Decimals for DP values: shared/format's one rule (last digit ≤ 0.01 % of span), as on the certificate. */
-export function dpDecimalsFor(span: number): number {
-  return dpDecimalsOfSpan(span);
-}
+import { ModeCheckPanel } from './mode-check-panel';
+import { RunStatusBadge, StreamDot } from './run-status';
+import { WarningBanner } from './warning-banner';
 
 export interface CaptureScreenProps {
   run: Run;
@@ -63,7 +51,7 @@ export function CaptureScreen({ run, instrument, tag, canAct, userId }: CaptureS
   const spec = useMemo(() => (instrument ? transferSpecOf(instrument) : undefined), [instrument]);
   const unit = spec?.range.unit ?? run.unit;
   const unitLabel = unitText(unit);
-  const dpDecimals = spec ? dpDecimalsFor(spec.range.urv - spec.range.lrv) : 3;
+  const dpDecimals = spec ? dpDecimalsOfSpan(spec.range.urv - spec.range.lrv) : 3;
   const rooted = !!instrument && instrument.outputMode !== 'linear';
   const samples = useLatestSamples();
   const values = liveValues(spec, samples.pressure?.value, samples.pressureUnit, samples.current?.value);
@@ -353,115 +341,4 @@ export function CaptureScreen({ run, instrument, tag, canAct, userId }: CaptureS
       />
     </div>
   );
-}
-
-function RunStatusBadge({ status }: { status: Run['status'] }) {
-  const map = { running: ['Running', 'holding'], paused: ['Paused', 'warn'], complete: ['Complete', 'ok'], aborted: ['Aborted', 'neutral'] } as const;
-  const [label, tone] = map[status];
-  return (
-    <Badge tone={tone} dot className="text-sm" >
-      <span data-testid="run-status">{label}</span>
-    </Badge>
-  );
-}
-
-function StreamDot({ status }: { status: LiveStatus }) {
-  const ok = status === 'open';
-  const notice = useLiveStreamNotice();
-  return (
-    <span className="inline-flex items-center gap-1.5 text-xs text-ink-muted" data-testid="stream-status" data-status={status} title={notice ?? undefined}>
-      <span aria-hidden="true" className={cn('size-2 rounded-full', ok ? 'bg-ok' : status === 'reconnecting' ? 'animate-pulse bg-warn' : 'bg-ink-faint')} />
-      {ok ? 'Live' : status === 'reconnecting' ? 'Reconnecting…' : status === 'connecting' ? 'Connecting…' : status === 'signed-out' ? (notice ?? 'Signed out') : 'Offline'}
-    </span>
-  );
-}
-
-function ModeCheckPanel({ run, measuredMa, registerMode }: { run: Run; measuredMa: number | null; registerMode: string | undefined }) {
-  const finding = run.modeCheck;
-  const preview = measuredMa === null ? null : checkOutputMode(measuredMa);
-  const words = { 'root-in-transmitter': 'square root in the transmitter (about 12 mA)', 'linear-output': 'output linear in DP (about 8 mA)', 'cannot-tell': 'cannot tell (near neither 8 nor 12 mA)' } as const;
-  const register = registerMode ? (isRootedOutput(registerMode as 'linear') ? 'square root in the transmitter' : 'output linear in DP') : '—';
-  return (
-    <section aria-label="Output-mode check" data-testid="mode-check" className={cn('rounded-card border px-4 py-3', finding && !finding.matchesRegister ? 'border-2 border-danger bg-danger-soft' : 'border-line bg-surface')}>
-      <p className="text-ink">
-        Apply <span className="num font-semibold">25 % DP</span>. A transmitter that takes the square root reads about <span className="num">12 mA</span> (50 % flow); one that does not reads
-        about <span className="num">8 mA</span>. The register says: <span className="font-semibold">{register}</span>.
-      </p>
-      {finding ? (
-        <p className={cn('mt-2 text-lg font-semibold', finding.matchesRegister ? 'text-ok' : 'text-danger')} data-testid="mode-check-finding" data-finding={finding.finding} data-matches={String(finding.matchesRegister)}>
-          Found <span className="num">{formatNumber(finding.measuredMa, 3)} mA</span>: {words[finding.finding]}.{' '}
-          {finding.matchesRegister ? 'Matches the register.' : 'Does not match the register — stop. Correct the register or the transmitter configuration, then repeat the check.'}
-        </p>
-      ) : (
-        preview && (
-          <p className="mt-2 text-sm text-ink-muted">
-            Now reading <span className="num">{formatNumber(measuredMa ?? 0, 3)} mA</span>: {words[preview.decision]}.
-          </p>
-        )
-      )}
-    </section>
-  );
-}
-
-function buildBanners({
-  run,
-  current,
-  liveWarnings,
-  devices,
-  values,
-  streamStatus,
-  active,
-  dpDecimals,
-  unitLabel,
-}: {
-  run: Run;
-  current: RunPoint | null;
-  liveWarnings: ReturnType<typeof useLiveRun.getState>['warnings'];
-  devices: ReturnType<typeof useLiveRun.getState>['devices'];
-  values: ReturnType<typeof liveValues>;
-  streamStatus: LiveStatus;
-  active: boolean;
-  dpDecimals: number;
-  unitLabel: string;
-}): BannerItem[] {
-  if (!active) return [];
-  const out = new Map<BannerItem['kind'], BannerItem>();
-  for (const w of liveWarnings) {
-    if (w.runId !== run.id) continue;
-    if (w.kind !== 'disconnect' && w.index !== current?.index) continue;
-    out.set(w.kind, { kind: w.kind, message: w.message, rate: w.ratePctSpanPerMin });
-  }
-  // Opened mid-point (the warning went out before this page connected): fall back on the point's flags.
-  if (current && (current.state === 'approaching' || current.state === 'settling')) {
-    if (current.flags.includes('leak') && !out.has('leak') && current.state === 'settling')
-      out.set('leak', { kind: 'leak', message: current.warning ?? 'The applied DP moves with the source isolated.', rate: null });
-    if (current.flags.includes('overshoot') && !out.has('overshoot'))
-      out.set('overshoot', { kind: 'overshoot', message: `The applied DP went past the target of point ${current.index + 1} on the approach.` });
-  }
-  const leak = out.get('leak');
-  if (leak) leak.action = 'Check the fittings, the tubing and the manifold valves.';
-  const over = out.get('overshoot');
-  if (over && current) {
-    // The action below says where to go and from which side; the message only says what happened.
-    over.message = `The applied DP went past the target of point ${current.index + 1} on the approach.`;
-    const side = current.approach === 'up' ? 'below' : 'above';
-    const past = current.approach === 'up' ? current.targetDp - 3 * current.window : current.targetDp + 3 * current.window;
-    over.action = (
-      <>
-        Re-approach from {side}: go back to about <span className="num">{formatNumber(past, dpDecimals)}</span> {unitLabel}, then {current.approach === 'up' ? 'raise' : 'lower'} the
-        pressure slowly to the target without passing it.
-      </>
-    );
-  }
-  for (const d of ['pressure', 'current'] as const) {
-    const link = devices[d];
-    if (link && !link.connected && !out.has('disconnect'))
-      out.set('disconnect', { kind: 'disconnect', message: `${d === 'pressure' ? 'Pressure calibrator' : 'Current meter'} on ${link.path ?? 'its port'}: ${link.reason ?? 'connection lost'}. The hold restarts when it is back.` });
-  }
-  const ne = ne43Problem(values.ne43);
-  if (ne && !out.has('ne43')) out.set('ne43', { kind: 'ne43', message: ne });
-  if (values.unitProblem) out.set('unit', { kind: 'unit', message: values.unitProblem });
-  if (streamStatus === 'reconnecting') out.set('stream', { kind: 'stream', message: 'The live connection to the bench dropped; reconnecting and catching up. Captures continue on the server.' });
-  const order: BannerItem['kind'][] = ['overrange', 'disconnect', 'leak', 'overshoot', 'ne43', 'unstable', 'clock', 'unit', 'stream'];
-  return order.flatMap((k) => (out.has(k) ? [out.get(k)!] : []));
 }

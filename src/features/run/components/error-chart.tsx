@@ -1,13 +1,9 @@
 import { useEffect, useRef } from 'react';
-import uPlot from 'uplot';
-import 'uplot/dist/uPlot.min.css';
+import type uPlot from 'uplot';
+import { ChartKey } from '../../../components/ui/chart-key';
+import { cssVar, mountChart } from '../../../lib/chart';
 import { useThemeStore } from '../../../lib/theme';
 import type { RunResults } from '../lib/results';
-
-function cssVar(name: string, fallback: string): string {
-  const v = getComputedStyle(document.documentElement).getPropertyValue(name).trim();
-  return v || fallback;
-}
 
 /**
  * Error per point against the tolerance and the acceptance limit (tolerance less the guard band):
@@ -52,9 +48,9 @@ export function ErrorChart({ asFound, asLeft, tolerancePct, labels, rooted }: { 
       series.push({ label: 'As-left', stroke: c.left, width: 2, points: { show: true, size: 9, fill: c.left }, spanGaps: true });
       data.push(errs(asLeft));
     }
-    const plot = new uPlot(
+    const chart = mountChart(
+      el,
       {
-        width: el.clientWidth || 600,
         height: 240,
         legend: { show: false },
         cursor: { show: false },
@@ -66,34 +62,20 @@ export function ErrorChart({ asFound, asLeft, tolerancePct, labels, rooted }: { 
         series,
       },
       data,
-      el,
+      600,
     );
-    const ro = new ResizeObserver(() => plot.setSize({ width: el.clientWidth, height: 240 }));
-    ro.observe(el);
-    return () => {
-      ro.disconnect();
-      plot.destroy();
-    };
+    return chart.destroy;
   }, [asFound, asLeft, tolerancePct, labels, rooted, theme]);
 
   return (
     <figure className="m-0 rounded-card border border-line bg-surface p-4 shadow-card">
       <div ref={host} data-testid="error-chart" role="img" aria-label="Error per point against tolerance and acceptance limits" />
       <figcaption className="mt-2 flex flex-wrap gap-x-5 gap-y-1 text-xs text-ink-muted">
-        <Key className="border-t-2 border-dashed border-danger" label={`Tolerance ±${tolerancePct} %`} />
-        <Key className="border-t-2 border-dotted border-warn" label="Acceptance limit (guard band)" />
-        {asFound && <Key className="h-2.5 rounded-full bg-flag-overshoot" label="As-found" />}
-        {asLeft && <Key className="h-2.5 rounded-full bg-state-captured" label="As-left" />}
+        <ChartKey shape="w-5" swatch="border-t-2 border-dashed border-danger" label={`Tolerance ±${tolerancePct} %`} />
+        <ChartKey shape="w-5" swatch="border-t-2 border-dotted border-warn" label="Acceptance limit (guard band)" />
+        {asFound && <ChartKey shape="w-5" swatch="h-2.5 rounded-full bg-flag-overshoot" label="As-found" />}
+        {asLeft && <ChartKey shape="w-5" swatch="h-2.5 rounded-full bg-state-captured" label="As-left" />}
       </figcaption>
     </figure>
-  );
-}
-
-function Key({ className, label }: { className: string; label: string }) {
-  return (
-    <span className="inline-flex items-center gap-1.5">
-      <span aria-hidden="true" className={`inline-block w-5 ${className}`} />
-      {label}
-    </span>
   );
 }

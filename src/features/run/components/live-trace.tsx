@@ -1,10 +1,10 @@
 import { useEffect, useRef } from 'react';
-import uPlot from 'uplot';
-import 'uplot/dist/uPlot.min.css';
+import type uPlot from 'uplot';
+import { ChartKey } from '../../../components/ui/chart-key';
+import { drawClipped, mountChart, shadeDpBand, shadeSpan, traceAxes, traceColours, traceSeries } from '../../../lib/chart';
 import { liveSamples, type LiveSampleStore } from '../../../stores/live-samples';
 import { holdRemainingMs, useLiveRun } from '../../../stores/live-run';
 import { useThemeStore } from '../../../lib/theme';
-import { timeAxis } from '../../../lib/chart-axes';
 
 export interface TraceTarget {
   /** Target DP, instrument unit. */
@@ -28,12 +28,6 @@ export interface LiveTraceProps {
   height?: number;
 }
 
-function cssVar(name: string, fallback: string): string {
-  if (typeof window === 'undefined') return fallback;
-  const v = getComputedStyle(document.documentElement).getPropertyValue(name).trim();
-  return v || fallback;
-}
-
 /**
  * Live trace of both channels (applied DP on the left axis, loop current on the right) over a
  * bounded window, with the target, the capture window band and the hold shaded. Redrawn from the
@@ -51,56 +45,36 @@ export function LiveTrace({ windowSeconds = 60, unitLabel, toInstrumentUnit, tar
   useEffect(() => {
     const el = host.current;
     if (!el) return;
-    const colors = {
-      dp: cssVar('--sp-accent', '#2b6a73'),
-      ma: cssVar('--sp-state-approaching', '#5a5bc2'),
-      grid: cssVar('--sp-line', '#dde1db'),
-      ink: cssVar('--sp-ink-muted', '#4b5854'),
-      band: cssVar('--sp-state-settling', '#b7861a'),
-      hold: cssVar('--sp-state-holding', '#1b8796'),
-    };
+    const colors = traceColours();
     const buf = { pt: [] as number[], pv: [] as (number | null)[], ct: [] as number[], cv: [] as (number | null)[] };
     let lastLatest = 0;
 
     const drawOverlay = (u: uPlot) => {
       const { target: tg, runId: rid, pointIndex: idx } = props.current;
-      const ctx = u.ctx;
-      const { left, top, width, height: h } = u.bbox;
-      ctx.save();
-      ctx.beginPath();
-      ctx.rect(left, top, width, h);
-      ctx.clip();
-      const hold = useLiveRun.getState().hold;
-      if (hold && hold.runId === rid && hold.index === idx && lastLatest > 0) {
-        const elapsed = hold.requiredMs - holdRemainingMs(hold, Date.now());
-        const x0 = u.valToPos((lastLatest - elapsed) / 1000, 'x', true);
-        const x1 = u.valToPos(lastLatest / 1000, 'x', true);
-        ctx.fillStyle = colors.hold;
-        ctx.globalAlpha = 0.14;
-        ctx.fillRect(x0, top, Math.max(1, x1 - x0), h);
-        ctx.globalAlpha = 1;
-      }
-      if (tg) {
-        const yHi = u.valToPos(tg.targetDp + tg.window, 'dp', true);
-        const yLo = u.valToPos(tg.targetDp - tg.window, 'dp', true);
-        ctx.fillStyle = colors.band;
-        ctx.globalAlpha = 0.18;
-        ctx.fillRect(left, Math.min(yHi, yLo), width, Math.max(2, Math.abs(yLo - yHi)));
-        ctx.globalAlpha = 1;
-        const y = u.valToPos(tg.targetDp, 'dp', true);
-        ctx.strokeStyle = colors.band;
-        ctx.lineWidth = 1.5 * devicePixelRatio;
-        ctx.setLineDash([6 * devicePixelRatio, 4 * devicePixelRatio]);
-        ctx.beginPath();
-        ctx.moveTo(left, y);
-        ctx.lineTo(left + width, y);
-        ctx.stroke();
-      }
-      ctx.restore();
+      const { left, width } = u.bbox;
+      drawClipped(u, (ctx) => {
+        const hold = useLiveRun.getState().hold;
+        if (hold && hold.runId === rid && hold.index === idx && lastLatest > 0) {
+          const elapsed = hold.requiredMs - holdRemainingMs(hold, Date.now());
+          const x0 = u.valToPos((lastLatest - elapsed) / 1000, 'x', true);
+          const x1 = u.valToPos(lastLatest / 1000, 'x', true);
+          shadeSpan(u, x0, x1, colors.hold, 0.14);
+        }
+        if (tg) {
+          shadeDpBand(u, tg.targetDp - tg.window, tg.targetDp + tg.window, colors.band, 0.18);
+          const y = u.valToPos(tg.targetDp, 'dp', true);
+          ctx.strokeStyle = colors.band;
+          ctx.lineWidth = 1.5 * devicePixelRatio;
+          ctx.setLineDash([6 * devicePixelRatio, 4 * devicePixelRatio]);
+          ctx.beginPath();
+          ctx.moveTo(left, y);
+          ctx.lineTo(left + width, y);
+          ctx.stroke();
+        }
+      });
     };
 
-    const opts: uPlot.Options = {
-      width: el.clientWidth || 600,
+    const opts = {
       height,
       legend: { show: false },
       cursor: { show: false },
@@ -123,19 +97,12 @@ export function LiveTrace({ windowSeconds = 60, unitLabel, toInstrumentUnit, tar
         },
         ma: { auto: false, range: [3.5, 20.5] },
       },
-      axes: [
-        { stroke: colors.ink, grid: { stroke: colors.grid, width: 1 }, ticks: { stroke: colors.grid }, ...timeAxis() },
-        { scale: 'dp', label: unitLabel, stroke: colors.dp, grid: { stroke: colors.grid, width: 1 }, ticks: { stroke: colors.grid }, size: 60 },
-        { scale: 'ma', side: 1, label: 'mA', stroke: colors.ma, grid: { show: false }, ticks: { stroke: colors.grid }, size: 50 },
-      ],
-      series: [
-        {},
-        { label: 'Applied DP', scale: 'dp', stroke: colors.dp, width: 2, spanGaps: true, points: { show: false } },
-        { label: 'Loop current', scale: 'ma', stroke: colors.ma, width: 2, spanGaps: true, points: { show: false } },
-      ],
+      axes: traceAxes(colors, unitLabel, { dp: 60, ma: 50 }),
+      series: traceSeries(colors, 2),
       hooks: { draw: [drawOverlay] },
-    };
-    const plot = new uPlot(opts, [[], [], []], el);
+    } satisfies Omit<uPlot.Options, 'width'>;
+    const chart = mountChart(el, opts, [[], [], []], 600);
+    const plot = chart.plot;
 
     // Merge the two channels onto one time axis (uPlot wants aligned series), nulls between.
     const redraw = () => {
@@ -185,14 +152,11 @@ export function LiveTrace({ windowSeconds = 60, unitLabel, toInstrumentUnit, tar
     // The hold shading grows between samples too.
     const unsubscribeRun = useLiveRun.subscribe(schedule);
     schedule();
-    const ro = new ResizeObserver(() => plot.setSize({ width: el.clientWidth, height }));
-    ro.observe(el);
     return () => {
       unsubscribe();
       unsubscribeRun();
-      ro.disconnect();
       if (frame) cancelAnimationFrame(frame);
-      plot.destroy();
+      chart.destroy();
     };
   }, [store, windowSeconds, unitLabel, height, theme]);
 
@@ -200,20 +164,11 @@ export function LiveTrace({ windowSeconds = 60, unitLabel, toInstrumentUnit, tar
     <figure className="m-0">
       <div ref={host} className="w-full" data-testid="live-trace" role="img" aria-label={`Live trace of applied DP (${unitLabel}) and loop current (mA), last ${windowSeconds} s`} />
       <figcaption className="mt-2 flex flex-wrap gap-x-5 gap-y-1 text-xs text-ink-muted">
-        <Legend swatch="bg-accent" label={`Applied DP (${unitLabel}, left)`} />
-        <Legend swatch="bg-state-approaching" label="Loop current (mA, right)" />
-        <Legend swatch="bg-state-settling/40 border border-dashed border-state-settling" label="Target and capture window" />
-        <Legend swatch="bg-state-holding/25" label="Hold" />
+        <ChartKey swatch="bg-accent" label={`Applied DP (${unitLabel}, left)`} />
+        <ChartKey swatch="bg-state-approaching" label="Loop current (mA, right)" />
+        <ChartKey swatch="bg-state-settling/40 border border-dashed border-state-settling" label="Target and capture window" />
+        <ChartKey swatch="bg-state-holding/25" label="Hold" />
       </figcaption>
     </figure>
-  );
-}
-
-function Legend({ swatch, label }: { swatch: string; label: string }) {
-  return (
-    <span className="inline-flex items-center gap-1.5">
-      <span aria-hidden="true" className={`inline-block h-2.5 w-4 rounded-sm ${swatch}`} />
-      {label}
-    </span>
   );
 }

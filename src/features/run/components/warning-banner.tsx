@@ -1,8 +1,8 @@
-import type { ReactNode } from 'react';
 import { cn } from '../../../lib/cn';
 import { formatNumber } from '../../../lib/format';
+import type { BannerItem, BannerKind } from '../lib/banners';
 
-export type BannerKind = 'leak' | 'overshoot' | 'unstable' | 'disconnect' | 'ne43' | 'clock' | 'unit' | 'stream' | 'overrange';
+export type { BannerItem, BannerKind } from '../lib/banners';
 
 const STYLE: Record<BannerKind, { title: string; className: string }> = {
   leak: { title: 'Leak', className: 'border-flag-leak bg-flag-leak/12 text-flag-leak' },
@@ -15,15 +15,6 @@ const STYLE: Record<BannerKind, { title: string; className: string }> = {
   stream: { title: 'Live data interrupted', className: 'border-warn bg-warn-soft text-warn' },
   overrange: { title: 'Over range', className: 'border-danger bg-danger-soft text-danger' },
 };
-
-export interface BannerItem {
-  kind: BannerKind;
-  message: string;
-  /** Leak rate, % of span per minute. */
-  rate?: number | null;
-  /** What the technician should do. */
-  action?: ReactNode;
-}
 
 /** Warnings that cannot be missed: full width, large, coloured by kind and always named in words. */
 export function WarningBanner({ items, onDismiss }: { items: readonly BannerItem[]; onDismiss?: (kind: BannerKind) => void }) {

@@ -11,33 +11,25 @@ import {
   isPressureUnitId,
   maFromDp,
   SIGNAL_SPAN_MA,
-  type Cutoff,
+  cutoffOfSetting,
+  type CutoffSetting,
   type Ne43Class,
-  type OutputMode,
   type TransferSpec,
 } from '../../../../shared/calc';
 import { formatNumber } from '../../../lib/format';
 
-export interface InstrumentSpecInput {
+/** An instrument's range and output as the register holds them. */
+export interface InstrumentSpecInput extends CutoffSetting {
   lrv: number;
   urv: number;
   unit: string;
-  outputMode: OutputMode;
-  cutoffMode: 'none' | 'clamp' | 'linear';
-  cutoffValue: number;
   tolerancePct: number;
 }
 
 /** Transfer spec of an instrument, or undefined when its unit is not one we know. */
 export function transferSpecOf(i: InstrumentSpecInput): TransferSpec | undefined {
   if (!isPressureUnitId(i.unit) || i.lrv === i.urv) return undefined;
-  const cutoff: Cutoff =
-    i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)
-      ? { mode: 'none' }
-      : i.cutoffMode === 'clamp'
-        ? { mode: 'clamp', flowPct: i.cutoffValue }
-        : { mode: 'linear', breakpointDpPct: i.cutoffValue };
-  return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit }, mode: i.outputMode, cutoff };
+  return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit }, mode: i.outputMode, cutoff: cutoffOfSetting(i) };
 }
 
 export interface LiveValues {

@@ -1,9 +1,19 @@
-import type { Standard } from '../../../../shared/schemas/standards';
+import type { AccuracySpec, Standard } from '../../../../shared/schemas/standards';
 import type { RegisterColumn } from '../../../components/registers/server-table';
-import { daysUntil, formatNumber, formatRange } from '../../../lib/format';
-import { CertificateCell } from './certificate-dialog';
+import { daysUntil, formatNumber, formatRange, uncertaintyLabel, unitLabel } from '../../../lib/format';
+import { CertificateCell } from './certificate-cell';
 import { DueStateBadge } from './due-state-badge';
-import { formatAccuracy } from './standards-table';
+
+/** "±(0.02 % rdg + 0.01 % FS + 0.001 kPa)" or "U (k=2) = 0.05 kPa", units in their one spelling. */
+export function formatAccuracy(a: AccuracySpec, unitId: string): string {
+  const unit = unitLabel(unitId);
+  if (a.certificateU !== null) return `${uncertaintyLabel(a.certificateK)} = ${formatNumber(a.certificateU)} ${unit}`;
+  const parts: string[] = [];
+  if (a.pctReading) parts.push(`${formatNumber(a.pctReading)} % rdg`);
+  if (a.pctFullScale) parts.push(`${formatNumber(a.pctFullScale)} % FS`);
+  if (a.floor) parts.push(`${formatNumber(a.floor)} ${unit}`);
+  return parts.length ? `±(${parts.join(' + ')})` : '—';
+}
 
 export const STANDARD_COLUMNS: RegisterColumn<Standard>[] = [
   { id: 'description', header: 'Standard', sortKey: 'description', cell: (s) => <span className="font-medium">{s.description}</span> },

@@ -3,7 +3,7 @@ import { useEffect } from 'react';
 import { useForm } from 'react-hook-form';
 import { whenValid } from '../../../../shared/schemas/numbers';
 import { STANDARD_KINDS, STANDARD_UNITS, StandardInputSchema, type Standard, type StandardInput } from '../../../../shared/schemas/standards';
-import { Button } from '../../../components/ui/button';
+import { RegisterForm } from '../../../components/registers/register-form';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { applyServerErrors } from '../../../lib/form-errors';
 import { unitLabel } from '../../../lib/format';
@@ -55,12 +55,14 @@ export function StandardForm({ standard, onSaved, onCancel }: { standard: Standa
   ];
   const num = { valueAsNumber: true } as const;
   return (
-    <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-4 sm:grid-cols-2" aria-label={standard ? `Edit ${standard.serial}` : 'New standard'}>
-      {errors.root?.message && (
-        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger sm:col-span-2">
-          {errors.root.message}
-        </div>
-      )}
+    <RegisterForm
+      label={standard ? `Edit ${standard.serial}` : 'New standard'}
+      onSubmit={onSubmit}
+      onCancel={onCancel}
+      rootError={errors.root?.message}
+      submitting={isSubmitting}
+      submitLabel={standard ? 'Save changes' : 'Add standard'}
+    >
       <SelectField label="Kind" options={STANDARD_KINDS.map((k) => ({ value: k, label: k === 'pressure' ? 'Pressure reference' : 'Current meter' }))} error={errors.kind?.message} {...register('kind')} />
       <TextField label="Serial number" error={errors.serial?.message} {...register('serial')} />
       <TextField label="Description" className="sm:col-span-2" error={errors.description?.message} {...register('description')} />
@@ -75,14 +77,6 @@ export function StandardForm({ standard, onSaved, onCancel }: { standard: Standa
       <TextField label="Calibrated by (laboratory)" hint="The laboratory that issued the certificate; printed on every certificate that uses this standard." error={errors.calibratingLab?.message} {...register('calibratingLab')} />
       <TextField label="Calibrated on" type="date" error={errors.calibratedOn?.message} {...register('calibratedOn')} />
       <TextField label="Due on" type="date" error={errors.dueOn?.message} {...register('dueOn')} />
-      <div className="flex justify-end gap-2 sm:col-span-2">
-        <Button variant="secondary" onClick={onCancel}>
-          Cancel
-        </Button>
-        <Button type="submit" loading={isSubmitting}>
-          {standard ? 'Save changes' : 'Add standard'}
-        </Button>
-      </div>
-    </form>
+    </RegisterForm>
   );
 }

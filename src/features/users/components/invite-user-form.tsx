@@ -3,7 +3,7 @@ import { useForm } from 'react-hook-form';
 import { ROLES } from '../../../../shared/schemas/auth';
 import { InviteUserBodySchema, type InviteUserBody, type User } from '../../../../shared/schemas/users';
 import { Button } from '../../../components/ui/button';
-import { SelectField, TextField } from '../../../components/ui/field';
+import { SelectField, TextField, FormError } from '../../../components/ui/field';
 import { applyServerErrors } from '../../../lib/form-errors';
 import { ROLE_LABELS } from '../../../lib/authorization';
 import { useInviteUser } from '../api/invite-user';
@@ -40,11 +40,7 @@ export function InviteUserForm({ onInvited, onCancel }: InviteUserFormProps) {
 
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
-      {errors.root?.message && (
-        <div role="alert" className="rounded-md border border-danger/40 bg-danger-soft px-3 py-2 text-sm text-danger">
-          {errors.root.message}
-        </div>
-      )}
+      <FormError message={errors.root?.message} />
       <TextField label="Name" autoComplete="off" error={errors.name?.message} {...register('name')} />
       <TextField label="Email" type="email" autoComplete="off" error={errors.email?.message} {...register('email')} />
       <SelectField

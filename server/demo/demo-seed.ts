@@ -1,9 +1,9 @@
 import type { Db } from '../db/client';
 import { instrumentRepository, jobRepository, standardRepository, type InstrumentInsert } from '../db/repositories/register.repository';
 import { siteRepository, userRepository } from '../db/repositories/user.repository';
-import type { AuditService } from './audit.service';
-import { hashPassword } from './auth.service';
-import { addDays, isoDate } from './dates';
+import type { AuditService } from '../services/audit.service';
+import { hashPassword } from '../services/auth.service';
+import { addDays, isoDate } from '../services/dates';
 import { seedDemoHistory } from './demo-history';
 
 /**

@@ -10,6 +10,7 @@
 import {
   buildPlan,
   convertPressure,
+  cutoffOfSetting,
   evaluateCalibration,
   isPressureUnitId,
   maFromDp,
@@ -28,10 +29,10 @@ import { reviewRepository } from '../db/repositories/review.repository';
 import { userRepository } from '../db/repositories/user.repository';
 import { orificeSpecOf, PrimaryElementSchema } from '../../shared/schemas/instruments';
 import type { JobDetail } from '../../shared/schemas/jobs';
-import { createAuditService, type AuditService } from './audit.service';
-import { addDays, isoDate } from './dates';
-import { EMPTY_CHECKLIST } from './job.service';
-import { createRecordFreezer, frozenRecordHash } from './record-snapshot';
+import { createAuditService, type AuditService } from '../services/audit.service';
+import { addDays, isoDate } from '../services/dates';
+import { EMPTY_CHECKLIST } from '../services/job.service';
+import { createRecordFreezer, frozenRecordHash } from '../services/record-snapshot';
 
 const DEMO_DOMAIN = 'stillpoint-demo.test';
 /** The bench id run plans name (the server's own bench). */
@@ -39,8 +40,7 @@ const BENCH_ID = 'bench-1';
 
 
 function cutoffOf(i: InstrumentRow): Cutoff {
-  if (i.outputMode === 'linear' || i.cutoffMode === 'none' || !(i.cutoffValue > 0)) return { mode: 'none' };
-  return i.cutoffMode === 'clamp' ? { mode: 'clamp', flowPct: i.cutoffValue } : { mode: 'linear', breakpointDpPct: i.cutoffValue };
+  return cutoffOfSetting({ outputMode: i.outputMode as OutputMode, cutoffMode: i.cutoffMode, cutoffValue: i.cutoffValue });
 }
 function specOf(i: InstrumentRow): TransferSpec {
   return { range: { lrv: i.lrv, urv: i.urv, unit: i.unit as PressureUnitId }, mode: i.outputMode as OutputMode, cutoff: cutoffOf(i) };
