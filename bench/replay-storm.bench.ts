@@ -110,7 +110,7 @@ async function storm(base: string, cookies: string[], epoch: string, since: numb
 
 export async function run(): Promise<BenchFigure[]> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-replay-storm-'));
-  const s = startServerProcess({ dataDir, port: await randomPort(), env: { LOG_LEVEL: 'error' } });
+  const s = await startServerProcess({ dataDir, port: await randomPort(), env: { LOG_LEVEL: 'error' } });
   try {
     await waitHealthy(s, 600_000);
     const base = s.base;

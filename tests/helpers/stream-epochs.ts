@@ -123,7 +123,7 @@ export async function killAndResume(o: { kills: number; seed: number; log?: (lin
   let jobId = '';
   try {
     for (let round = 0; round <= o.kills; round++) {
-      const s = startServerProcess({ dataDir: dir, port: await randomPort() });
+      const s = await startServerProcess({ dataDir: dir, port: await randomPort() });
       children.push(s);
       // Generous: on a shared two-core machine a boot has taken over 90 s.
       await waitHealthy(s, 600_000);

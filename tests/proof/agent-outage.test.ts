@@ -44,7 +44,7 @@ describe('agent through ten minutes without the server, its own restart and a se
     pgdb = await freshPostgresUrl('sp_agent_outage');
     // Start-up is slow on a busy machine (migrations, seed): wait up to five minutes for health.
     const start = async () => {
-      const s = startServerProcess({ port: await randomPort(), dataDir, databaseUrl: pgdb?.url, env: { SEED_DEMO: '1' } });
+      const s = await startServerProcess({ port: await randomPort(), dataDir, databaseUrl: pgdb?.url, env: { SEED_DEMO: '1' } });
       children.push(s);
       await waitHealthy(s, 300_000);
       return s;
