@@ -77,7 +77,7 @@ export async function seedDataDir(dataDir: string, password: string): Promise<vo
     const bytes = await demoTemplate(password);
     const tmp = `${dir}.${process.pid}.tmp`;
     fs.rmSync(tmp, { recursive: true, force: true });
-    const pg = new PGlite(tmp, { loadDataDir: new Blob([bytes]) });
+    const pg = new PGlite(tmp, { loadDataDir: new Blob([bytes.slice().buffer]) });
     await pg.waitReady;
     await pg.close();
     publish(tmp, dir);

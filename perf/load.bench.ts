@@ -4,7 +4,7 @@
  * reports what it measured. The proof asserts what must hold (no failed request, no viewer lost,
  * no sample lost); the latency and rate held are speed figures and belong here, with the 200 ms
  * p99 target of the load requirement.
- * Run: `npx tsx bench/load.bench.ts`, or through `npm run bench`.
+ * Run: `npx tsx perf/load.bench.ts`, or through `npm run bench`.
  */
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';

@@ -9,7 +9,7 @@
  *     history when the server has numbered fewer), about the heaviest resume the bounds allow.
  * Health is asked one request at a time during each storm (and for at most 60 s); the target is a
  * p99 no more than twice the idle p99.
- * Run: `npx tsx bench/replay-storm.bench.ts`, or `npm run bench -- replay`.
+ * Run: `npx tsx perf/replay-storm.bench.ts`, or `npm run bench -- replay`.
  */
 import fs from 'node:fs';
 import os from 'node:os';
