@@ -3,8 +3,16 @@ import react from '@vitejs/plugin-react';
 
 /**
  * Test projects: shared code runs under Node and under jsdom (it must work in both),
- * server unit tests, client component tests, cross-boundary integration tests, and
+ * server unit tests, client component tests, cross-boundary integration tests, the proofs, and
  * end-to-end tests that drive Debian's Chromium.
+ *
+ * How vitest 4 schedules them: projects run side by side in one pool whose size is `maxWorkers`
+ * (default: cores − 1, so one worker on a two-core machine), and every project with
+ * `fileParallelism: false` is put in one group that runs after all the others, one file at a time.
+ * `npm test` (scripts/test.ts) therefore runs the slow projects in lanes of their own, one vitest
+ * process each, at the same time. Integration files are independent (each boots its own in-memory
+ * server on its own port), mostly wait on the simulated rig's real-time holds, and run two at a
+ * time; e2e (a Chromium each) and proof files (server processes, load) run one at a time.
  */
 export default defineConfig({
   test: {
@@ -35,7 +43,9 @@ export default defineConfig({
           include: ['tests/integration/**/*.test.ts'],
           testTimeout: 60_000,
           hookTimeout: 60_000,
-          fileParallelism: false,
+          maxWorkers: 2,
+          // A group of its own: projects of one group share one pool size.
+          sequence: { groupOrder: 1 },
         },
       },
       {
