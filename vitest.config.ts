@@ -34,13 +34,15 @@ export default defineConfig({
       },
       {
         plugins: [react()],
-        test: { name: 'client', environment: 'jsdom', include: ['src/**/*.test.{ts,tsx}'] },
+        // 30 s: on a shared two-core machine a jsdom render has taken over the 5 s default.
+        test: { name: 'client', environment: 'jsdom', include: ['src/**/*.test.{ts,tsx}'], testTimeout: 30_000 },
       },
       {
         test: {
           name: 'integration',
           environment: 'node',
           include: ['tests/integration/**/*.test.ts'],
+          globalSetup: ['tests/helpers/prepare.ts'],
           testTimeout: 60_000,
           hookTimeout: 60_000,
           maxWorkers: 2,
@@ -53,6 +55,7 @@ export default defineConfig({
           name: 'proof',
           environment: 'node',
           include: ['tests/proof/**/*.test.ts'],
+          globalSetup: ['tests/helpers/prepare.ts'],
           testTimeout: 600_000,
           hookTimeout: 300_000,
           fileParallelism: false,
@@ -63,7 +66,7 @@ export default defineConfig({
           name: 'e2e',
           environment: 'node',
           include: ['tests/e2e/**/*.test.ts'],
-          globalSetup: ['tests/e2e/global-setup.ts'],
+          globalSetup: ['tests/helpers/prepare.ts', 'tests/e2e/global-setup.ts'],
           testTimeout: 180_000,
           hookTimeout: 180_000,
           fileParallelism: false,

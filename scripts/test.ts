@@ -87,7 +87,7 @@ function pick(): Lane[] {
 /** Runs one command, printing each line of its output with the lane's name in front. */
 function run(lane: string, argv: string[], env: Record<string, string> = {}): Promise<number> {
   return new Promise((resolve) => {
-    const child = spawn(argv[0]!, argv.slice(1), { cwd: root, env: { ...process.env, FORCE_COLOR: process.stdout.isTTY ? '1' : '0', ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(argv[0]!, argv.slice(1), { cwd: root, env: { ...process.env, ...(process.stdout.isTTY ? { FORCE_COLOR: '1' } : { NO_COLOR: '1' }), ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
     const tag = `[${lane}]`.padEnd(14);
     for (const stream of [child.stdout, child.stderr]) {
       let rest = '';
@@ -109,6 +109,8 @@ function run(lane: string, argv: string[], env: Record<string, string> = {}): Pr
 
 const lanes = pick();
 const t0 = performance.now();
+// What the suites share (the seeded template database, the server bundle), made once before the lanes start.
+if (lanes.some((l) => l.steps.some((s) => s[0] === bin('vitest'))) && (await run('prepare', [bin('tsx'), 'tests/helpers/prepare.ts'])) !== 0) process.exit(1);
 const results = new Map<string, { code: number; seconds: number }>();
 const done = new Map<string, Promise<number>>();
 for (const lane of lanes) {

@@ -67,11 +67,8 @@ export async function demoTemplate(password: string): Promise<Uint8Array> {
   }
 }
 
-/**
- * Puts the seeded template into `dataDir` as its PGlite directory (`DATA_DIR/pglite`), so a server
- * process started there opens a migrated, seeded database as on any later start.
- */
-export async function seedDataDir(dataDir: string, password: string): Promise<void> {
+/** The seeded template as a PGlite data directory (loaded from the tarball); returns its path. */
+export async function demoTemplateDir(password: string): Promise<string> {
   const dir = path.join(DIR, `${templateKey(password)}.pglite`);
   if (!fs.existsSync(dir)) {
     const bytes = await demoTemplate(password);
@@ -82,6 +79,15 @@ export async function seedDataDir(dataDir: string, password: string): Promise<vo
     await pg.close();
     publish(tmp, dir);
   }
+  return dir;
+}
+
+/**
+ * Puts the seeded template into `dataDir` as its PGlite directory (`DATA_DIR/pglite`), so a server
+ * process started there opens a migrated, seeded database as on any later start.
+ */
+export async function seedDataDir(dataDir: string, password: string): Promise<void> {
+  const dir = await demoTemplateDir(password);
   fs.mkdirSync(dataDir, { recursive: true });
   fs.cpSync(dir, path.join(dataDir, 'pglite'), { recursive: true });
 }
