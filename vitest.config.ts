@@ -43,8 +43,9 @@ export default defineConfig({
           environment: 'node',
           include: ['tests/integration/**/*.test.ts'],
           globalSetup: ['tests/helpers/prepare.ts'],
-          testTimeout: 60_000,
-          hookTimeout: 60_000,
+          // Generous for a shared two-core machine: a server boot has taken over a minute under load.
+          testTimeout: 120_000,
+          hookTimeout: 120_000,
           maxWorkers: 2,
           // A group of its own: projects of one group share one pool size.
           sequence: { groupOrder: 1 },

@@ -84,10 +84,31 @@ function pick(): Lane[] {
   return LANES.filter((l) => names.includes(l.name)).map((l) => ({ ...l, after: l.after?.filter((a) => names.includes(a)) }));
 }
 
-/** Runs one command, printing each line of its output with the lane's name in front. */
+/** Process groups of the running commands: stopping `npm test` stops them and everything they started. */
+const groups = new Set<number>();
+for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
+  process.once(signal, () => {
+    for (const g of groups) {
+      try {
+        process.kill(-g, 'SIGKILL');
+      } catch {
+        /* already gone */
+      }
+    }
+    process.exit(130);
+  });
+}
+
+/** Runs one command in a process group of its own, printing each line of its output with the lane's name in front. */
 function run(lane: string, argv: string[], env: Record<string, string> = {}): Promise<number> {
   return new Promise((resolve) => {
-    const child = spawn(argv[0]!, argv.slice(1), { cwd: root, env: { ...process.env, ...(process.stdout.isTTY ? { FORCE_COLOR: '1' } : { NO_COLOR: '1' }), ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(argv[0]!, argv.slice(1), {
+      cwd: root,
+      env: { ...process.env, ...(process.stdout.isTTY ? { FORCE_COLOR: '1' } : { NO_COLOR: '1' }), ...env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+      detached: true,
+    });
+    if (child.pid) groups.add(child.pid);
     const tag = `[${lane}]`.padEnd(14);
     for (const stream of [child.stdout, child.stderr]) {
       let rest = '';
@@ -103,7 +124,10 @@ function run(lane: string, argv: string[], env: Record<string, string> = {}): Pr
       process.stdout.write(`${tag}could not start ${argv[0]}: ${e.message}\n`);
       resolve(127);
     });
-    child.on('close', (code, signal) => resolve(code ?? (signal ? 128 : 1)));
+    child.on('close', (code, signal) => {
+      if (child.pid) groups.delete(child.pid);
+      resolve(code ?? (signal ? 128 : 1));
+    });
   });
 }
 
