@@ -1,7 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import { e2eApp, outboxText, signIn } from '../helpers/e2e';
+import { checklistDone, e2eApp, outboxText, signIn } from '../helpers/e2e';
 import { DEMO_PASSWORD, demoEmail } from '../helpers/test-server';
-import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
 
 /**
  * The return loop in the browser: the lead returns a submitted job with a comment, the technician
@@ -15,14 +14,8 @@ const COMMENT = 'Point 3 down drifts during the hold; re-make the fittings and r
 const REPLY = 'Fittings re-made and leak-tested at 110 % of span; the hold is steady now.';
 
 beforeAll(async () => {
-  const tech = app.api.tech;
-  const me = (await tech.get('/api/auth/me')).body as { id: string };
-  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
-  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
-  const s = await demoStandards(app.server);
-  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
-  await passingAsFound(app.server, jobId, 'FT-101', me.id);
-  const sub = await tech.post(`/api/jobs/${jobId}/submit`);
+  ({ jobId } = await checklistDone(app, { asFound: true }));
+  const sub = await app.api.tech.post(`/api/jobs/${jobId}/submit`);
   expect(sub.status, JSON.stringify(sub.body)).toBe(200);
 });
 

@@ -1,8 +1,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { recordOffHostRequests } from '../helpers/browser';
-import { e2eApp, outboxText, signIn } from '../helpers/e2e';
+import { checklistDone, e2eApp, outboxText, signIn } from '../helpers/e2e';
 import { DEMO_PASSWORD, demoEmail } from '../helpers/test-server';
-import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
 
 const app = e2eApp({ users: ['admin', 'tech'] });
 let jobId: string;
@@ -10,13 +9,7 @@ let jobId: string;
 beforeAll(async () => {
   expect(app.server.fakeSmtp, 'SMTP_URL is unset, so the local fake SMTP server runs').toBeDefined();
   // A job of the technician's, ready to submit: checklist done and an as-found run with its raw trace.
-  const tech = app.api.tech;
-  const me = (await tech.get('/api/auth/me')).body as { id: string };
-  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
-  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
-  const s = await demoStandards(app.server);
-  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
-  await passingAsFound(app.server, jobId, 'FT-101', me.id, { trace: true });
+  ({ jobId } = await checklistDone(app, { asFound: true, trace: true }));
 });
 
 describe('team mail through SMTP to the local fake, shown in the Outbox', () => {

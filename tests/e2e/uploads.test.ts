@@ -1,7 +1,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { tinyPdf, tinyPng } from '../fixtures/test-files';
-import { e2eApp, signIn } from '../helpers/e2e';
-import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
+import { checklistDone, e2eApp, signIn } from '../helpers/e2e';
+import { passingAsFound } from '../integration/records-helpers';
 
 /**
  * Uploads through the UI: a standard's certificate on the register, an as-found photo on the job;
@@ -14,13 +14,7 @@ let techId: string;
 let serial: string;
 
 beforeAll(async () => {
-  const tech = app.api.tech;
-  techId = ((await tech.get('/api/auth/me')).body as { id: string }).id;
-  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
-  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
-  const s = await demoStandards(app.server);
-  serial = s.pressure.serial;
-  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
+  ({ jobId, techId, pressureSerial: serial } = await checklistDone(app));
 });
 
 describe('uploads in the browser', () => {

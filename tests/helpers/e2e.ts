@@ -5,6 +5,7 @@
  */
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll } from 'vitest';
+import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
 import { launchBrowser } from './browser';
 import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from './test-server';
 
@@ -62,6 +63,22 @@ export async function readyForRun(tech: ApiClient, permitNo: string, tag = 'FT-1
   const r = await tech.req('PUT', `/api/jobs/${job.id}/checklist`, { standardIds: [p.id, c.id], permitNo, bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
   if (r.status !== 200 || (r.body.blockers as string[]).length) throw new Error(`${tag} not ready for a run: ${r.status} ${JSON.stringify(r.body)}`);
   return job.id;
+}
+
+/**
+ * The technician's open FT-101 job with its checklist complete (the demo's in-date standards) and,
+ * with `asFound`, a passing as-found run written to the database (with its raw trace on `trace`):
+ * ready to submit. Needs the `tech` API client.
+ */
+export async function checklistDone(app: E2eApp, o: { asFound?: boolean; trace?: boolean } = {}): Promise<{ jobId: string; techId: string; pressureSerial: string }> {
+  const tech = app.api.tech;
+  const techId = ((await tech.get('/api/auth/me')).body as { id: string }).id;
+  const jobs = (await tech.get('/api/jobs')).body.items as { id: string; tag: string; status: string }[];
+  const jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
+  const s = await demoStandards(app.server);
+  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
+  if (o.asFound) await passingAsFound(app.server, jobId, 'FT-101', techId, { trace: o.trace });
+  return { jobId, techId, pressureSerial: s.pressure.serial };
 }
 
 /** Waits (polling the Outbox as admin) for a message to `to` whose subject matches; returns its text. */
