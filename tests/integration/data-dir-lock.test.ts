@@ -23,7 +23,8 @@ afterAll(async () => {
 describe('one process per data directory', { skip: !!process.env.TEST_DATABASE_URL }, () => {
   it('refuses a second server on the same DATA_DIR and leaves the first unharmed', async () => {
     const first = await start();
-    await waitHealthy(first);
+    // A first start migrates and seeds two years of demo history: minutes on a busy two-core machine.
+    await waitHealthy(first, 300_000);
     expect(await (await fetch(`${first.base}/api/health`)).json()).toMatchObject({ ok: true, db: 'pglite' });
     const lock = fs.readFileSync(path.join(dir, 'stillpoint.lock'), 'utf8').trim();
     expect(Number(lock)).toBe(first.child.pid);
@@ -36,5 +37,5 @@ describe('one process per data directory', { skip: !!process.env.TEST_DATABASE_U
     first.child.kill('SIGTERM');
     expect(await first.exited).toBe(0);
     expect(fs.existsSync(path.join(dir, 'stillpoint.lock'))).toBe(false);
-  }, 180_000);
+  }, 420_000);
 });
