@@ -3,18 +3,30 @@ import react from '@vitejs/plugin-react';
 
 /**
  * Test projects: shared code runs under Node and under jsdom (it must work in both),
- * server unit tests, client component tests, cross-boundary integration tests, and
+ * server unit tests, client component tests, cross-boundary integration tests, the proofs, and
  * end-to-end tests that drive Debian's Chromium.
+ *
+ * How vitest 4 schedules them: projects run side by side in one pool whose size is `maxWorkers`
+ * (default: cores − 1, so one worker on a two-core machine), and every project with
+ * `fileParallelism: false` is put in one group that runs after all the others, one file at a time.
+ * `npm test` (scripts/test.ts) therefore runs the slow projects in lanes of their own, one vitest
+ * process each, at the same time. Integration files are independent (each boots its own in-memory
+ * server on its own port), mostly wait on the simulated rig's real-time holds, and run two at a
+ * time; e2e (a Chromium each) and proof files (server processes, load) run one at a time.
  */
 export default defineConfig({
   test: {
     dangerouslyIgnoreUnhandledErrors: false,
     projects: [
       {
-        test: { name: 'shared', environment: 'node', include: ['shared/**/*.test.ts'] },
+        // Unit projects share one worker and one environment across their files (isolate: false):
+        // a fresh worker, module graph and jsdom per file cost more than the tests themselves
+        // (client: 42 s → 10 s, shared under jsdom: 34 s → 6 s). Each test builds what it uses;
+        // one that leaves global state behind would show here.
+        test: { name: 'shared', environment: 'node', include: ['shared/**/*.test.ts'], isolate: false },
       },
       {
-        test: { name: 'shared-dom', environment: 'jsdom', include: ['shared/**/*.test.ts'] },
+        test: { name: 'shared-dom', environment: 'jsdom', include: ['shared/**/*.test.ts'], isolate: false },
       },
       {
         test: {
@@ -22,20 +34,26 @@ export default defineConfig({
           environment: 'node',
           include: ['server/**/*.test.ts', 'simulators/**/*.test.ts'],
           testTimeout: 30_000,
+          isolate: false,
         },
       },
       {
         plugins: [react()],
-        test: { name: 'client', environment: 'jsdom', include: ['src/**/*.test.{ts,tsx}'] },
+        // 30 s: on a shared two-core machine a jsdom render has taken over the 5 s default.
+        test: { name: 'client', environment: 'jsdom', include: ['src/**/*.test.{ts,tsx}'], testTimeout: 30_000, isolate: false },
       },
       {
         test: {
           name: 'integration',
           environment: 'node',
           include: ['tests/integration/**/*.test.ts'],
-          testTimeout: 60_000,
-          hookTimeout: 60_000,
-          fileParallelism: false,
+          globalSetup: ['tests/helpers/prepare.ts'],
+          // Generous for a shared two-core machine: a server boot has taken over a minute under load.
+          testTimeout: 120_000,
+          hookTimeout: 120_000,
+          maxWorkers: 2,
+          // A group of its own: projects of one group share one pool size.
+          sequence: { groupOrder: 1 },
         },
       },
       {
@@ -43,6 +61,7 @@ export default defineConfig({
           name: 'proof',
           environment: 'node',
           include: ['tests/proof/**/*.test.ts'],
+          globalSetup: ['tests/helpers/prepare.ts'],
           testTimeout: 600_000,
           hookTimeout: 300_000,
           fileParallelism: false,
@@ -53,7 +72,7 @@ export default defineConfig({
           name: 'e2e',
           environment: 'node',
           include: ['tests/e2e/**/*.test.ts'],
-          globalSetup: ['tests/e2e/global-setup.ts'],
+          globalSetup: ['tests/helpers/prepare.ts', 'tests/e2e/global-setup.ts'],
           testTimeout: 180_000,
           hookTimeout: 180_000,
           fileParallelism: false,

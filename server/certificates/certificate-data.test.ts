@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { DECISION_RULES } from '../../shared/calc';
 import { certificateProblems, conformityStatement, decisionRuleStatement, type CertificateResults } from './certificate-data';
-import { sampleCertificate } from './sample-certificate';
+import { sampleCertificate } from '../../tests/fixtures/sample-certificate';
 
 const withDecisions = (r: CertificateResults, ds: CertificateResults['points'][number]['decision'][], overall: CertificateResults['overallDecision']): CertificateResults => ({
   ...r,

@@ -5,7 +5,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CertificateDataError } from './certificate-data';
 import { renderCertificate } from './certificate-pdf';
-import { sampleCertificate, SAMPLE_AS_FOUND_MA, SAMPLE_AS_LEFT_MA } from './sample-certificate';
+import { sampleCertificate, SAMPLE_AS_FOUND_MA, SAMPLE_AS_LEFT_MA } from '../../tests/fixtures/sample-certificate';
 
 const has = (cmd: string) => spawnSync('sh', ['-c', `command -v ${cmd}`]).status === 0;
 

@@ -13,27 +13,24 @@ describe('PgliteWorkerClient (PGlite in a worker thread)', () => {
     await db?.close();
   });
 
-  it('runs a slow query in the worker while this thread keeps ticking', async () => {
-    const gaps: number[] = [];
-    let last = performance.now();
-    const timer = setInterval(() => {
-      const now = performance.now();
-      gaps.push(now - last);
-      last = now;
-    }, 10);
-    const t0 = performance.now();
+  it('runs a long query in the worker while this thread keeps turning', async () => {
+    // Counted in event-loop turns, not in time: PGlite on this thread would run the whole query in
+    // one synchronous WebAssembly call, so no turn could happen until it returned.
+    let turns = 0;
+    let running = true;
+    const spin = () => {
+      if (!running) return;
+      turns++;
+      setImmediate(spin);
+    };
+    setImmediate(spin);
     try {
-      const r = await db.query<{ s: string }>('SELECT pg_sleep(0.6), sum(g)::text AS s FROM generate_series(1, 300000) g');
+      const r = await db.query<{ s: string }>('SELECT sum(g)::text AS s FROM generate_series(1, 300000) g');
       expect(r.rows[0]!.s).toBe('45000150000');
     } finally {
-      clearInterval(timer);
+      running = false;
     }
-    const took = performance.now() - t0;
-    expect(took).toBeGreaterThanOrEqual(600);
-    // On the main thread the timer could not have fired once during the query; here it fires on time
-    // (generous bound for a busy machine: well below the query's length).
-    expect(gaps.length).toBeGreaterThanOrEqual(Math.floor(took / 10 / 4));
-    expect(Math.max(...gaps)).toBeLessThan(took / 2);
+    expect(turns).toBeGreaterThan(100);
   });
 
   it('passes drizzle-style options: array rows and identity parsers leave timestamps as text', async () => {

@@ -89,6 +89,8 @@ function rawTypesOf(parsers: ProxyQueryOptions['parsers']): number[] {
  * the tsx CLI and vitest.
  */
 function bootstrap(): string {
+  // A prebuilt server bundle (tests/helpers/server-bundle.ts) carries the worker beside it, compiled.
+  if (import.meta.url.endsWith('.mjs')) return `import(${JSON.stringify(new URL('./pglite-worker.mjs', import.meta.url).href)});`;
   // tsx's ESM API entry (package exports "./esm/api" → import → ./dist/esm/api/index.mjs).
   const tsxDir = path.dirname(createRequire(import.meta.url).resolve('tsx/package.json'));
   const tsxApi = pathToFileURL(path.join(tsxDir, 'dist/esm/api/index.mjs')).href;

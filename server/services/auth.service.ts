@@ -56,8 +56,10 @@ export interface AuthOptions {
   sessionCacheMs?: number;
 }
 
-// A hash to compare against when the email is unknown, so timing does not reveal accounts.
-const DUMMY_HASH = bcrypt.hashSync('not-a-real-password-0', BCRYPT_COST);
+// A hash to compare against when the email is unknown, so timing does not reveal accounts. Made at
+// the first sign-in that needs it, not at import (every process that imports this would pay a hash).
+let dummyHash: Promise<string> | undefined;
+const dummy = () => (dummyHash ??= bcrypt.hash('not-a-real-password-0', BCRYPT_COST));
 
 export function hashPassword(password: string): Promise<string> {
   return bcrypt.hash(password, BCRYPT_COST);
@@ -161,7 +163,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
         await audit.record({ id: user.id, email: user.email }, 'auth.sign-in-failed', 'user', user.id, undefined, { email, reason: 'account locked' });
         throw new AccountLockedError(`Too many failed sign-ins for this account; try again after ${hhmm(until)} UTC or ask an admin to unlock it`, Math.ceil((until - now()) / 1000));
       }
-      const ok = await bcrypt.compare(password, user?.passwordHash ?? DUMMY_HASH);
+      const ok = await bcrypt.compare(password, user?.passwordHash ?? (await dummy()));
       if (!user || !ok || !user.active) {
         await audit.record(user ? { id: user.id, email: user.email } : null, 'auth.sign-in-failed', 'user', user?.id ?? null, undefined, { email });
         if (user && !ok) {

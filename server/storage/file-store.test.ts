@@ -5,7 +5,7 @@ import path from 'node:path';
 import { text } from 'node:stream/consumers';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { createFileStore, InvalidFileIdError, isFileId, sanitizeFileName, type FileStore } from './file-store';
-import { tinyPdf } from './test-files';
+import { tinyPdf } from '../../tests/fixtures/test-files';
 
 let dir: string;
 let store: FileStore;

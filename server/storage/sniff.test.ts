@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { checkUpload, normaliseDeclaredType, sniffKind } from './sniff';
-import { tinyPdf, tinyPng } from './test-files';
+import { tinyPdf, tinyPng } from '../../tests/fixtures/test-files';
 
 const jpeg = Buffer.from([0xff, 0xd8, 0xff, 0xe0, 0, 0x10, 0x4a, 0x46, 0x49, 0x46, 0]);
 const webp = Buffer.concat([Buffer.from('RIFF'), Buffer.from([0x1a, 0, 0, 0]), Buffer.from('WEBPVP8 ')]);

@@ -9,7 +9,7 @@ import pino from 'pino';
 import { AppError } from '../errors';
 import { errorHandler } from '../http/middleware/error-handler';
 import { createFileStore } from './file-store';
-import { tinyPdf, tinyPng } from './test-files';
+import { tinyPdf, tinyPng } from '../../tests/fixtures/test-files';
 import { createUploads, toUploadError, UploadRejectedError } from './upload';
 
 let dir: string;

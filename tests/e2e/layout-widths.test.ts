@@ -1,10 +1,9 @@
 import { mkdirSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser } from '../helpers/browser';
-import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer } from '../helpers/test-server';
+import type { BrowserContext, Page } from 'playwright-core';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { e2eApp, readyForRun, signIn } from '../helpers/e2e';
 
 /**
  * Every screen width people use, in a real browser: the queue, a job, the capture screen of a
@@ -25,34 +24,16 @@ const WIDTHS = [
   { width: 1920, height: 1080 },
 ] as const;
 
-let server: TestServer;
-let browser: Browser;
-let admin: ApiClient;
-let tech: ApiClient;
-let lead: ApiClient;
+const app = e2eApp({ env: { HOLD_SECONDS: '3600' }, users: ['admin', 'tech', 'lead'] });
 let jobId: string;
 let runId: string;
 let reviewJobId: string;
 
 beforeAll(async () => {
-  // A long hold: the point stays in its hold (countdown running) for the whole test.
-  server = await startTestServer({ env: { HOLD_SECONDS: '3600' } });
-  browser = await launchBrowser();
-  admin = new ApiClient(server.url);
-  await admin.login(demoEmail('admin'));
-  tech = new ApiClient(server.url);
-  await tech.login(demoEmail('tech'));
-  lead = new ApiClient(server.url);
-  await lead.login(demoEmail('lead'));
+  // A long hold (HOLD_SECONDS above): the point stays in its hold (countdown running) for the whole test.
+  const { admin, tech, lead } = app.api;
   mkdirSync(SCREENS, { recursive: true });
-
-  const job = (await tech.get('/api/jobs')).body.items.find((j: { tag: string }) => j.tag === 'FT-101');
-  jobId = job.id;
-  const stds = (await tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
-  const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
-  const c = stds.find((s: { kind: string }) => s.kind === 'current');
-  const r = await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, c.id], permitNo: 'PTW-88', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
-  expect(r.body.blockers).toEqual([]);
+  jobId = await readyForRun(tech, 'PTW-88');
   const sim = await admin.post('/api/sim', { source: { leakPerMin: 0, overshoot: 0, noise: 0 }, setpoint: { value: 0 } });
   expect(sim.status).toBe(200);
   const started = await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' });
@@ -74,21 +55,12 @@ beforeAll(async () => {
   reviewJobId = (records[0]!.jobId ?? records[0]!.id)!;
 });
 
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
-
 async function signedIn(who: 'tech' | 'lead', theme: 'light' | 'bench'): Promise<{ context: BrowserContext; page: Page }> {
   // bypassCSP: axe-core is injected as a script tag, which the app's own policy (script-src 'self') refuses.
-  const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, bypassCSP: true });
+  const context = await app.browser.newContext({ viewport: { width: 1440, height: 900 }, bypassCSP: true });
   await context.addInitScript((t) => window.localStorage.setItem('stillpoint.theme', t), theme);
   const page = await context.newPage();
-  await page.goto(`${server.url}/login`);
-  await page.getByLabel('Email').fill(demoEmail(who));
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/queue$/);
+  await signIn(page, app.server.url, who);
   return { context, page };
 }
 
@@ -110,7 +82,7 @@ const PAGES: PageCase[] = [
 ];
 
 async function open(page: Page, c: PageCase): Promise<void> {
-  await page.goto(`${server.url}${c.path()}`);
+  await page.goto(`${app.server.url}${c.path()}`);
   await page.locator(c.ready).first().waitFor({ timeout: 60_000 });
   // Fonts change widths: measure with the bundled faces in place.
   await page.evaluate(() => document.fonts.ready.then(() => undefined));
@@ -246,7 +218,7 @@ describe('every screen width', () => {
     const { context, page } = await signedIn('lead', 'light');
     try {
       await page.setViewportSize({ width: 390, height: 844 });
-      await page.goto(`${server.url}/queue`);
+      await page.goto(`${app.server.url}/queue`);
       const toggle = page.getByRole('button', { name: 'Menu' });
       await toggle.waitFor();
       expect(await toggle.getAttribute('aria-expanded')).toBe('false');

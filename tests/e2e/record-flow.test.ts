@@ -2,10 +2,10 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser } from '../helpers/browser';
-import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer } from '../helpers/test-server';
+import { e2eApp, readyForRun, signIn } from '../helpers/e2e';
+import { DEMO_PASSWORD } from '../helpers/test-server';
 import { formatFixed } from '../../shared/format';
 
 /**
@@ -17,34 +17,20 @@ import { formatFixed } from '../../shared/format';
  * certificate's text, and must agree; the certificate names the manual capture, the leak, the
  * overshoot and the redo, and its adjustment table holds the job page's before/after readings.
  */
-let server: TestServer;
-let browser: Browser;
+const app = e2eApp({ env: { HOLD_SECONDS: '2' }, users: ['tech', 'lead', 'admin'] });
 let dir: string;
-const c: Record<'tech' | 'lead' | 'admin', ApiClient> = {} as never;
+const c = app.api;
 let jobId: string;
 
 const MANUAL_REASON = 'Output too noisy to settle: pump vibration on the impulse lines';
 const REDO_REASON = 'Approached from the wrong side after an overshoot';
 
 beforeAll(async () => {
-  server = await startTestServer({ env: { HOLD_SECONDS: '2' } });
-  browser = await launchBrowser();
   dir = await fs.mkdtemp(path.join(os.tmpdir(), 'stillpoint-record-e2e-'));
-  for (const who of ['tech', 'lead', 'admin'] as const) {
-    c[who] = new ApiClient(server.url);
-    await c[who].login(demoEmail(who));
-  }
-  jobId = (await c.tech.get('/api/jobs')).body.items.find((j: { tag: string }) => j.tag === 'FT-101').id;
-  const stds = (await c.tech.get('/api/standards')).body.items.filter((s: { dueState: string }) => s.dueState !== 'expired');
-  const p = stds.find((s: { kind: string; rangeMax: number }) => s.kind === 'pressure' && s.rangeMax <= 100);
-  const cur = stds.find((s: { kind: string }) => s.kind === 'current');
-  const r = await c.tech.req('PUT', `/api/jobs/${jobId}/checklist`, { standardIds: [p.id, cur.id], permitNo: 'PTW-4410', bypass: { required: false, description: '' }, operatorsInformed: true, isolated: true, vented: true });
-  expect(r.body.blockers).toEqual([]);
+  jobId = await readyForRun(c.tech, 'PTW-4410');
 }, 600_000);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.close();
   if (dir) await fs.rm(dir, { recursive: true, force: true });
 });
 
@@ -96,14 +82,6 @@ async function handsFree(kind: string, trim?: string): Promise<string> {
   await sim({ autopilot: { speed: 4 } });
   await until(`${kind} to complete`, () => getRun(id), (r) => r.status === 'complete', 300_000);
   return id;
-}
-
-async function signIn(page: Page, who: 'tech' | 'lead') {
-  await page.goto(`${server.url}/login`);
-  await page.getByLabel('Email').fill(demoEmail(who));
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/queue$/);
 }
 
 /** A number shown on screen (our minus is U+2212), once it shows one. */
@@ -198,7 +176,7 @@ describe('the record says what happened, with one definition of error and hyster
     expect(sign.status, JSON.stringify(sign.body)).toBe(200);
 
     // The certificate's text (layout kept, so a table row stays on one line).
-    const res = await fetch(`${server.url}/api/jobs/${jobId}/certificate.pdf`, { headers: { cookie: c.lead.cookie } });
+    const res = await fetch(`${app.server.url}/api/jobs/${jobId}/certificate.pdf`, { headers: { cookie: c.lead.cookie } });
     expect(res.status).toBe(200);
     const file = path.join(dir, 'certificate.pdf');
     await fs.writeFile(file, Buffer.from(await res.arrayBuffer()));
@@ -216,15 +194,15 @@ describe('the record says what happened, with one definition of error and hyster
     expect(flat).toMatch(/As-left point 8 \(25 % flow, down\) was measured again \(redo\) by .* reason: “Approached from the wrong side after an overshoot”/);
     expect(flat).not.toContain('No point carried a leak');
 
-    const context = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const context = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const page = await context.newPage();
     const pageErrors: string[] = [];
     page.on('pageerror', (e) => pageErrors.push(e.message));
     try {
-      await signIn(page, 'lead');
+      await signIn(page, app.server.url, 'lead');
 
       // The job page's trim readings are the certificate's adjustment rows.
-      await page.goto(`${server.url}/jobs/${jobId}`);
+      await page.goto(`${app.server.url}/jobs/${jobId}`);
       const before = await shown(page, 'trim-before-lower-trim');
       const after = await shown(page, 'trim-after-lower-trim');
       expect(before).toBeCloseTo(leakTrim.points[0]!.capture!.measuredMa, 4);
@@ -253,7 +231,7 @@ describe('the record says what happened, with one definition of error and hyster
         if (h !== null && h !== undefined) expect(await shown(page, `result-hyst-${p.index}`, 'as-left-results'), `job page hysteresis ${p.index}`).toBeCloseTo(h, 3);
       }
       // Run screen.
-      await page.goto(`${server.url}/runs/${asLeftId}`);
+      await page.goto(`${app.server.url}/runs/${asLeftId}`);
       await page.getByTestId('run-results').waitFor();
       for (const p of pts) {
         expect(await shown(page, `result-error-${p.index}`, 'run-results'), `run screen error ${p.index}`).toBeCloseTo(p.errorPctSpan, 3);
@@ -262,7 +240,7 @@ describe('the record says what happened, with one definition of error and hyster
         if (h !== null && h !== undefined) expect(await shown(page, `result-hyst-${p.index}`, 'run-results'), `run screen hysteresis ${p.index}`).toBeCloseTo(h, 3);
       }
       // Review.
-      await page.goto(`${server.url}/jobs/${jobId}/review`);
+      await page.goto(`${app.server.url}/jobs/${jobId}/review`);
       await page.getByRole('tab', { name: /^As-left/ }).click();
       for (const p of pts) {
         expect(await shown(page, `review-error-${p.index}`), `review error ${p.index}`).toBeCloseTo(p.errorPctSpan, 3);

@@ -1,60 +1,22 @@
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser } from '../helpers/browser';
-import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { checklistDone, e2eApp, outboxText, signIn } from '../helpers/e2e';
+import { DEMO_PASSWORD, demoEmail } from '../helpers/test-server';
 
 /**
  * The return loop in the browser: the lead returns a submitted job with a comment, the technician
  * sees it at the top of the job page and answers it on resubmission, the lead reads the reply on
  * the review page and approves.
  */
-let server: TestServer;
-let browser: Browser;
-let admin: ApiClient;
+const app = e2eApp({ users: ['admin', 'tech'] });
 let jobId: string;
 
 const COMMENT = 'Point 3 down drifts during the hold; re-make the fittings and repeat the as-found.';
 const REPLY = 'Fittings re-made and leak-tested at 110 % of span; the hold is steady now.';
 
-async function signIn(page: Page, email: string) {
-  await page.goto(`${server.url}/login`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByTestId('nav-records').or(page.getByTestId('nav-queue')).first().waitFor();
-}
-
-/** Waits until the Outbox holds a message with this subject to this address; returns its text. */
-async function mailText(subject: RegExp, to: string): Promise<string> {
-  const deadline = Date.now() + 30_000;
-  while (Date.now() < deadline) {
-    const items = (await admin.get('/api/outbox')).body.items as Array<{ id: string; subject: string; to: string[] }>;
-    const hit = items.find((m) => subject.test(m.subject) && m.to.includes(to));
-    if (hit) return (await admin.get(`/api/outbox/${hit.id}`)).body.text as string;
-    await new Promise((r) => setTimeout(r, 150));
-  }
-  throw new Error(`no message ${subject} to ${to}`);
-}
-
 beforeAll(async () => {
-  server = await startTestServer();
-  admin = new ApiClient(server.url);
-  await admin.login(demoEmail('admin'));
-  const tech = new ApiClient(server.url);
-  const me = await tech.login(demoEmail('tech'));
-  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
-  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
-  const s = await demoStandards(server);
-  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
-  await passingAsFound(server, jobId, 'FT-101', me.id);
-  const sub = await tech.post(`/api/jobs/${jobId}/submit`);
+  ({ jobId } = await checklistDone(app, { asFound: true }));
+  const sub = await app.api.tech.post(`/api/jobs/${jobId}/submit`);
   expect(sub.status, JSON.stringify(sub.body)).toBe(200);
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
 });
 
 describe('the return loop in the browser', () => {
@@ -62,11 +24,11 @@ describe('the return loop in the browser', () => {
     const errors: string[] = [];
 
     // 1. The lead returns the job with a comment.
-    const lead = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const lead = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const leadPage = await lead.newPage();
     leadPage.on('pageerror', (e) => errors.push(e.message));
-    await signIn(leadPage, demoEmail('lead'));
-    await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
+    await signIn(leadPage, app.server.url, 'lead');
+    await leadPage.goto(`${app.server.url}/jobs/${jobId}/review`);
     await leadPage.getByRole('button', { name: 'Return…' }).click();
     const dialog = leadPage.getByRole('dialog');
     await dialog.getByLabel('What needs correcting').fill(COMMENT);
@@ -76,17 +38,17 @@ describe('the return loop in the browser', () => {
     await leadPage.getByTestId('review-exchange-panel').getByText('No reply yet.').waitFor();
 
     // The return mail links to the job page, where the comment now stands.
-    const returned = await mailText(/^Returned with comments: FT-101$/, demoEmail('tech'));
+    const returned = await outboxText(app.api.admin, /^Returned with comments: FT-101$/, demoEmail('tech'));
     expect(returned).toContain(COMMENT);
     const link = /https?:\/\/\S+\/jobs\/[0-9a-f-]{36}/.exec(returned)?.[0];
     expect(link).toBeDefined();
 
     // 2. The technician opens the mail's link: the comment, who and when are at the top.
-    const tech = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const tech = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const techPage = await tech.newPage();
     techPage.on('pageerror', (e) => errors.push(e.message));
-    await signIn(techPage, demoEmail('tech'));
-    await techPage.goto(`${server.url}${new URL(link!).pathname}`);
+    await signIn(techPage, app.server.url, 'tech');
+    await techPage.goto(`${app.server.url}${new URL(link!).pathname}`);
     const notice = techPage.getByTestId('return-notice');
     await notice.waitFor();
     expect(await notice.getByTestId('return-comment').innerText()).toBe(COMMENT);
@@ -108,13 +70,13 @@ describe('the return loop in the browser', () => {
     await done.or(refused).first().waitFor({ timeout: 90_000 });
     if (await refused.count()) throw new Error(`resubmission refused: ${await techPage.locator('body').innerText()}`);
     await techPage.getByTestId('return-notice').waitFor({ state: 'detached' });
-    const resubmitted = await mailText(/^Resubmitted for review: FT-101$/, demoEmail('lead'));
+    const resubmitted = await outboxText(app.api.admin, /^Resubmitted for review: FT-101$/, demoEmail('lead'));
     expect(resubmitted).toContain(REPLY);
     expect(resubmitted).toContain(`/jobs/${jobId}/review`);
     await tech.close();
 
     // 4. The lead sees the exchange (comment, reply, who, when) and approves.
-    await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
+    await leadPage.goto(`${app.server.url}/jobs/${jobId}/review`);
     const exchange = leadPage.getByTestId('exchange');
     await exchange.getByTestId('exchange-reply').getByText(REPLY).waitFor();
     const text = await exchange.innerText();
@@ -128,7 +90,7 @@ describe('the return loop in the browser', () => {
     await leadPage.getByTestId('signatures').getByText('approved', { exact: true }).waitFor();
     await lead.close();
 
-    expect((await admin.get(`/api/jobs/${jobId}`)).body.status).toBe('approved');
+    expect((await app.api.admin.get(`/api/jobs/${jobId}`)).body.status).toBe('approved');
     expect(errors).toEqual([]);
   });
 });

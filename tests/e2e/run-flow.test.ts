@@ -1,9 +1,10 @@
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser, recordOffHostRequests } from '../helpers/browser';
-import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer } from '../helpers/test-server';
+import type { Page } from 'playwright-core';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { recordOffHostRequests } from '../helpers/browser';
+import { e2eApp, signIn } from '../helpers/e2e';
+import type { ApiClient } from '../helpers/test-server';
 
 /**
  * The whole job in the browser, hands-free on the simulated rig (HOLD_SECONDS=2, autopilot):
@@ -13,33 +14,14 @@ import { ApiClient, demoEmail, DEMO_PASSWORD, startTestServer, type TestServer }
  */
 const SCREENS = path.resolve(import.meta.dirname, '../../.tmp/screens');
 
-let server: TestServer;
-let browser: Browser;
+const app = e2eApp({ env: { HOLD_SECONDS: '2' }, users: ['admin', 'tech'] });
 let admin: ApiClient;
 let tech: ApiClient;
 
-beforeAll(async () => {
-  server = await startTestServer({ env: { HOLD_SECONDS: '2' } });
-  browser = await launchBrowser();
-  admin = new ApiClient(server.url);
-  await admin.login(demoEmail('admin'));
-  tech = new ApiClient(server.url);
-  await tech.login(demoEmail('tech'));
+beforeAll(() => {
+  ({ admin, tech } = app.api);
   mkdirSync(SCREENS, { recursive: true });
 });
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
-
-async function signIn(page: Page, who: 'tech' | 'admin') {
-  await page.goto(`${server.url}/login`);
-  await page.getByLabel('Email').fill(demoEmail(who));
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/queue$/);
-}
 
 async function sim(body: unknown) {
   const r = await admin.post('/api/sim', body);
@@ -101,13 +83,13 @@ async function expectResultsMatch(page: Page, runId: string) {
 
 describe('run flow (FT-101, rooted output)', () => {
   it('prepares, checks the output mode, finds, trims, leaves and submits — hands-free', { timeout: 900_000 }, async () => {
-    const context = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const context = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const page = await context.newPage();
     const offHost = recordOffHostRequests(page);
     const pageErrors: string[] = [];
     page.on('pageerror', (e) => pageErrors.push(e.message));
     try {
-      await signIn(page, 'tech');
+      await signIn(page, app.server.url, 'tech');
       await page.getByTestId('job-link-FT-101').click();
       await page.waitForURL(/\/jobs\/[0-9a-f-]+$/);
       const jobId = page.url().split('/').pop()!;

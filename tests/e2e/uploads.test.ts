@@ -1,44 +1,20 @@
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tinyPdf, tinyPng } from '../../server/storage/test-files';
-import { launchBrowser } from '../helpers/browser';
-import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-import { completeChecklist, demoStandards, passingAsFound } from '../integration/records-helpers';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { tinyPdf, tinyPng } from '../fixtures/test-files';
+import { checklistDone, e2eApp, signIn } from '../helpers/e2e';
+import { passingAsFound } from '../integration/records-helpers';
 
 /**
  * Uploads through the UI: a standard's certificate on the register, an as-found photo on the job;
  * both seen where they are used (register, job, review); a file whose content is not what its name
  * says is refused with a message in words.
  */
-let server: TestServer;
-let browser: Browser;
+const app = e2eApp({ users: ['tech'] });
 let jobId: string;
 let techId: string;
 let serial: string;
-let tech: ApiClient;
-
-async function signIn(page: Page, email: string) {
-  await page.goto(`${server.url}/login`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByTestId('nav-records').or(page.getByTestId('nav-queue')).first().waitFor();
-}
 
 beforeAll(async () => {
-  server = await startTestServer();
-  tech = new ApiClient(server.url);
-  techId = (await tech.login(demoEmail('tech'))).id;
-  const jobs = (await tech.get('/api/jobs')).body.items as Array<{ id: string; tag: string; status: string }>;
-  jobId = jobs.find((j) => j.tag === 'FT-101' && j.status !== 'approved')!.id;
-  const s = await demoStandards(server);
-  serial = s.pressure.serial;
-  await completeChecklist(tech, jobId, [s.pressure.id, s.current.id]);
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
+  ({ jobId, techId, pressureSerial: serial } = await checklistDone(app));
 });
 
 describe('uploads in the browser', () => {
@@ -46,11 +22,11 @@ describe('uploads in the browser', () => {
     const errors: string[] = [];
 
     // 1. The lead uploads the pressure standard's certificate on the register; a text file named .pdf is refused.
-    const lead = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const lead = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const leadPage = await lead.newPage();
     leadPage.on('pageerror', (e) => errors.push(e.message));
-    await signIn(leadPage, demoEmail('lead'));
-    await leadPage.goto(`${server.url}/standards`);
+    await signIn(leadPage, app.server.url, 'lead');
+    await leadPage.goto(`${app.server.url}/standards`);
     await leadPage.getByLabel('Search standards').fill(serial);
     await leadPage.getByRole('button', { name: `Certificates of ${serial}` }).click();
     const dialog = leadPage.getByRole('dialog');
@@ -72,17 +48,17 @@ describe('uploads in the browser', () => {
     // The register row now links the certificate; it opens as a PDF.
     const registerLink = leadPage.getByTestId('register-certificate-link').first();
     await registerLink.waitFor();
-    const opened = await leadPage.request.get(server.url + (await registerLink.getAttribute('href'))!);
+    const opened = await leadPage.request.get(app.server.url + (await registerLink.getAttribute('href'))!);
     expect(opened.status()).toBe(200);
     expect(opened.headers()['content-type']).toBe('application/pdf');
     expect(Buffer.from(await opened.body()).equals(tinyPdf())).toBe(true);
 
     // 2. The technician adds an as-found photo on the job page and sees the certificate of the standard chosen.
-    const techCtx = await browser.newContext({ viewport: { width: 1440, height: 1000 } });
+    const techCtx = await app.browser.newContext({ viewport: { width: 1440, height: 1000 } });
     const techPage = await techCtx.newPage();
     techPage.on('pageerror', (e) => errors.push(e.message));
-    await signIn(techPage, demoEmail('tech'));
-    await techPage.goto(`${server.url}/jobs/${jobId}`);
+    await signIn(techPage, app.server.url, 'tech');
+    await techPage.goto(`${app.server.url}/jobs/${jobId}`);
     const photos = techPage.getByTestId('job-photos');
     await photos.getByText('No as-found photos.').waitFor();
     await photos.getByTestId('job-photos-input').setInputFiles({ name: 'gauge.png', mimeType: 'image/png', buffer: Buffer.from('%PDF-1.4 not an image') });
@@ -97,9 +73,9 @@ describe('uploads in the browser', () => {
     await techCtx.close();
 
     // 3. After submission, the lead sees the photo and the certificate on the review page.
-    await passingAsFound(server, jobId, 'FT-101', techId);
-    expect((await tech.post(`/api/jobs/${jobId}/submit`)).status).toBe(200);
-    await leadPage.goto(`${server.url}/jobs/${jobId}/review`);
+    await passingAsFound(app.server, jobId, 'FT-101', techId);
+    expect((await app.api.tech.post(`/api/jobs/${jobId}/submit`)).status).toBe(200);
+    await leadPage.goto(`${app.server.url}/jobs/${jobId}/review`);
     const reviewPhoto = leadPage.getByTestId('review-photos').getByRole('img', { name: 'photo: as-found nameplate.png' });
     await reviewPhoto.waitFor();
     await reviewPhoto.scrollIntoViewIfNeeded();

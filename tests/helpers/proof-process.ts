@@ -1,12 +1,16 @@
 /**
- * The real server as a child process (`node --import tsx server/main.ts`), for the proof suites that
- * kill it or measure it from outside: start on a port, wait for health, collect output, and a fresh
+ * The real server as a child process (`node` on the prebuilt bundle of server/main.ts,
+ * tests/helpers/server-bundle.ts), for the proof suites that kill it or measure it from outside: start on a port, wait for health, collect output, and a fresh
  * database on the PostgreSQL server when TEST_DATABASE_URL is set.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
 import net from 'node:net';
+import path from 'node:path';
+import { seedDataDir } from './db-template';
 import { sleep } from './proof-helpers';
-import { freshPostgres } from './test-server';
+import { serverBundle } from './server-bundle';
+import { DEMO_PASSWORD, freshPostgres } from './test-server';
 
 export interface ServerProcess {
   child: ChildProcess;
@@ -17,9 +21,15 @@ export interface ServerProcess {
   output(): string;
 }
 
-/** Starts the production server on loopback with a simulated bench. */
-export function startServerProcess(o: { port: number; dataDir: string; databaseUrl?: string; env?: Record<string, string> }): ServerProcess {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
+/**
+ * Starts the production server on loopback with a simulated bench. On PGlite, an empty data
+ * directory first gets the migrated, seeded template (tests/helpers/db-template.ts), the database
+ * the server's own first start would make; `firstStart: true` leaves it empty for the server to
+ * migrate and seed itself.
+ */
+export async function startServerProcess(o: { port: number; dataDir: string; databaseUrl?: string; env?: Record<string, string>; firstStart?: boolean }): Promise<ServerProcess> {
+  if (!o.databaseUrl && !o.firstStart && o.env?.SEED_DEMO !== '0' && !fs.existsSync(path.join(o.dataDir, 'pglite'))) await seedDataDir(o.dataDir, o.env?.DEMO_PASSWORD ?? DEMO_PASSWORD);
+  const child = spawn(process.execPath, [await serverBundle()], {
     env: {
       ...process.env,
       NODE_ENV: 'production',
@@ -81,7 +91,7 @@ export function randomPort(): Promise<number> {
  */
 export async function startHealthy(o: Omit<Parameters<typeof startServerProcess>[0], 'port'>, onStart?: (s: ServerProcess) => void): Promise<ServerProcess> {
   for (let attempt = 1; ; attempt++) {
-    const s = startServerProcess({ ...o, port: await randomPort() });
+    const s = await startServerProcess({ ...o, port: await randomPort() });
     onStart?.(s);
     try {
       await waitHealthy(s);

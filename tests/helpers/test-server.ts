@@ -1,13 +1,8 @@
-import { createHash, randomBytes } from 'node:crypto';
-import fs from 'node:fs';
-import path from 'node:path';
 import pg from 'pg';
 import { boot, type BootOptions, type Running } from '../../server/boot';
-import { openDatabase } from '../../server/db/client';
-import { demoSeedPolicy, parseEnv, type Env } from '../../server/env';
+import { demoSeedPolicy, parseEnv } from '../../server/env';
 import { createLogger } from '../../server/logger';
-import { createServices } from '../../server/services';
-import { seedDemo } from '../../server/demo/demo-seed';
+import { demoTemplate } from './db-template';
 
 export const DEMO_PASSWORD = 'stillpoint-demo';
 export const demoEmail = (role: 'tech' | 'tech2' | 'lead' | 'admin' | 'auditor') => `${role}@stillpoint-demo.test`;
@@ -38,48 +33,6 @@ export async function freshPostgres(prefix = 'sp_test'): Promise<{ url: string; 
   };
 }
 
-const root = path.resolve(import.meta.dirname, '../..');
-
-/** Every file under `dir` (relative to the repository), sorted, for hashing. */
-function filesUnder(dir: string): string[] {
-  const abs = path.join(root, dir);
-  if (!fs.existsSync(abs)) return [];
-  if (!fs.statSync(abs).isDirectory()) return [dir];
-  return fs
-    .readdirSync(abs)
-    .sort()
-    .flatMap((f) => filesUnder(path.join(dir, f)));
-}
-
-/**
- * A migrated database with the demo site seeded, as a PGlite tarball: made once (per day, per
- * migration set and seed code, per demo password) into `.tmp/db-templates/` and loaded by every
- * in-memory test server after that, instead of each running the migrations and seeding two years
- * of history itself. The template is built by the same code a server runs at start-up.
- */
-async function demoTemplate(env: Env): Promise<Uint8Array> {
-  const h = createHash('sha256');
-  h.update(`${new Date().toISOString().slice(0, 10)}\0${env.DEMO_PASSWORD}\0`);
-  const inputs = [...filesUnder('drizzle'), ...filesUnder('server/db/schema'), ...filesUnder('server/demo'), ...filesUnder('server/db/repositories')];
-  for (const f of fs.readdirSync(path.join(root, 'server/services')).sort()) if (f.startsWith('demo') || f.startsWith('auth') || f.startsWith('audit')) inputs.push(`server/services/${f}`);
-  for (const f of inputs) h.update(f).update(fs.readFileSync(path.join(root, f)));
-  const file = path.join(root, '.tmp', 'db-templates', `${h.digest('hex').slice(0, 24)}.tar`);
-  if (fs.existsSync(file)) return new Uint8Array(fs.readFileSync(file));
-  const database = await openDatabase({});
-  try {
-    const services = createServices(database, randomBytes(32));
-    await seedDemo(database.db, services.audit, env.DEMO_PASSWORD);
-    const bytes = await database.dump!();
-    fs.mkdirSync(path.dirname(file), { recursive: true });
-    const tmp = `${file}.${process.pid}.tmp`;
-    fs.writeFileSync(tmp, bytes);
-    fs.renameSync(tmp, file);
-    return bytes;
-  } finally {
-    await database.close();
-  }
-}
-
 export interface TestServer extends Running {
   url: string;
   close(): Promise<void>;
@@ -98,7 +51,7 @@ export async function startTestServer(opts: { env?: Record<string, string>; boot
     ...opts.env,
   });
   const policy = demoSeedPolicy(env);
-  const template = !pgdb && (policy === 'seed' || policy === 'seed-exposed') ? await demoTemplate(env) : undefined;
+  const template = !pgdb && (policy === 'seed' || policy === 'seed-exposed') ? await demoTemplate(env.DEMO_PASSWORD) : undefined;
   const running = await boot({ env, logger: createLogger(env.LOG_LEVEL), memory: true, ...(template ? { template } : {}), ...opts.boot });
   return {
     ...running,

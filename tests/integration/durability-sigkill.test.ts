@@ -2,62 +2,32 @@
  * Durability: a server killed with SIGKILL while capturing restarts with every acknowledged
  * sample present, and its sequence numbers continue after the last one stored.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { randomPort, startServerProcess, waitHealthy, type ServerProcess } from '../helpers/proof-process';
 import { ApiClient, demoEmail } from '../helpers/test-server';
 import { streamClient, until } from './runs-helpers';
 
-const root = path.resolve(import.meta.dirname, '../..');
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-durability-'));
-const children: ChildProcess[] = [];
+const children: ServerProcess[] = [];
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const s = net.createServer();
-    s.listen(0, '127.0.0.1', () => {
-      const port = (s.address() as net.AddressInfo).port;
-      s.close(() => resolve(port));
-    });
-  });
-}
-
-async function startServer(port: number): Promise<{ child: ChildProcess; url: string }> {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
-    cwd: root,
-    env: { ...process.env, NODE_ENV: 'test', PORT: String(port), HOST: '127.0.0.1', DATA_DIR: dataDir, BENCH: 'sim', HOLD_SECONDS: '1', LOG_LEVEL: 'warn' },
-    stdio: ['ignore', 'ignore', 'pipe'],
-  });
-  let stderr = '';
-  child.stderr!.on('data', (d) => (stderr += String(d)));
-  children.push(child);
-  const url = `http://127.0.0.1:${port}`;
-  await until(
-    async () => {
-      if (child.exitCode !== null) throw new Error(`server exited ${child.exitCode}: ${stderr}`);
-      try {
-        return (await fetch(`${url}/api/health`)).ok;
-      } catch {
-        return false;
-      }
-    },
-    60_000,
-    'server up',
-  );
-  return { child, url };
+async function startServer(port: number): Promise<{ child: ServerProcess['child']; url: string }> {
+  const s = await startServerProcess({ port, dataDir, env: { HOLD_SECONDS: '1' } });
+  children.push(s);
+  await waitHealthy(s, 60_000);
+  return { child: s.child, url: s.base };
 }
 
 afterAll(() => {
-  for (const c of children) if (c.exitCode === null) c.kill('SIGKILL');
+  for (const c of children) if (c.child.exitCode === null) c.child.kill('SIGKILL');
   fs.rmSync(dataDir, { recursive: true, force: true });
 });
 
 describe('durability: SIGKILL during capture', () => {
   it('keeps every acknowledged sample and continues the sequence after a restart', async () => {
-    const port = await freePort();
+    const port = await randomPort();
     const first = await startServer(port);
     const admin = new ApiClient(first.url);
     await admin.login(demoEmail('admin'));

@@ -14,7 +14,7 @@ import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { createLogger } from '../../server/logger';
-import { tinyPng } from '../../server/storage/test-files';
+import { tinyPng } from '../fixtures/test-files';
 import { rawRequest } from '../helpers/proof-helpers';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 

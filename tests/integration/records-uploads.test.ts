@@ -1,7 +1,7 @@
 import fs from 'node:fs/promises';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tinyPdf, tinyPng } from '../../server/storage/test-files';
+import { tinyPdf, tinyPng } from '../fixtures/test-files';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 let srv: TestServer;

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tinyPdf, tinyPng } from '../../server/storage/test-files';
+import { tinyPdf, tinyPng } from '../fixtures/test-files';
 import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 import { completeChecklist, demoStandards, passingAsFound } from './records-helpers';
 

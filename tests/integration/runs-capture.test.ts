@@ -135,8 +135,9 @@ describe('capture engine with the autopilot', () => {
     const after = ws.messages.slice(at).filter((m) => m.type === 'point.changed' && m.runId === run.id && m.index === 0);
     expect(after.length).toBeGreaterThan(0);
     expect(['approaching', 'settling']).toContain((after[0] as { state: string }).state);
-    // Held past the hold time while unplugged: still not captured.
-    await new Promise((r) => setTimeout(r, 2500));
+    // Held past the hold time (2 s) while unplugged, by the server's own sample times: still not captured.
+    const warnedWall = Math.max(...ws.messages.slice(0, at + 1).flatMap((m) => (m.type === 'sample.received' ? [m.wallMs] : [])));
+    await until(() => ws.messages.slice(at).some((m) => m.type === 'sample.received' && m.device === 'pressure' && m.wallMs > warnedWall + 2500), 20_000, 'the hold time passed while unplugged');
     expect((await getRun(run.id)).points[0]!.state).not.toBe('captured');
     expect(ws.messages.some((m) => m.type === 'point.captured' && m.runId === run.id)).toBe(false);
     await sim({ faults: { current: { unplugged: false } } });

@@ -1,8 +1,10 @@
 /**
  * Fault tests over the real SerialPortStream and the simulator binding: repeated cable pulls,
- * opening an absent device, and random line noise between valid lines.
+ * opening an absent device, and random line noise between valid lines. The reconnect tests run on
+ * vitest's fake clock (timers, Date and performance.now, which the rig model reads), so a reconnect
+ * time is the port's backoff, not how busy the machine is, and nothing waits on the wall clock.
  */
-import { describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it, vi } from 'vitest';
 import fc from 'fast-check';
 import { SIMCAL_FEED_PROFILE } from '../../shared/protocol';
 import { openPort, type DeviceConnectedEvent, type OpenFailedEvent } from '../../server/bench/transport';
@@ -11,69 +13,82 @@ import { SimRig } from '../../simulators/sim-rig';
 
 const sleep = (ms: number): Promise<void> => new Promise((r) => setTimeout(r, ms));
 
-function once<T>(subscribe: (listener: (value: T) => void) => () => void): Promise<T> {
-  return new Promise((resolve) => {
-    const off = subscribe((value) => {
-      off();
-      resolve(value);
-    });
-  });
+/** Fake timers, Date and performance.now; stream internals (nextTick, setImmediate) stay real. */
+const fakeClock = () => vi.useFakeTimers({ toFake: ['setTimeout', 'clearTimeout', 'setInterval', 'clearInterval', 'Date', 'performance'] });
+
+/** Moves the fake clock on in 5 ms steps until `done()` holds; fails after `limitMs` of fake time. */
+async function advanceUntil(done: () => boolean, limitMs: number, what: string): Promise<void> {
+  const end = Date.now() + limitMs;
+  while (!done()) {
+    if (Date.now() > end) throw new Error(`${what}: not within ${limitMs} ms of the fake clock`);
+    await vi.advanceTimersByTimeAsync(5);
+  }
 }
+
+afterEach(() => {
+  vi.useRealTimers();
+});
 
 describe('serial faults', () => {
   it('survives 100 unplug/replug cycles, each reconnect within 2 s, while polling', async () => {
+    fakeClock();
     const rig = new SimRig({ latencyMs: 1, source: { timeConstantS: 0.05 } });
     const port = openPort({ path: rig.paths.current, binding: rig.binding });
-    await port.open();
+    const opened = port.open();
+    await advanceUntil(() => port.connected, 1000, 'first open');
+    await opened;
     const meter = new ScpiMeterDriver(port, { pollRateHz: 20, timeoutMs: 500 });
-    await meter.configure();
+    const configured = meter.configure();
+    await advanceUntil(() => rig.meter.measuring === 'curr', 1000, 'meter configured');
+    await configured;
     let received = 0;
     meter.on('sample.received', () => (received += 1));
     meter.startPolling();
 
     const reconnects: number[] = [];
+    let down = 0;
+    port.on('device.disconnected', () => (down += 1));
+    port.on('device.connected', (e: DeviceConnectedEvent) => reconnects.push(e.downtimeMs ?? Number.POSITIVE_INFINITY));
     for (let cycle = 0; cycle < 100; cycle += 1) {
-      const down = once<unknown>((l) => {
-        port.on('device.disconnected', l);
-        return () => port.off('device.disconnected', l);
-      });
-      const up = once<DeviceConnectedEvent>((l) => {
-        port.on('device.connected', l);
-        return () => port.off('device.connected', l);
-      });
       const before = received;
       rig.apply({ faults: { current: { unplugged: true } } });
-      await down;
+      await advanceUntil(() => down === cycle + 1, 1000, `cycle ${cycle}: disconnect seen`);
       // Cable out for 0, 60 or 120 ms: some reconnects need a second or third attempt.
-      await sleep((cycle % 3) * 60);
+      await vi.advanceTimersByTimeAsync((cycle % 3) * 60);
       rig.apply({ faults: { current: { unplugged: false } } });
-      const event = await up;
-      reconnects.push(event.downtimeMs ?? Number.POSITIVE_INFINITY);
+      await advanceUntil(() => reconnects.length === cycle + 1, 5000, `cycle ${cycle}: reconnect`);
       // Readings resume after the reconnect (the driver re-configures the meter first).
-      while (received === before) await sleep(5);
+      await advanceUntil(() => received > before, 5000, `cycle ${cycle}: readings resume`);
     }
     meter.stopPolling();
     expect(reconnects).toHaveLength(100);
     expect(Math.max(...reconnects)).toBeLessThan(2000);
     expect(rig.meter.measuring).toBe('curr');
-    await expect(meter.read()).resolves.toMatchObject({ unit: 'mA' });
+    const read = meter.read();
+    await vi.advanceTimersByTimeAsync(100);
+    await expect(read).resolves.toMatchObject({ unit: 'mA' });
     meter.close();
     await port.close();
     rig.dispose();
-  }, 60_000);
+  });
 
   it('retries an absent device with capped exponential backoff (100 ms doubling to 1 s), then connects', async () => {
+    fakeClock();
     const rig = new SimRig();
     rig.apply({ faults: { pressure: { unplugged: true } } });
+    const t0 = Date.now();
     const port = openPort({ path: rig.paths.pressure, binding: rig.binding });
-    const failures: OpenFailedEvent[] = [];
-    port.on('open.failed', (e) => failures.push(e));
-    await sleep(2900);
-    // Attempts at about 0, 100, 300, 700, 1500 and 2500 ms.
+    const failures: (OpenFailedEvent & { atMs: number })[] = [];
+    port.on('open.failed', (e) => failures.push({ ...e, atMs: Date.now() - t0 }));
+    const opened = port.open();
+    await vi.advanceTimersByTimeAsync(2900);
+    // Attempts at 0, 100, 300, 700, 1500 and 2500 ms.
+    expect(failures.map((f) => f.atMs)).toEqual([0, 100, 300, 700, 1500, 2500]);
     expect(failures.slice(0, 5).map((f) => f.retryInMs)).toEqual([100, 200, 400, 800, 1000]);
     expect(failures[0]?.error).toMatch(/No such file or directory/);
     rig.apply({ faults: { pressure: { unplugged: false } } });
-    await port.open();
+    await advanceUntil(() => port.connected, 1000, 'connects once plugged in');
+    await opened;
     expect(port.connected).toBe(true);
     await port.close();
     expect(port.state).toBe('closed');

@@ -142,7 +142,7 @@ describe('storage edges across a SIGKILL (real server process)', () => {
 
   /** Starts the server and waits until /api/health answers at all (503 is expected with a quarantined row). */
   async function start(): Promise<ServerProcess> {
-    const s = startServerProcess({ port: await randomPort(), dataDir });
+    const s = await startServerProcess({ port: await randomPort(), dataDir });
     procs.push(s);
     await until(
       async () => {

@@ -4,7 +4,7 @@
  * each account gets at most 10 sockets (the rest are closed with 4429 and a reason); each socket's
  * replay is at most 20 000 messages, in order and without a gap, or a `stream.reset`; at most 4
  * replays run at once, 2 per account. (How fast health answers meanwhile is a benchmark figure:
- * bench/replay-storm.bench.ts.)
+ * perf/replay-storm.bench.ts.)
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';

@@ -1,5 +1,5 @@
 /**
- * Durability: the real server process (`node --import tsx server/main.ts`, production mode,
+ * Durability: the real server process (the prebuilt bundle of server/main.ts, production mode,
  * simulated bench, 1 s hold) is killed with SIGKILL at random moments while the sim autopilot
  * drives a capture, and started again on the same data directory. Each time:
  * - the database opens (health answers, within a minute);
@@ -30,12 +30,11 @@ const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-durability-'));
 const children: ServerProcess[] = [];
 let pgdb: Awaited<ReturnType<typeof freshPostgresUrl>>;
 
-function startServer(port: number, databaseUrl: string | undefined): ServerProcess {
-  const s = startServerProcess({ port, dataDir: dir, databaseUrl });
+async function startServer(port: number, databaseUrl: string | undefined): Promise<ServerProcess> {
+  const s = await startServerProcess({ port, dataDir: dir, databaseUrl });
   children.push(s);
   return s;
 }
-
 
 /** Collects sample.received messages from /ws: seq → raw line. */
 function watchStream(base: string, cookie: string) {
@@ -149,7 +148,7 @@ describe('durability under SIGKILL during capture', () => {
       await stream.opened;
 
       if (!databaseUrl && round % 10 === 0) {
-        const second = startServer(await randomPort(), undefined);
+        const second = await startServer(await randomPort(), undefined);
         expect(await second.exited, `round ${round}: second process on the same DATA_DIR`).toBe(3);
         expect(second.output()).toContain('in use by another Stillpoint process');
         figures.secondProcessRefused++;

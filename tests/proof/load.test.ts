@@ -14,9 +14,9 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
-import { EvaluateBodySchema } from '../../shared/schemas/calc';
 import { ApiClient, demoEmail } from '../helpers/test-server';
-import { percentile, prepareFt101, recordSummary, sleep } from '../helpers/proof-helpers';
+import { benchMix, keepCaptureRunning, latencyFigures, openLoopTraffic, storedAfter } from '../helpers/api-load';
+import { percentile, prepareFt101, recordSummary } from '../helpers/proof-helpers';
 import { proofCount } from '../helpers/proof-level';
 import { freshPostgresUrl, startHealthy, type ServerProcess } from '../helpers/proof-process';
 
@@ -36,14 +36,6 @@ afterAll(async () => {
   }
   fs.rmSync(dir, { recursive: true, force: true });
   await pgdb?.drop();
-});
-
-/** A valid evaluation: FT-101-like square-root transmitter, five points up. */
-const evaluateBody = EvaluateBodySchema.parse({
-  instrument: { lrv: 0, urv: 25, unit: 'kPa', outputMode: 'sqrt-transmitter', cutoffMode: 'none', tolerancePctSpan: 0.5 },
-  standards: { pressure: { kind: 'spec', unit: 'kPa', pctOfReading: 0.02, pctOfFullScale: 0.01, fullScale: 100 }, current: { pctOfReading: 0.01, floorMa: 0.001 } },
-  decisionRule: 'guard-band',
-  readings: [10, 25, 50, 75, 100].map((f) => ({ nominalPct: f, basis: 'flow', direction: 'up', appliedDp: 25 * (f / 100) ** 2, measuredMa: 4 + 0.16 * f + 0.002, n: 30 })),
 });
 
 interface Viewer {
@@ -80,109 +72,20 @@ describe('load: live viewers and mixed API traffic during a capture', () => {
     const who = { tech: new ApiClient(base), tech2: new ApiClient(base), lead: new ApiClient(base), admin: new ApiClient(base), auditor: new ApiClient(base) };
     for (const [k, c] of Object.entries(who)) await c.login(demoEmail(k as keyof typeof who));
     const jobId = await prepareFt101(who.tech);
-    const runIds: string[] = [];
-    const startRun = async () => {
-      const r = await who.tech.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' });
-      expect(r.status, JSON.stringify(r.body)).toBe(201);
-      runIds.push(r.body.id);
-      const sim = await who.admin.post('/api/sim', { autopilot: { speed: 2 } });
-      expect(sim.status, JSON.stringify(sim.body)).toBe(200);
-    };
-    await startRun();
+    const capture = await keepCaptureRunning(who.tech, who.admin, jobId);
 
     const cookies = Object.values(who).map((c) => c.cookie);
     const viewers = await Promise.all(Array.from({ length: VIEWERS }, (_, i) => openViewer(base, cookies[i % cookies.length]!)));
     // Everything after this sequence number reached (or should reach) every viewer.
     const seq0 = ((await who.lead.get('/api/bench')).body as { latestSeq: number }).latestSeq;
 
-    // Keep a capture running: when a run completes, start the next.
-    let keepRunning = true;
-    const runKeeper = (async () => {
-      while (keepRunning) {
-        await sleep(2000);
-        const r = await who.tech.get(`/api/runs/${runIds[runIds.length - 1]}`);
-        const run = r.body as { status?: string };
-        // Only a run read back as ended is replaced (a shed 503 under load has no status to go by).
-        if (keepRunning && r.status === 200 && (run.status === 'complete' || run.status === 'aborted')) await startRun();
-      }
-    })();
-
-    // Open-loop traffic: requests are sent on schedule whatever the answers' latency.
-    type Req = { name: string; method: 'GET' | 'POST'; path: () => string; body?: unknown; weight: number };
-    const mix: Req[] = [
-      { name: 'jobs', method: 'GET', path: () => '/api/jobs', weight: 18 },
-      { name: 'instruments', method: 'GET', path: () => '/api/instruments', weight: 14 },
-      { name: 'standards', method: 'GET', path: () => '/api/standards', weight: 14 },
-      { name: 'run', method: 'GET', path: () => `/api/runs/${runIds[runIds.length - 1]}`, weight: 20 },
-      { name: 'trace', method: 'GET', path: () => `/api/runs/${runIds[runIds.length - 1]}/trace?from=${Date.now() - 10_000}&limit=2000`, weight: 12 },
-      { name: 'bench', method: 'GET', path: () => '/api/bench', weight: 10 },
-      { name: 'evaluate', method: 'POST', path: () => '/api/calc/evaluate', body: evaluateBody, weight: 12 },
-    ];
-    const totalWeight = mix.reduce((s, m) => s + m.weight, 0);
-    const pick = () => {
-      let x = Math.random() * totalWeight;
-      for (const m of mix) if ((x -= m.weight) < 0) return m;
-      return mix[0]!;
-    };
-    const latencies: number[] = [];
-    const byName: Record<string, number[]> = {};
-    const failures: string[] = [];
-    let shed = 0;
-    const inflight = new Set<Promise<void>>();
-    const clientsList = Object.values(who);
-    const fire = (n: number) => {
-      const m = pick();
-      const c = clientsList[n % clientsList.length]!;
-      const p = (async () => {
-        const t = performance.now();
-        try {
-          const res = await fetch(base + m.path(), {
-            method: m.method,
-            headers: { cookie: c.cookie, ...(m.method === 'POST' ? { 'content-type': 'application/json', origin: base } : {}) },
-            body: m.body === undefined ? undefined : JSON.stringify(m.body),
-          });
-          await res.arrayBuffer();
-          const ms = performance.now() - t;
-          latencies.push(ms);
-          (byName[m.name] ??= []).push(ms);
-          // A 503 with Retry-After is load shedding (MAX_IN_FLIGHT), an answer by design: counted apart.
-          if (res.status === 503 && res.headers.get('retry-after')) shed++;
-          else if (!res.ok) failures.push(`${m.method} ${m.path()} → ${res.status}`);
-        } catch (e) {
-          failures.push(`${m.method} ${m.path()} → ${(e as Error).message}`);
-        }
-      })();
-      inflight.add(p);
-      void p.finally(() => inflight.delete(p));
-    };
-    const t0 = performance.now();
-    let sent = 0;
-    while (performance.now() - t0 < SECONDS * 1000) {
-      const due = Math.floor(((performance.now() - t0) / 1000) * RPS);
-      while (sent < due) fire(sent++);
-      await sleep(5);
-    }
-    await Promise.all(inflight);
-    const elapsedS = (performance.now() - t0) / 1000;
-    keepRunning = false;
-    await runKeeper;
+    const traffic = await openLoopTraffic({ base, clients: Object.values(who), mix: benchMix(capture.latest), rate: RPS, seconds: SECONDS });
+    const { latencies, failures, shed, sent, elapsedS, byName } = traffic;
+    await capture.stop();
+    const runIds = capture.runIds;
 
     // Stop the rig, let the writer catch up with the hub, then compare storage with what was streamed.
-    await who.admin.post('/api/sim', { autopilot: 'stop' });
-    let bench = (await who.lead.get('/api/bench')).body as { latestSeq: number; storedSeq: number; writer: { failures: number } };
-    const seqEnd = bench.latestSeq;
-    for (let i = 0; i < 100 && bench.storedSeq < seqEnd; i++) {
-      await sleep(100);
-      bench = (await who.lead.get('/api/bench')).body;
-    }
-    await sleep(300);
-    const stored = new Set<number>();
-    for (let after = seq0; ; ) {
-      const page = (await who.lead.get(`/api/bench/samples?after=${after}&limit=100000`)).body.items as { seq: number }[];
-      for (const r of page) if (r.seq <= seqEnd) stored.add(r.seq);
-      if (page.length < 100_000) break;
-      after = page[page.length - 1]!.seq;
-    }
+    const { seqEnd, stored, writerFailures, storedSeq } = await storedAfter(who.admin, who.lead, seq0);
     const shown = new Set<number>();
     for (const v of viewers) for (const s of v.samples) if (s > seq0 && s <= seqEnd) shown.add(s);
     const lost = [...shown].filter((s) => !stored.has(s));
@@ -208,10 +111,7 @@ describe('load: live viewers and mixed API traffic during a capture', () => {
       reqPerSec: Number((sent / elapsedS).toFixed(1)),
       failures: failures.length,
       shed,
-      p50Ms: Number(percentile(latencies, 50).toFixed(1)),
-      p95Ms: Number(percentile(latencies, 95).toFixed(1)),
-      p99Ms: Number(percentile(latencies, 99).toFixed(1)),
-      maxMs: Number(Math.max(...latencies).toFixed(1)),
+      ...latencyFigures(latencies),
       samplesStreamed: shown.size,
       samplesStored: stored.size,
       samplesLost: lost.length,
@@ -219,7 +119,7 @@ describe('load: live viewers and mixed API traffic during a capture', () => {
       runSamplesStored,
       runs: runIds.length,
       p99MsByRequest: Object.fromEntries(Object.entries(byName).map(([k, v]) => [k, Number(percentile(v, 99).toFixed(1))])),
-      writerFailures: bench.writer.failures,
+      writerFailures,
       p99TargetMs: P99_LIMIT_MS,
       p99TargetMet: percentile(latencies, 99) <= P99_LIMIT_MS,
     };
@@ -232,7 +132,7 @@ describe('load: live viewers and mixed API traffic during a capture', () => {
     expect(shown.size).toBeGreaterThan(SECONDS * 5);
     expect(lost, 'samples streamed but not stored').toEqual([]);
     expect(stored.size, 'stored samples vs the hub sequence').toBe(shown.size);
-    expect(bench.storedSeq).toBeGreaterThanOrEqual(seqEnd);
+    expect(storedSeq).toBeGreaterThanOrEqual(seqEnd);
     expect(runSamplesStored).toBeGreaterThan(0);
 
     server.child.kill('SIGTERM');

@@ -4,8 +4,7 @@
  * before name a different sample or event; every resume across a restart is answered with
  * `stream.reset` (another epoch), every resume within an epoch is served, and the numbering of each
  * new epoch starts above everything seen before it. `PROOF_EPOCH_KILLS` sets the kills (PROOF_LEVEL=full:
- * 20; the short pass of `npm test`: 3), `PROOF_KILL_SEED` replays the kill moments. tests/integration/stream-epochs-sigkill.test.ts
- * runs the same with 2 kills.
+ * 20; the short pass of `npm test`: 3), `PROOF_KILL_SEED` replays the kill moments.
  */
 import { proofCount } from '../helpers/proof-level';
 import { describe, expect, it } from 'vitest';

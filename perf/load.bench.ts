@@ -4,7 +4,7 @@
  * reports what it measured. The proof asserts what must hold (no failed request, no viewer lost,
  * no sample lost); the latency and rate held are speed figures and belong here, with the 200 ms
  * p99 target of the load requirement.
- * Run: `npx tsx bench/load.bench.ts`, or through `npm run bench`.
+ * Run: `npx tsx perf/load.bench.ts`, or through `npm run bench`.
  */
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
@@ -31,7 +31,7 @@ interface LoadFigures {
 
 export async function run(): Promise<BenchFigure[]> {
   const started = new Date().toISOString();
-  const r = spawnSync('npx', ['vitest', 'run', '--project', 'proof', 'tests/proof/load.test.ts'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'], env: { ...process.env, TEST_DATABASE_URL: '' }, encoding: 'utf8' });
+  const r = spawnSync('npx', ['vitest', 'run', '--project', 'proof', 'tests/proof/load.test.ts'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'], env: { ...process.env, TEST_DATABASE_URL: '', PROOF_LEVEL: 'full' }, encoding: 'utf8' });
   if (r.status !== 0) throw new Error(`load proof failed (exit ${r.status}): ${(r.stdout + r.stderr).split('\n').filter((l) => /FAIL|Error|expected/.test(l)).slice(0, 5).join(' | ')}`);
   const load = (JSON.parse(fs.readFileSync(SUMMARY, 'utf8')) as { load?: LoadFigures }).load;
   if (!load || load.at < started) throw new Error('the load proof recorded no figures in this run');

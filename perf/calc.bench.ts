@@ -1,6 +1,6 @@
 /**
  * Throughput of the incremental hold analysis (shared/calc HoldAnalyzer) on one core.
- * Run: `npx tsx bench/calc.bench.ts`. Exports `run()` for an aggregating bench runner.
+ * Run: `npx tsx perf/calc.bench.ts`. Exports `run()` for an aggregating bench runner.
  */
 import { isMainModule, type BenchFigure } from './figure';
 import { HoldAnalyzer } from '../shared/calc';

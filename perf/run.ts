@@ -1,5 +1,5 @@
 /**
- * `npm run bench`: runs every `bench/*.bench.ts` (each exports `run()` returning figures) and
+ * `npm run bench`: runs every `perf/*.bench.ts` (each exports `run()` returning figures) and
  * prints one table. `npm run bench -- calc` runs only the files whose name contains "calc".
  */
 import fs from 'node:fs';

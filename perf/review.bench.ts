@@ -4,7 +4,7 @@
  * and the time from the in-app navigation (a click on the record's Review link) to the trace
  * chart drawn (uPlot's first draw with data, marked `review-trace-drawn`) is measured. Also: the
  * same from a cold page load, and the server time of the whole-run trace request.
- * Run: `npx tsx bench/review.bench.ts`, or through `npm run bench`.
+ * Run: `npx tsx perf/review.bench.ts`, or through `npm run bench`.
  */
 import { isMainModule, type BenchFigure } from './figure';
 import { boot } from '../server/boot';

@@ -9,7 +9,7 @@
  *  4. the live-path p99 while a heavy review query (the full trace of a long run, requested from
  *     another process as a reviewer's browser would) runs, vs idle; and the time of a one-hour
  *     run's trace (72 000 samples) over HTTP.
- * Run: `npx tsx bench/bench.bench.ts`, or through `npm run bench`.
+ * Run: `npx tsx perf/bench.bench.ts`, or through `npm run bench`.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';

@@ -1,7 +1,7 @@
 /**
  * Replay storm (issue 11, finding 5): `/api/health` response time while 100 sockets resume at
- * once, against the same server idle. The server is the production process (`node --import tsx
- * server/main.ts`, PGlite in a temporary DATA_DIR, simulated bench); the sockets and the health
+ * once, against the same server idle. The server is the production process (the prebuilt bundle of
+ * server/main.ts, PGlite in a temporary DATA_DIR, simulated bench); the sockets and the health
  * requests come from this process. Ten invited accounts hold ten sockets each (the per-account
  * limit), so every socket is served. Two storms:
  *  1. every socket resumes from seq 0 (what the finding did);
@@ -9,13 +9,14 @@
  *     history when the server has numbered fewer), about the heaviest resume the bounds allow.
  * Health is asked one request at a time during each storm (and for at most 60 s); the target is a
  * p99 no more than twice the idle p99.
- * Run: `npx tsx bench/replay-storm.bench.ts`, or `npm run bench -- replay`.
+ * Run: `npx tsx perf/replay-storm.bench.ts`, or `npm run bench -- replay`.
  */
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import WebSocket from 'ws';
 import type { StreamMessage } from '../shared/schemas/stream';
+import { percentile as pct } from '../tests/helpers/proof-helpers';
 import { randomPort, startServerProcess, waitHealthy } from '../tests/helpers/proof-process';
 import { isMainModule, type BenchFigure } from './figure';
 
@@ -25,12 +26,6 @@ const MAX_REPLAY = 20_000;
 const IDLE_REQUESTS = 300;
 const STORM_CAP_MS = 60_000;
 const PASSWORD = 'violet-harbour-71';
-
-function pct(values: number[], p: number): number {
-  if (!values.length) return NaN;
-  const s = [...values].sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))]!;
-}
 
 async function signIn(base: string, email: string, password: string): Promise<string> {
   const res = await fetch(`${base}/api/auth/login`, {
@@ -110,7 +105,7 @@ async function storm(base: string, cookies: string[], epoch: string, since: numb
 
 export async function run(): Promise<BenchFigure[]> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stillpoint-replay-storm-'));
-  const s = startServerProcess({ dataDir, port: await randomPort(), env: { LOG_LEVEL: 'error' } });
+  const s = await startServerProcess({ dataDir, port: await randomPort(), env: { LOG_LEVEL: 'error' } });
   try {
     await waitHealthy(s, 600_000);
     const base = s.base;

@@ -5,7 +5,7 @@
  * not mix in). Reports frames per second (requestAnimationFrame count, per 1 s window: mean and
  * worst) and JS heap growth between the warm-up and the end (after forced GC, via CDP).
  *
- * Run: `npx tsx bench/capture-screen.bench.ts`. Duration: env CAPTURE_BENCH_SECONDS (default 600,
+ * Run: `npx tsx perf/capture-screen.bench.ts`. Duration: env CAPTURE_BENCH_SECONDS (default 600,
  * the acceptance run); exports `run()` for `npm run bench`.
  */
 import { isMainModule, type BenchFigure } from './figure';
