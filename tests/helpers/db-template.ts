@@ -12,7 +12,7 @@ import path from 'node:path';
 import { PGlite } from '@electric-sql/pglite';
 import { openDatabase } from '../../server/db/client';
 import { createServices } from '../../server/services';
-import { seedDemo } from '../../server/services/demo-seed.service';
+import { seedDemo } from '../../server/demo/demo-seed';
 
 const root = path.resolve(import.meta.dirname, '../..');
 const DIR = path.join(root, '.tmp', 'db-templates');
