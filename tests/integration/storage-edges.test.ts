@@ -120,6 +120,10 @@ describe('storage edges on one server (in-process)', () => {
     expect((await tech.get('/api/bench')).body.storage.quarantined).toEqual({ total: 1, unacknowledged: 1 });
 
     expect((await tech.post('/api/bench/storage/acknowledge')).status).toBe(403);
+    // Any body is refused with a field error and acknowledges nothing (found by the API fuzz).
+    const junk = await lead.post('/api/bench/storage/acknowledge', { rows: 'all', '0': 1 });
+    expect(junk.status).toBe(400);
+    expect((await tech.get('/api/bench')).body.storage.quarantined).toEqual({ total: 1, unacknowledged: 1 });
     const ack = await lead.post('/api/bench/storage/acknowledge');
     expect(ack.status).toBe(200);
     expect(ack.body).toEqual({ acknowledged: { rows: 1, batches: 0 } });

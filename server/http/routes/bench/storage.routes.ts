@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { EmptyBodySchema } from '../../../../shared/schemas/users';
 import type { AuditService } from '../../../services/audit.service';
 import type { BenchService } from '../../../services/bench.service';
 import { currentUser } from '../../middleware/auth';
@@ -17,7 +18,9 @@ export function storageRoutes(bench: BenchService, audit: AuditService) {
   t.add('get', '/', 'bench.read', validate(q), async (_req, res) => {
     res.json(await bench.storageReview(input(res, q).query.limit));
   });
-  t.add('post', '/acknowledge', 'storage.acknowledge', async (_req, res) => {
+  // The acknowledgement takes no input: any body is refused (400), so a malformed or forged request
+  // never clears the set-aside rows by accident.
+  t.add('post', '/acknowledge', 'storage.acknowledge', validate({ body: EmptyBodySchema }), async (_req, res) => {
     const user = currentUser(res);
     const done = await bench.acknowledgeStorage(user.id);
     if (done.rows.length || done.batches) {
