@@ -12,58 +12,23 @@
  */
 import type http from 'node:http';
 import type { Duplex } from 'node:stream';
-import type { Logger } from 'pino';
 import { WebSocketServer, type RawData, type WebSocket } from 'ws';
 import type { StreamMessage, StreamResetReason } from '../../shared/schemas/stream';
 import { toStreamMessage, type HubEntry } from '../bench/hub';
 import { ReplayGapError } from '../bench/replay';
-import type { AuthService, SessionUser } from '../services/auth.service';
-import type { BenchService } from '../services/bench.service';
-import type { SessionEvents } from '../services/session-events';
+import type { SessionUser } from '../services/auth.service';
 import { handleForwarded, parseClientMessage } from './client-messages';
 import { drained } from './socket-drain';
+import type { StreamServerOptions } from './stream-server-options';
+import { createUpgradeGate } from './upgrade-gate';
+import { createReplayPacer } from './replay-pacer';
 import { createReplaySlots } from './replay-slots';
 import { createSessionSockets } from './session-sockets';
 import { authenticateUpgrade, type StreamPrincipal } from './upgrade-auth';
-import type { BenchRegistry } from '../services/bench-registry.service';
-import type { ForwardService } from '../services/forward.service';
 
 export { SESSION_COOKIE } from './upgrade-auth';
 export { SESSION_CLOSE_REASONS } from './session-sockets';
-
-/** Options of {@link attachStreamServer}. */
-export interface StreamServerOptions {
-  server: http.Server;
-  auth: AuthService;
-  bench: BenchService;
-  /** Ended sessions (sign-out, deactivation, role change, revocation): their sockets are closed. */
-  sessionEvents: SessionEvents;
-  /** Registered benches (agent tokens) and forwarded lines. */
-  registry: BenchRegistry;
-  forward: ForwardService;
-  logger: Logger;
-  /** Origins allowed besides the server's own. */
-  allowedOrigins: string[];
-  /** Ping interval, ms; a client that has not answered the previous ping is dropped. Default 15 000. */
-  heartbeatMs?: number;
-  /** Largest client message, bytes. Default 64 KiB. */
-  maxPayload?: number;
-  /** Above this many buffered bytes a client gets only the latest sample per device. Default 512 KiB. */
-  highWaterBytes?: number;
-  /** Most messages one resume replays; a client further behind gets `stream.reset`. Default 20 000. */
-  maxReplay?: number;
-  /** Messages per replay page. Default 500. */
-  replayPageSize?: number;
-  /** A replay sends its next page once the socket has fewer buffered bytes than this. Default 64 KiB. */
-  replayLowWaterBytes?: number;
-  /** A replay whose socket does not drain for this long is dropped, ms. Default 30 000. */
-  replayStallMs?: number;
-  /** Resumes replaying at once in the process, and per account. Defaults 4 and 2. */
-  maxReplays?: number;
-  maxReplaysPerUser?: number;
-  /** Open sockets per account; one more is closed with 4429. Default 10. */
-  maxConnectionsPerUser?: number;
-}
+export type { StreamServerOptions } from './stream-server-options';
 
 interface Client {
   ws: WebSocket;
@@ -91,7 +56,7 @@ type UserClient = Client & { user: SessionUser };
 const isUserClient = (c: Client): c is UserClient => c.user !== null;
 
 function refuse(socket: Duplex, status: number, text: string, message: string): void {
-  const body = JSON.stringify({ error: { code: status === 401 ? 'unauthenticated' : status === 403 ? 'cross_site' : 'bad_request', message } });
+  const body = JSON.stringify({ error: { code: status === 401 ? 'unauthenticated' : status === 403 ? 'cross_site' : status === 503 ? 'unavailable' : 'bad_request', message } });
   socket.end(`HTTP/1.1 ${status} ${text}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: ${Buffer.byteLength(body)}\r\n\r\n${body}`);
 }
 
@@ -101,11 +66,17 @@ export function attachStreamServer(o: StreamServerOptions) {
   const heartbeatMs = o.heartbeatMs ?? 15_000;
   const highWater = o.highWaterBytes ?? 512 * 1024;
   const maxReplay = o.maxReplay ?? 20_000;
-  const pageSize = o.replayPageSize ?? 500;
+  const pageSize = o.replayPageSize ?? 100;
+  const pacer = createReplayPacer({ restFactor: o.replayRestFactor ?? 8 });
   const lowWater = o.replayLowWaterBytes ?? 64 * 1024;
   const stallMs = o.replayStallMs ?? 30_000;
   const sessions = createSessionSockets<UserClient>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
-  const slots = createReplaySlots({ total: o.maxReplays ?? 4, perUser: o.maxReplaysPerUser ?? 2 });
+  const slots = createReplaySlots({ total: o.maxReplays ?? 2, perUser: o.maxReplaysPerUser ?? 1 });
+  const upgrades = createUpgradeGate({
+    atOnce: o.maxUpgradesAtOnce ?? 2,
+    maxWaiting: o.maxUpgradesWaiting ?? 500,
+    onError: (err) => o.logger.warn({ err }, 'a socket upgrade failed'),
+  });
   const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
   const clients = new Set<Client>();
   const stats = { connected: 0, refused: 0, skippedSamples: 0, forwardedLines: 0, replayed: 0, resets: 0 };
@@ -167,29 +138,36 @@ export function attachStreamServer(o: StreamServerOptions) {
     }
     socket.on('error', () => {});
     const asked = performance.now();
-    void (async () => {
-      const origin = req.headers.origin;
-      if (origin) {
-        const own = [`http://${req.headers.host}`, `https://${req.headers.host}`];
-        if (!own.includes(origin) && !o.allowedOrigins.includes(origin)) {
-          stats.refused++;
-          refuse(socket, 403, 'Forbidden', 'Connection refused: it came from another site');
-          return;
-        }
-      }
-      const who = await authenticateUpgrade(req, o.auth, o.registry);
-      if (!who.ok) {
+    const admitted = upgrades.enter(socket, () => admitUpgrade(req, socket, head, url, asked));
+    if (!admitted) {
+      stats.refused++;
+      refuse(socket, 503, 'Service Unavailable', 'Too many connections are opening; try again shortly');
+    }
+  };
+
+  async function admitUpgrade(req: http.IncomingMessage, socket: Duplex, head: Buffer, url: URL, asked: number): Promise<void> {
+    const origin = req.headers.origin;
+    if (origin) {
+      const own = [`http://${req.headers.host}`, `https://${req.headers.host}`];
+      if (!own.includes(origin) && !o.allowedOrigins.includes(origin)) {
         stats.refused++;
-        refuse(socket, who.status, who.status === 401 ? 'Unauthorized' : 'Forbidden', who.message);
+        refuse(socket, 403, 'Forbidden', 'Connection refused: it came from another site');
         return;
       }
-      const { user, principal } = who;
-      const sinceRaw = url.searchParams.get('since');
-      const since = sinceRaw !== null && /^\d{1,15}$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
-      const epoch = url.searchParams.get('epoch');
-      wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, principal, since, epoch, asked));
-    })();
-  };
+    }
+    const who = await authenticateUpgrade(req, o.auth, o.registry);
+    if (!who.ok) {
+      stats.refused++;
+      refuse(socket, who.status, who.status === 401 ? 'Unauthorized' : 'Forbidden', who.message);
+      return;
+    }
+    const { user, principal } = who;
+    const sinceRaw = url.searchParams.get('since');
+    const since = sinceRaw !== null && /^\d{1,15}$/.test(sinceRaw) ? Number(sinceRaw) : undefined;
+    const epoch = url.searchParams.get('epoch');
+    if (socket.destroyed) return;
+    wss.handleUpgrade(req, socket, head, (ws) => open(ws, user, principal, since, epoch, asked));
+  }
 
   function open(ws: WebSocket, user: SessionUser | null, principal: StreamPrincipal, since: number | undefined, epoch: string | null, asked: number): void {
     const c: Client = {
@@ -261,6 +239,7 @@ export function attachStreamServer(o: StreamServerOptions) {
       if (gone(c)) return;
       for await (const page of o.bench.replay(since, latest, pageSize)) {
         if (gone(c) || c.overflow) break;
+        const started = performance.now();
         const toSend = page.filter((m) => wanted(c, m));
         let written = Promise.resolve();
         toSend.forEach((m, i) => {
@@ -269,6 +248,8 @@ export function attachStreamServer(o: StreamServerOptions) {
         });
         stats.replayed += page.length;
         c.lastSent = Math.max(c.lastSent, page[page.length - 1]!.seq);
+        pacer.worked(performance.now() - started);
+        await pacer.rest();
         if (!(await drained(c.ws, written, { stallMs, lowWater, gone: () => gone(c) }))) {
           o.logger.warn({ user: c.user?.id ?? null, principal: c.principal }, 'stream resume stalled: the client does not read; dropped');
           c.ws.terminate();

@@ -1,0 +1,75 @@
+import { PassThrough } from 'node:stream';
+import { describe, expect, it } from 'vitest';
+import { createUpgradeGate } from './upgrade-gate';
+
+/** A promise with its resolve, to hold an admission open until the test lets it go. */
+function deferred() {
+  let resolve!: () => void;
+  const promise = new Promise<void>((r) => (resolve = r));
+  return { promise, resolve };
+}
+const tick = () => new Promise((r) => setImmediate(r));
+
+describe('upgrade gate', () => {
+  it('admits at most `atOnce` upgrades at a time, in arrival order', async () => {
+    const gate = createUpgradeGate({ atOnce: 2, maxWaiting: 10 });
+    const holds = Array.from({ length: 5 }, deferred);
+    const started: number[] = [];
+    let running = 0;
+    let most = 0;
+    holds.forEach((h, i) =>
+      gate.enter(new PassThrough(), async () => {
+        started.push(i);
+        most = Math.max(most, ++running);
+        await h.promise;
+        running--;
+      }),
+    );
+    await tick();
+    expect(started).toEqual([0, 1]);
+    holds[1]!.resolve();
+    await tick();
+    await tick();
+    expect(started).toEqual([0, 1, 2]);
+    for (const h of holds) h.resolve();
+    for (let i = 0; i < 6; i++) await tick();
+    expect(started).toEqual([0, 1, 2, 3, 4]);
+    expect(most).toBe(2);
+  });
+
+  it('refuses an upgrade when too many are waiting, and frees a turn whose admission throws', async () => {
+    const errors: unknown[] = [];
+    const gate = createUpgradeGate({ atOnce: 1, maxWaiting: 2, onError: (e) => errors.push(e) });
+    const failing = new PassThrough();
+    const hold = deferred();
+    let ran = 0;
+    expect(gate.enter(new PassThrough(), () => hold.promise)).toBe(true);
+    await tick();
+    expect(gate.enter(new PassThrough(), async () => void ran++)).toBe(true);
+    expect(gate.enter(failing, async () => Promise.reject(new Error('boom')))).toBe(true);
+    expect(gate.enter(new PassThrough(), async () => void ran++)).toBe(false);
+    hold.resolve();
+    for (let i = 0; i < 6; i++) await tick();
+    expect(ran).toBe(1);
+    expect(errors.map((e) => (e as Error).message)).toEqual(['boom']);
+    expect(failing.destroyed).toBe(true);
+    expect(gate.enter(new PassThrough(), async () => void ran++)).toBe(true);
+    for (let i = 0; i < 4; i++) await tick();
+    expect(ran).toBe(2);
+  });
+
+  it('drops a waiting upgrade whose socket closed, without running it', async () => {
+    const gate = createUpgradeGate({ atOnce: 1, maxWaiting: 10 });
+    const hold = deferred();
+    let ran = 0;
+    gate.enter(new PassThrough(), () => hold.promise);
+    const leaving = new PassThrough();
+    gate.enter(leaving, async () => void ran++);
+    leaving.destroy();
+    await tick();
+    expect(gate.stats().waiting).toBe(0);
+    hold.resolve();
+    for (let i = 0; i < 4; i++) await tick();
+    expect(ran).toBe(0);
+  });
+});
