@@ -240,6 +240,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
       trustProxy: trustProxySetting(env),
       maxInFlight: env.MAX_IN_FLIGHT,
+      shedTargetMs: env.SHED_TARGET_MS,
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();

@@ -2,7 +2,7 @@ import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
 import { afterEach, describe, expect, it } from 'vitest';
-import { neverShed, shedLoad, SHED_RETRY_AFTER_SECONDS } from './shed-load';
+import { adaptiveLimit, neverShed, shedLoad, SHED_RETRY_AFTER_SECONDS } from './shed-load';
 
 let server: Server | undefined;
 afterEach(async () => {
@@ -84,5 +84,54 @@ describe('load shedding', () => {
     await app.waitInFlight(5);
     app.release();
     expect((await Promise.all(held)).every((r) => r.status === 200)).toBe(true);
+  });
+});
+
+describe('adaptive in-flight limit (AIMD on the served latency)', () => {
+  it('cuts the limit by a tenth per target period while requests are slow, never below the floor, and climbs back while they are quick', () => {
+    let t = 0;
+    const limit = adaptiveLimit({ max: 48, min: 4, targetMs: 100, now: () => t });
+    expect(limit.value).toBe(48);
+    limit.completed(250);
+    expect(limit.value).toBe(43); // 48 × 0.9 = 43.2
+    limit.completed(250); // same period: one burst does not collapse it
+    expect(limit.value).toBe(43);
+    for (let i = 0; i < 60; i++) {
+      t += 100;
+      limit.completed(400);
+    }
+    expect(limit.value).toBe(4);
+    // Quick requests add 1/limit each: about one step per limit's worth of completions.
+    for (let i = 0; i < 4; i++) limit.completed(20);
+    expect(limit.value).toBe(4);
+    for (let i = 0; i < 40; i++) limit.completed(20);
+    expect(limit.value).toBeGreaterThanOrEqual(8);
+    for (let i = 0; i < 5000; i++) limit.completed(20);
+    expect(limit.value).toBe(48);
+  });
+
+  it('keeps a fixed limit when no target is set', () => {
+    const limit = adaptiveLimit({ max: 10, min: 4, targetMs: 0, now: () => 0 });
+    limit.completed(10_000);
+    expect(limit.value).toBe(10);
+  });
+
+  it('sheds at the adapted limit: slow served requests lower it, and exempt requests neither count towards it nor lower it', async () => {
+    let t = 0;
+    const shedder = shedLoad({ maxInFlight: 10, targetMs: 100, minInFlight: 2, exempt: neverShed, now: () => t });
+    const app = express();
+    app.use(shedder);
+    app.all(/.*/, (_req, res) => {
+      t += 500; // every request "takes" 500 ms on the injected clock
+      res.json({ ok: true });
+    });
+    server = await new Promise<Server>((resolve) => {
+      const s = app.listen(0, '127.0.0.1', () => resolve(s));
+    });
+    const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+    for (let i = 0; i < 3; i++) expect((await fetch(`${base}/api/health`)).status).toBe(200);
+    expect(shedder.stats().limit).toBe(10);
+    for (let i = 0; i < 3; i++) expect((await fetch(`${base}/api/jobs`)).status).toBe(200);
+    expect(shedder.stats().limit).toBe(7); // 10 → 9 → 8.1 → 7.29
   });
 });
