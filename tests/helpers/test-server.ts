@@ -1,3 +1,6 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import pg from 'pg';
 import { boot, type BootOptions, type Running } from '../../server/boot';
 import { demoSeedPolicy, parseEnv } from '../../server/env';
@@ -41,12 +44,15 @@ export interface TestServer extends Running {
 /** Boots the real app on an ephemeral port with the demo site seeded. */
 export async function startTestServer(opts: { env?: Record<string, string>; boot?: Pick<BootOptions, 'wrapRunRepository'> } = {}): Promise<TestServer> {
   const pgdb = await freshPostgres();
+  // A directory of its own for each server: on PostgreSQL it holds the lock, the sample journal and
+  // the seq reservation, which two servers (two test files at once, or an earlier run) must not share.
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-test-'));
   const env = parseEnv({
     NODE_ENV: 'test',
     PORT: '0',
     HOST: '127.0.0.1',
     LOG_LEVEL: 'silent',
-    DATA_DIR: '.tmp/unused',
+    DATA_DIR: dataDir,
     ...(pgdb ? { DATABASE_URL: pgdb.url } : {}),
     ...opts.env,
   });
@@ -58,6 +64,7 @@ export async function startTestServer(opts: { env?: Record<string, string>; boot
     close: async () => {
       await running.close();
       await pgdb?.drop();
+      fs.rmSync(dataDir, { recursive: true, force: true });
     },
   };
 }
