@@ -75,7 +75,12 @@ export default defineConfig({
           globalSetup: ['tests/helpers/prepare.ts', 'tests/e2e/global-setup.ts'],
           testTimeout: 180_000,
           hookTimeout: 180_000,
-          fileParallelism: false,
+          maxWorkers: 2,
+          // One module graph per worker, not per file: every file imports the whole server (its boot)
+          // and the helpers, about 9 s of transform and import each on a loaded two-core machine.
+          // Each file builds its own app and Chromium in beforeAll and closes them in afterAll.
+          isolate: false,
+          sequence: { groupOrder: 2 },
         },
       },
     ],
