@@ -12,7 +12,8 @@ import react from '@vitejs/plugin-react';
  * `npm test` (scripts/test.ts) therefore runs the slow projects in lanes of their own, one vitest
  * process each, at the same time. Integration files are independent (each boots its own in-memory
  * server on its own port), mostly wait on the simulated rig's real-time holds, and run two at a
- * time; e2e (a Chromium each) and proof files (server processes, load) run one at a time.
+ * time; so do the e2e files (each its own in-memory app on an ephemeral port and its own Chromium,
+ * its own temporary files); proof files (server processes, load, timing figures) run one at a time.
  */
 export default defineConfig({
   test: {

@@ -9,7 +9,7 @@
  *
  * The suites that wait on the real clock (captures with their holds, Chromium, server processes
  * killed and restarted) spend most of their time idle, so each runs in a lane beside the others
- * instead of after them; inside a lane the files run one at a time, as vitest.config.ts says. Each
+ * instead of after them; inside a lane the files run one or two at a time, as vitest.config.ts says. Each
  * lane's output is printed with its name in front; at the end a table gives each lane's time and
  * result, and the exit code is non-zero when any lane failed. `--lanes a,b` runs only those lanes.
  */
