@@ -12,7 +12,8 @@ import react from '@vitejs/plugin-react';
  * `npm test` (scripts/test.ts) therefore runs the slow projects in lanes of their own, one vitest
  * process each, at the same time. Integration files are independent (each boots its own in-memory
  * server on its own port), mostly wait on the simulated rig's real-time holds, and run two at a
- * time; e2e (a Chromium each) and proof files (server processes, load) run one at a time.
+ * time; so do the e2e files (each its own in-memory app on an ephemeral port and its own Chromium,
+ * its own temporary files); proof files (server processes, load, timing figures) run one at a time.
  */
 export default defineConfig({
   test: {
@@ -52,6 +53,10 @@ export default defineConfig({
           testTimeout: 120_000,
           hookTimeout: 120_000,
           maxWorkers: 2,
+          // One module graph per worker, not per file: a fresh worker importing the whole server
+          // for each of some forty files was a third of this project's time. Each file boots and
+          // closes its own app; the one file on fake timers puts the real ones back after each test.
+          isolate: false,
           // A group of its own: projects of one group share one pool size.
           sequence: { groupOrder: 1 },
         },
@@ -75,7 +80,12 @@ export default defineConfig({
           globalSetup: ['tests/helpers/prepare.ts', 'tests/e2e/global-setup.ts'],
           testTimeout: 180_000,
           hookTimeout: 180_000,
-          fileParallelism: false,
+          maxWorkers: 2,
+          // One module graph per worker, not per file: every file imports the whole server (its boot)
+          // and the helpers, about 9 s of transform and import each on a loaded two-core machine.
+          // Each file builds its own app and Chromium in beforeAll and closes them in afterAll.
+          isolate: false,
+          sequence: { groupOrder: 2 },
         },
       },
     ],

@@ -11,7 +11,7 @@ import { pointFlow, type FlowUnit, type OrificeSpec, type PointFlow } from './or
 import { convertPressure } from './units';
 import { classifyNe43, isRootedOutput, type Cutoff, type Ne43Class, type OutputMode, type TransferSpec } from './transfer';
 import { DEFAULT_COVERAGE_PROBABILITY, type CoveragePolicy } from './student-t';
-import { pointBudget, type CurrentMeterSpec, type PressureReferenceSpec, type TypeAInput } from './uncertainty';
+import { pointBudget, type BudgetPoint, type CurrentMeterSpec, type PressureReferenceSpec } from './uncertainty';
 import { isPressureUnitId, type PressureUnitId } from './units';
 
 /** Instrument data for an evaluation. */
@@ -33,27 +33,12 @@ export interface EvaluateInstrument {
   primaryElement?: { spec: OrificeSpec; flowUnit: FlowUnit } | null;
 }
 
-/** One reading per point (means over the hold). */
-export interface EvaluateReading {
+/** One reading per point: the means over the hold and their spread, as the budget takes them ({@link BudgetPoint}). */
+export interface EvaluateReading extends BudgetPoint {
   nominalPct: number;
   /** Basis of `nominalPct`; default 'flow' for a rooted output, else 'dp'. */
   basis?: NominalBasis;
   direction: Direction;
-  /** Mean applied DP, instrument unit. */
-  appliedDp: number;
-  /** Mean measured current, mA. */
-  measuredMa: number;
-  /** Standard deviation of the applied DP over the hold, instrument unit. */
-  appliedDpSd?: number;
-  /** Standard deviation of the current over the hold, mA. */
-  measuredMaSd?: number;
-  /** Samples over the hold. */
-  n?: number;
-  /**
-   * Type A standard uncertainty of the mean of the per-reading error series, mA, with its degrees
-   * of freedom, from the capture (hold.ts); replaces the two channel SD terms when given.
-   */
-  typeA?: TypeAInput | null;
 }
 
 /** Input of {@link evaluateCalibration}. */

@@ -12,7 +12,7 @@ import {
   span,
   type TransferSpec,
 } from './transfer';
-import type { MilliAmp } from './units';
+import { pctDp, pctFlow, type MilliAmp } from './units';
 
 /** Direction from which a point is approached: `up` from below, `down` from above. */
 export type Direction = 'up' | 'down';
@@ -112,7 +112,7 @@ export function buildPlan(spec: TransferSpec, options: PlanOptions): PlanResult 
   const out: PlanPoint[] = [];
   for (const [index, p] of list.entries()) {
     if (!Number.isFinite(p.nominalPct)) return { ok: false, reason: `point ${index}: nominal is not a number` };
-    const dpPct = p.basis === 'flow' ? dpPctFromFlowPct(p.nominalPct) : p.nominalPct;
+    const dpPct = p.basis === 'flow' ? dpPctFromFlowPct(pctFlow(p.nominalPct)) : pctDp(p.nominalPct);
     if (dpPct === undefined) return { ok: false, reason: `point ${index}: no DP for ${p.nominalPct} % flow` };
     const targetDp = dpFromDpPct(spec.range, dpPct);
     out.push({

@@ -14,7 +14,7 @@ import {
   type TransferSpec,
 } from './transfer';
 import type { Direction, NominalBasis } from './plan';
-import type { MilliAmp } from './units';
+import { pctDp, type MilliAmp } from './units';
 
 /** A captured point (means over the hold). */
 export interface CapturedPoint {
@@ -253,7 +253,7 @@ export function linearityOf(xy: readonly Xy[]): NonLinearity | undefined {
 export function nonLinearity(spec: TransferSpec, points: readonly CapturedPoint[], errors: readonly number[]): NonLinearity | undefined {
   const groups = new Map<number, { sum: number; n: number; nominal: number }>();
   points.forEach((p, i) => {
-    const dpPct = p.basis === 'flow' ? (p.nominalPct * p.nominalPct) / 100 : p.nominalPct;
+    const dpPct = pctDp(p.basis === 'flow' ? (p.nominalPct * p.nominalPct) / 100 : p.nominalPct);
     const x = outputPctFromDpPct({ ...spec, cutoff: { mode: 'none' } }, dpPct);
     const g = groups.get(x) ?? { sum: 0, n: 0, nominal: p.nominalPct };
     g.sum += errors[i] ?? NaN;

@@ -11,6 +11,7 @@ import {
   type OutputMode,
   type TransferSpec,
 } from './transfer';
+import { pctDp, pctFlow } from './units';
 
 const pct: TransferSpec['range'] = { lrv: 0, urv: 100, unit: 'kPa' };
 const rooted: TransferSpec = { range: pct, mode: 'sqrt-transmitter' };
@@ -18,13 +19,13 @@ const linear: TransferSpec = { range: pct, mode: 'linear' };
 
 describe('transfer functions (check values: common practice, REFERENCE.md)', () => {
   it('rooted / linear mA table', () => {
-    expect(flowPctFromDpPct(25)).toBeCloseTo(50, 12); // 25 % DP → 50 % flow
-    expect(dpPctFromFlowPct(10)).toBeCloseTo(1, 12); // 10 % flow = 1 % DP
+    expect(flowPctFromDpPct(pctDp(25))).toBeCloseTo(50, 12); // 25 % DP → 50 % flow
+    expect(dpPctFromFlowPct(pctFlow(10))).toBeCloseTo(1, 12); // 10 % flow = 1 % DP
     expect(maFromDp(rooted, 1)).toBeCloseTo(5.6, 12); // 1 % DP → 5.600 mA rooted
     expect(maFromDp(linear, 1)).toBeCloseTo(4.16, 12); // 1 % DP → 4.160 mA linear
     expect(maFromDp(rooted, 25)).toBeCloseTo(12, 12); // 25 % DP → 12 mA rooted
     expect(maFromDp(linear, 25)).toBeCloseTo(8, 12); // 25 % DP → 8 mA linear
-    expect(flowPctFromDpPct(6.25)).toBeCloseTo(25, 12); // 6.25 % DP → 25 % flow
+    expect(flowPctFromDpPct(pctDp(6.25))).toBeCloseTo(25, 12); // 6.25 % DP → 25 % flow
     expect(maFromDp(rooted, 6.25)).toBeCloseTo(8, 12); // → 8 mA
     expect(maFromDp({ range: pct, mode: 'sqrt-host' }, 25)).toBeCloseTo(8, 12); // host root: transmitter linear
   });
@@ -38,21 +39,21 @@ describe('transfer functions (check values: common practice, REFERENCE.md)', () 
 
   it('cutoff modes', () => {
     // none: pure root
-    expect(flowPctFromDpPct(0.25, { mode: 'none' })).toBeCloseTo(5, 12);
+    expect(flowPctFromDpPct(pctDp(0.25), { mode: 'none' })).toBeCloseTo(5, 12);
     // clamp at 10 % flow: below → 0 (4 mA), at and above → root
     const clamp: Cutoff = { mode: 'clamp', flowPct: 10 };
-    expect(flowPctFromDpPct(0.81, clamp)).toBe(0);
+    expect(flowPctFromDpPct(pctDp(0.81), clamp)).toBe(0);
     expect(maFromDp({ range: pct, mode: 'sqrt-transmitter', cutoff: clamp }, 0.81)).toBe(4);
-    expect(flowPctFromDpPct(1, clamp)).toBeCloseTo(10, 12);
-    expect(dpPctFromFlowPct(0, clamp)).toBeUndefined();
+    expect(flowPctFromDpPct(pctDp(1), clamp)).toBeCloseTo(10, 12);
+    expect(dpPctFromFlowPct(pctFlow(0), clamp)).toBeUndefined();
     expect(dpFromMa({ range: pct, mode: 'sqrt-transmitter', cutoff: clamp }, 4)).toBeUndefined();
     // linear below b = 1 % DP: flow% = (10/√b)·DP%, continuous at b
     const lin: Cutoff = { mode: 'linear', breakpointDpPct: 1 };
-    expect(flowPctFromDpPct(0.5, lin)).toBeCloseTo(5, 12);
-    expect(flowPctFromDpPct(1 - 1e-12, lin)).toBeCloseTo(flowPctFromDpPct(1, lin), 9);
+    expect(flowPctFromDpPct(pctDp(0.5), lin)).toBeCloseTo(5, 12);
+    expect(flowPctFromDpPct(pctDp(1 - 1e-12), lin)).toBeCloseTo(flowPctFromDpPct(pctDp(1), lin), 9);
     const lin4: Cutoff = { mode: 'linear', breakpointDpPct: 4 };
-    expect(flowPctFromDpPct(2, lin4)).toBeCloseTo(10, 12); // (10/2)·2
-    expect(flowPctFromDpPct(4, lin4)).toBeCloseTo(20, 12); // root at b
+    expect(flowPctFromDpPct(pctDp(2), lin4)).toBeCloseTo(10, 12); // (10/2)·2
+    expect(flowPctFromDpPct(pctDp(4), lin4)).toBeCloseTo(20, 12); // root at b
   });
 
   it('elevated, suppressed and reversed ranges', () => {
@@ -111,7 +112,7 @@ describe('transfer functions (check values: common practice, REFERENCE.md)', () 
     fc.assert(
       fc.property(cutoffArb, fc.double({ min: -50, max: 150, noNaN: true }), fc.double({ min: -50, max: 150, noNaN: true }), (c, a, b) => {
         const [lo, hi] = a <= b ? [a, b] : [b, a];
-        expect(flowPctFromDpPct(lo, c)).toBeLessThanOrEqual(flowPctFromDpPct(hi, c));
+        expect(flowPctFromDpPct(pctDp(lo), c)).toBeLessThanOrEqual(flowPctFromDpPct(pctDp(hi), c));
       }),
     );
   });

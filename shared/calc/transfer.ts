@@ -2,10 +2,11 @@
  * 4–20 mA transfer functions for DP and pressure transmitters (IEC 60381-1 / ISA-50.00.01 signal;
  * the square-root and cutoff conventions are common practice, see REFERENCE.md).
  *
- * Percentages are 0–100 (% of DP span or % of flow span). DP values are in the instrument's own
- * unit (the range's unit); currents are branded {@link MilliAmp}.
+ * Percentages are 0–100 and branded by their basis: {@link PctDp} (% of DP span), {@link PctFlow}
+ * (% of flow span) and {@link PctSpan} (% of the 4–20 mA output span). DP values are in the
+ * instrument's own unit (the range's unit); currents are branded {@link MilliAmp}.
  */
-import { mA, type MilliAmp, type PressureUnitId } from './units';
+import { mA, pctDp, pctFlow, pctSpan, type MilliAmp, type PctDp, type PctFlow, type PctSpan, type PressureUnitId } from './units';
 
 /** Live zero of the 4–20 mA signal, mA. */
 export const LIVE_ZERO_MA = 4;
@@ -82,12 +83,12 @@ export function dpFraction(r: Range, dp: number): number {
 }
 
 /** % of DP span of an applied DP, 0–100 at LRV–URV. */
-export function dpPctFromDp(r: Range, dp: number): number {
-  return 100 * dpFraction(r, dp);
+export function dpPctFromDp(r: Range, dp: number): PctDp {
+  return pctDp(100 * dpFraction(r, dp));
 }
 
 /** DP, in the range's unit, at a % of DP span. */
-export function dpFromDpPct(r: Range, dpPct: number): number {
+export function dpFromDpPct(r: Range, dpPct: PctDp): number {
   return r.lrv + (dpPct / 100) * span(r);
 }
 
@@ -96,19 +97,19 @@ export function dpFromDpPct(r: Range, dpPct: number): number {
  * Below zero DP the pure root and the linear segment continue as an odd function
  * (flow = −√|DP|), so the mapping stays monotonic and invertible; a clamp gives 0.
  */
-export function flowPctFromDpPct(dpPct: number, cutoff: Cutoff = { mode: 'none' }): number {
+export function flowPctFromDpPct(dpPct: PctDp, cutoff: Cutoff = { mode: 'none' }): PctFlow {
   switch (cutoff.mode) {
     case 'none':
-      return Math.sign(dpPct) * 10 * Math.sqrt(Math.abs(dpPct));
+      return pctFlow(Math.sign(dpPct) * 10 * Math.sqrt(Math.abs(dpPct)));
     case 'clamp': {
       const f = Math.sign(dpPct) * 10 * Math.sqrt(Math.abs(dpPct));
-      return f < cutoff.flowPct ? 0 : f;
+      return pctFlow(f < cutoff.flowPct ? 0 : f);
     }
     case 'linear': {
       const b = cutoff.breakpointDpPct;
       if (!(b > 0)) throw new RangeError(`linear cutoff breakpoint ${b} % DP must be > 0`);
-      if (dpPct < b) return (10 / Math.sqrt(b)) * dpPct;
-      return 10 * Math.sqrt(dpPct);
+      if (dpPct < b) return pctFlow((10 / Math.sqrt(b)) * dpPct);
+      return pctFlow(10 * Math.sqrt(dpPct));
     }
   }
 }
@@ -117,18 +118,18 @@ export function flowPctFromDpPct(dpPct: number, cutoff: Cutoff = { mode: 'none' 
  * DP % of span that gives a flow % (inverse of {@link flowPctFromDpPct}). `undefined` where the
  * clamp makes it not unique (flow 0 and any flow below the clamp value).
  */
-export function dpPctFromFlowPct(flowPct: number, cutoff: Cutoff = { mode: 'none' }): number | undefined {
+export function dpPctFromFlowPct(flowPct: PctFlow, cutoff: Cutoff = { mode: 'none' }): PctDp | undefined {
   switch (cutoff.mode) {
     case 'none':
-      return (Math.sign(flowPct) * flowPct * flowPct) / 100;
+      return pctDp((Math.sign(flowPct) * flowPct * flowPct) / 100);
     case 'clamp':
       if (flowPct < cutoff.flowPct || flowPct <= 0) return undefined;
-      return (flowPct * flowPct) / 100;
+      return pctDp((flowPct * flowPct) / 100);
     case 'linear': {
       const b = cutoff.breakpointDpPct;
       const fb = 10 * Math.sqrt(b);
-      if (flowPct < fb) return (flowPct * Math.sqrt(b)) / 10;
-      return (flowPct * flowPct) / 100;
+      if (flowPct < fb) return pctDp((flowPct * Math.sqrt(b)) / 10);
+      return pctDp((flowPct * flowPct) / 100);
     }
   }
 }
@@ -142,18 +143,18 @@ export function isRootedOutput(mode: OutputMode): boolean {
  * Output as % of the 4–20 mA span for an applied DP % of span: DP % for `linear` and
  * `sqrt-host` (the transmitter is linear), flow % for `sqrt-transmitter`.
  */
-export function outputPctFromDpPct(spec: TransferSpec, dpPct: number): number {
-  return isRootedOutput(spec.mode) ? flowPctFromDpPct(dpPct, spec.cutoff) : dpPct;
+export function outputPctFromDpPct(spec: TransferSpec, dpPct: PctDp): PctSpan {
+  return pctSpan(isRootedOutput(spec.mode) ? flowPctFromDpPct(dpPct, spec.cutoff) : dpPct);
 }
 
 /** Current, mA, for an output % of span: I = 4 + 16·p/100. */
-export function maFromOutputPct(outputPct: number): MilliAmp {
+export function maFromOutputPct(outputPct: PctSpan): MilliAmp {
   return mA(LIVE_ZERO_MA + (SIGNAL_SPAN_MA * outputPct) / 100);
 }
 
 /** Output % of span for a current, mA: p = (I − 4)/16·100. */
-export function outputPctFromMa(current: number): number {
-  return ((current - LIVE_ZERO_MA) / SIGNAL_SPAN_MA) * 100;
+export function outputPctFromMa(current: number): PctSpan {
+  return pctSpan(((current - LIVE_ZERO_MA) / SIGNAL_SPAN_MA) * 100);
 }
 
 /** Forward: expected transmitter current, mA, at an applied DP in the range's unit. */
@@ -165,14 +166,14 @@ export function maFromDp(spec: TransferSpec, dp: number): MilliAmp {
  * Flow % of span seen by the process (transmitter root or host root) at an applied DP;
  * for a `linear` instrument this is the DP % itself.
  */
-export function flowPctFromDp(spec: TransferSpec, dp: number): number {
+export function flowPctFromDp(spec: TransferSpec, dp: number): PctFlow {
   const dpPct = dpPctFromDp(spec.range, dp);
-  return spec.mode === 'linear' ? dpPct : flowPctFromDpPct(dpPct, spec.cutoff);
+  return spec.mode === 'linear' ? pctFlow(dpPct) : flowPctFromDpPct(dpPct, spec.cutoff);
 }
 
 /** Inverse: DP % of span indicated by an output %; `undefined` inside a clamp cutoff. */
-export function dpPctFromOutputPct(spec: TransferSpec, outputPct: number): number | undefined {
-  return isRootedOutput(spec.mode) ? dpPctFromFlowPct(outputPct, spec.cutoff) : outputPct;
+export function dpPctFromOutputPct(spec: TransferSpec, outputPct: PctSpan): PctDp | undefined {
+  return isRootedOutput(spec.mode) ? dpPctFromFlowPct(pctFlow(outputPct), spec.cutoff) : pctDp(outputPct);
 }
 
 /** Inverse: DP, in the range's unit, indicated by a current, mA; `undefined` inside a clamp cutoff. */

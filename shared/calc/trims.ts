@@ -5,7 +5,7 @@
  * output at 4 mA; linear and root in the host — zero trim at 0 % (4 mA) and span trim at 100 % (20 mA).
  */
 import { dpFromDpPct, isRootedOutput, maFromOutputPct, type TransferSpec, flowPctFromDpPct } from './transfer';
-import type { MilliAmp } from './units';
+import { pctDp, pctFlow, pctSpan, type MilliAmp } from './units';
 
 /** Trim kinds. */
 export type TrimKind = 'zero-trim' | 'lower-trim' | 'span-trim';
@@ -36,19 +36,20 @@ export function trimPlan(spec: TransferSpec): TrimPlan {
     const cutoff = spec.cutoff ?? { mode: 'none' };
     if (cutoff.mode === 'clamp' && cutoff.flowPct > 10) warnings.push('clamp cutoff above 10 % flow: the lower-trim point reads 4 mA');
     if (cutoff.mode === 'linear' && cutoff.breakpointDpPct > 1) warnings.push('linear cutoff breakpoint above 1 % DP: the lower-trim point is on the linear segment');
-    const lowFlow = flowPctFromDpPct(1, { mode: 'none' });
+    const lowFlow = flowPctFromDpPct(pctDp(1), { mode: 'none' });
+    // Root in the transmitter: its output % is the flow %.
     return {
       steps: [
-        { kind: 'lower-trim', dpPct: 1, flowPct: lowFlow, targetDp: dpFromDpPct(spec.range, 1), expectedMa: maFromOutputPct(lowFlow) },
-        { kind: 'span-trim', dpPct: 100, flowPct: 100, targetDp: dpFromDpPct(spec.range, 100), expectedMa: maFromOutputPct(100) },
+        { kind: 'lower-trim', dpPct: pctDp(1), flowPct: lowFlow, targetDp: dpFromDpPct(spec.range, pctDp(1)), expectedMa: maFromOutputPct(pctSpan(lowFlow)) },
+        { kind: 'span-trim', dpPct: pctDp(100), flowPct: pctFlow(100), targetDp: dpFromDpPct(spec.range, pctDp(100)), expectedMa: maFromOutputPct(pctSpan(100)) },
       ],
       warnings,
     };
   }
   return {
     steps: [
-      { kind: 'zero-trim', dpPct: 0, flowPct: undefined, targetDp: dpFromDpPct(spec.range, 0), expectedMa: maFromOutputPct(0) },
-      { kind: 'span-trim', dpPct: 100, flowPct: undefined, targetDp: dpFromDpPct(spec.range, 100), expectedMa: maFromOutputPct(100) },
+      { kind: 'zero-trim', dpPct: pctDp(0), flowPct: undefined, targetDp: dpFromDpPct(spec.range, pctDp(0)), expectedMa: maFromOutputPct(pctSpan(0)) },
+      { kind: 'span-trim', dpPct: pctDp(100), flowPct: undefined, targetDp: dpFromDpPct(spec.range, pctDp(100)), expectedMa: maFromOutputPct(pctSpan(100)) },
     ],
     warnings,
   };

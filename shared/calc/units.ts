@@ -15,6 +15,34 @@ export type Pa = Branded<'Pa'>;
 /** Loop current in milliampere. */
 export type MilliAmp = Branded<'mA'>;
 
+/**
+ * Percentages of the three spans this trade mixes up: % of the DP span (LRV–URV of the applied DP),
+ * % of the flow span (after the square root) and % of the output signal span (4–20 mA: the output
+ * %, errors and tolerances in % of span). 25 % DP is 50 % flow through a root, so a PctDp where a
+ * PctFlow belongs is a wrong number that looks right; the brands make the compiler refuse it, and
+ * every change of basis is a named function (shared/calc/transfer.ts) or an explicit brand.
+ */
+export type PctDp = Branded<'% DP span'>;
+/** % of the flow span (0 % flow at LRV, 100 % at URV, through the square root). */
+export type PctFlow = Branded<'% flow span'>;
+/** % of the output signal span (4–20 mA): output %, errors and tolerances in % of span. */
+export type PctSpan = Branded<'% output span'>;
+
+/** Brand a plain number as % of DP span (explicit, no conversion). */
+export function pctDp(value: number): PctDp {
+  return value as PctDp;
+}
+
+/** Brand a plain number as % of flow span (explicit, no conversion). */
+export function pctFlow(value: number): PctFlow {
+  return value as PctFlow;
+}
+
+/** Brand a plain number as % of the output span (explicit, no conversion). */
+export function pctSpan(value: number): PctSpan {
+  return value as PctSpan;
+}
+
 /** Brand a plain number as milliampere (explicit, no conversion). */
 export function mA(value: number): MilliAmp {
   return value as MilliAmp;

@@ -4,7 +4,7 @@
  * ISO 5167-2 (shared/calc/orifice.ts), computed exactly as the evaluation does for each point.
  */
 import { convertPressure, pointFlow, type FlowUnit, type OrificeSpec, type PointFlow, type PressureUnitId } from '../calc';
-import { formatFixed, formatSigned } from './numbers';
+import { dpDecimals, formatFixed, formatSigned } from './numbers';
 import { unitLabel } from './units';
 
 /** What the live flow needs of an instrument: its range, unit and orifice (from `orificeSpecOf`). */
@@ -32,9 +32,7 @@ export function flowAtDp(ins: FlowInstrument, dp: number): PointFlow | undefined
  * {@link dpDecimals} applied to the flow span), kept within 0–6.
  */
 export function flowDecimals(fullScaleFlow: number): number {
-  const s = Math.abs(fullScaleFlow);
-  if (!Number.isFinite(s) || s === 0) return 3;
-  return Math.min(6, Math.max(0, 4 - Math.floor(Math.log10(s) + 1e-12)));
+  return dpDecimals(fullScaleFlow);
 }
 
 /** "12.345 m³/h" — a flow with its unit's one spelling. */

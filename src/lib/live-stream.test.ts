@@ -5,7 +5,7 @@ import { LiveSampleStore } from '../stores/live-samples';
 import { useLiveRun } from '../stores/live-run';
 import { STREAM_CLOSE } from '../../shared/schemas/stream';
 import { applyStreamMessage } from './apply-stream-message';
-import { backoffDelay, LiveStream, type SocketLike } from './live-stream';
+import { LiveStream, type SocketLike } from './live-stream';
 import { queryKeys } from './query-keys';
 
 class FakeSocket implements SocketLike {
@@ -177,8 +177,18 @@ describe('LiveStream', () => {
     expect(stream.getNotice()).toBeNull();
   });
 
-  it('caps the backoff', () => {
-    expect([1, 2, 3, 4, 5, 9].map((n) => backoffDelay(n, 500, 4000))).toEqual([500, 1000, 2000, 4000, 4000, 4000]);
+  it('doubles the reconnect delay on each failure up to its cap, and starts again after an open', () => {
+    const { stream, sockets, fireReconnect } = harness();
+    stream.acquire();
+    const delays: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      sockets.at(-1)!.drop();
+      delays.push(fireReconnect());
+    }
+    expect(delays).toEqual([500, 1000, 2000, 4000, 4000, 4000]);
+    sockets.at(-1)!.open();
+    sockets.at(-1)!.drop();
+    expect(fireReconnect()).toBe(500);
   });
 });
 

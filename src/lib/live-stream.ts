@@ -10,6 +10,7 @@
  */
 import type { QueryClient } from '@tanstack/react-query';
 import { useEffect, useSyncExternalStore } from 'react';
+import { backoffDelay } from '../../shared/backoff';
 import { STREAM_CLOSE, StreamMessageSchema, type ClientMessage, type StreamMessage } from '../../shared/schemas/stream';
 import { applyStreamMessage } from './apply-stream-message';
 import { queryKeys } from './query-keys';
@@ -50,11 +51,6 @@ const OPEN = 1;
 function defaultBaseUrl(): string {
   const { protocol, host } = window.location;
   return `${protocol === 'https:' ? 'wss:' : 'ws:'}//${host}/ws`;
-}
-
-/** Reconnect delay for the n-th consecutive failure (n ≥ 1), before jitter. */
-export function backoffDelay(n: number, initialMs: number, maxMs: number): number {
-  return Math.min(maxMs, initialMs * 2 ** Math.max(0, n - 1));
 }
 
 export class LiveStream {
@@ -249,7 +245,7 @@ export class LiveStream {
   private scheduleReconnect(): void {
     this.failures += 1;
     this.setStatus('reconnecting');
-    const base = backoffDelay(this.failures, this.opts.initialBackoffMs, this.opts.maxBackoffMs);
+    const base = backoffDelay(this.failures, { initialMs: this.opts.initialBackoffMs, maxMs: this.opts.maxBackoffMs });
     const delay = base * (1 + this.opts.jitter * this.opts.random());
     this.clearReconnect();
     this.reconnectTimer = this.opts.setTimer(() => {

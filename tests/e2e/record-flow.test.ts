@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { e2eApp, readyForRun, signIn } from '../helpers/e2e';
+import { AUTOPILOT_SPEED, e2eApp, readyForRun, signIn } from '../helpers/e2e';
 import { DEMO_PASSWORD } from '../helpers/test-server';
 import { formatFixed } from '../../shared/format';
 
@@ -79,7 +79,7 @@ async function start(kind: string, trim?: string): Promise<string> {
 
 async function handsFree(kind: string, trim?: string): Promise<string> {
   const id = await start(kind, trim);
-  await sim({ autopilot: { speed: 4 } });
+  await sim({ autopilot: { speed: AUTOPILOT_SPEED } });
   await until(`${kind} to complete`, () => getRun(id), (r) => r.status === 'complete', 300_000);
   return id;
 }
@@ -117,7 +117,7 @@ describe('the record says what happened, with one definition of error and hyster
     // As-found, out of tolerance; the first point's output is too noisy to settle, so it is captured by hand.
     await sim({ autopilot: 'stop', transmitter: { zeroErrorPct: 1.5, outputNoiseMa: 0.06 } });
     const asFoundId = await start('as-found');
-    await sim({ autopilot: { speed: 4 } });
+    await sim({ autopilot: { speed: AUTOPILOT_SPEED } });
     await until('point 1 to be in its window', () => getRun(asFoundId), (r) => r.points[0]!.state === 'settling' || r.points[0]!.state === 'holding');
     await until(
       'the manual capture to be taken',

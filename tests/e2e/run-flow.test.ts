@@ -3,7 +3,7 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { recordOffHostRequests } from '../helpers/browser';
-import { e2eApp, signIn } from '../helpers/e2e';
+import { AUTOPILOT_SPEED, e2eApp, signIn } from '../helpers/e2e';
 import type { ApiClient } from '../helpers/test-server';
 
 /**
@@ -48,7 +48,7 @@ async function runHandsFree(page: Page, startTestId: string, timeoutMs = 240_000
   await page.getByTestId('capture-screen').waitFor();
   // A one-point trim run can be captured hands-free before the autopilot starts (the pump still sits
   // at the point the previous run ended on); then there is no active run left to drive.
-  const r = await admin.post('/api/sim', { autopilot: { speed: 4 } });
+  const r = await admin.post('/api/sim', { autopilot: { speed: AUTOPILOT_SPEED } });
   if (r.status !== 200) expect((await tech.get(`/api/runs/${runId}`)).body.status, JSON.stringify(r.body)).toBe('complete');
   await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: timeoutMs });
   return runId;
@@ -135,7 +135,7 @@ describe('run flow (FT-101, rooted output)', () => {
       await page.getByTestId('start-as-found').click();
       await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
       const asFoundId = page.url().split('/').pop()!;
-      await sim({ autopilot: { speed: 4 } });
+      await sim({ autopilot: { speed: AUTOPILOT_SPEED } });
       // The capture screen while a point holds, in both themes.
       await page.locator('[data-testid="current-point"][data-state="holding"]').waitFor({ timeout: 120_000 });
       await page.screenshot({ path: path.join(SCREENS, 'capture-holding-light.png') });

@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { siteRepository } from '../../server/db/repositories/user.repository';
 import { unitLabel } from '../../shared/format';
 import { launchBrowser } from '../helpers/browser';
+import { AUTOPILOT_SPEED } from '../helpers/e2e';
 import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 import { completeChecklist, demoStandards } from '../integration/records-helpers';
 
@@ -123,7 +124,7 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
       await page.getByTestId('start-mode-check').click();
       await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
       await page.getByTestId('capture-screen').waitFor();
-      await sim({ autopilot: { speed: 4 } });
+      await sim({ autopilot: { speed: AUTOPILOT_SPEED } });
       await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: 240_000 });
 
       await page.goto(`${server.url}/jobs/${jobId}`);
@@ -131,7 +132,7 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
       await page.waitForURL(/\/runs\/[0-9a-f-]+$/);
       runId = page.url().split('/').pop()!;
       await page.getByTestId('capture-screen').waitFor();
-      await sim({ autopilot: { speed: 4 } });
+      await sim({ autopilot: { speed: AUTOPILOT_SPEED } });
 
       // Live: the flow at the DP applied, in the element's unit, beside % flow.
       await expect.poll(async () => (await page.getByTestId('live-flow-eng').textContent()) ?? '', { timeout: 60_000 }).toMatch(/^\d+(\.\d+)? m³\/h$/);

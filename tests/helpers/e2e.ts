@@ -9,6 +9,14 @@ import { completeChecklist, demoStandards, passingAsFound } from '../integration
 import { launchBrowser } from './browser';
 import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from './test-server';
 
+/**
+ * Speed factor of the simulated rig's autopilot in the end-to-end files: the pump's time constant is
+ * divided by it (1.5 s → 0.125 s), so the pressure reaches each point sooner. The holds are not sped
+ * up (HOLD_SECONDS, real time) and every point still runs the whole path — pre-position, approach from
+ * the correct side, settle, hold, capture — so this shortens only the pump's travel.
+ */
+export const AUTOPILOT_SPEED = 12;
+
 export type DemoUser = 'tech' | 'tech2' | 'lead' | 'admin' | 'auditor';
 
 export interface E2eApp {

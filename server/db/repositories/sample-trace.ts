@@ -55,6 +55,31 @@ async function* gzipHere(pieces: AsyncGenerator<Buffer>): AsyncGenerator<Buffer>
 }
 
 /**
+ * Walks a trace's keyset pages on (wall_ms, seq) up to `limit` rows: asks `page` for the next one
+ * after the last row so far (`first` until a page has brought a row), yields each, and returns
+ * whether rows were left out (the limit reached with more to come).
+ */
+async function* keysetPages(
+  limit: number,
+  pageRows: number,
+  page: (after: TracePage['last'], want: number, first: boolean) => Promise<TracePage>,
+): AsyncGenerator<TracePage, boolean> {
+  const most = Math.max(0, Math.floor(limit));
+  let sent = 0;
+  let after: TracePage['last'];
+  for (;;) {
+    const p = await page(after, Math.min(pageRows, most - sent), sent === 0);
+    yield p;
+    if (p.count > 0) {
+      sent += p.count;
+      after = p.last;
+    }
+    if (!p.more) return false;
+    if (sent >= most) return true;
+  }
+}
+
+/**
  * Samples of a run between two wall-clock times, in time order, as the UTF-8 JSON
  * `{ "items": TraceSample[], "truncated": boolean }` (at most `limit` items; `truncated` when
  * there are more), yielded in pieces of at most `pageRows` samples; with `gzip`, the pieces
@@ -73,57 +98,29 @@ export function createSampleTrace(db: Db) {
    * comma: a view, no copy), then the closing.
    */
   async function* trace(runId: string, q: TraceQuery, pageRows: number): AsyncGenerator<Buffer> {
-    const limit = Math.max(0, Math.floor(q.limit));
-    let opened = false;
-    let sent = 0;
-    let after: TracePage['last'];
-    let truncated = false;
-    for (;;) {
-      const want = Math.min(pageRows, limit - sent);
-      const page = pglite ? await pglitePage(runId, q, after, want) : await pgPage(runId, q, after, want);
-      if (!opened) {
-        yield OPEN;
-        opened = true;
-      }
-      if (page.count > 0) {
-        yield sent === 0 ? page.bytes.subarray(1) : page.bytes;
-        sent += page.count;
-        after = page.last;
-      }
-      if (!page.more) break;
-      if (sent >= limit) {
-        truncated = true;
-        break;
-      }
+    const pages = keysetPages(q.limit, pageRows, (after, want) => (pglite ? pglitePage(runId, q, after, want) : pgPage(runId, q, after, want)));
+    let first = true;
+    let step = await pages.next();
+    yield OPEN;
+    for (; !step.done; step = await pages.next()) {
+      const page = step.value;
+      if (page.count === 0) continue;
+      yield first ? page.bytes.subarray(1) : page.bytes;
+      first = false;
     }
-    yield Buffer.from(`],"truncated":${truncated}}`);
+    yield Buffer.from(`],"truncated":${step.value}}`);
   }
 
   /** The same document gzip-compressed in the PGlite worker, page by page, so only compressed bytes reach this thread. */
   async function* gzipTraceInWorker(w: PgliteWorkerClient, runId: string, q: TraceQuery, pageRows: number): AsyncGenerator<Buffer> {
-    const limit = Math.max(0, Math.floor(q.limit));
     const stream = w.newGzipStream();
     let ended = false;
     try {
-      let sent = 0;
-      let after: TracePage['last'];
-      let truncated = false;
-      for (;;) {
-        const want = Math.min(pageRows, limit - sent);
-        const page = await pglitePage(runId, q, after, want, { stream, ...(sent === 0 ? { before: OPEN.toString(), dropComma: true } : {}) });
-        if (page.bytes.length) yield page.bytes;
-        if (page.count > 0) {
-          sent += page.count;
-          after = page.last;
-        }
-        if (!page.more) break;
-        if (sent >= limit) {
-          truncated = true;
-          break;
-        }
-      }
+      const pages = keysetPages(q.limit, pageRows, (after, want, first) => pglitePage(runId, q, after, want, { stream, ...(first ? { before: OPEN.toString(), dropComma: true } : {}) }));
+      let step = await pages.next();
+      for (; !step.done; step = await pages.next()) if (step.value.bytes.length) yield step.value.bytes;
       ended = true;
-      yield await w.gzipEnd(stream, `],"truncated":${truncated}}`);
+      yield await w.gzipEnd(stream, `],"truncated":${step.value}}`);
     } finally {
       if (!ended) await w.gzipEnd(stream).catch(() => undefined);
     }

@@ -11,7 +11,8 @@ import { ListSkeleton } from '../../components/ui/skeleton';
 import { toast } from '../../components/ui/toast';
 import { useMe } from '../../features/auth/api/get-me';
 import { reviewQueryOptions, useReview } from '../../features/review/api/get-review';
-import { reviewRunQueryOptions, useReviewRuns } from '../../features/review/api/get-run';
+import { useReviewRuns } from '../../features/review/api/get-run';
+import { runQueryOptions } from '../../lib/run-query';
 import { reviewTraceQueryOptions, useReviewTrace, type TraceWindow } from '../../features/review/api/get-trace';
 import { getRevision } from '../../features/review/api/sign-job';
 import { PointTable } from '../../features/review/components/point-table';
@@ -32,7 +33,7 @@ export const createLoader =
     void queryClient.fetchQuery(reviewQueryOptions(params.id!)).then((b) => {
       const first = defaultRunId(b.job.runs);
       if (!first) return;
-      void queryClient.prefetchQuery(reviewRunQueryOptions(first));
+      void queryClient.prefetchQuery(runQueryOptions(first));
       void queryClient.prefetchQuery(reviewTraceQueryOptions(first, null));
     }, () => {});
     return null;

@@ -1,24 +1,16 @@
-import { queryOptions, useQueries, useQuery } from '@tanstack/react-query';
-import { RunSchema, type Run } from '../../../../shared/schemas/runs';
-import { api } from '../../../lib/api-client';
-import { queryKeys } from '../../../lib/query-keys';
+import { useQueries, useQuery } from '@tanstack/react-query';
+import type { Run } from '../../../../shared/schemas/runs';
+import { runQueryOptions } from '../../../lib/run-query';
 
-/** GET /api/runs/:id → plan, point states, captured values and results. */
-export function getRun(id: string, signal?: AbortSignal): Promise<Run> {
-  return api.get(`/api/runs/${encodeURIComponent(id)}`, { schema: RunSchema, ...(signal ? { signal } : {}) });
-}
+export { runQueryOptions } from '../../../lib/run-query';
 
-export function runQueryOptions(id: string) {
-  // Stream events patch and invalidate this; the slow poll only covers a stream that is down.
-  return queryOptions({ queryKey: queryKeys.run(id), queryFn: ({ signal }) => getRun(id, signal), staleTime: 2_000, refetchInterval: 15_000 });
-}
-
+/** The run on the capture screen: the stream keeps it current; the slow poll only covers a stream that is down. */
 export function useRun(id: string) {
-  return useQuery(runQueryOptions(id));
+  return useQuery({ ...runQueryOptions(id), refetchInterval: 15_000 });
 }
 
 /** Several runs at once (the job page shows every run of the job). */
 export function useRuns(ids: readonly string[]): Run[] {
-  const results = useQueries({ queries: ids.map((id) => ({ ...runQueryOptions(id), refetchInterval: false as const })) });
+  const results = useQueries({ queries: ids.map((id) => runQueryOptions(id)) });
   return results.flatMap((r) => (r.data ? [r.data] : []));
 }

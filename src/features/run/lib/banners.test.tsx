@@ -1,5 +1,6 @@
 import { cleanup, render } from '@testing-library/react';
 import { afterEach, describe, expect, it } from 'vitest';
+import { BACK_OFF_WINDOWS, backOffTarget } from '../../../../shared/calc/approach';
 import type { Run, RunPoint } from '../../../../shared/schemas/runs';
 import { buildBanners, type BannerInputs } from './banners';
 
@@ -59,6 +60,16 @@ describe('buildBanners', () => {
     expect(over!.message).toBe('The applied DP went past the target of point 2 on the approach.');
     const { container } = render(<>{over!.action}</>);
     expect(container.textContent).toBe('Re-approach from below: go back to about 24.7 kPa, then raise the pressure slowly to the target without passing it.');
+  });
+
+  it('sends an overshoot on the way down above the target, to the back-off target the engine uses', () => {
+    const current = point({ approach: 'down', targetDp: 40, window: 0.25 });
+    const [over] = buildBanners(inputs({ current, liveWarnings: [warning('overshoot', 1)] }));
+    const { container } = render(<>{over!.action}</>);
+    // The one rule (shared/calc/approach.ts): BACK_OFF_WINDOWS windows past the target on the approach side.
+    expect(BACK_OFF_WINDOWS).toBe(3);
+    expect(backOffTarget(current)).toBe(40.75);
+    expect(container.textContent).toBe('Re-approach from above: go back to about 40.75 kPa, then lower the pressure slowly to the target without passing it.');
   });
 
   it('adds what the page sees itself, most urgent first', () => {

@@ -5,6 +5,7 @@
  * one banner per kind, most urgent first, each with what to do where there is something to do.
  */
 import type { ReactNode } from 'react';
+import { backOffTarget } from '../../../../shared/calc/approach';
 import type { Run, RunPoint } from '../../../../shared/schemas/runs';
 import { formatNumber } from '../../../lib/format';
 import type { LiveStatus } from '../../../lib/live-stream';
@@ -60,7 +61,7 @@ export function buildBanners({ run, current, liveWarnings, devices, values, stre
     // The action below says where to go and from which side; the message only says what happened.
     over.message = `The applied DP went past the target of point ${current.index + 1} on the approach.`;
     const side = current.approach === 'up' ? 'below' : 'above';
-    const past = current.approach === 'up' ? current.targetDp - 3 * current.window : current.targetDp + 3 * current.window;
+    const past = backOffTarget(current);
     over.action = (
       <>
         Re-approach from {side}: go back to about <span className="num">{formatNumber(past, dpDecimals)}</span> {unitLabel}, then {current.approach === 'up' ? 'raise' : 'lower'} the
