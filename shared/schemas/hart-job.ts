@@ -1,0 +1,91 @@
+/**
+ * HART in the job: what the preparation read from the transmitter (identity, commands 0 and 13;
+ * configuration, command 15), how it compares with the register, how a mismatch was resolved, and
+ * every write command sent with who asked and when. One value per job (`GET /api/jobs/:id/hart`);
+ * frozen into the record at submission.
+ */
+import { z } from 'zod';
+
+/** Identity from commands 0 and 13. */
+export const HartIdentityViewSchema = z.object({
+  manufacturerId: z.number().int().nullable(),
+  expandedDeviceType: z.number().int(),
+  deviceId: z.number().int(),
+  universalRevision: z.number().int(),
+  deviceRevision: z.number().int(),
+  softwareRevision: z.number().int(),
+  tag: z.string(),
+  descriptor: z.string(),
+});
+export type HartIdentityView = z.infer<typeof HartIdentityViewSchema>;
+
+/** Configuration from command 15 (range in the device's own unit). */
+export const HartConfigViewSchema = z.object({
+  /** Unit id (shared/calc) of the device's range unit code, or null when Stillpoint does not map the code. */
+  unit: z.string().nullable(),
+  unitCode: z.number().int(),
+  lrv: z.number(),
+  urv: z.number(),
+  /** Common table 3: 0 linear, 1 square root. */
+  transferFunctionCode: z.number().int(),
+  transferFunction: z.string(),
+  dampingS: z.number(),
+  writeProtect: z.boolean(),
+  alarmSelection: z.number().int(),
+});
+export type HartConfigView = z.infer<typeof HartConfigViewSchema>;
+
+export const HART_CHECK_FIELDS = ['tag', 'unit', 'range', 'transfer-function'] as const;
+export type HartCheckField = (typeof HART_CHECK_FIELDS)[number];
+
+/** One disagreement between the device and the register, in words. */
+export const HartMismatchSchema = z.object({
+  field: z.enum(HART_CHECK_FIELDS),
+  device: z.string(),
+  register: z.string(),
+  message: z.string(),
+});
+export type HartMismatch = z.infer<typeof HartMismatchSchema>;
+
+const StampSchema = z.object({ by: z.string(), byName: z.string(), at: z.string() });
+
+/** What a write command sent and got back, and who asked for it. */
+export const HartWriteSchema = z.object({
+  command: z.number().int(),
+  name: z.string(),
+  /** The value sent, in words (e.g. `4.0012 mA`), or null for a command without data. */
+  value: z.string().nullable(),
+  request: z.string(),
+  reply: z.string().nullable(),
+  responseCode: z.number().int().nullable(),
+  outcome: z.enum(['ok', 'error']),
+  error: z.string().nullable(),
+  at: z.string(),
+  by: z.string(),
+  byName: z.string(),
+  /** The run or step it belonged to (e.g. `output-trim`), or null. */
+  step: z.string().nullable(),
+});
+export type HartWrite = z.infer<typeof HartWriteSchema>;
+
+/** A reading of the device's configuration at one moment. */
+export const HartReadingSchema = z.object({ identity: HartIdentityViewSchema, config: HartConfigViewSchema, at: z.string() });
+export type HartReading = z.infer<typeof HartReadingSchema>;
+
+/** A job's HART state. `asFound` null: not read yet. */
+export const JobHartSchema = z.object({
+  /** Whether the bench this server runs has a HART modem the job uses. */
+  available: z.boolean(),
+  asFound: HartReadingSchema.nullable(),
+  asLeft: HartReadingSchema.nullable(),
+  mismatches: z.array(HartMismatchSchema),
+  /** How the mismatches were resolved: register corrected, or device recorded as found; null while open. */
+  resolution: StampSchema.extend({ kind: z.enum(['register-corrected', 'recorded-as-found']), reason: z.string(), mismatches: z.array(HartMismatchSchema) }).nullable(),
+  writes: z.array(HartWriteSchema),
+  /** What blocks a run, in words (empty when nothing). */
+  blockers: z.array(z.string()),
+});
+export type JobHart = z.infer<typeof JobHartSchema>;
+
+/** Body of the resolutions: a reason of at least 5 characters. */
+export const HartReasonBodySchema = z.object({ reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500) });
