@@ -18,6 +18,8 @@ import { useStartRun } from '../../features/jobs/api/start-run';
 import { useSubmitJob } from '../../features/jobs/api/submit-job';
 import { useUpdateChecklist } from '../../features/jobs/api/update-checklist';
 import { PreparationPanel } from '../../features/jobs/components/preparation-panel';
+import { HartPanel } from '../../features/jobs/components/hart-panel';
+import { queryKeys } from '../../lib/query-keys';
 import { JobPhotos, StandardCertificates } from '../../features/jobs/components/job-files';
 import { ReturnNoticeBanner } from '../../features/jobs/components/return-notice';
 import { ReturnPanel } from '../../features/jobs/components/return-panel';
@@ -95,7 +97,11 @@ export function Component() {
     setStarting(trim ?? kind);
     start.mutate({ kind, ...(trim ? { trim } : {}), ...(browserBench ? { benchId: browserBench } : {}) }, {
       onSuccess: (run) => void navigate(`/runs/${run.id}`),
-      onError: (e) => toast('The run did not start', { tone: 'error', description: isApiError(e) || e instanceof Error ? e.message : undefined }),
+      onError: (e) => {
+        toast('The run did not start', { tone: 'error', description: isApiError(e) || e instanceof Error ? e.message : undefined });
+        // A refusal may come from the HART check the start made: show what it read.
+        void queryClient.invalidateQueries({ queryKey: queryKeys.job(id) });
+      },
       onSettled: () => setStarting(null),
     });
   };
@@ -150,6 +156,7 @@ export function Component() {
       <div className="flex flex-col gap-5">
         <StepSection step={step('preparation')} index={indexOf('preparation')} description="Choose the standards, record the permit and any interlock bypass, and confirm the loop is safe to work on.">
           <PreparationPanel job={j} register={register.data?.items} canEdit={canEdit} save={save} saving={checklist.isPending} />
+          <HartPanel jobId={id} canEdit={canEdit} />
         </StepSection>
 
         <StepSection
