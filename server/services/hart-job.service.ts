@@ -6,7 +6,7 @@
  * here too (hart-writes.ts), so the record and the audit trail carry them.
  */
 import { HART_TRANSFER_FUNCTIONS, unitOfCode, type HartDeviceInformation, type HartIdentity, type HartTagDescriptorDate } from '../../shared/protocol/hart';
-import type { HartMismatch, HartReading, JobHart } from '../../shared/schemas/hart-job';
+import type { HartMismatch, HartPoint, HartReading, JobHart } from '../../shared/schemas/hart-job';
 import type { OutputMode } from '../../shared/schemas/instruments';
 import type { HartModem } from '../bench/hart-modem';
 import type { Db } from '../db/client';
@@ -16,6 +16,8 @@ import { badRequest, conflict, forbidden, locked, notFound } from '../errors';
 import type { AuditService } from './audit.service';
 import type { SessionUser } from './auth.service';
 import { compareHartWithRegister, correctedRegister, type RegisterView } from './hart-compare';
+import { hartPointOf, type HartPointContext } from './hart-point';
+import type { PointCapture } from '../../shared/schemas/runs';
 
 export interface HartJobOptions {
   /** Whether runs on the local bench use its HART device (HART_IN_JOB; see env.ts). */
@@ -175,6 +177,12 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
         row = await repo.get(jobId);
       }
       return blockersOf(row);
+    },
+
+    /** The device's digital PV and loop current over a point's hold, on the local bench with HART in use. */
+    pointAtCapture(benchId: string, capture: PointCapture, ctx: HartPointContext): HartPoint | undefined {
+      const modem = benchId === o.benchId ? modemOf() : undefined;
+      return modem ? hartPointOf(modem.readings, capture, ctx) : undefined;
     },
 
     /** The job's stored HART record (for the frozen record). */

@@ -6,6 +6,24 @@
  */
 import { z } from 'zod';
 
+/**
+ * What a captured point keeps of the HART device (PointCapture `hart`): the digital PV and the loop
+ * current the device reports (command 3), means over the readings in the hold window, and the
+ * digital and analog (D/A) errors of shared/calc `hartPointErrors`.
+ */
+export const HartPointSchema = z.object({
+  /** Digital PV, run unit. */
+  pv: z.number(),
+  /** Loop current the device says it drives, mA. */
+  loopMa: z.number(),
+  /** Command 3 readings averaged. */
+  n: z.number().int(),
+  digitalErrorPctSpan: z.number(),
+  analogErrorMa: z.number(),
+  analogErrorPctSpan: z.number(),
+});
+export type HartPoint = z.infer<typeof HartPointSchema>;
+
 /** Identity from commands 0 and 13. */
 export const HartIdentityViewSchema = z.object({
   manufacturerId: z.number().int().nullable(),
