@@ -5,6 +5,7 @@ CREATE TABLE "job_hart" (
 	"mismatches" jsonb DEFAULT '[]'::jsonb NOT NULL,
 	"resolution" jsonb,
 	"writes" jsonb DEFAULT '[]'::jsonb NOT NULL,
+	"trims" jsonb DEFAULT '[]'::jsonb NOT NULL,
 	"updated_at" timestamp with time zone DEFAULT now() NOT NULL
 );
 --> statement-breakpoint

@@ -201,16 +201,21 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const runRepo = runRepository(database.db);
     // HART in the job: the local bench's modem is read late (the bench starts below).
     const benchRef: { current?: BenchService } = {};
+    const runsRef: { current?: RunService } = {};
     const hartJob = createHartJobService(database.db, services.audit, {
       enabled: (env.HART_IN_JOB ?? (mode === 'serial' && env.BENCH_HART_PORT ? 'on' : 'off')) === 'on',
       benchId: o.benchId ?? DEFAULT_BENCH_ID,
       modem: () => benchRef.current?.hart(),
+      hub,
+      holdMs: env.HOLD_SECONDS * 1000,
+      activeRunOn: (b) => runsRef.current?.engines.activeRunId(b) ?? undefined,
     });
     const runs = createRunService(
       database.db,
       { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo, hart: hartJob },
       { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn },
     );
+    runsRef.current = runs;
     // The local bench's devices: the simulated rig's binding, or real serial ports.
     rig = mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
     const paths = o.noLocalDevices ? undefined : rig ? SIM_PATHS : (o.serialPaths ?? serialPaths(env));
@@ -300,6 +305,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
             server.close(() => resolve());
             for (const s of sockets) s.destroy();
           });
+          // Any HART trim is aborted and fixed current left while the modem is still open.
+          await hartJob.stop();
           await bench.stop();
           sim.close();
           rig?.dispose();

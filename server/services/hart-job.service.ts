@@ -6,9 +6,12 @@
  * here too (hart-writes.ts), so the record and the audit trail carry them.
  */
 import { HART_TRANSFER_FUNCTIONS, unitOfCode, type HartDeviceInformation, type HartIdentity, type HartTagDescriptorDate } from '../../shared/protocol/hart';
-import type { HartMismatch, HartPoint, HartReading, JobHart } from '../../shared/schemas/hart-job';
+import type { HartMismatch, HartPoint, HartReading, HartTrim, HartWrite, JobHart } from '../../shared/schemas/hart-job';
 import type { OutputMode } from '../../shared/schemas/instruments';
 import type { HartModem } from '../bench/hart-modem';
+import type { BenchHub } from '../bench/hub';
+import { createHartTrims } from './hart-trim.service';
+import { createHartWriteLog } from './hart-writes';
 import type { Db } from '../db/client';
 import { hartRepository, type JobHartRow } from '../db/repositories/hart.repository';
 import { instrumentRepository, jobRepository } from '../db/repositories/register.repository';
@@ -26,6 +29,12 @@ export interface HartJobOptions {
   benchId: string;
   /** The local bench's HART modem, when it has one (read late: the bench starts after the services). */
   modem: () => HartModem | undefined;
+  /** The hub (the meter's samples for the trims' holds). */
+  hub: BenchHub;
+  /** Hold time of the meter at each trim level, ms. */
+  holdMs: number;
+  /** The run active on a bench, if any (no trim while a run captures). */
+  activeRunOn: (benchId: string) => string | undefined;
 }
 
 /** The device's reading in the record's words. */
@@ -70,6 +79,24 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
   const instruments = instrumentRepository(db);
 
   const modemOf = () => (o.enabled ? o.modem() : undefined);
+  /** Appends to a job's stored lists one at a time (read, change, write). */
+  let chain: Promise<unknown> = Promise.resolve();
+  const serial = <T>(fn: () => Promise<T>): Promise<T> => {
+    const next = chain.then(fn);
+    chain = next.catch(() => {});
+    return next;
+  };
+  const log = createHartWriteLog({
+    driver: () => modemOf()?.driver,
+    audit,
+    append: (jobId: string, w: HartWrite) => serial(async () => repo.put(jobId, { writes: [...(await repo.get(jobId)).writes, w] })),
+  });
+  const saveTrim = (jobId: string, t: HartTrim) =>
+    serial(async () => {
+      const trims = (await repo.get(jobId)).trims.filter((x) => x.id !== t.id);
+      await repo.put(jobId, { trims: [...trims, structuredClone(t)] });
+    });
+  const trims = createHartTrims({ hub: o.hub, benchId: o.benchId, holdMs: o.holdMs, log, save: saveTrim, ended: (jobId, actor) => afterTrim(actor, jobId) });
 
   async function registerOf(jobId: string): Promise<RegisterView & { id: string; cutoffMode: string }> {
     const job = await jobs.get(jobId);
@@ -103,6 +130,7 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
 
   function blockersOf(row: JobHartRow): string[] {
     if (!modemOf()) return [];
+    if (trims.current(row.jobId)?.status === 'running') return ['A HART trim is running: let it finish or abort it'];
     if (!row.asFound) return ['Read the HART device\u2019s identity and configuration'];
     if (covered(row.mismatches, row.resolution)) return [];
     return [`The HART device disagrees with the register: ${row.mismatches.map((m) => m.message).join('; ')}. Correct the register or record the device as found, with a reason`];
@@ -110,7 +138,19 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
 
   async function view(jobId: string): Promise<JobHart> {
     const row = await repo.get(jobId);
-    return { available: !!modemOf(), asFound: row.asFound, asLeft: row.asLeft, mismatches: row.mismatches, resolution: row.resolution, writes: row.writes, blockers: blockersOf(row) };
+    const live = trims.current(jobId);
+    const stored = row.trims.map((t) => (live && t.id === live.id ? live : t));
+    return {
+      available: !!modemOf(),
+      asFound: row.asFound,
+      asLeft: row.asLeft,
+      mismatches: row.mismatches,
+      resolution: row.resolution,
+      writes: row.writes,
+      trims: stored,
+      loopCurrentFixed: modemOf()?.driver.loopCurrentFixed ?? false,
+      blockers: blockersOf(row),
+    };
   }
 
   /** Reads the device and compares; the first reading of the job is its configuration as found. */
@@ -121,9 +161,16 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
     const mismatches = compareHartWithRegister(reading.identity, reading.config, register);
     const row = await repo.get(jobId);
     const first = !row.asFound;
-    await repo.put(jobId, { ...(first ? { asFound: reading } : {}), mismatches });
+    // The first reading is the configuration as found; later ones are the configuration as left.
+    await repo.put(jobId, { ...(first ? { asFound: reading } : { asLeft: reading }), mismatches });
     await audit.record(actor, 'job.hart-read', 'job', jobId, undefined, { reading, mismatches, asFound: first });
     return view(jobId);
+  }
+
+  /** After a trim: the configuration as left, read again (kept when the device answers). */
+  async function afterTrim(actor: SessionUser, jobId: string): Promise<void> {
+    if (!(await repo.get(jobId)).asFound) return;
+    await check(actor, jobId).catch(() => {});
   }
 
   return {
@@ -184,6 +231,39 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
       const modem = benchId === o.benchId ? modemOf() : undefined;
       return modem ? hartPointOf(modem.readings, capture, ctx) : undefined;
     },
+
+    /** Starts the hands-free output trim (cautions confirmed in the body's schema). */
+    async outputTrim(actor: SessionUser, jobId: string): Promise<JobHart> {
+      await mustPrepare(actor, jobId);
+      const modem = modemOf();
+      if (!modem) throw conflict('This bench has no HART modem in use');
+      const active = o.activeRunOn(o.benchId);
+      if (active) throw conflict('A run is active on the bench: finish or abort it before trimming the output');
+      await trims.startOutputTrim(jobId, actor, modem.driver);
+      return view(jobId);
+    },
+
+    /** Aborts the running trim; answers once fixed current is left. */
+    async abortTrim(actor: SessionUser, jobId: string): Promise<JobHart> {
+      await mustPrepare(actor, jobId);
+      const t = await trims.abort(jobId);
+      if (!t) throw conflict('No trim is running for this job');
+      return view(jobId);
+    },
+
+    /** Command 43 with zero pressure held. */
+    async zeroTrim(actor: SessionUser, jobId: string): Promise<JobHart> {
+      await mustPrepare(actor, jobId);
+      const modem = modemOf();
+      if (!modem) throw conflict('This bench has no HART modem in use');
+      if (o.activeRunOn(o.benchId)) throw conflict('A run is active on the bench: finish or abort it before the zero trim');
+      await trims.zeroTrim(jobId, actor, modem.driver);
+      await afterTrim(actor, jobId);
+      return view(jobId);
+    },
+
+    /** Server stop: every trim aborted and fixed current left before the bench closes. */
+    stop: () => trims.stop(),
 
     /** The job's stored HART record (for the frozen record). */
     record: (jobId: string) => repo.get(jobId),

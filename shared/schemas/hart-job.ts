@@ -90,6 +90,41 @@ export type HartWrite = z.infer<typeof HartWriteSchema>;
 export const HartReadingSchema = z.object({ identity: HartIdentityViewSchema, config: HartConfigViewSchema, at: z.string() });
 export type HartReading = z.infer<typeof HartReadingSchema>;
 
+/** A trim done by command: the loop-current (output) trim or the PV zero trim, with its readings. */
+export const HartTrimSchema = z.object({
+  id: z.string(),
+  kind: z.enum(['output-trim', 'zero-trim']),
+  status: z.enum(['running', 'done', 'failed', 'aborted']),
+  /** What it is doing or did last, in words. */
+  step: z.string(),
+  /** The loop current the device is fixed at now, mA, or null when not fixed. */
+  fixedMa: z.number().nullable(),
+  /** Meter readings held at each fixed level: the two trim points, then the verification at 4, 12 and 20 mA. */
+  readings: z.array(z.object({ stage: z.enum(['trim', 'verify']), fixedMa: z.number(), meterMa: z.number(), errorMa: z.number() })),
+  /** Zero trim: the digital PV before and after command 43, device unit. */
+  pvBefore: z.number().nullable().optional(),
+  pvAfter: z.number().nullable().optional(),
+  error: z.string().nullable(),
+  startedAt: z.string(),
+  endedAt: z.string().nullable(),
+  by: z.string(),
+  byName: z.string(),
+  /** What the technician confirmed before the device was written to. */
+  confirmed: z.array(z.string()),
+});
+export type HartTrim = z.infer<typeof HartTrimSchema>;
+
+/** Body of `POST /api/jobs/:id/hart/output-trim`: the cautions confirmed. */
+export const OutputTrimBodySchema = z.object({
+  loopInManual: z.literal(true, { error: 'Confirm the loop is in manual (or its output is not used for control)' }),
+  operatorsInformed: z.literal(true, { error: 'Confirm the operators are informed that the loop current will move' }),
+});
+
+/** Body of `POST /api/jobs/:id/hart/zero-trim`: zero pressure applied and held (both sides vented or equalised). */
+export const ZeroTrimBodySchema = z.object({
+  zeroHeld: z.literal(true, { error: 'Confirm zero pressure is applied and held' }),
+});
+
 /** A job's HART state. `asFound` null: not read yet. */
 export const JobHartSchema = z.object({
   /** Whether the bench this server runs has a HART modem the job uses. */
@@ -100,6 +135,10 @@ export const JobHartSchema = z.object({
   /** How the mismatches were resolved: register corrected, or device recorded as found; null while open. */
   resolution: StampSchema.extend({ kind: z.enum(['register-corrected', 'recorded-as-found']), reason: z.string(), mismatches: z.array(HartMismatchSchema) }).nullable(),
   writes: z.array(HartWriteSchema),
+  /** Trims done by command, oldest first (the one running last). */
+  trims: z.array(HartTrimSchema),
+  /** The device's loop current is fixed now (Stillpoint asked for it, or the device says so). */
+  loopCurrentFixed: z.boolean(),
   /** What blocks a run, in words (empty when nothing). */
   blockers: z.array(z.string()),
 });

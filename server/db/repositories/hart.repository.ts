@@ -1,5 +1,5 @@
 import { eq } from 'drizzle-orm';
-import type { HartMismatch, HartReading, HartWrite, JobHart } from '../../../shared/schemas/hart-job';
+import type { HartMismatch, HartReading, HartTrim, HartWrite, JobHart } from '../../../shared/schemas/hart-job';
 import type { Db } from '../client';
 import { jobHart } from '../schema';
 
@@ -11,9 +11,10 @@ export interface JobHartRow {
   mismatches: HartMismatch[];
   resolution: JobHart['resolution'];
   writes: HartWrite[];
+  trims: HartTrim[];
 }
 
-const EMPTY = (jobId: string): JobHartRow => ({ jobId, asFound: null, asLeft: null, mismatches: [], resolution: null, writes: [] });
+const EMPTY = (jobId: string): JobHartRow => ({ jobId, asFound: null, asLeft: null, mismatches: [], resolution: null, writes: [], trims: [] });
 
 export function hartRepository(db: Db) {
   return {
@@ -27,6 +28,7 @@ export function hartRepository(db: Db) {
         mismatches: (row.mismatches ?? []) as HartMismatch[],
         resolution: (row.resolution ?? null) as JobHart['resolution'],
         writes: (row.writes ?? []) as HartWrite[],
+        trims: (row.trims ?? []) as HartTrim[],
       };
     },
     /** Stores the given fields (creating the row on first use). */

@@ -15,5 +15,6 @@ export const jobHart = pgTable('job_hart', {
   mismatches: jsonb('mismatches').notNull().default([]),
   resolution: jsonb('resolution'),
   writes: jsonb('writes').notNull().default([]),
+  trims: jsonb('trims').notNull().default([]),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 });

@@ -1,4 +1,4 @@
-import { HartReasonBodySchema } from '../../../../shared/schemas/hart-job';
+import { HartReasonBodySchema, OutputTrimBodySchema, ZeroTrimBodySchema } from '../../../../shared/schemas/hart-job';
 import { IdParamSchema } from '../../../../shared/schemas/users';
 import type { HartJobService } from '../../../services/hart-job.service';
 import { currentUser } from '../../middleware/auth';
@@ -23,6 +23,17 @@ export function hartRoutes(hart: HartJobService) {
   t.add('post', '/jobs/:id/hart/as-found', 'jobs.perform', validate(reasoned), async (_req, res) => {
     const { params, body } = input(res, reasoned);
     res.json(await hart.recordAsFound(currentUser(res), params.id, body.reason));
+  });
+  const outputTrim = { params: IdParamSchema, body: OutputTrimBodySchema };
+  t.add('post', '/jobs/:id/hart/output-trim', 'jobs.perform', validate(outputTrim), async (_req, res) => {
+    res.status(202).json(await hart.outputTrim(currentUser(res), input(res, outputTrim).params.id));
+  });
+  t.add('post', '/jobs/:id/hart/output-trim/abort', 'jobs.perform', validate(one), async (_req, res) => {
+    res.json(await hart.abortTrim(currentUser(res), input(res, one).params.id));
+  });
+  const zeroTrim = { params: IdParamSchema, body: ZeroTrimBodySchema };
+  t.add('post', '/jobs/:id/hart/zero-trim', 'jobs.perform', validate(zeroTrim), async (_req, res) => {
+    res.json(await hart.zeroTrim(currentUser(res), input(res, zeroTrim).params.id));
   });
   return t;
 }
