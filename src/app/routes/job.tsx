@@ -19,6 +19,7 @@ import { useSubmitJob } from '../../features/jobs/api/submit-job';
 import { useUpdateChecklist } from '../../features/jobs/api/update-checklist';
 import { PreparationPanel } from '../../features/jobs/components/preparation-panel';
 import { HartPanel } from '../../features/jobs/components/hart-panel';
+import { HartTrimPanel } from '../../features/jobs/components/hart-trim-panel';
 import { queryKeys } from '../../lib/query-keys';
 import { JobPhotos, StandardCertificates } from '../../features/jobs/components/job-files';
 import { ReturnNoticeBanner } from '../../features/jobs/components/return-notice';
@@ -229,6 +230,7 @@ export function Component() {
           ) : (
             <p className="text-sm text-ink-muted">Loading the instrument…</p>
           )}
+          <HartTrimPanel jobId={id} canAct={canRun} />
         </StepSection>
 
         <StepSection step={step('as-left')} index={indexOf('as-left')} description="The transmitter as it is left: the same points again after the trims.">

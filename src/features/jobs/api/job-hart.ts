@@ -30,3 +30,22 @@ export function useJobHartAction(jobId: string) {
     },
   });
 }
+
+/** GET while a trim runs: polled so the "loop current fixed" state and the steps show as they happen. */
+export function useJobHartLive(jobId: string) {
+  return useQuery({ ...jobHartQueryOptions(jobId), refetchInterval: (q) => (q.state.data?.trims.at(-1)?.status === 'running' || q.state.data?.loopCurrentFixed ? 500 : false) });
+}
+
+/** POST output-trim (cautions confirmed), output-trim/abort, zero-trim (zero held). */
+export function useHartTrimAction(jobId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (kind: 'output-trim' | 'abort' | 'zero-trim'): Promise<JobHart> =>
+      kind === 'output-trim'
+        ? api.post(`${base(jobId)}/output-trim`, { loopInManual: true, operatorsInformed: true }, { schema: JobHartSchema })
+        : kind === 'abort'
+          ? api.post(`${base(jobId)}/output-trim/abort`, {}, { schema: JobHartSchema })
+          : api.post(`${base(jobId)}/zero-trim`, { zeroHeld: true }, { schema: JobHartSchema }),
+    onSuccess: (h) => qc.setQueryData(hartKey(jobId), h),
+  });
+}
