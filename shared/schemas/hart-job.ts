@@ -146,3 +146,7 @@ export type JobHart = z.infer<typeof JobHartSchema>;
 
 /** Body of the resolutions: a reason of at least 5 characters. */
 export const HartReasonBodySchema = z.object({ reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500) });
+
+/** What the frozen record keeps of the job's HART device (shared/schemas/records `hart`). */
+export const FrozenHartSchema = JobHartSchema.omit({ available: true, loopCurrentFixed: true, blockers: true });
+export type FrozenHart = z.infer<typeof FrozenHartSchema>;

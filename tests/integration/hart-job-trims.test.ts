@@ -7,7 +7,10 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { JobHart } from '../../shared/schemas/hart-job';
+import { certificateFromRecord } from '../../server/certificates/certificate-record';
+import { createRecordFreezer, frozenRecordHash } from '../../server/services/record-snapshot';
 import { readyForRun } from '../helpers/e2e';
+import { passingAsFound } from './records-helpers';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 let srv: TestServer | undefined;
@@ -113,7 +116,31 @@ describe('HART output trim, hands-free', () => {
     expect(h.writes.at(-1)).toMatchObject({ command: 43, outcome: 'ok', step: 'zero-trim' });
   });
 
+  it('the submission freezes the HART record (identity, as found and as left, every write) under the record hash, and the certificate is built from it', async () => {
+    const techId = ((await tech.get('/api/auth/me')).body as { id: string }).id;
+    await passingAsFound(srv!, jobId, 'FT-101', techId);
+    expect((await tech.req('PUT', `/api/jobs/${jobId}/checklist`, { returnedToService: true })).status).toBe(200);
+    const live = await hart();
+    const sub = await tech.post(`/api/jobs/${jobId}/submit`, {});
+    expect(sub.status).toBe(200);
+    const stored = await createRecordFreezer(srv!.database.db, srv!.services.audit).stored(jobId, sub.body.revision as number);
+    const record = stored!.record;
+    expect(record.hart?.asFound?.identity).toMatchObject({ tag: 'FT-101', deviceId: 0x00b2c7 });
+    expect(record.hart?.asLeft).not.toBeNull();
+    expect(record.hart?.writes).toEqual(live.writes);
+    expect(record.hart?.writes.map((w) => w.command)).toContain(43);
+    expect(frozenRecordHash(record)).toBe(stored!.hash);
+    // Changing a write changes the hash: the hash covers them.
+    const tampered = structuredClone(record);
+    tampered.hart!.writes[1]!.value = '4.0000 mA';
+    expect(frozenRecordHash(tampered)).not.toBe(stored!.hash);
+    const cert = certificateFromRecord(record, { signatures: [], approved: false });
+    expect(cert.hart?.writes.length).toBe(live.writes.length);
+  }, 60_000);
+
   it('stopping the server during a trim leaves fixed current', async () => {
+    // Another job of the technician's (this one is submitted and locked).
+    jobId = await readyForRun(tech, 'PTW-HART-4', 'FT-102');
     expect((await tech.post(`/api/jobs/${jobId}/hart/output-trim`, CONFIRM)).status).toBe(202);
     await until((x) => x.trims.at(-1)?.status === 'running' && x.trims.at(-1)?.fixedMa != null, 'the loop to be fixed', 20_000);
     const rig = srv!.rig!;
