@@ -113,7 +113,8 @@ export function createHartTrims(d: HartTrimDeps) {
         .catch(() => {})
         .finally(() => {
           driver.off('port.status', onPort);
-          running.delete(jobId);
+          // Only this trim's entry: a next trim may have started while this one was being wrapped up.
+          if (running.get(jobId)?.trim === trim) running.delete(jobId);
         });
       running.set(jobId, { trim, abort, done });
       return trim;

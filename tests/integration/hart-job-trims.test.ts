@@ -134,7 +134,7 @@ describe('HART output trim, hands-free', () => {
     const tampered = structuredClone(record);
     tampered.hart!.writes[1]!.value = '4.0000 mA';
     expect(frozenRecordHash(tampered)).not.toBe(stored!.hash);
-    const cert = certificateFromRecord(record, { signatures: [], approved: false });
+    const cert = certificateFromRecord(record, { signatures: [], approved: false, draftDate: '2026-12-03' });
     expect(cert.hart?.writes.length).toBe(live.writes.length);
   }, 60_000);
 
