@@ -5,10 +5,11 @@
  * device as found, each with a reason, audited and kept with the job. Write commands are logged
  * here too (hart-writes.ts), so the record and the audit trail carry them.
  */
-import { HART_TRANSFER_FUNCTIONS, unitOfCode, type HartDeviceInformation, type HartIdentity, type HartTagDescriptorDate } from '../../shared/protocol/hart';
+import { CMD80_TRIM_POINTS, HART_TRANSFER_FUNCTIONS, unitOfCode, type HartDeviceInformation, type HartIdentity, type HartTagDescriptorDate } from '../../shared/protocol/hart';
 import type { HartMismatch, HartPoint, HartReading, HartTrim, HartWrite, JobHart } from '../../shared/schemas/hart-job';
 import type { OutputMode } from '../../shared/schemas/instruments';
 import type { HartModem } from '../bench/hart-modem';
+import { HartResponseError } from '../bench/protocols';
 import type { BenchHub } from '../bench/hub';
 import { createHartTrims } from './hart-trim.service';
 import { createHartWriteLog } from './hart-writes';
@@ -122,7 +123,15 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
       const identity = await d.identify();
       const tag = (await d.readTagDescriptorDate()).value;
       const info = (await d.readDeviceInformation()).value;
-      return readingOf(identity, tag, info, new Date());
+      // Sensor trim points (command 80, device variable 0): offered, or "command not implemented" (64).
+      let sensorTrim: HartReading['sensorTrim'] = 'unknown';
+      try {
+        await d.send(CMD80_TRIM_POINTS, { deviceVariable: 0 });
+        sensorTrim = 'yes';
+      } catch (e) {
+        if (e instanceof HartResponseError && e.responseCode === 64) sensorTrim = 'no';
+      }
+      return { ...readingOf(identity, tag, info, new Date()), sensorTrim };
     } catch (e) {
       throw conflict(`The HART device did not answer: ${(e as Error).message}`);
     }

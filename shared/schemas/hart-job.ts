@@ -87,7 +87,13 @@ export const HartWriteSchema = z.object({
 export type HartWrite = z.infer<typeof HartWriteSchema>;
 
 /** A reading of the device's configuration at one moment. */
-export const HartReadingSchema = z.object({ identity: HartIdentityViewSchema, config: HartConfigViewSchema, at: z.string() });
+export const HartReadingSchema = z.object({
+  identity: HartIdentityViewSchema,
+  config: HartConfigViewSchema,
+  at: z.string(),
+  /** Whether the device answers command 80 (sensor trim points): `no` when it says "command not implemented". Absent on older readings. */
+  sensorTrim: z.enum(['yes', 'no', 'unknown']).optional(),
+});
 export type HartReading = z.infer<typeof HartReadingSchema>;
 
 /** A trim done by command: the loop-current (output) trim or the PV zero trim, with its readings. */

@@ -41,6 +41,8 @@ describe('HART identity and configuration check before a run', () => {
     expect(h.available).toBe(true);
     expect(h.asFound).toMatchObject({ identity: { tag: 'FT-101', descriptor: 'SIM DP FLOW', deviceId: 0x00b2c7, expandedDeviceType: 0x3a51 }, config: { unit: 'inH2O@68F', lrv: 0, urv: 100, transferFunctionCode: 0, writeProtect: false } });
     expect(h.mismatches.map((m) => m.field)).toEqual(['transfer-function']);
+    // The simulated device answers command 80 with "command not implemented": no sensor trim points.
+    expect(h.asFound?.sensorTrim).toBe('no');
     expect(h.blockers[0]).toMatch(/Transfer function: the device is set to linear, the register says square root in the transmitter/);
   });
 

@@ -90,7 +90,13 @@ export function HartTrimPanel({ jobId, canAct }: { jobId: string; canAct: boolea
           )}
         </div>
       )}
-      <p className="text-xs text-ink-muted">This transmitter’s sensor trim points (commands 80–83) are not offered by the device: use the guided trims for the sensor.</p>
+      <p className="text-xs text-ink-muted" data-testid="hart-sensor-trim">
+        {h.asFound?.sensorTrim === 'no'
+          ? 'The device does not offer sensor trim points (command 80 is not implemented): use the guided trims above for the sensor.'
+          : h.asFound?.sensorTrim === 'yes'
+            ? 'The device offers sensor trim points (commands 80–83); Stillpoint does not send them yet: use the guided trims above for the sensor.'
+            : 'Sensor trims by command (80–83) are not offered here: use the guided trims above for the sensor.'}
+      </p>
       <Dialog
         open={confirm !== null}
         onClose={() => setConfirm(null)}
