@@ -36,6 +36,8 @@ import { seedDemo } from './demo/demo-seed';
 import { createHealth } from './services/health.service';
 import { createSessionEvents } from './services/session-events';
 import { createRunService, type RunService } from './services/run.service';
+import { createHartJobService, type HartJobService } from './services/hart-job.service';
+import { hartRoutes } from './http/routes/hart/hart.routes';
 import { runRepository, type RunRepository } from './db/repositories/run.repository';
 import { attachStreamServer, type StreamServer } from './ws/stream-server';
 
@@ -85,6 +87,7 @@ export interface Running {
   benches: BenchRegistry;
   forward: ForwardService;
   runs: RunService;
+  hartJob: HartJobService;
   /** The simulated rig (BENCH=sim with local devices), else undefined. */
   rig: SimRig | undefined;
   sim: SimController;
@@ -196,11 +199,23 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const benches = createBenchRegistry(database.db, services.audit, { localBenchId: o.benchId ?? DEFAULT_BENCH_ID });
     await benches.load();
     const runRepo = runRepository(database.db);
+    // HART in the job: the local bench's modem is read late (the bench starts below).
+    const benchRef: { current?: BenchService } = {};
+    const runsRef: { current?: RunService } = {};
+    const hartJob = createHartJobService(database.db, services.audit, {
+      enabled: (env.HART_IN_JOB ?? (mode === 'serial' && env.BENCH_HART_PORT ? 'on' : 'off')) === 'on',
+      benchId: o.benchId ?? DEFAULT_BENCH_ID,
+      modem: () => benchRef.current?.hart(),
+      hub,
+      holdMs: env.HOLD_SECONDS * 1000,
+      activeRunOn: (b) => runsRef.current?.engines.activeRunId(b) ?? undefined,
+    });
     const runs = createRunService(
       database.db,
-      { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo },
+      { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo, hart: hartJob },
       { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn },
     );
+    runsRef.current = runs;
     // The local bench's devices: the simulated rig's binding, or real serial ports.
     rig = mode === 'sim' && !o.noLocalDevices ? new SimRig({ seed: o.simSeed ?? 1, source: { timeConstantS: 1.5 } }) : undefined;
     const paths = o.noLocalDevices ? undefined : rig ? SIM_PATHS : (o.serialPaths ?? serialPaths(env));
@@ -217,6 +232,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       profile: o.profile,
     });
     benchToStop = bench;
+    benchRef.current = bench;
     const sim = createSimControl({ rig, hub, benchId: bench.benchId, runContext: () => runs.simContext(bench.benchId) });
     await bench.start();
     const forward = createForwardService(database.db, { bench, registry: benches, auth: services.auth }, { logger });
@@ -237,7 +253,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),
       devMiddleware: opts.devMiddleware,
-      extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), storageRoutes(bench, services.audit), simRoutes(sim), ...uploadRoutes(files), outboxRoutes(mail)],
+      extraRoutes: [runRoutes(runs), benchRoutes(bench), benchesRoutes(benches), storageRoutes(bench, services.audit), simRoutes(sim), hartRoutes(hartJob), ...uploadRoutes(files), outboxRoutes(mail)],
       trustProxy: trustProxySetting(env),
       maxInFlight: env.MAX_IN_FLIGHT,
       shedTargetMs: env.SHED_TARGET_MS,
@@ -272,6 +288,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       benches,
       forward,
       runs,
+      hartJob,
       rig,
       sim,
       stream,
@@ -289,6 +306,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
             server.close(() => resolve());
             for (const s of sockets) s.destroy();
           });
+          // Any HART trim is aborted and fixed current left while the modem is still open.
+          await hartJob.stop();
           await bench.stop();
           sim.close();
           rig?.dispose();

@@ -37,6 +37,12 @@ const EnvSchema = z.object({
   BENCH_HART_PORT: z.string().min(1).optional(),
   /** How that modem is keyed: `usb` (by itself) or `rts` (an RS-232 modem keyed by RTS). */
   BENCH_HART_MODEM: z.enum(['usb', 'rts']).default('usb'),
+  /**
+   * Whether jobs on the local bench use its HART device (identity and configuration check before a
+   * run, digital PV and loop current per point, trims by command). Default: on with BENCH=serial and
+   * BENCH_HART_PORT; off on the simulated rig, whose HART device is always there (`on` to use it).
+   */
+  HART_IN_JOB: z.enum(['on', 'off']).optional(),
   /** Hold time in seconds before a stable point is captured (common practice: at least 30 s). */
   HOLD_SECONDS: z.coerce.number().positive().max(3600).default(30),
   /** SMTP URL for mail; unset starts a local fake SMTP server and the Outbox. */

@@ -17,7 +17,7 @@ export interface HartModemOptions {
   binding: BindingInterface;
   /** `'usb'` (keys itself) or `'rts'` (an RS-232 modem keyed by RTS). Default `'usb'`. */
   modem?: HartModemType;
-  /** Interval of the background command 3 read, ms; 0 for none. Default 2000 ms. */
+  /** Interval of the background command 3 read, ms; 0 for none. Default 1000 ms (a command 3 takes about 0.45 s at 1200 bit/s). */
   pollMs?: number;
   /** Every transaction, for logs (and, later, the record). */
   onTransaction?(t: HartTransaction): void;
@@ -41,7 +41,21 @@ export interface HartModemStatus {
   stats: HartDriverStats;
 }
 
+/** One background command 3 reading: the digital PV and the loop current the device says it drives. */
+export interface HartDynamicReading {
+  /** Wall clock when the reply came, ms since the epoch. */
+  at: number;
+  pv: number;
+  pvUnitCode: number;
+  loopMa: number;
+}
+
+/** Readings kept for the capture path (about two minutes at the default rate). */
+const KEPT_READINGS = 120;
+
 export class HartModem {
+  /** The latest command 3 readings, oldest first. */
+  readonly readings: HartDynamicReading[] = [];
   readonly port: ManagedPort;
   readonly driver: HartMasterDriver;
   private readonly modem: HartModemType;
@@ -69,7 +83,7 @@ export class HartModem {
   /** Opens the port (retrying until it appears) and starts the slow background read. */
   start(): void {
     this.port.open().catch(() => {});
-    const every = this.o.pollMs ?? 2000;
+    const every = this.o.pollMs ?? 1000;
     if (every > 0) this.timer = setInterval(() => void this.tick(), every);
   }
 
@@ -78,12 +92,22 @@ export class HartModem {
     this.busy = true;
     try {
       if (!this.found) this.found = await this.driver.identify();
-      await this.driver.readDynamicVariables();
+      const { value } = await this.driver.readDynamicVariables();
+      const pv = value.variables[0];
+      if (pv) {
+        this.readings.push({ at: Date.now(), pv: pv.value, pvUnitCode: pv.unitCode, loopMa: value.currentMa });
+        if (this.readings.length > KEPT_READINGS) this.readings.shift();
+      }
     } catch {
       // Kept as lastError by the transaction listener; the next tick tries again.
     } finally {
       this.busy = false;
     }
+  }
+
+  /** Command 3 readings between `fromMs` and `toMs` (wall clock, inclusive). */
+  readingsBetween(fromMs: number, toMs: number): HartDynamicReading[] {
+    return this.readings.filter((r) => r.at >= fromMs && r.at <= toMs);
   }
 
   status(): HartModemStatus {

@@ -7,6 +7,7 @@
 import { formatFixed } from '../../shared/format';
 import type { Decision, DecisionRule, NominalBasis, OutputMode, TrimKind } from '../../shared/calc';
 import type { ResultPoint, RunResults } from '../../shared/schemas/runs';
+import type { FrozenHart } from '../../shared/schemas/hart-job';
 
 /** A name with a postal address (laboratory, customer). */
 export interface CertificateParty {
@@ -163,6 +164,8 @@ export interface CertificateData {
   /** Absent when no adjustment was made (the as-found results stand as the as-left ones). */
   asLeft?: CertificateResults;
   trims: CertificateTrim[];
+  /** The HART device of the job, from the frozen record (certificate-hart.ts); absent without one. */
+  hart?: FrozenHart;
   remarks?: string[];
   signatures: CertificateSignature[];
 }

@@ -279,6 +279,7 @@ export function certificateFromRecord(record: FrozenRecord, ctx: CertificateCont
     asFound: resultsOf(found) ?? { points: [], hysteresis: [], maxHysteresisPctSpan: null, overallDecision: 'fail' },
     asLeft: resultsOf(left),
     trims: trimsFromRuns(record.runs),
+    ...(record.hart ? { hart: record.hart } : {}),
     remarks: [
       ...(job.notes ? [job.notes] : []),
       ...(captures.remarks.length ? captures.remarks : ['No point carried a leak, overshoot or instability flag, and no point was measured again.']),

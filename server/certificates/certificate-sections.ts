@@ -13,6 +13,7 @@ import {
 import { fitToLatin } from './fonts';
 import { COLOR, CONTENT_W, dateTime, dpDecimals, MARGIN, nominal, num, PAGE, unitLabel, type Writer } from './pdf-writer';
 import { hysteresisTable, resultsTable, standardsTable, trimsSection } from './certificate-tables';
+import { hartSection } from './certificate-hart';
 
 export function firstPageHeader(w: Writer, data: CertificateData): void {
   const { doc } = w;
@@ -127,6 +128,7 @@ export function writeBody(w: Writer, data: CertificateData): void {
 
   w.heading('Adjustment', 140);
   trimsSection(w, data);
+  hartSection(w, data, data.timeZone);
 
   w.heading('Results as left', 140);
   if (data.asLeft) resultsTable(w, data, data.asLeft);

@@ -138,6 +138,9 @@ export function createBenchService(db: Db, o: BenchServiceOptions) {
     /** The capture engine of a bench (created on first use). */
     engine,
 
+    /** The local bench's HART modem, when it has one (after start). */
+    hart: () => devices?.hart,
+
     /** Adds a consumer of the hub (the stream server). */
     subscribe(name: string, handler: ConsumerHandler): () => void {
       return hub.subscribe(name, handler);

@@ -7,6 +7,7 @@
 import { createHash } from 'node:crypto';
 import type { Db } from '../db/client';
 import { reviewRepository, type RunWithPoints } from '../db/repositories/review.repository';
+import { hartRepository } from '../db/repositories/hart.repository';
 import { toSnapshotRun } from './review-rows';
 import type { JobDetail } from '../../shared/schemas/jobs';
 import { FrozenRecordSchema, type FrozenRecord, type FrozenRun, type PointEvent } from '../../shared/schemas/records';
@@ -79,11 +80,12 @@ export function createRecordFreezer(db: Db, audit: AuditService) {
      * site's settings, the runs and their audit events). `by` is who froze it.
      */
     async build(job: JobDetail, by: { id: string; name: string }, at: Date): Promise<FrozenRecord> {
-      const [instrument, standards, site, runs] = await Promise.all([
+      const [instrument, standards, site, runs, hart] = await Promise.all([
         repo.instrumentRow(job.instrumentId),
         repo.standardRows(job.checklist.standardIds),
         repo.site(),
         repo.runsWithPoints(job.id),
+        hartRepository(db).get(job.id),
       ]);
       if (!instrument) throw new Error(`job ${job.id}: instrument ${job.instrumentId} is missing`);
       const byId = new Map(standards.map((s) => [s.id, s]));
@@ -146,6 +148,10 @@ export function createRecordFreezer(db: Db, audit: AuditService) {
         site: { name: site?.name ?? 'Stillpoint', domain: site?.domain ?? '', settings: siteSettings(site?.settings) },
         runs: await Promise.all(runs.map(frozenRun)),
         performers: [...performerIds].map((id) => ({ id, name: names.get(id) ?? id })),
+        // The HART device, when the job read one: kept in the record, so the record hash covers every write.
+        ...(hart.asFound || hart.writes.length || hart.trims.length
+          ? { hart: { asFound: hart.asFound, asLeft: hart.asLeft, mismatches: hart.mismatches, resolution: hart.resolution, writes: hart.writes, trims: hart.trims } }
+          : {}),
       };
       return plain(record);
     },

@@ -42,6 +42,12 @@ export interface RunServiceDeps {
   hub: BenchHub;
   /** Run and point storage (default over `db`; the composition root may wrap it). */
   runs?: RunRepository;
+  /** HART in the job (hart-job.service.ts): what blocks a run on a bench with a HART device. */
+  hart?: {
+    blockersForRun(actor: SessionUser, jobId: string, benchId: string): Promise<string[]>;
+    /** The device's digital PV and loop current over a captured point's hold (hart-point.ts). */
+    pointAtCapture(benchId: string, capture: PointCapture, ctx: { unit: string; lrv: number; urv: number }): PointCapture['hart'];
+  };
 }
 
 /** What the published run events say that is not stored: the current point and the points' latest warnings (live values). */
@@ -82,6 +88,11 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
 
   /** Stores what an event changes, then has the hub number and publish it. */
   async function commit(e: RunEvent): Promise<void> {
+    const p = e.type === 'point.captured' ? loaded.get(e.runId) : undefined;
+    if (e.type === 'point.captured' && p && deps.hart) {
+      const hart = deps.hart.pointAtCapture(e.benchId, e.capture, { unit: p.unit, lrv: p.instrument.lrv, urv: p.instrument.urv });
+      if (hart) e = { ...e, capture: { ...e.capture, hart } };
+    }
     await writer.store(e);
     hub.publish(e);
     const v = published.get(e.runId) ?? { currentIndex: null, warnings: new Map<number, string | null>() };
@@ -251,6 +262,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       if (o.mayRunOn && !o.mayRunOn(benchId, actor)) throw badRequest(`No bench ${benchId} that you may run on: use this server's bench, a registered agent's or your own browser bench`, { benchId: ['Not a bench you may run on'] });
       const engine = engines.get(benchId);
       if (engine.activeRunId) throw conflict(`Another run is active on ${benchId}; pause is not enough, finish or abort it first`);
+      const hartBlockers = (await deps.hart?.blockersForRun(actor, jobId, benchId)) ?? [];
+      if (hartBlockers.length) throw conflict(`The run cannot start: ${hartBlockers.join('; ')}`, { blockers: hartBlockers });
       const inst: InstrumentRow | undefined = await instruments.get(job.instrumentId);
       if (!inst) throw notFound('The job\u2019s instrument no longer exists');
       const frozen = freezePlan({ inst, site: await siteSettings(), envHoldSeconds: o.envHoldSeconds, benchId, body, standardIds: job.standardIds, performer: { id: actor.id, email: actor.email } });

@@ -15,3 +15,4 @@ export * from './evaluate';
 export * from './orifice';
 export * from './intervals';
 export * from './standard-fit';
+export * from './hart-errors';

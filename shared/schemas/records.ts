@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { IsoDateSchema } from './dates';
+import { FrozenHartSchema } from './hart-job';
 import { InstrumentSchema } from './instruments';
 import { JobDetailSchema, JobSchema } from './jobs';
 import { RunResultsSchema } from './runs';
@@ -162,6 +163,12 @@ export const FrozenRecordSchema = z.object({
   site: z.object({ name: z.string(), domain: z.string(), settings: z.record(z.string(), z.unknown()) }),
   runs: z.array(FrozenRunSchema),
   performers: z.array(z.object({ id: z.string(), name: z.string() })),
+  /**
+   * The HART device (hart-job.ts): identity and configuration as found and as left, the check
+   * against the register and its resolution, every write command with who and when, the trims.
+   * Absent when the job used no HART device. Additive.
+   */
+  hart: FrozenHartSchema.optional(),
 });
 export type FrozenRecord = z.infer<typeof FrozenRecordSchema>;
 

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { HartPointSchema } from './hart-job';
 import { DECISIONS, FLOW_UNITS, type EvaluateOutput } from '../calc';
 
 /** Kinds of run within a job (DESIGN.md §3.5–6). */
@@ -113,6 +114,8 @@ export const PointCaptureSchema = z.object({
     })
     .nullable()
     .optional(),
+  /** The HART device's digital PV and loop current over the hold, with the digital and D/A errors (hart-job.ts). Absent without HART. */
+  hart: HartPointSchema.nullable().optional(),
 });
 export type PointCapture = z.infer<typeof PointCaptureSchema>;
 

@@ -6,3 +6,4 @@ export * from './attachments';
 export * from './mail';
 export * from './quarantine';
 export * from './benches';
+export * from './hart';

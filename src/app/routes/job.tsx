@@ -18,6 +18,9 @@ import { useStartRun } from '../../features/jobs/api/start-run';
 import { useSubmitJob } from '../../features/jobs/api/submit-job';
 import { useUpdateChecklist } from '../../features/jobs/api/update-checklist';
 import { PreparationPanel } from '../../features/jobs/components/preparation-panel';
+import { HartPanel } from '../../features/jobs/components/hart-panel';
+import { HartTrimPanel } from '../../features/jobs/components/hart-trim-panel';
+import { queryKeys } from '../../lib/query-keys';
 import { JobPhotos, StandardCertificates } from '../../features/jobs/components/job-files';
 import { ReturnNoticeBanner } from '../../features/jobs/components/return-notice';
 import { ReturnPanel } from '../../features/jobs/components/return-panel';
@@ -95,7 +98,11 @@ export function Component() {
     setStarting(trim ?? kind);
     start.mutate({ kind, ...(trim ? { trim } : {}), ...(browserBench ? { benchId: browserBench } : {}) }, {
       onSuccess: (run) => void navigate(`/runs/${run.id}`),
-      onError: (e) => toast('The run did not start', { tone: 'error', description: isApiError(e) || e instanceof Error ? e.message : undefined }),
+      onError: (e) => {
+        toast('The run did not start', { tone: 'error', description: isApiError(e) || e instanceof Error ? e.message : undefined });
+        // A refusal may come from the HART check the start made: show what it read.
+        void queryClient.invalidateQueries({ queryKey: queryKeys.job(id) });
+      },
       onSettled: () => setStarting(null),
     });
   };
@@ -150,6 +157,7 @@ export function Component() {
       <div className="flex flex-col gap-5">
         <StepSection step={step('preparation')} index={indexOf('preparation')} description="Choose the standards, record the permit and any interlock bypass, and confirm the loop is safe to work on.">
           <PreparationPanel job={j} register={register.data?.items} canEdit={canEdit} save={save} saving={checklist.isPending} />
+          <HartPanel jobId={id} canEdit={canEdit} />
         </StepSection>
 
         <StepSection
@@ -222,6 +230,7 @@ export function Component() {
           ) : (
             <p className="text-sm text-ink-muted">Loading the instrument…</p>
           )}
+          <HartTrimPanel jobId={id} canAct={canRun} />
         </StepSection>
 
         <StepSection step={step('as-left')} index={indexOf('as-left')} description="The transmitter as it is left: the same points again after the trims.">

@@ -25,6 +25,7 @@ import { ManualCaptureDialog } from './manual-capture-dialog';
 import { PointList } from './point-list';
 import { Readouts } from './readouts';
 import { ResultsTable } from './results-table';
+import { HartErrorsTable } from './hart-errors-table';
 import { ShortcutHelp } from './shortcut-help';
 import { ModeCheckPanel } from './mode-check-panel';
 import { RunStatusBadge, StreamDot } from './run-status';
@@ -270,6 +271,7 @@ export function CaptureScreen({ run, instrument, tag, canAct, userId }: CaptureS
         </section>
       )}
       {!results && run.resultsProblem && <p className="text-sm text-warn">Results cannot be computed yet: {run.resultsProblem}</p>}
+      <HartErrorsTable run={run} unitLabel={unitLabel} dpDecimals={dpDecimals} />
 
       <ManualCaptureDialog
         open={!!manualFor}

@@ -1,0 +1,148 @@
+import { useState } from 'react';
+import type { HartReading, JobHart } from '../../../../shared/schemas/hart-job';
+import { Badge } from '../../../components/ui/badge';
+import { Button } from '../../../components/ui/button';
+import { Dialog } from '../../../components/ui/dialog';
+import { formatDateTime, formatNumber } from '../../../lib/format';
+import { unitLabel } from '../../../../shared/format';
+import { useJobHart, useJobHartAction } from '../api/job-hart';
+
+const hex = (n: number, digits: number) => `0x${n.toString(16).toUpperCase().padStart(digits, '0')}`;
+
+/** The device's identity and configuration as read (commands 0, 13, 15). */
+export function HartReadingList({ reading, testId }: { reading: HartReading; testId: string }) {
+  const { identity: i, config: c } = reading;
+  const rows: [string, string][] = [
+    ['Tag', i.tag || '(blank)'],
+    ['Descriptor', i.descriptor || '(blank)'],
+    ['Manufacturer / device type', `${i.manufacturerId === null ? '—' : hex(i.manufacturerId, 4)} / ${hex(i.expandedDeviceType, 4)}`],
+    ['Device id', hex(i.deviceId, 6)],
+    ['Range', `${formatNumber(c.lrv)} to ${formatNumber(c.urv)} ${c.unit ? unitLabel(c.unit) : `(unit code ${c.unitCode})`}`],
+    ['Transfer function', c.transferFunction],
+    ['Damping', `${formatNumber(c.dampingS, 3)} s`],
+    ['Write protect', c.writeProtect ? 'on' : 'off'],
+  ];
+  return (
+    <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm" data-testid={testId}>
+      {rows.map(([k, v]) => (
+        <div key={k} className="contents">
+          <dt className="text-ink-muted">{k}</dt>
+          <dd className="num">{v}</dd>
+        </div>
+      ))}
+    </dl>
+  );
+}
+
+/** Asks for the reason of a correction or an as-found acknowledgement. */
+function ReasonDialog({ kind, onClose, onDone }: { kind: 'correct-register' | 'as-found' | null; onClose: () => void; onDone: (reason: string) => Promise<unknown> }) {
+  const [reason, setReason] = useState('');
+  const [error, setError] = useState<string | null>(null);
+  const [pending, setPending] = useState(false);
+  const title = kind === 'correct-register' ? 'Correct the register to the device' : 'Record the device as found';
+  const description =
+    kind === 'correct-register'
+      ? 'The register takes the device’s range, unit and transfer function. Say why the register was wrong; the change is audited.'
+      : 'The device is kept as it is and the disagreement is recorded with your reason, in the audit trail and the record.';
+  return (
+    <Dialog open={kind !== null} onClose={onClose} title={title} description={description}>
+      <form
+        className="flex flex-col gap-3"
+        onSubmit={(e) => {
+          e.preventDefault();
+          if (reason.trim().length < 5) return setError('Give a reason of at least 5 characters');
+          setPending(true);
+          onDone(reason.trim()).then(
+            () => {
+              setReason('');
+              setError(null);
+              onClose();
+            },
+            (err: unknown) => setError(err instanceof Error ? err.message : 'Refused'),
+          ).finally(() => setPending(false));
+        }}
+      >
+        <label htmlFor="hart-reason" className="text-sm font-medium text-ink">
+          Reason
+        </label>
+        <textarea id="hart-reason" rows={3} value={reason} onChange={(e) => setReason(e.target.value)} aria-invalid={error ? true : undefined} className="rounded-md border border-line-strong bg-surface px-3 py-2 text-ink" />
+        {error && (
+          <p role="alert" className="text-sm text-danger">
+            {error}
+          </p>
+        )}
+        <div className="flex justify-end gap-2 pt-2">
+          <Button variant="secondary" onClick={onClose}>
+            Cancel
+          </Button>
+          <Button type="submit" loading={pending} data-testid="hart-reason-submit">
+            {kind === 'correct-register' ? 'Correct the register' : 'Record as found'}
+          </Button>
+        </div>
+      </form>
+    </Dialog>
+  );
+}
+
+/** Resolution of a disagreement in words. */
+function Resolution({ r }: { r: NonNullable<JobHart['resolution']> }) {
+  return (
+    <p className="text-sm text-ink-muted" data-testid="hart-resolution">
+      {r.kind === 'register-corrected' ? 'Register corrected to the device' : 'Device recorded as found'} by {r.byName}, {formatDateTime(r.at)}: “{r.reason}”
+    </p>
+  );
+}
+
+/**
+ * The preparation's HART check: the transmitter's identity and configuration read over HART and
+ * compared with the register; a disagreement blocks the run until the register is corrected or the
+ * device is recorded as found, each with a reason. Hidden when the bench has no HART modem in use.
+ */
+export function HartPanel({ jobId, canEdit }: { jobId: string; canEdit: boolean }) {
+  const hart = useJobHart(jobId);
+  const act = useJobHartAction(jobId);
+  const [dialog, setDialog] = useState<'correct-register' | 'as-found' | null>(null);
+  const h = hart.data;
+  if (!h?.available) return null;
+  const open = h.blockers.length > 0;
+  return (
+    <section aria-label="HART device" className="flex flex-col gap-3 rounded-md border border-line p-3" data-testid="hart-panel">
+      <div className="flex flex-wrap items-center gap-2">
+        <h3 className="text-sm font-semibold text-ink">HART device</h3>
+        {h.asFound && <Badge tone={open ? 'danger' : 'ok'}>{open ? 'Disagrees with the register' : 'Agrees with the register'}</Badge>}
+      </div>
+      {h.asFound ? <HartReadingList reading={h.asFound} testId="hart-as-found" /> : <p className="text-sm text-ink-muted">Not read yet: the run start reads it, or read it now.</p>}
+      {h.mismatches.length > 0 && (
+        <ul className="list-disc pl-5 text-sm text-danger" data-testid="hart-mismatches">
+          {h.mismatches.map((m) => (
+            <li key={m.field}>{m.message}</li>
+          ))}
+        </ul>
+      )}
+      {h.resolution && <Resolution r={h.resolution} />}
+      {act.error && (
+        <p role="alert" className="text-sm text-danger">
+          {act.error.message}
+        </p>
+      )}
+      {canEdit && (
+        <div className="flex flex-wrap gap-2">
+          <Button variant="secondary" size="sm" loading={act.isPending} onClick={() => act.mutate({ kind: 'check' })} data-testid="hart-read">
+            {h.asFound ? 'Read the device again' : 'Read the device'}
+          </Button>
+          {open && h.mismatches.length > 0 && (
+            <>
+              <Button size="sm" onClick={() => setDialog('correct-register')} data-testid="hart-correct-register">
+                Correct the register…
+              </Button>
+              <Button variant="secondary" size="sm" onClick={() => setDialog('as-found')} data-testid="hart-record-as-found">
+                Record the device as found…
+              </Button>
+            </>
+          )}
+        </div>
+      )}
+      <ReasonDialog kind={dialog} onClose={() => setDialog(null)} onDone={(reason) => act.mutateAsync({ kind: dialog!, reason })} />
+    </section>
+  );
+}
