@@ -146,6 +146,7 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
   }
 
   async function view(jobId: string): Promise<JobHart> {
+    if (!(await jobs.get(jobId))) throw notFound('No such job');
     const row = await repo.get(jobId);
     const live = trims.current(jobId);
     const stored = row.trims.map((t) => (live && t.id === live.id ? live : t));
