@@ -1,6 +1,7 @@
 import { instrumentRepository, standardRepository } from '../../server/db/repositories/register.repository';
 import { recordCompletedRun } from '../../server/demo/demo-history';
-import type { ApiClient, TestServer } from '../helpers/test-server';
+import { afterAll, beforeAll } from 'vitest';
+import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 /** In-date pressure module and bench multimeter of the demo site (both cover the demo's DP tags). */
 export async function demoStandards(srv: TestServer) {
@@ -31,4 +32,27 @@ export async function passingAsFound(srv: TestServer, jobId: string, tag: string
     startedBy,
     ...(opts.trace ? { trace: { hz: 10, seqBase: 2_000_000_000_000 + Math.floor(Math.random() * 1e9) } } : {}),
   });
+}
+
+/** A booted app with the lead and the technician signed in. */
+export interface LeadAndTech {
+  srv: TestServer;
+  lead: ApiClient;
+  tech: ApiClient;
+}
+
+/** Boots the app before the calling file's tests and signs in the lead and the technician; closes it after them. */
+export function useLeadAndTech(): LeadAndTech {
+  const ctx = {} as LeadAndTech;
+  beforeAll(async () => {
+    ctx.srv = await startTestServer();
+    ctx.lead = new ApiClient(ctx.srv.url);
+    ctx.tech = new ApiClient(ctx.srv.url);
+    await ctx.lead.login(demoEmail('lead'));
+    await ctx.tech.login(demoEmail('tech'));
+  });
+  afterAll(async () => {
+    await ctx.srv?.close();
+  });
+  return ctx;
 }

@@ -1,7 +1,8 @@
 /** Helpers shared by the run and bench integration tests (not a test file). */
+import { afterAll, beforeAll } from 'vitest';
 import WebSocket from 'ws';
 import { StreamMessageSchema, type StreamMessage } from '../../shared/schemas/stream';
-import type { ApiClient, TestServer } from '../helpers/test-server';
+import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 export async function until(cond: () => boolean | Promise<boolean>, ms = 30_000, what = 'condition'): Promise<void> {
   const end = Date.now() + ms;
@@ -46,4 +47,29 @@ export async function prepareJob(srv: TestServer, lead: ApiClient, tag = 'FT-101
   };
   await srv.database.exec(`UPDATE jobs SET checklist = '${JSON.stringify(checklist)}'::jsonb, permit_no = 'PTW-TEST-1' WHERE id = '${job.id}'`);
   return job.id;
+}
+
+/** A booted app (simulated rig, HOLD_SECONDS = 2) with the technician and the admin signed in and the tech's FT-101 job ready. */
+export interface RunJob {
+  srv: TestServer;
+  tech: ApiClient;
+  admin: ApiClient;
+  jobId: string;
+}
+
+/** Boots the app and readies the job before the calling file's tests (the lead prepares it); closes the app after them. */
+export function useRunJob(): RunJob {
+  const ctx = {} as RunJob;
+  beforeAll(async () => {
+    ctx.srv = await startTestServer({ env: { HOLD_SECONDS: '2' } });
+    ctx.tech = new ApiClient(ctx.srv.url);
+    ctx.admin = new ApiClient(ctx.srv.url);
+    const lead = new ApiClient(ctx.srv.url);
+    await Promise.all([ctx.tech.login(demoEmail('tech')), ctx.admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
+    ctx.jobId = await prepareJob(ctx.srv, lead);
+  }, 180_000);
+  afterAll(async () => {
+    await ctx.srv?.close();
+  });
+  return ctx;
 }
