@@ -1,7 +1,7 @@
 import { instrumentRepository, standardRepository } from '../../server/db/repositories/register.repository';
 import { recordCompletedRun } from '../../server/demo/demo-history';
-import { afterAll, beforeAll } from 'vitest';
-import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+import { ApiClient, demoEmail, type TestServer } from '../helpers/test-server';
+import { useTestServer } from '../helpers/use-test-server';
 
 /** In-date pressure module and bench multimeter of the demo site (both cover the demo's DP tags). */
 export async function demoStandards(srv: TestServer) {
@@ -34,25 +34,13 @@ export async function passingAsFound(srv: TestServer, jobId: string, tag: string
   });
 }
 
-/** A booted app with the lead and the technician signed in. */
-export interface LeadAndTech {
-  srv: TestServer;
-  lead: ApiClient;
-  tech: ApiClient;
-}
-
 /** Boots the app before the calling file's tests and signs in the lead and the technician; closes it after them. */
-export function useLeadAndTech(): LeadAndTech {
-  const ctx = {} as LeadAndTech;
-  beforeAll(async () => {
-    ctx.srv = await startTestServer();
-    ctx.lead = new ApiClient(ctx.srv.url);
-    ctx.tech = new ApiClient(ctx.srv.url);
-    await ctx.lead.login(demoEmail('lead'));
-    await ctx.tech.login(demoEmail('tech'));
+export function useLeadAndTech() {
+  return useTestServer(async (srv) => {
+    const lead = new ApiClient(srv.url);
+    const tech = new ApiClient(srv.url);
+    await lead.login(demoEmail('lead'));
+    await tech.login(demoEmail('tech'));
+    return { lead, tech };
   });
-  afterAll(async () => {
-    await ctx.srv?.close();
-  });
-  return ctx;
 }

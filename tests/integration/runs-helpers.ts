@@ -1,8 +1,8 @@
 /** Helpers shared by the run and bench integration tests (not a test file). */
-import { afterAll, beforeAll } from 'vitest';
 import WebSocket from 'ws';
 import { StreamMessageSchema, type StreamMessage } from '../../shared/schemas/stream';
-import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+import { ApiClient, demoEmail, type TestServer } from '../helpers/test-server';
+import { useTestServer } from '../helpers/use-test-server';
 
 export async function until(cond: () => boolean | Promise<boolean>, ms = 30_000, what = 'condition'): Promise<void> {
   const end = Date.now() + ms;
@@ -49,27 +49,20 @@ export async function prepareJob(srv: TestServer, lead: ApiClient, tag = 'FT-101
   return job.id;
 }
 
-/** A booted app (simulated rig, HOLD_SECONDS = 2) with the technician and the admin signed in and the tech's FT-101 job ready. */
-export interface RunJob {
-  srv: TestServer;
-  tech: ApiClient;
-  admin: ApiClient;
-  jobId: string;
-}
-
-/** Boots the app and readies the job before the calling file's tests (the lead prepares it); closes the app after them. */
-export function useRunJob(): RunJob {
-  const ctx = {} as RunJob;
-  beforeAll(async () => {
-    ctx.srv = await startTestServer({ env: { HOLD_SECONDS: '2' } });
-    ctx.tech = new ApiClient(ctx.srv.url);
-    ctx.admin = new ApiClient(ctx.srv.url);
-    const lead = new ApiClient(ctx.srv.url);
-    await Promise.all([ctx.tech.login(demoEmail('tech')), ctx.admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
-    ctx.jobId = await prepareJob(ctx.srv, lead);
-  }, 180_000);
-  afterAll(async () => {
-    await ctx.srv?.close();
-  });
-  return ctx;
+/**
+ * Boots the app (simulated rig, HOLD_SECONDS = 2) before the calling file's tests with the
+ * technician and the admin signed in and the tech's FT-101 job ready (the lead prepares it); closes
+ * it after them.
+ */
+export function useRunJob() {
+  return useTestServer(
+    async (srv) => {
+      const tech = new ApiClient(srv.url);
+      const admin = new ApiClient(srv.url);
+      const lead = new ApiClient(srv.url);
+      await Promise.all([tech.login(demoEmail('tech')), admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
+      return { tech, admin, jobId: await prepareJob(srv, lead) };
+    },
+    { env: { HOLD_SECONDS: '2' }, timeoutMs: 180_000 },
+  );
 }

@@ -41,25 +41,16 @@ function addAttachmentRoutes(table: RouteTable, files: FileService, kind: Attach
 /** Upload routes: the permission and existence checks run before multer reads the body. */
 export function uploadRoutes(files: FileService): RouteTable[] {
   const standards = addAttachmentRoutes(routeTable('/api/standards'), files, {
-    entity: 'standard',
-    paths: ['/:id/certificate', '/:id/certificates'],
-    actions: ['registers.write', 'registers.read'],
-    check: (id) => files.checkStandard(id),
-    save: (user, id, file) => files.standardCertificate(user, id, file),
+    entity: 'standard', paths: ['/:id/certificate', '/:id/certificates'], actions: ['registers.write', 'registers.read'],
+    check: (id) => files.checkStandard(id), save: (user, id, file) => files.standardCertificate(user, id, file),
   });
   const instruments = addAttachmentRoutes(routeTable('/api/instruments'), files, {
-    entity: 'instrument',
-    paths: ['/:id/datasheet', '/:id/datasheets'],
-    actions: ['registers.write', 'registers.read'],
-    check: (id) => files.checkInstrument(id),
-    save: (user, id, file) => files.instrumentDatasheet(user, id, file),
+    entity: 'instrument', paths: ['/:id/datasheet', '/:id/datasheets'], actions: ['registers.write', 'registers.read'],
+    check: (id) => files.checkInstrument(id), save: (user, id, file) => files.instrumentDatasheet(user, id, file),
   });
   const jobs = addAttachmentRoutes(routeTable('/api/jobs'), files, {
-    entity: 'job',
-    paths: ['/:id/photos', '/:id/photos'],
-    actions: ['jobs.perform', 'jobs.read'],
-    check: (id, res) => files.checkPhoto(currentUser(res), id),
-    save: (user, id, file) => files.jobPhoto(user, id, file),
+    entity: 'job', paths: ['/:id/photos', '/:id/photos'], actions: ['jobs.perform', 'jobs.read'],
+    check: (id, res) => files.checkPhoto(currentUser(res), id), save: (user, id, file) => files.jobPhoto(user, id, file),
   });
 
   // Removing a file needs a reason; who may remove what, and the lock, are the service's (photos: the
