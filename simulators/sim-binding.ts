@@ -2,7 +2,7 @@
  * A serialport binding over simulated devices: `new SerialPortStream({ binding, path, baudRate })`
  * runs the real stream, parsers and timeouts against the emulators. Cables can be pulled on demand.
  */
-import type { BindingInterface, BindingPortInterface, OpenOptions, PortInfo, PortStatus, SetOptions, UpdateOptions } from './binding-types';
+import type { BindingInterface, BindingPortInterface, OpenOptions, PortInfo, PortStatus, SetOptions, UpdateOptions } from '../server/bench/transport/binding-types';
 import type { SimDevice } from './line-device';
 
 /** A binding error; `canceled` marks reads and writes cut short by our own close. */

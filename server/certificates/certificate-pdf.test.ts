@@ -6,23 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CertificateDataError } from './certificate-data';
 import { renderCertificate } from './certificate-pdf';
 import { sampleCertificate, SAMPLE_AS_FOUND_MA, SAMPLE_AS_LEFT_MA } from '../../tests/fixtures/sample-certificate';
-
-const has = (cmd: string) => spawnSync('sh', ['-c', `command -v ${cmd}`]).status === 0;
-
-/** pdffonts and pdftotext come from poppler-utils; install them when we can, else say how. */
-function ensurePoppler(): void {
-  if (has('pdffonts') && has('pdftotext')) return;
-  if (process.getuid?.() === 0) {
-    const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-    let r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
-    if (r.status !== 0) {
-      spawnSync('apt-get', ['update'], { env });
-      r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
-    }
-    if (r.status === 0 && has('pdffonts')) return;
-  }
-  throw new Error('These tests need poppler-utils (pdffonts, pdftotext). Install it: sudo apt-get install -y poppler-utils');
-}
+import { ensurePoppler } from '../../tests/helpers/poppler';
 
 let dir: string;
 let pdfPath: string;

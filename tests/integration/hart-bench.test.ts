@@ -5,6 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+import { until } from './hart-job-helpers';
 
 let srv: TestServer | undefined;
 let admin: ApiClient;
@@ -26,19 +27,9 @@ async function hartStatus(): Promise<HartStatus | undefined> {
   return body.benches.find((b) => b.benchId === body.benchId)?.local?.hart;
 }
 
-async function until<T>(read: () => Promise<T>, ok: (v: T) => boolean, what: string, timeoutMs = 10_000): Promise<T> {
-  const end = performance.now() + timeoutMs;
-  for (;;) {
-    const v = await read();
-    if (ok(v)) return v;
-    if (performance.now() > end) throw new Error(`timed out waiting for ${what}: ${JSON.stringify(v)}`);
-    await new Promise((r) => setTimeout(r, 100));
-  }
-}
-
 describe('HART modem on the bench', () => {
   it('is listed with its port settings, the transmitter found by command 0 and its counters', async () => {
-    const hart = await until(hartStatus, (h) => !!h?.device && (h?.stats.transactions ?? 0) >= 2, 'the HART device to be found');
+    const hart = await until(hartStatus, (h) => !!h?.device && (h?.stats.transactions ?? 0) >= 2, 'the HART device to be found', 10_000);
     expect(hart).toMatchObject({ connected: true, modem: 'usb', baudRate: 1200, device: { deviceId: 0x00b2c7 }, loopCurrentFixed: false, lastCommand: { outcome: 'ok' } });
   });
 
@@ -55,7 +46,7 @@ describe('HART modem on the bench', () => {
   it('leaves fixed current when the server stops, also when the device reports it fixed by someone else', async () => {
     const rig = srv!.rig!;
     rig.apply({ trim: { fixedMa: 12 } }); // as if a handheld had fixed the loop
-    await until(hartStatus, (h) => h?.loopCurrentFixed === true, 'the driver to see "loop current fixed"');
+    await until(hartStatus, (h) => h?.loopCurrentFixed === true, 'the driver to see "loop current fixed"', 10_000);
     expect((await hartStatus())?.deviceStatus).toContain('loop current fixed');
     await srv!.close();
     srv = undefined;

@@ -4,41 +4,23 @@
  * the migrations, autopilot). The simulated output stage reads 0.05 mA high at 4 and 20 mA while
  * the sensor is right: the D/A error shows about +0.05 mA and the digital error about 0.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Run } from '../../shared/schemas/runs';
-import { readyForRun } from '../helpers/e2e';
-import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
+import { useHartJob } from './hart-job-helpers';
 
-let srv: TestServer;
-let tech: ApiClient;
-let admin: ApiClient;
-let jobId: string;
-
-beforeAll(async () => {
-  srv = await startTestServer({ env: { HART_IN_JOB: 'on', HOLD_SECONDS: '2' } });
-  tech = new ApiClient(srv.url);
-  await tech.login(demoEmail('tech'));
-  admin = new ApiClient(srv.url);
-  await admin.login(demoEmail('admin'));
-  jobId = await readyForRun(tech, 'PTW-HART-2');
-}, 120_000);
-
-afterAll(async () => {
-  await srv?.close();
-});
-
+const ctx = useHartJob('PTW-HART-2');
 describe('HART values per captured point', () => {
   it('stores the digital PV and the device loop current with the digital and D/A errors', async () => {
     // The device agrees with the register (square root in the transmitter), with a D/A error.
-    expect((await admin.post('/api/sim', { transmitter: { outputMode: 'sqrt-transmitter', daErrorAt4Ma: 0.05, daErrorAt20Ma: 0.05 } })).status).toBe(200);
-    const start = await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'mode-check' });
+    expect((await ctx.admin.post('/api/sim', { transmitter: { outputMode: 'sqrt-transmitter', daErrorAt4Ma: 0.05, daErrorAt20Ma: 0.05 } })).status).toBe(200);
+    const start = await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'mode-check' });
     expect(start.status).toBe(201);
     const runId = (start.body as Run).id;
-    expect((await admin.post('/api/sim', { autopilot: { speed: 4, keepTransmitter: true } })).status).toBe(200);
+    expect((await ctx.admin.post('/api/sim', { autopilot: { speed: 4, keepTransmitter: true } })).status).toBe(200);
     let run: Run | undefined;
     const end = performance.now() + 60_000;
     while (performance.now() < end) {
-      run = (await tech.get(`/api/runs/${runId}`)).body as Run;
+      run = (await ctx.tech.get(`/api/runs/${runId}`)).body as Run;
       if (run.status === 'complete') break;
       await new Promise((r) => setTimeout(r, 150));
     }

@@ -4,23 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-
-const has = (cmd: string) => spawnSync('sh', ['-c', `command -v ${cmd}`]).status === 0;
-
-/** pdfinfo, pdffonts and pdftotext come from poppler-utils; install them when we can, else say how. */
-function ensurePoppler(): void {
-  if (has('pdfinfo') && has('pdffonts') && has('pdftotext')) return;
-  if (process.getuid?.() === 0) {
-    const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-    let r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
-    if (r.status !== 0) {
-      spawnSync('apt-get', ['update'], { env });
-      r = spawnSync('apt-get', ['install', '-y', 'poppler-utils'], { env, encoding: 'utf8' });
-    }
-    if (r.status === 0 && has('pdffonts')) return;
-  }
-  throw new Error('These tests need poppler-utils (pdfinfo, pdffonts, pdftotext). Install it: sudo apt-get install -y poppler-utils');
-}
+import { ensurePoppler } from '../helpers/poppler';
 
 function run(cmd: string, args: string[]): string {
   const r = spawnSync(cmd, args, { encoding: 'utf8' });

@@ -1,6 +1,7 @@
 import { instrumentRepository, standardRepository } from '../../server/db/repositories/register.repository';
 import { recordCompletedRun } from '../../server/demo/demo-history';
-import type { ApiClient, TestServer } from '../helpers/test-server';
+import { ApiClient, demoEmail, type TestServer } from '../helpers/test-server';
+import { useTestServer } from '../helpers/use-test-server';
 
 /** In-date pressure module and bench multimeter of the demo site (both cover the demo's DP tags). */
 export async function demoStandards(srv: TestServer) {
@@ -30,5 +31,16 @@ export async function passingAsFound(srv: TestServer, jobId: string, tag: string
     startedAt: new Date(Date.now() - 3 * 3600_000),
     startedBy,
     ...(opts.trace ? { trace: { hz: 10, seqBase: 2_000_000_000_000 + Math.floor(Math.random() * 1e9) } } : {}),
+  });
+}
+
+/** Boots the app before the calling file's tests and signs in the lead and the technician; closes it after them. */
+export function useLeadAndTech() {
+  return useTestServer(async (srv) => {
+    const lead = new ApiClient(srv.url);
+    const tech = new ApiClient(srv.url);
+    await lead.login(demoEmail('lead'));
+    await tech.login(demoEmail('tech'));
+    return { lead, tech };
   });
 }

@@ -3,37 +3,22 @@
  * point by point; an injected leak warns and blocks auto-capture; an overshoot flags the point and
  * asks for a re-approach; a disconnect during a hold throws the hold away. HOLD_SECONDS = 2.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { RunSchema, type Run } from '../../shared/schemas/runs';
 import type { StreamMessage } from '../../shared/schemas/stream';
-import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-import { prepareJob, streamClient, until } from './runs-helpers';
+import { ApiClient, demoEmail } from '../helpers/test-server';
+import { streamClient, until, useRunJob } from './runs-helpers';
 
-let srv: TestServer;
-let tech: ApiClient;
-let admin: ApiClient;
-let jobId: string;
-
-beforeAll(async () => {
-  srv = await startTestServer({ env: { HOLD_SECONDS: '2' } });
-  tech = new ApiClient(srv.url);
-  admin = new ApiClient(srv.url);
-  const lead = new ApiClient(srv.url);
-  await Promise.all([tech.login(demoEmail('tech')), admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
-  jobId = await prepareJob(srv, lead);
-});
-afterAll(async () => {
-  await srv?.close();
-});
+const ctx = useRunJob();
 
 async function startRun(kind: 'as-found' | 'as-left' | 'mode-check' = 'as-found'): Promise<Run> {
-  const r = await tech.post(`/api/jobs/${jobId}/runs`, { kind });
+  const r = await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind });
   expect(r.status, JSON.stringify(r.body)).toBe(201);
   return RunSchema.parse(r.body);
 }
-const getRun = async (id: string): Promise<Run> => RunSchema.parse((await tech.get(`/api/runs/${id}`)).body);
+const getRun = async (id: string): Promise<Run> => RunSchema.parse((await ctx.tech.get(`/api/runs/${id}`)).body);
 const sim = async (body: unknown) => {
-  const r = await admin.post('/api/sim', body);
+  const r = await ctx.admin.post('/api/sim', body);
   expect(r.status, JSON.stringify(r.body)).toBe(200);
   return r.body;
 };
@@ -41,12 +26,12 @@ const warnings = (msgs: StreamMessage[], runId: string) => msgs.filter((m): m is
 
 describe('runs: start and plan', () => {
   it('refuses a technician who is not the assignee, and a lead', async () => {
-    const other = new ApiClient(srv.url);
+    const other = new ApiClient(ctx.srv.url);
     await other.login(demoEmail('tech2'));
-    expect((await other.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' })).status).toBe(403);
-    const lead = new ApiClient(srv.url);
+    expect((await other.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'as-found' })).status).toBe(403);
+    const lead = new ApiClient(ctx.srv.url);
     await lead.login(demoEmail('lead'));
-    expect((await lead.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' })).status).toBe(403);
+    expect((await lead.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'as-found' })).status).toBe(403);
   });
 });
 
@@ -56,10 +41,10 @@ describe('capture engine with the autopilot', () => {
     // Rooted output: 10, 25, 50, 75, 100 % flow up and back down (common practice).
     expect(run.points.map((p) => p.nominalPct)).toEqual([10, 25, 50, 75, 100, 75, 50, 25, 10]);
     expect(run.holdSeconds).toBe(2);
-    expect((await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'as-left' })).status).toBe(409);
+    expect((await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'as-left' })).status).toBe(409);
     await sim({ autopilot: { speed: 20 } });
     await until(async () => (await getRun(run.id)).status === 'complete', 160_000, 'run complete');
-    await srv.runs.settle();
+    await ctx.srv.runs.settle();
     const done = await getRun(run.id);
     expect(done.points.every((p) => p.state === 'captured')).toBe(true);
     expect(done.points.some((p) => p.flags.includes('manual'))).toBe(false);
@@ -72,7 +57,7 @@ describe('capture engine with the autopilot', () => {
     const results = done.results as { points: unknown[]; overallDecision: string };
     expect(results.points).toHaveLength(9);
     expect(results.overallDecision).toBe('pass');
-    const trace = await tech.get(`/api/runs/${run.id}/trace`);
+    const trace = await ctx.tech.get(`/api/runs/${run.id}/trace`);
     expect(trace.status).toBe(200);
     const devices = new Set((trace.body.items as { device: string }[]).map((s) => s.device));
     expect(devices).toEqual(new Set(['pressure', 'current']));
@@ -80,7 +65,7 @@ describe('capture engine with the autopilot', () => {
 
   it('warns of a leak at once and does not auto-capture the leaking point', async () => {
     const run = await startRun('as-left');
-    const ws = streamClient(srv, tech);
+    const ws = streamClient(ctx.srv, ctx.tech);
     await ws.opened;
     // 0.6 inH2O/min on a 100 inH2O span = 0.6 % span/min, six times the default leak limit, at 75 % flow (index 3).
     await sim({ autopilot: { speed: 20, leak: { perMin: 0.6, points: [3] } } });
@@ -91,21 +76,21 @@ describe('capture engine with the autopilot', () => {
     const captured = ws.messages.filter((m) => m.type === 'point.captured' && m.runId === run.id).map((m) => (m as { index: number }).index);
     expect(captured).toEqual([0, 1, 2]);
     // The autopilot dwells at the point for the hold time and more: the engine must not capture it.
-    await until(() => (srv.rig!.snapshot().autopilot?.index ?? 0) > 3, 30_000, 'autopilot moved on');
+    await until(() => (ctx.srv.rig!.snapshot().autopilot?.index ?? 0) > 3, 30_000, 'autopilot moved on');
     const r = await getRun(run.id);
     expect(r.points[3]!.state).not.toBe('captured');
     expect(r.points[3]!.flags).toContain('leak');
     expect(r.currentIndex).toBe(3);
     ws.close();
-    expect((await tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
+    expect((await ctx.tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
   }, 120_000);
 
   it('flags an overshoot on the approach and asks for a re-approach from the correct side', async () => {
     // Start from a vented rig with no leak (the test before aborts its run at a leaking point).
     await sim({ autopilot: 'stop', source: { leakPerMin: 0 }, setpoint: { value: 0 } });
-    await until(() => Math.abs(srv.rig!.snapshot().appliedDp) < 0.05, 20_000, 'vented');
+    await until(() => Math.abs(ctx.srv.rig!.snapshot().appliedDp) < 0.05, 20_000, 'vented');
     const run = await startRun('as-left');
-    const ws = streamClient(srv, tech);
+    const ws = streamClient(ctx.srv, ctx.tech);
     await ws.opened;
     await sim({ autopilot: { speed: 20, overshoot: { fraction: 0.5, points: [1] } } });
     await until(() => warnings(ws.messages, run.id).some((w) => w.kind === 'overshoot'), 60_000, 'overshoot warning');
@@ -116,14 +101,14 @@ describe('capture engine with the autopilot', () => {
     expect(r.points[1]!.flags).toContain('overshoot');
     expect(r.points[1]!.state).not.toBe('captured');
     ws.close();
-    expect((await tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
+    expect((await ctx.tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
   }, 90_000);
 
   it('a meter disconnect during the hold invalidates it; the point is captured only after reconnecting', async () => {
     await sim({ autopilot: 'stop', source: { timeConstantS: 0.1 }, setpoint: { value: 0 } });
-    await until(() => Math.abs(srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
+    await until(() => Math.abs(ctx.srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
     const run = await startRun('as-left');
-    const ws = streamClient(srv, tech);
+    const ws = streamClient(ctx.srv, ctx.tech);
     await ws.opened;
     const p0 = run.points[0]!;
     await sim({ setpoint: { value: p0.targetDp } });
@@ -147,9 +132,9 @@ describe('capture engine with the autopilot', () => {
     expect(captured.startMs).toBeGreaterThan(0);
     expect(warnedAt).toBeGreaterThan(0);
     // Manual capture of the next point needs a reason and is flagged manual.
-    expect((await tech.post(`/api/runs/${run.id}/points/1/capture`, { reason: 'no' })).status).toBe(400);
+    expect((await ctx.tech.post(`/api/runs/${run.id}/points/1/capture`, { reason: 'no' })).status).toBe(400);
     ws.close();
-    expect((await tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
+    expect((await ctx.tech.post(`/api/runs/${run.id}/abort`)).status).toBe(200);
   }, 90_000);
 
   it('manual capture takes the hold means with the manual flag and is audited; redo clears it', async () => {
@@ -159,26 +144,26 @@ describe('capture engine with the autopilot', () => {
       setpoint: { value: 0 },
       transmitter: { lrv: 0, urv: 100, outputMode: 'sqrt-transmitter', cutoff: { mode: 'clamp', flowPct: 6 } },
     });
-    await until(() => Math.abs(srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
+    await until(() => Math.abs(ctx.srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
     const run = await startRun('mode-check');
     expect(run.points).toHaveLength(1);
     expect(run.points[0]!.dpPct).toBe(25);
-    const r0 = await tech.post(`/api/runs/${run.id}/points/0/capture`, { reason: 'pressure not applied yet' });
+    const r0 = await ctx.tech.post(`/api/runs/${run.id}/points/0/capture`, { reason: 'pressure not applied yet' });
     expect(r0.status).toBe(409);
     await sim({ setpoint: { value: run.points[0]!.targetDp } });
     await until(async () => (await getRun(run.id)).points[0]!.state === 'holding', 10_000, 'holding');
-    const r1 = await tech.post(`/api/runs/${run.id}/points/0/capture`, { reason: 'technician judged the reading steady' });
+    const r1 = await ctx.tech.post(`/api/runs/${run.id}/points/0/capture`, { reason: 'technician judged the reading steady' });
     expect(r1.status, JSON.stringify(r1.body)).toBe(200);
     const after = RunSchema.parse(r1.body);
     expect(after.points[0]!.flags).toContain('manual');
     expect(after.points[0]!.capture!.manualReason).toBe('technician judged the reading steady');
     // 25 % DP on a rooted output reads about 12 mA (common practice).
     expect(after.modeCheck).toMatchObject({ finding: 'root-in-transmitter', matchesRegister: true });
-    const audit = await admin.get(`/api/audit?entity=run&entityId=${run.id}`);
+    const audit = await ctx.admin.get(`/api/audit?entity=run&entityId=${run.id}`);
     expect((audit.body.items as { action: string }[]).map((a) => a.action)).toContain('run.point-captured-manually');
-    const redo = await tech.post(`/api/runs/${run.id}/points/0/redo`);
+    const redo = await ctx.tech.post(`/api/runs/${run.id}/points/0/redo`);
     expect(redo.status, JSON.stringify(redo.body)).toBe(200);
     expect(RunSchema.parse(redo.body).points[0]!.capture).toBeNull();
-    await tech.post(`/api/runs/${run.id}/abort`);
+    await ctx.tech.post(`/api/runs/${run.id}/abort`);
   }, 60_000);
 });

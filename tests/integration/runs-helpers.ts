@@ -1,7 +1,8 @@
 /** Helpers shared by the run and bench integration tests (not a test file). */
 import WebSocket from 'ws';
 import { StreamMessageSchema, type StreamMessage } from '../../shared/schemas/stream';
-import type { ApiClient, TestServer } from '../helpers/test-server';
+import { ApiClient, demoEmail, type TestServer } from '../helpers/test-server';
+import { useTestServer } from '../helpers/use-test-server';
 
 export async function until(cond: () => boolean | Promise<boolean>, ms = 30_000, what = 'condition'): Promise<void> {
   const end = Date.now() + ms;
@@ -46,4 +47,22 @@ export async function prepareJob(srv: TestServer, lead: ApiClient, tag = 'FT-101
   };
   await srv.database.exec(`UPDATE jobs SET checklist = '${JSON.stringify(checklist)}'::jsonb, permit_no = 'PTW-TEST-1' WHERE id = '${job.id}'`);
   return job.id;
+}
+
+/**
+ * Boots the app (simulated rig, HOLD_SECONDS = 2) before the calling file's tests with the
+ * technician and the admin signed in and the tech's FT-101 job ready (the lead prepares it); closes
+ * it after them.
+ */
+export function useRunJob() {
+  return useTestServer(
+    async (srv) => {
+      const tech = new ApiClient(srv.url);
+      const admin = new ApiClient(srv.url);
+      const lead = new ApiClient(srv.url);
+      await Promise.all([tech.login(demoEmail('tech')), admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
+      return { tech, admin, jobId: await prepareJob(srv, lead) };
+    },
+    { env: { HOLD_SECONDS: '2' }, timeoutMs: 180_000 },
+  );
 }

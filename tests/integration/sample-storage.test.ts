@@ -13,6 +13,7 @@ import { openDatabase, type Database } from '../../server/db/client';
 import { sampleRepository, type SampleRepository } from '../../server/db/repositories/sample.repository';
 import { BenchHub } from '../../server/bench/hub';
 import { SampleJournal, type JournalRow } from '../../server/bench/journal';
+import { portRow } from './journal-helpers';
 import { isRowRefusal, SampleWriter } from '../../server/bench/sample-writer';
 
 let database: Database;
@@ -114,20 +115,7 @@ describe('a row the database refuses', () => {
     const dir = journalDir();
     const j = new SampleJournal(dir);
     await j.open();
-    const row = (seq: number, raw: string): JournalRow => ({
-      seq,
-      benchId: 'bench-1',
-      device: 'current',
-      runId: null,
-      raw,
-      value: null,
-      unit: null,
-      wallMs: 1.7e12 + seq,
-      monoMs: seq,
-      sourceKind: 'port',
-      sourceId: 'bench-1',
-      clientWallMs: null,
-    });
+    const row = (seq: number, raw: string) => portRow(seq, raw, 1.7e12 + seq);
     await j.append([row(1, '+1'), row(2, 'A\u0000B'), row(3, '+3')]);
     await j.close();
     const writer = new SampleWriter({ sink: repo, journal: new SampleJournal(dir), flushMs: 60_000 });

@@ -3,40 +3,24 @@
  * the run's current point, not at point 1; a redo sends it back to that point; its counter never
  * passes the plan's end. Booted app, simulated rig, HOLD_SECONDS = 2.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { RunSchema, type Run } from '../../shared/schemas/runs';
-import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-import { prepareJob, until } from './runs-helpers';
+import { until, useRunJob } from './runs-helpers';
 
-let srv: TestServer;
-let tech: ApiClient;
-let admin: ApiClient;
-let jobId: string;
+const ctx = useRunJob();
 
-beforeAll(async () => {
-  srv = await startTestServer({ env: { HOLD_SECONDS: '2' } });
-  tech = new ApiClient(srv.url);
-  admin = new ApiClient(srv.url);
-  const lead = new ApiClient(srv.url);
-  await Promise.all([tech.login(demoEmail('tech')), admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
-  jobId = await prepareJob(srv, lead);
-}, 180_000);
-afterAll(async () => {
-  await srv?.close();
-});
-
-const getRun = async (id: string): Promise<Run> => RunSchema.parse((await tech.get(`/api/runs/${id}`)).body);
+const getRun = async (id: string): Promise<Run> => RunSchema.parse((await ctx.tech.get(`/api/runs/${id}`)).body);
 const sim = async (body: unknown) => {
-  const r = await admin.post('/api/sim', body);
+  const r = await ctx.admin.post('/api/sim', body);
   expect(r.status, JSON.stringify(r.body)).toBe(200);
   return r.body as Snapshot;
 };
 type Snapshot = { autopilot?: { index: number; phase: string; points: number } | null };
-const snapshot = async (): Promise<Snapshot> => (await admin.get('/api/sim')).body as Snapshot;
+const snapshot = async (): Promise<Snapshot> => (await ctx.admin.get('/api/sim')).body as Snapshot;
 
 describe('the autopilot follows the run', () => {
   it("starts at the run's current point, goes back for a redo, and never counts past the end", async () => {
-    const started = await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' });
+    const started = await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'as-found' });
     expect(started.status, JSON.stringify(started.body)).toBe(201);
     const run = RunSchema.parse(started.body);
     await sim({ autopilot: { speed: 20 } });
@@ -50,7 +34,7 @@ describe('the autopilot follows the run', () => {
     expect(restarted.autopilot?.index).toBe(current);
 
     // A redo of point 2 moves the run back there; the autopilot follows and captures it again.
-    const redo = await tech.post(`/api/runs/${run.id}/points/1/redo`, { reason: 'checking the approach' });
+    const redo = await ctx.tech.post(`/api/runs/${run.id}/points/1/redo`, { reason: 'checking the approach' });
     expect(redo.status, JSON.stringify(redo.body)).toBe(200);
     await until(async () => (await snapshot()).autopilot?.index === 1, 10_000, 'autopilot at the redone point');
     await until(async () => (await getRun(run.id)).points[1]!.capture !== null, 60_000, 'point 2 captured again');

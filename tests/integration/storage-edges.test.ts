@@ -13,7 +13,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
-import { SampleJournal, type JournalRow } from '../../server/bench/journal';
+import { SampleJournal } from '../../server/bench/journal';
+import { portRow } from './journal-helpers';
 import { BenchStatusSchema } from '../../src/features/bench/api/get-bench';
 import { StorageReviewSchema } from '../../src/features/bench/api/storage';
 import { journalDirOf } from '../../server/services/bench.service';
@@ -201,20 +202,7 @@ describe('storage edges across a SIGKILL (real server process)', () => {
     const base = status.latestSeq + 100_000;
     const j = new SampleJournal(journalDirOf(dataDir));
     await j.open();
-    const row = (seq: number, raw: string): JournalRow => ({
-      seq,
-      benchId: 'bench-1',
-      device: 'current',
-      runId: null,
-      raw,
-      value: null,
-      unit: null,
-      wallMs: Date.now(),
-      monoMs: seq,
-      sourceKind: 'port',
-      sourceId: 'bench-1',
-      clientWallMs: null,
-    });
+    const row = (seq: number, raw: string) => portRow(seq, raw, Date.now());
     await j.append([row(base, '+1.0E-02'), row(base + 1, 'A\u0000B'), row(base + 2, '+1.1E-02')]);
     await j.close();
 

@@ -1,37 +1,21 @@
 /**
- * Security proof: the role matrix of every HTTP route and every WebSocket client message, session
- * tokens that must be refused (expired, `alg: none`, wrong audience or issuer, wrong key, revoked,
- * a forged role claim), cookie attributes, cross-site refusal, the sign-in rate limit, upload limits
- * and file names, and the security headers.
+ * Security proof, sign-in side: the role matrix of every HTTP route and every WebSocket client
+ * message, session tokens that must be refused (expired, `alg: none`, wrong audience or issuer,
+ * wrong key, revoked, a forged role claim) and cookie attributes. Requests from outside (cross-site,
+ * the sign-in rate limit, uploads, security headers): `security-requests.test.ts`.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import { SignJWT, UnsecuredJWT, decodeJwt } from 'jose';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
 import { allows } from '../../server/http/policy';
-import type { Role } from '../../shared/schemas/auth';
-import { ApiClient, DEMO_PASSWORD, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
-import { dataTables, expectErrorBody, rawRequest, ROLES, routesOf, rowCounts, busyTables, signInAll, sleep } from '../helpers/proof-helpers';
+import { ApiClient, DEMO_PASSWORD, demoEmail } from '../helpers/test-server';
+import { expectErrorBody, rawRequest, ROLES, routesOf, sleep } from '../helpers/proof-helpers';
+import { SECRET, useSecurityServer } from '../helpers/security-server';
 
-const SECRET = 'proof-secret-0123456789-abcdefghijklmnopqrstuvwxyz';
 const key = new TextEncoder().encode(SECRET);
 const SAMPLE_ID = '00000000-0000-4000-8000-000000000000';
 
-let srv: TestServer;
-let clients: Record<Role, ApiClient>;
-let tracked: string[];
-
-beforeAll(async () => {
-  srv = await startTestServer({ env: { SESSION_SECRET: SECRET } });
-  clients = await signInAll(srv.url);
-  const tables = await dataTables(srv);
-  const busy = await busyTables(srv, tables, 800);
-  tracked = tables.filter((t) => !busy.includes(t));
-}, 120_000);
-afterAll(async () => {
-  await srv?.close();
-});
+const ctx = useSecurityServer();
 
 const tokenOf = (c: ApiClient) => c.cookie.replace(/^sp_session=/, '');
 const withToken = (token: string) => ({ cookie: `sp_session=${token}` });
@@ -39,7 +23,7 @@ const withToken = (token: string) => ({ cookie: `sp_session=${token}` });
 /** Opens /ws; resolves with the first message, or with the HTTP status of a refused upgrade. */
 function openWs(headers: Record<string, string>, query = ''): Promise<{ ws?: WebSocket; first?: { type: string }; status?: number; body?: string }> {
   return new Promise((resolve, reject) => {
-    const ws = new WebSocket(`${srv.url.replace('http', 'ws')}/ws${query}`, { headers });
+    const ws = new WebSocket(`${ctx.srv.url.replace('http', 'ws')}/ws${query}`, { headers });
     ws.once('unexpected-response', (_req, res) => {
       let body = '';
       res.on('data', (d: Buffer) => (body += d));
@@ -54,12 +38,12 @@ function openWs(headers: Record<string, string>, query = ''): Promise<{ ws?: Web
 
 describe('role matrix', () => {
   it('refuses exactly what the policy table refuses, on every route, for every role and signed out', async () => {
-    const signedOut = new ApiClient(srv.url);
+    const signedOut = new ApiClient(ctx.srv.url);
     const checked: string[] = [];
-    for (const spec of routesOf(srv)) {
+    for (const spec of routesOf(ctx.srv)) {
       if (spec.path === '/api/auth/login' || spec.path === '/api/auth/logout') continue; // own tests below
       for (const who of [...ROLES, 'signed-out'] as const) {
-        const c = who === 'signed-out' ? signedOut : clients[who];
+        const c = who === 'signed-out' ? signedOut : ctx.clients[who];
         const r = await c.req(spec.method.toUpperCase(), spec.path.replace(/:[a-zA-Z]+/g, (m) => (m === ':id' ? SAMPLE_ID : '0')), spec.method === 'get' ? undefined : {});
         const label = `${spec.method.toUpperCase()} ${spec.path} as ${who}: ${r.status}`;
         expect(r.status, label).toBeLessThan(500);
@@ -75,7 +59,7 @@ describe('role matrix', () => {
     }
     console.log(`security: role matrix checked ${checked.length} route × role pairs`);
     // The account routes of issue 14 are in the matrix (they are read from the app, so this guards their mounting).
-    const mounted = routesOf(srv).map((r) => `${r.method} ${r.path}`);
+    const mounted = routesOf(ctx.srv).map((r) => `${r.method} ${r.path}`);
     expect(mounted).toEqual(expect.arrayContaining(['post /api/auth/password', 'post /api/users/:id/reset-password', 'post /api/users/:id/unlock']));
     expect(checked.length).toBeGreaterThan(150);
   });
@@ -86,9 +70,9 @@ describe('WebSocket /ws', () => {
     const out = await openWs({});
     expect(out.status).toBe(401);
     expect(JSON.parse(out.body!).error.code).toBe('unauthenticated');
-    const foreign = await openWs({ ...withToken(tokenOf(clients.lead)), origin: 'http://evil.example' });
+    const foreign = await openWs({ ...withToken(tokenOf(ctx.clients.lead)), origin: 'http://evil.example' });
     expect(foreign.status).toBe(403);
-    const c = new ApiClient(srv.url);
+    const c = new ApiClient(ctx.srv.url);
     await c.login(demoEmail('auditor'));
     const token = tokenOf(c);
     await c.post('/api/auth/logout');
@@ -98,23 +82,23 @@ describe('WebSocket /ws', () => {
   });
 
   it('opens /ws for a registered bench agent token only, never a made-up, malformed or revoked one (nor falls back to the cookie)', async () => {
-    const reg = await clients.lead.post('/api/benches', { id: 'proof-agent', label: 'Proof bench' });
+    const reg = await ctx.clients.lead.post('/api/benches', { id: 'proof-agent', label: 'Proof bench' });
     expect(reg.status).toBe(201);
     const token = reg.body.token as string;
     for (const bad of ['Bearer spb_made-up', 'Bearer', `Basic ${token}`, `Bearer ${token}x`, `Bearer ${token.slice(0, -1)}`]) {
-      const r = await openWs({ authorization: bad, ...withToken(tokenOf(clients.lead)) });
+      const r = await openWs({ authorization: bad, ...withToken(tokenOf(ctx.clients.lead)) });
       expect(r.status, bad).toBe(401);
     }
     const ok = await openWs({ authorization: `Bearer ${token}` });
     expect(ok.first?.type).toBe('stream.opened');
     const closed = new Promise<number>((r) => ok.ws!.once('close', (code) => r(code)));
-    expect((await clients.admin.post('/api/benches/proof-agent/revoke')).status).toBe(200);
+    expect((await ctx.clients.admin.post('/api/benches/proof-agent/revoke')).status).toBe(200);
     expect(await closed).toBe(4403);
     expect((await openWs({ authorization: `Bearer ${token}` })).status).toBe(401);
   });
 
   it.each(ROLES)('lets the %s role subscribe and watch, and forward lines only to its own browser bench if the policy allows it', async (role) => {
-    const { ws, first } = await openWs({ ...withToken(tokenOf(clients[role])), origin: srv.url });
+    const { ws, first } = await openWs({ ...withToken(tokenOf(ctx.clients[role])), origin: ctx.srv.url });
     expect(first?.type).toBe('stream.opened');
     const acks: { batchSeq: number; status: string }[] = [];
     ws!.on('message', (d) => {
@@ -122,7 +106,7 @@ describe('WebSocket /ws', () => {
       if (m.type === 'lines.acked') acks.push(m);
     });
     ws!.send(JSON.stringify({ type: 'watch', runId: null }));
-    const own = `browser-${(await clients[role].get('/api/auth/me')).body.id}`;
+    const own = `browser-${(await ctx.clients[role].get('/api/auth/me')).body.id}`;
     const made = `proof-forward-${role}`;
     const forward = (benchId: string, batchSeq: number) =>
       ws!.send(JSON.stringify({ type: 'lines.forwarded', benchId, senderId: `proof-${role}`, batchSeq, sentWallMs: Date.now(), lines: [{ device: 'current', raw: '+1.200000E-02', wallMs: Date.now() }] }));
@@ -141,14 +125,14 @@ describe('WebSocket /ws', () => {
       [2, 'refused'],
       [3, 'refused'],
     ]);
-    const benches = ((await clients.lead.get('/api/bench')).body.benches as { benchId: string }[]).map((b) => b.benchId);
+    const benches = ((await ctx.clients.lead.get('/api/bench')).body.benches as { benchId: string }[]).map((b) => b.benchId);
     expect(benches.includes(own), `${role} forwarding lines`).toBe(allows('jobs.perform', role));
     expect(benches.includes(made), `${role} naming a bench`).toBe(false);
     // A message beyond the 64 KiB limit closes the connection (1009), not the server.
     const closed = new Promise<number>((r) => ws!.once('close', (code) => r(code)));
     ws!.send('x'.repeat(70 * 1024));
     expect(await closed).toBe(1009);
-    expect((await clients.lead.get('/api/health')).status).toBe(200);
+    expect((await ctx.clients.lead.get('/api/health')).status).toBe(200);
   });
 });
 
@@ -165,11 +149,11 @@ describe('session tokens', () => {
       .setExpirationTime(p.exp!);
     return edit(j).sign(secret);
   }
-  const me = (token: string) => rawRequest(srv.url, { method: 'GET', path: '/api/auth/me', headers: withToken(token) });
+  const me = (token: string) => rawRequest(ctx.srv.url, { method: 'GET', path: '/api/auth/me', headers: withToken(token) });
 
   it('accepts the real token and a faithful re-signing of it (the test forges with the right key)', async () => {
-    expect((await me(tokenOf(clients.lead))).status).toBe(200);
-    expect((await me(await forge(clients.lead, (j) => j))).status).toBe(200);
+    expect((await me(tokenOf(ctx.clients.lead))).status).toBe(200);
+    expect((await me(await forge(ctx.clients.lead, (j) => j))).status).toBe(200);
   });
 
   it.each([
@@ -179,37 +163,37 @@ describe('session tokens', () => {
     ['not yet valid', (j: SignJWT) => j.setNotBefore(Math.floor(Date.now() / 1000) + 3600)],
     ['unknown session id', (j: SignJWT) => j.setJti('00000000-dead-4000-8000-000000000000')],
   ])('refuses a token with %s', async (_what, edit) => {
-    const r = await me(await forge(clients.lead, edit));
+    const r = await me(await forge(ctx.clients.lead, edit));
     expect(r.status).toBe(401);
     expectErrorBody(r, _what);
     expect((r.json as { error: { code: string } }).error.code).toBe('unauthenticated');
   });
 
   it('refuses an expired token with a message that says so', async () => {
-    const r = await me(await forge(clients.lead, (j) => j.setExpirationTime(Math.floor(Date.now() / 1000) - 1)));
+    const r = await me(await forge(ctx.clients.lead, (j) => j.setExpirationTime(Math.floor(Date.now() / 1000) - 1)));
     expect(r.status).toBe(401);
     expect((r.json as { error: { message: string } }).error.message).toMatch(/expired/);
   });
 
   it('refuses alg none, another algorithm, another key and a tampered signature', async () => {
-    const p = decodeJwt(tokenOf(clients.admin));
+    const p = decodeJwt(tokenOf(ctx.clients.admin));
     const none = new UnsecuredJWT({ role: 'admin' }).setSubject(p.sub!).setJti(p.jti!).setIssuer('stillpoint').setAudience('stillpoint-web').setExpirationTime('1h').encode();
     expect((await me(none)).status).toBe(401);
-    expect((await me(await forge(clients.admin, (j) => j, {}, key, 'HS512'))).status).toBe(401);
-    expect((await me(await forge(clients.admin, (j) => j, {}, new TextEncoder().encode('another-secret-that-is-long-enough-000')))).status).toBe(401);
-    const [h, b, s] = tokenOf(clients.admin).split('.');
+    expect((await me(await forge(ctx.clients.admin, (j) => j, {}, key, 'HS512'))).status).toBe(401);
+    expect((await me(await forge(ctx.clients.admin, (j) => j, {}, new TextEncoder().encode('another-secret-that-is-long-enough-000')))).status).toBe(401);
+    const [h, b, s] = tokenOf(ctx.clients.admin).split('.');
     expect((await me(`${h}.${b}.${s!.slice(0, -2)}${s!.endsWith('AA') ? 'BB' : 'AA'}`)).status).toBe(401);
     expect((await me(`${h}.${b}.`)).status).toBe(401);
   });
 
   it('takes the role from the database, never from the token: a technician token claiming admin stays a technician', async () => {
-    const forged = await forge(clients.technician, (j) => j, { role: 'admin' });
-    const r = await rawRequest(srv.url, { method: 'GET', path: '/api/users', headers: withToken(forged) });
+    const forged = await forge(ctx.clients.technician, (j) => j, { role: 'admin' });
+    const r = await rawRequest(ctx.srv.url, { method: 'GET', path: '/api/users', headers: withToken(forged) });
     expect(r.status).toBe(403);
   });
 
   it('refuses a revoked session (signed out) on HTTP', async () => {
-    const c = new ApiClient(srv.url);
+    const c = new ApiClient(ctx.srv.url);
     await c.login(demoEmail('lead'));
     const token = tokenOf(c);
     expect((await c.post('/api/auth/logout')).status).toBe(204);
@@ -219,9 +203,9 @@ describe('session tokens', () => {
 
 describe('session cookie', () => {
   const login = (headers: Record<string, string> = {}) =>
-    fetch(`${srv.url}/api/auth/login`, {
+    fetch(`${ctx.srv.url}/api/auth/login`, {
       method: 'POST',
-      headers: { 'content-type': 'application/json', origin: srv.url, ...headers },
+      headers: { 'content-type': 'application/json', origin: ctx.srv.url, ...headers },
       body: JSON.stringify({ email: demoEmail('lead'), password: DEMO_PASSWORD }),
     });
 
@@ -244,154 +228,12 @@ describe('session cookie', () => {
   });
 
   it('is cleared on sign-out with the same attributes', async () => {
-    const c = new ApiClient(srv.url);
+    const c = new ApiClient(ctx.srv.url);
     await c.login(demoEmail('lead'));
-    const res = await fetch(`${srv.url}/api/auth/logout`, { method: 'POST', headers: { origin: srv.url, cookie: c.cookie } });
+    const res = await fetch(`${ctx.srv.url}/api/auth/logout`, { method: 'POST', headers: { origin: ctx.srv.url, cookie: c.cookie } });
     const cleared = res.headers.getSetCookie().find((x) => x.startsWith('sp_session='))!;
     expect(cleared).toMatch(/^sp_session=;/);
     expect(cleared).toMatch(/Expires=Thu, 01 Jan 1970/i);
     expect(cleared).toMatch(/Path=\//);
-  });
-});
-
-describe('cross-site requests', () => {
-  const invite = { email: 'xsite@stillpoint-demo.test', name: 'X Site', role: 'lead', password: 'violet-harbour-71' };
-  it.each([
-    ['a foreign Origin', { origin: 'http://evil.example' }],
-    ['Origin null', { origin: 'null' }],
-    ['a look-alike Origin', { origin: 'http://127.0.0.1.evil.example' }],
-    ['a foreign Referer and no Origin', { referer: 'http://evil.example/page' }],
-    ['an unparseable Referer', { referer: 'not a url' }],
-    ['neither Origin nor Referer, with a session cookie', {}],
-  ])('refuses a state-changing request with %s, and writes nothing', async (_what, headers) => {
-    const before = await rowCounts(srv, tracked);
-    const r = await rawRequest(srv.url, {
-      method: 'POST',
-      path: '/api/users',
-      headers: { 'content-type': 'application/json', cookie: clients.admin.cookie, ...headers },
-      body: JSON.stringify(invite),
-    });
-    expect(r.status).toBe(403);
-    expect((r.json as { error: { code: string } }).error.code).toBe('cross_site');
-    expect(await rowCounts(srv, tracked)).toEqual(before);
-  });
-
-  it('refuses a foreign Host header (DNS rebinding) before anything else, even with a matching Origin', async () => {
-    const before = await rowCounts(srv, tracked);
-    const r = await rawRequest(srv.url, {
-      method: 'POST',
-      path: '/api/users',
-      headers: { host: 'rebound.example', origin: 'http://rebound.example', 'content-type': 'application/json', cookie: clients.admin.cookie },
-      body: JSON.stringify(invite),
-    });
-    expect(r.status).toBe(421);
-    expectErrorBody(r, 'foreign Host');
-    expect(await rowCounts(srv, tracked)).toEqual(before);
-  });
-
-  it('accepts the own Referer, and safe methods from anywhere', async () => {
-    const r = await rawRequest(srv.url, { method: 'POST', path: '/api/calc/evaluate', headers: { 'content-type': 'application/json', cookie: clients.lead.cookie, referer: `${srv.url}/queue` }, body: '{}' });
-    expect(r.status).toBe(400); // past the guard, stopped by validation
-    const g = await rawRequest(srv.url, { method: 'GET', path: '/api/jobs', headers: { cookie: clients.lead.cookie, origin: 'http://evil.example' } });
-    expect(g.status).toBe(200);
-    expect(g.headers['access-control-allow-origin']).toBeUndefined(); // no CORS: another site cannot read it
-  });
-});
-
-describe('sign-in rate limit', () => {
-  // The address limit, X-Forwarded-For rotation and lifting a lock: tests/integration/accounts.test.ts.
-  it('answers 429 after five failures for an account, even to the right password, and not for another account', async () => {
-    const email = demoEmail('tech2');
-    const codes: number[] = [];
-    for (let i = 0; i < 6; i++) codes.push((await new ApiClient(srv.url).post('/api/auth/login', { email, password: `wrong-password-${i}` })).status);
-    expect(codes).toEqual([401, 401, 401, 401, 401, 429]);
-    const right = await new ApiClient(srv.url).post('/api/auth/login', { email, password: DEMO_PASSWORD });
-    expect(right.status).toBe(429);
-    expect(right.body.error.code).toBe('rate_limited');
-    expect(right.headers.get('ratelimit') ?? right.headers.get('ratelimit-policy')).toBeTruthy();
-    expect((await new ApiClient(srv.url).post('/api/auth/login', { email: demoEmail('auditor'), password: DEMO_PASSWORD })).status).toBe(200);
-  });
-});
-
-describe('uploads', () => {
-  // The CSV imports: the file uploads (certificates, datasheets, photos) have their own checks in
-  // tests/integration/records-uploads.test.ts (type by content, size, nothing left behind, traversal).
-  const uploadRoutes = () => routesOf(srv).filter((r) => r.method === 'post' && /\/import$/.test(r.path));
-  const MPB = 'proofB0undary';
-  const form = (parts: { name: string; filename?: string; type?: string; data: Buffer | string }[]) =>
-    Buffer.concat([
-      ...parts.flatMap((p) => [
-        Buffer.from(`--${MPB}\r\nContent-Disposition: form-data; name="${p.name}"${p.filename !== undefined ? `; filename="${p.filename}"` : ''}\r\n${p.type ? `Content-Type: ${p.type}\r\n` : ''}\r\n`),
-        Buffer.isBuffer(p.data) ? p.data : Buffer.from(p.data),
-        Buffer.from('\r\n'),
-      ]),
-      Buffer.from(`--${MPB}--\r\n`),
-    ]);
-  const post = (p: string, body: Buffer, type = `multipart/form-data; boundary=${MPB}`) =>
-    rawRequest(srv.url, { method: 'POST', path: p, headers: { 'content-type': type, origin: srv.url, cookie: clients.lead.cookie }, body });
-
-  it('has CSV import routes to test', () => {
-    expect(uploadRoutes().map((r) => r.path)).toEqual(expect.arrayContaining(['/api/instruments/import', '/api/standards/import']));
-  });
-
-  it('refuses too large, binary, misnamed and doubled files on every upload route with a 4xx, writing nothing', async () => {
-    for (const r of uploadRoutes()) {
-      const before = await rowCounts(srv, tracked);
-      const cases: [string, Buffer, number[], string?][] = [
-        ['too large', form([{ name: 'file', filename: 'big.csv', type: 'text/csv', data: 'a,'.repeat(1_100_000) }]), [413]],
-        ['too large as text/csv', Buffer.from('a,'.repeat(1_100_001)), [413], 'text/csv'],
-        ['binary (PNG bytes)', form([{ name: 'file', filename: 'x.csv', type: 'text/csv', data: Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0]) }]), [415]],
-        ['not UTF-8', form([{ name: 'file', filename: 'x.csv', type: 'text/csv', data: Buffer.from([0x74, 0x61, 0x67, 0x0a, 0xff, 0xfe, 0xc3, 0x28]) }]), [415]],
-        ['a NUL byte', form([{ name: 'file', filename: 'x.csv', type: 'text/csv', data: 'tag\u0000\nFT-1' }]), [415]],
-        ['the wrong field', form([{ name: 'upload', filename: 'x.csv', type: 'text/csv', data: 'tag\nFT-1' }]), [400]],
-        ['two files', form([{ name: 'file', filename: 'a.csv', data: 'tag\nA' }, { name: 'file', filename: 'b.csv', data: 'tag\nB' }]), [400]],
-        ['a truncated form', form([{ name: 'file', filename: 'a.csv', data: 'tag\nA' }]).subarray(0, 50), [400]],
-      ];
-      for (const [what, body, expected, type] of cases) {
-        const res = await post(r.path, body, type);
-        expect(expected, `${r.path} with ${what}: ${res.status} ${res.text.slice(0, 200)}`).toContain(res.status);
-        expectErrorBody(res, `${r.path} with ${what}`);
-      }
-      expect(await rowCounts(srv, tracked), r.path).toEqual(before);
-    }
-  });
-
-  it('never uses the file name as a path (traversal names are harmless)', async () => {
-    const dataDir = path.resolve('.tmp/unused');
-    const names = ['../../../../tmp/proof-evil.csv', '..\\..\\proof-evil.csv', '/tmp/proof-evil-abs.csv', 'proof\u0000evil.csv'];
-    for (const r of uploadRoutes()) {
-      for (const filename of names) {
-        const res = await post(r.path, form([{ name: 'file', filename, type: 'text/csv', data: 'not,a,register\n1,2,3' }]));
-        expect(res.status, `${r.path} ${filename}: ${res.text.slice(0, 200)}`).toBeLessThan(500);
-      }
-    }
-    for (const p of ['/tmp/proof-evil.csv', '/tmp/proof-evil-abs.csv', path.resolve('proof-evil.csv'), path.join(dataDir, '..', 'proof-evil.csv')]) expect(fs.existsSync(p), p).toBe(false);
-  });
-
-  // File uploads (standards' certificates, datasheets, photos): type by magic bytes, size, traversal
-  // and nothing left behind are proved in tests/integration/records-uploads.test.ts.
-});
-
-describe('security headers', () => {
-  it('sends helmet headers on API answers, errors included: CSP with no external hosts, nosniff, frame-ancestors, no X-Powered-By', async () => {
-    for (const p of ['/api/health', '/api/nothing-here', '/api/jobs']) {
-      const r = await rawRequest(srv.url, { method: 'GET', path: p, headers: { cookie: clients.lead.cookie } });
-      const h = r.headers;
-      expect(h['x-content-type-options'], p).toBe('nosniff');
-      expect(h['x-frame-options'], p).toBe('SAMEORIGIN');
-      expect(h['x-powered-by'], p).toBeUndefined();
-      expect(h['referrer-policy'], p).toBe('no-referrer');
-      expect(h['cross-origin-opener-policy'], p).toBe('same-origin');
-      const csp = String(h['content-security-policy']);
-      const directives = Object.fromEntries(csp.split(';').map((d) => d.trim().split(/\s+/)).map(([k, ...v]) => [k, v]));
-      expect(directives['default-src']).toEqual(["'self'"]);
-      expect(directives['frame-ancestors']).toEqual(["'self'"]);
-      expect(directives['object-src']).toEqual(["'none'"]);
-      expect(directives['script-src']).toEqual(["'self'"]);
-      // No host is named anywhere: only 'self', keywords and scheme sources (data:, blob:, ws:, wss:).
-      for (const [d, sources] of Object.entries(directives)) {
-        for (const s of sources as string[]) expect(s, `${d} ${s}`).toMatch(/^('[a-z-]+'|[a-z]+:)$/);
-      }
-    }
   });
 });

@@ -45,9 +45,17 @@ function FieldFrame({ id, hintId, errorId, label, hint, error, className, childr
   );
 }
 
-function describedBy(hint: unknown, error: unknown, hintId: string, errorId: string): string | undefined {
-  const ids = [hint ? hintId : null, error ? errorId : null].filter(Boolean);
-  return ids.length ? ids.join(' ') : undefined;
+/** The ids that tie a control to its label, hint and error: for the frame, and the control's own attributes. */
+function useFieldIds(id: string | undefined, hint: unknown, error: unknown) {
+  const auto = useId();
+  const fid = id ?? auto;
+  const hintId = `${fid}-hint`;
+  const errorId = `${fid}-error`;
+  const described = [hint ? hintId : null, error ? errorId : null].filter(Boolean);
+  return {
+    frame: { id: fid, hintId, errorId },
+    control: { id: fid, 'aria-invalid': error ? true : undefined, 'aria-describedby': described.length ? described.join(' ') : undefined },
+  };
 }
 
 export interface TextFieldProps extends FieldProps, Omit<InputHTMLAttributes<HTMLInputElement>, 'className'> {
@@ -57,17 +65,12 @@ export interface TextFieldProps extends FieldProps, Omit<InputHTMLAttributes<HTM
 
 /** Label + input + error. Works with react-hook-form's `register` (ref and handlers pass through). */
 export function TextField({ label, error, hint, className, inputClassName, id, ref, ...input }: TextFieldProps) {
-  const auto = useId();
-  const fid = id ?? auto;
-  const hintId = `${fid}-hint`;
-  const errorId = `${fid}-error`;
+  const ids = useFieldIds(id, hint, error);
   return (
-    <FieldFrame id={fid} hintId={hintId} errorId={errorId} label={label} hint={hint} error={error} className={className}>
+    <FieldFrame {...ids.frame} label={label} hint={hint} error={error} className={className}>
       <input
         ref={ref}
-        id={fid}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(hint, error, hintId, errorId)}
+        {...ids.control}
         className={cn(controlClass, 'h-10', error ? 'border-danger' : 'border-line-strong', inputClassName)}
         {...input}
       />
@@ -82,17 +85,12 @@ export interface SelectFieldProps extends FieldProps, Omit<SelectHTMLAttributes<
 
 /** Label + native select + error. */
 export function SelectField({ label, error, hint, className, id, options, ref, ...select }: SelectFieldProps) {
-  const auto = useId();
-  const fid = id ?? auto;
-  const hintId = `${fid}-hint`;
-  const errorId = `${fid}-error`;
+  const ids = useFieldIds(id, hint, error);
   return (
-    <FieldFrame id={fid} hintId={hintId} errorId={errorId} label={label} hint={hint} error={error} className={className}>
+    <FieldFrame {...ids.frame} label={label} hint={hint} error={error} className={className}>
       <select
         ref={ref}
-        id={fid}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(hint, error, hintId, errorId)}
+        {...ids.control}
         className={cn(controlClass, 'h-10', error ? 'border-danger' : 'border-line-strong')}
         {...select}
       >

@@ -1,50 +1,56 @@
-import type { RequestHandler } from 'express';
+import type { RequestHandler, Response } from 'express';
 import { z } from 'zod';
 import { RemoveAttachmentBodySchema } from '../../../../shared/schemas/files';
 import { IdParamSchema } from '../../../../shared/schemas/users';
+import type { SessionUser } from '../../../services/auth.service';
 import type { FileService } from '../../../services/file.service';
 import { currentUser } from '../../middleware/auth';
 import { input, validate } from '../../middleware/validate';
+import type { Action } from '../../policy';
 import { routeTable, type RouteTable } from '../../route-table';
 
 const one = { params: IdParamSchema };
 
+type Upload = Parameters<FileService['jobPhoto']>[2];
+
+/** One kind of attachment of a record: where it is uploaded and listed, and who may do either. */
+interface AttachmentKind {
+  entity: Parameters<FileService['list']>[0];
+  /** Upload (POST) and list (GET) paths under the table's base. */
+  paths: [upload: string, list: string];
+  actions: [upload: Action, list: Action];
+  /** Whether the record exists and this user may add to it: runs before multer reads the body. */
+  check: (id: string, res: Response) => Promise<unknown>;
+  save: (user: SessionUser, id: string, file: Upload) => Promise<unknown>;
+}
+
+function addAttachmentRoutes(table: RouteTable, files: FileService, kind: AttachmentKind): RouteTable {
+  const mayUpload: RequestHandler = async (_req, res, next) => {
+    await kind.check(input(res, one).params.id, res);
+    next();
+  };
+  table.add('post', kind.paths[0], kind.actions[0], validate(one), mayUpload, files.upload, async (req, res) => {
+    res.status(201).json(await kind.save(currentUser(res), input(res, one).params.id, req.file));
+  });
+  table.add('get', kind.paths[1], kind.actions[1], validate(one), async (_req, res) => {
+    res.json({ items: await files.list(kind.entity, input(res, one).params.id) });
+  });
+  return table;
+}
+
 /** Upload routes: the permission and existence checks run before multer reads the body. */
 export function uploadRoutes(files: FileService): RouteTable[] {
-  const standards = routeTable('/api/standards');
-  const standardExists: RequestHandler = async (_req, res, next) => {
-    await files.checkStandard(input(res, one).params.id);
-    next();
-  };
-  standards.add('post', '/:id/certificate', 'registers.write', validate(one), standardExists, files.upload, async (req, res) => {
-    res.status(201).json(await files.standardCertificate(currentUser(res), input(res, one).params.id, req.file));
+  const standards = addAttachmentRoutes(routeTable('/api/standards'), files, {
+    entity: 'standard', paths: ['/:id/certificate', '/:id/certificates'], actions: ['registers.write', 'registers.read'],
+    check: (id) => files.checkStandard(id), save: (user, id, file) => files.standardCertificate(user, id, file),
   });
-  standards.add('get', '/:id/certificates', 'registers.read', validate(one), async (_req, res) => {
-    res.json({ items: await files.list('standard', input(res, one).params.id) });
+  const instruments = addAttachmentRoutes(routeTable('/api/instruments'), files, {
+    entity: 'instrument', paths: ['/:id/datasheet', '/:id/datasheets'], actions: ['registers.write', 'registers.read'],
+    check: (id) => files.checkInstrument(id), save: (user, id, file) => files.instrumentDatasheet(user, id, file),
   });
-
-  const instruments = routeTable('/api/instruments');
-  const instrumentExists: RequestHandler = async (_req, res, next) => {
-    await files.checkInstrument(input(res, one).params.id);
-    next();
-  };
-  instruments.add('post', '/:id/datasheet', 'registers.write', validate(one), instrumentExists, files.upload, async (req, res) => {
-    res.status(201).json(await files.instrumentDatasheet(currentUser(res), input(res, one).params.id, req.file));
-  });
-  instruments.add('get', '/:id/datasheets', 'registers.read', validate(one), async (_req, res) => {
-    res.json({ items: await files.list('instrument', input(res, one).params.id) });
-  });
-
-  const jobs = routeTable('/api/jobs');
-  const mayAddPhoto: RequestHandler = async (_req, res, next) => {
-    await files.checkPhoto(currentUser(res), input(res, one).params.id);
-    next();
-  };
-  jobs.add('post', '/:id/photos', 'jobs.perform', validate(one), mayAddPhoto, files.upload, async (req, res) => {
-    res.status(201).json(await files.jobPhoto(currentUser(res), input(res, one).params.id, req.file));
-  });
-  jobs.add('get', '/:id/photos', 'jobs.read', validate(one), async (_req, res) => {
-    res.json({ items: await files.list('job', input(res, one).params.id) });
+  const jobs = addAttachmentRoutes(routeTable('/api/jobs'), files, {
+    entity: 'job', paths: ['/:id/photos', '/:id/photos'], actions: ['jobs.perform', 'jobs.read'],
+    check: (id, res) => files.checkPhoto(currentUser(res), id), save: (user, id, file) => files.jobPhoto(user, id, file),
   });
 
   // Removing a file needs a reason; who may remove what, and the lock, are the service's (photos: the
