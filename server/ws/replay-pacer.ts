@@ -11,11 +11,18 @@ export interface ReplayPacerOptions {
   restFactor: number;
   /** Work below this, ms, is carried over instead of rested for. Default 1. */
   minRestMs?: number;
+  /**
+   * Longest single rest, ms; what is owed beyond it is forgiven. On a machine busy with other work a
+   * page's wall time (preemption included) overstates the replay's own work, and an unbounded rest
+   * would slow every resume there for no gain. Default 20.
+   */
+  maxRestMs?: number;
   sleep?: (ms: number) => Promise<void>;
 }
 
 export function createReplayPacer(o: ReplayPacerOptions) {
   const minRest = o.minRestMs ?? 1;
+  const maxRest = o.maxRestMs ?? 20;
   const sleep = o.sleep ?? ((ms: number) => new Promise<void>((r) => setTimeout(r, ms)));
   let owed = 0;
   const stats = { restedMs: 0, rests: 0 };
@@ -27,7 +34,7 @@ export function createReplayPacer(o: ReplayPacerOptions) {
     /** Rests for the time owed, once it is worth a timer; resolves at once otherwise. */
     async rest(): Promise<void> {
       if (owed < minRest) return;
-      const ms = owed;
+      const ms = Math.min(owed, maxRest);
       owed = 0;
       stats.restedMs += ms;
       stats.rests++;

@@ -54,10 +54,15 @@ async function storm(since: number) {
   const latest = srv.bench.latestSeq();
   const viewers = clients.flatMap((c) => Array.from({ length: 2 * PER_ACCOUNT }, () => viewer(c, since)));
   const health: number[] = [];
+  /** Why health was not 200, when it was not (shown by the assertion). */
+  const unhealthy: string[] = [];
   const settled = (v: Viewer) => v.close !== undefined || v.messages.some((m) => m.seq >= latest || m.type === 'stream.reset');
   await until(
     async () => {
-      health.push((await fetch(`${srv.url}/api/health`)).status);
+      const h = await fetch(`${srv.url}/api/health`);
+      health.push(h.status);
+      if (h.status !== 200) unhealthy.push(JSON.stringify(((await h.json()) as { reasons?: unknown }).reasons));
+      else await h.arrayBuffer();
       return viewers.every(settled);
     },
     180_000,
@@ -66,14 +71,14 @@ async function storm(since: number) {
   const served = viewers.filter((v) => v.close === undefined);
   const refused = viewers.filter((v) => v.close !== undefined);
   for (const v of viewers) v.ws.terminate();
-  return { latest, served, refused, health };
+  return { latest, served, refused, health, unhealthy };
 }
 
 describe('a storm of resumes', () => {
   it('100 sockets resuming from seq 0: health answers, 10 per account served, every replay bounded', async () => {
-    const { latest, served, refused, health } = await storm(0);
+    const { latest, served, refused, health, unhealthy } = await storm(0);
     expect(health.length).toBeGreaterThan(0);
-    expect(health.every((s) => s === 200)).toBe(true);
+    expect(health.every((s) => s === 200), unhealthy.join('; ')).toBe(true);
     expect(served.length).toBe(ACCOUNTS.length * PER_ACCOUNT);
     expect(refused.length).toBe(ACCOUNTS.length * PER_ACCOUNT);
     for (const v of refused) expect(v.close).toEqual({ code: STREAM_CLOSE.tooManyConnections, reason: `Too many live connections for this account (at most ${PER_ACCOUNT}); close another tab` });
@@ -94,8 +99,8 @@ describe('a storm of resumes', () => {
 
   it('100 sockets resuming from 1 000 back: each replay is complete and in order, at most 2 at once and 1 per account', async () => {
     const since = srv.bench.latestSeq() - 1000;
-    const { latest, served, refused, health } = await storm(since);
-    expect(health.every((s) => s === 200)).toBe(true);
+    const { latest, served, refused, health, unhealthy } = await storm(since);
+    expect(health.every((s) => s === 200), unhealthy.join('; ')).toBe(true);
     expect(served.length).toBe(ACCOUNTS.length * PER_ACCOUNT);
     expect(refused.length).toBe(ACCOUNTS.length * PER_ACCOUNT);
     for (const v of served) {
