@@ -72,8 +72,8 @@ describe('HART identity and configuration check before a run', () => {
 
   it('answers 404 for a job that does not exist, on every HART route (found by the API fuzz)', async () => {
     const none = '00000008-1ec9-4c3e-b537-8a32f25acf52';
-    expect((await tech.get(`/api/jobs/${none}/hart`)).status).toBe(404);
-    expect((await tech.post(`/api/jobs/${none}/hart/check`)).status).toBe(404);
-    expect((await tech.post(`/api/jobs/${none}/hart/as-found`, { reason: 'No such job; nothing to record' })).status).toBe(404);
+    expect((await ctx.tech.get(`/api/jobs/${none}/hart`)).status).toBe(404);
+    expect((await ctx.tech.post(`/api/jobs/${none}/hart/check`)).status).toBe(404);
+    expect((await ctx.tech.post(`/api/jobs/${none}/hart/as-found`, { reason: 'No such job; nothing to record' })).status).toBe(404);
   });
 });
