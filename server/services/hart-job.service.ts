@@ -140,6 +140,8 @@ export function createHartJobService(db: Db, audit: AuditService, o: HartJobOpti
   function blockersOf(row: JobHartRow): string[] {
     if (!modemOf()) return [];
     if (trims.current(row.jobId)?.status === 'running') return ['A HART trim is running: let it finish or abort it'];
+    // A trim of another job on this bench, or a loop fixed from elsewhere: a run would read a fixed current.
+    if (modemOf()?.driver.loopCurrentFixed) return ['The HART device\u2019s loop current is fixed: let the trim finish or abort it before a run'];
     if (!row.asFound) return ['Read the HART device\u2019s identity and configuration'];
     if (covered(row.mismatches, row.resolution)) return [];
     return [`The HART device disagrees with the register: ${row.mismatches.map((m) => m.message).join('; ')}. Correct the register or record the device as found, with a reason`];

@@ -71,6 +71,10 @@ describe('HART output trim, hands-free', () => {
     expect((await ctx.tech.post(`/api/jobs/${ctx.jobId}/hart/output-trim`, CONFIRM)).status).toBe(202);
     await until((x) => x.loopCurrentFixed && x.trims.at(-1)?.status === 'running' && x.trims.at(-1)?.fixedMa != null, 'the loop to be fixed', 20_000);
     expect(ctx.srv.rig!.snapshot().hart.trim.fixedMa).not.toBeNull();
+    // No run starts while the loop is fixed: it would capture a fixed current.
+    const start = await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind: 'as-found' });
+    expect(start.status).toBe(409);
+    expect(JSON.stringify(start.body)).toMatch(/trim/i);
     const r = await ctx.tech.post(`/api/jobs/${ctx.jobId}/hart/output-trim/abort`);
     expect(r.status).toBe(200);
     const t = (r.body as JobHart).trims.at(-1)!;
