@@ -65,9 +65,9 @@ function ReasonDialog({ kind, onClose, onDone }: { kind: 'correct-register' | 'a
         <label htmlFor="hart-reason" className="text-sm font-medium text-ink">
           Reason
         </label>
-        <textarea id="hart-reason" rows={3} value={reason} onChange={(e) => setReason(e.target.value)} aria-invalid={error ? true : undefined} className="rounded-md border border-line-strong bg-surface px-3 py-2 text-ink" />
+        <textarea id="hart-reason" rows={3} value={reason} onChange={(e) => setReason(e.target.value)} aria-invalid={error ? true : undefined} aria-describedby={error ? 'hart-reason-error' : undefined} className="rounded-md border border-line-strong bg-surface px-3 py-2 text-ink" />
         {error && (
-          <p role="alert" className="text-sm text-danger">
+          <p id="hart-reason-error" role="alert" className="text-sm text-danger">
             {error}
           </p>
         )}
