@@ -163,6 +163,8 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
       expect(submit.status, JSON.stringify(submit.body)).toBe(200);
       await page.goto(`${server.url}/jobs/${jobId}`);
       await page.getByTestId('submitted').waitFor();
+      // The instrument line comes from its own query: under load it can arrive after the job.
+      await page.getByText(`0–100 ${UNIT}`).first().waitFor({ timeout: 30_000 });
       await scan(page, 'job (submitted)');
       jobText = await page.evaluate(() => document.body.innerText);
       expect(jobText).toContain(`0–100 ${UNIT}`);
