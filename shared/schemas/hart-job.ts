@@ -5,6 +5,7 @@
  * frozen into the record at submission.
  */
 import { z } from 'zod';
+import { ReasonBodySchema } from './reason';
 
 /**
  * What a captured point keeps of the HART device (PointCapture `hart`): the digital PV and the loop
@@ -150,8 +151,8 @@ export const JobHartSchema = z.object({
 });
 export type JobHart = z.infer<typeof JobHartSchema>;
 
-/** Body of the resolutions: a reason of at least 5 characters. */
-export const HartReasonBodySchema = z.object({ reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500) });
+/** Body of the resolutions. */
+export const HartReasonBodySchema = ReasonBodySchema;
 
 /** What the frozen record keeps of the job's HART device (shared/schemas/records `hart`). */
 export const FrozenHartSchema = JobHartSchema.omit({ available: true, loopCurrentFixed: true, blockers: true });

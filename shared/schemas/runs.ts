@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { HartPointSchema } from './hart-job';
+import { ReasonBodySchema } from './reason';
 import { DECISIONS, FLOW_UNITS, type EvaluateOutput } from '../calc';
 
 /** Kinds of run within a job (DESIGN.md §3.5–6). */
@@ -29,9 +30,8 @@ export const StartRunBodySchema = z.object({
 });
 export type StartRunBody = z.infer<typeof StartRunBodySchema>;
 
-export const ManualCaptureBodySchema = z.object({
-  reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500),
-});
+/** Body of a manual capture: the reason, kept with the point. */
+export const ManualCaptureBodySchema = ReasonBodySchema;
 
 /** Body of `POST /api/runs/:id/points/:index/redo`: why the point is measured again (optional; kept in the audit trail and on the certificate). */
 export const RedoBodySchema = z.object({

@@ -1,19 +1,11 @@
-import type { QueryClient } from '@tanstack/react-query';
 import type { Instrument } from '../../../shared/schemas/instruments';
 import { INSTRUMENT_COLUMNS as INSTRUMENT_CSV_COLUMNS } from '../../../shared/schemas/register-csv';
-import { RegisterPage, type RegisterPageConfig } from '../../components/registers/register-page';
+import type { RegisterPageConfig } from '../../components/registers/register-page';
 import { DATASHEET } from '../../components/ui/attachments';
-import { useMe } from '../../features/auth/api/get-me';
 import { instrumentsQueryOptions, useInstruments } from '../../features/instruments/api/get-instruments';
 import { INSTRUMENT_COLUMNS } from '../../features/instruments/components/instrument-columns';
 import { InstrumentForm } from '../../features/instruments/components/instrument-form';
-import { canEditRegisters } from '../../lib/authorization';
-import { RouteErrorBoundary } from './route-error';
-
-export const createLoader = (queryClient: QueryClient) => () => {
-  void queryClient.prefetchQuery(instrumentsQueryOptions());
-  return null;
-};
+import { registerRoute } from './register-route';
 
 const INSTRUMENTS: RegisterPageConfig<Instrument> = {
   title: 'Instruments',
@@ -41,9 +33,4 @@ const INSTRUMENTS: RegisterPageConfig<Instrument> = {
   renderForm: ({ row, onSaved, onCancel }) => <InstrumentForm instrument={row} onSaved={onSaved} onCancel={onCancel} />,
 };
 
-export function Component() {
-  const me = useMe().data;
-  return <RegisterPage config={INSTRUMENTS} canEdit={!!me && canEditRegisters(me.role)} />;
-}
-
-export const ErrorBoundary = RouteErrorBoundary;
+export const { createLoader, Component, ErrorBoundary } = registerRoute(INSTRUMENTS, (queryClient) => queryClient.prefetchQuery(instrumentsQueryOptions()));

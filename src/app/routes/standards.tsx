@@ -1,20 +1,12 @@
-import type { QueryClient } from '@tanstack/react-query';
 import type { Standard } from '../../../shared/schemas/standards';
 import { STANDARD_COLUMNS as STANDARD_CSV_COLUMNS } from '../../../shared/schemas/register-csv';
-import { RegisterPage, type RegisterPageConfig } from '../../components/registers/register-page';
+import type { RegisterPageConfig } from '../../components/registers/register-page';
 import { CERTIFICATE } from '../../components/ui/attachments';
 import { Stat } from '../../components/ui/stat';
-import { useMe } from '../../features/auth/api/get-me';
 import { standardsQueryOptions, useStandardDueCounts, useStandards } from '../../features/standards/api/get-standards';
 import { STANDARD_COLUMNS } from '../../features/standards/components/standard-columns';
 import { StandardForm } from '../../features/standards/components/standard-form';
-import { canEditRegisters } from '../../lib/authorization';
-import { RouteErrorBoundary } from './route-error';
-
-export const createLoader = (queryClient: QueryClient) => () => {
-  void queryClient.prefetchQuery(standardsQueryOptions());
-  return null;
-};
+import { registerRoute } from './register-route';
 
 /** The register's size and how many standards are due soon or expired. */
 function DueCounts({ total }: { total: number }) {
@@ -48,9 +40,4 @@ const STANDARDS: RegisterPageConfig<Standard> = {
   summary: (total) => <DueCounts total={total} />,
 };
 
-export function Component() {
-  const me = useMe().data;
-  return <RegisterPage config={STANDARDS} canEdit={!!me && canEditRegisters(me.role)} />;
-}
-
-export const ErrorBoundary = RouteErrorBoundary;
+export const { createLoader, Component, ErrorBoundary } = registerRoute(STANDARDS, (queryClient) => queryClient.prefetchQuery(standardsQueryOptions()));

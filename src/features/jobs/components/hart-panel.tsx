@@ -2,7 +2,7 @@ import { useState } from 'react';
 import type { HartReading, JobHart } from '../../../../shared/schemas/hart-job';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
-import { Dialog } from '../../../components/ui/dialog';
+import { ReasonDialog } from '../../../components/ui/reason-dialog';
 import { formatDateTime, formatNumber } from '../../../lib/format';
 import { unitLabel } from '../../../../shared/format';
 import { useJobHart, useJobHartAction } from '../api/job-hart';
@@ -34,55 +34,19 @@ export function HartReadingList({ reading, testId }: { reading: HartReading; tes
   );
 }
 
-/** Asks for the reason of a correction or an as-found acknowledgement. */
-function ReasonDialog({ kind, onClose, onDone }: { kind: 'correct-register' | 'as-found' | null; onClose: () => void; onDone: (reason: string) => Promise<unknown> }) {
-  const [reason, setReason] = useState('');
-  const [error, setError] = useState<string | null>(null);
-  const [pending, setPending] = useState(false);
-  const title = kind === 'correct-register' ? 'Correct the register to the device' : 'Record the device as found';
-  const description =
-    kind === 'correct-register'
-      ? 'The register takes the device’s range, unit and transfer function. Say why the register was wrong; the change is audited.'
-      : 'The device is kept as it is and the disagreement is recorded with your reason, in the audit trail and the record.';
-  return (
-    <Dialog open={kind !== null} onClose={onClose} title={title} description={description}>
-      <form
-        className="flex flex-col gap-3"
-        onSubmit={(e) => {
-          e.preventDefault();
-          if (reason.trim().length < 5) return setError('Give a reason of at least 5 characters');
-          setPending(true);
-          onDone(reason.trim()).then(
-            () => {
-              setReason('');
-              setError(null);
-              onClose();
-            },
-            (err: unknown) => setError(err instanceof Error ? err.message : 'Refused'),
-          ).finally(() => setPending(false));
-        }}
-      >
-        <label htmlFor="hart-reason" className="text-sm font-medium text-ink">
-          Reason
-        </label>
-        <textarea id="hart-reason" rows={3} value={reason} onChange={(e) => setReason(e.target.value)} aria-invalid={error ? true : undefined} aria-describedby={error ? 'hart-reason-error' : undefined} className="rounded-md border border-line-strong bg-surface px-3 py-2 text-ink" />
-        {error && (
-          <p id="hart-reason-error" role="alert" className="text-sm text-danger">
-            {error}
-          </p>
-        )}
-        <div className="flex justify-end gap-2 pt-2">
-          <Button variant="secondary" onClick={onClose}>
-            Cancel
-          </Button>
-          <Button type="submit" loading={pending} data-testid="hart-reason-submit">
-            {kind === 'correct-register' ? 'Correct the register' : 'Record as found'}
-          </Button>
-        </div>
-      </form>
-    </Dialog>
-  );
-}
+/** What each resolution asks and does: the dialog's words. */
+const RESOLUTION_DIALOG = {
+  'correct-register': {
+    title: 'Correct the register to the device',
+    description: 'The register takes the device’s range, unit and transfer function. Say why the register was wrong; the change is audited.',
+    submitLabel: 'Correct the register',
+  },
+  'as-found': {
+    title: 'Record the device as found',
+    description: 'The device is kept as it is and the disagreement is recorded with your reason, in the audit trail and the record.',
+    submitLabel: 'Record as found',
+  },
+} as const;
 
 /** Resolution of a disagreement in words. */
 function Resolution({ r }: { r: NonNullable<JobHart['resolution']> }) {
@@ -142,7 +106,17 @@ export function HartPanel({ jobId, canEdit }: { jobId: string; canEdit: boolean 
           )}
         </div>
       )}
-      <ReasonDialog kind={dialog} onClose={() => setDialog(null)} onDone={(reason) => act.mutateAsync({ kind: dialog!, reason })} />
+      <ReasonDialog
+        open={dialog !== null}
+        {...RESOLUTION_DIALOG[dialog ?? 'as-found']}
+        onClose={() => setDialog(null)}
+        onSubmit={async (reason) => {
+          await act.mutateAsync({ kind: dialog!, reason });
+          setDialog(null);
+        }}
+        pending={act.isPending}
+        submitTestId="hart-reason-submit"
+      />
     </section>
   );
 }

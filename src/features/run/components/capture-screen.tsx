@@ -6,6 +6,7 @@ import type { Instrument } from '../../../../shared/schemas/instruments';
 import type { Run, RunPoint } from '../../../../shared/schemas/runs';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
+import { ReasonDialog } from '../../../components/ui/reason-dialog';
 import { toast } from '../../../components/ui/toast';
 import { dpDecimals as dpDecimalsOfSpan, formatFixed, formatNumber, unitLabel as unitText } from '../../../lib/format';
 import { useLiveStream } from '../../../lib/live-stream';
@@ -21,7 +22,6 @@ import { RUN_KIND_LABEL, TRIM_LABEL } from '../lib/labels';
 import { parseResults } from '../lib/results';
 import { CurrentPoint } from './current-point';
 import { LiveTrace } from './live-trace';
-import { ManualCaptureDialog } from './manual-capture-dialog';
 import { PointList } from './point-list';
 import { Readouts } from './readouts';
 import { ResultsTable } from './results-table';
@@ -273,12 +273,15 @@ export function CaptureScreen({ run, instrument, tag, canAct, userId }: CaptureS
       {!results && run.resultsProblem && <p className="text-sm text-warn">Results cannot be computed yet: {run.resultsProblem}</p>}
       <HartErrorsTable run={run} unitLabel={unitLabel} dpDecimals={dpDecimals} />
 
-      <ManualCaptureDialog
+      <ReasonDialog
         open={!!manualFor}
-        pointLabel={manualFor ? `point ${manualFor.index + 1} (${nominalWords(manualFor)})` : ''}
+        title={`Capture ${manualFor ? `point ${manualFor.index + 1} (${nominalWords(manualFor)})` : ''} manually`}
+        description="The point is captured now from the readings so far, flagged as manual, with your reason."
+        submitLabel="Capture now"
+        placeholder="e.g. pump noise keeps the reading from settling; reading steady by eye for 60 s"
         pending={action.isPending}
         onClose={() => setManualFor(null)}
-        onCapture={async (reason) => {
+        onSubmit={async (reason) => {
           if (!manualFor) return;
           await act({ type: 'capture', index: manualFor.index, reason }, `Point ${manualFor.index + 1} captured manually`);
           setManualFor(null);
