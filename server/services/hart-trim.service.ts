@@ -87,7 +87,8 @@ export function createHartTrims(d: HartTrimDeps) {
       try {
         await d.log.write(jobId, actor, 'output-trim', '0 mA (leave fixed current)', () => driver.leaveFixedCurrent());
         trim.fixedMa = null;
-        trim.step = outcome === 'done' ? 'trimmed and verified; fixed current left' : `${outcome}: ${trim.error ?? ''}; fixed current left`;
+        // The status and the error are shown beside the step: the step says only where the device was left.
+        trim.step = outcome === 'done' ? 'trimmed and verified; fixed current left' : 'fixed current left';
       } catch (e) {
         trim.error = `${trim.error ? `${trim.error}; ` : ''}leaving fixed current failed (${(e as Error).message}); the driver retries after reconnecting`;
       }

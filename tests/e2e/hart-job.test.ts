@@ -120,6 +120,34 @@ describe('HART job (FT-101 on the simulated HART transmitter)', () => {
       const aborted = (await hartOf(jobId)).trims.at(-1)!;
       expect(aborted.status).toBe('aborted');
       expect((await hartOf(jobId)).writes.at(-1)).toMatchObject({ command: 40, value: '0 mA (leave fixed current)', outcome: 'ok' });
+
+      // At 390 px (a phone, a tablet in a panel): the HART panels fit the page, and units read as written.
+      await page.setViewportSize({ width: 390, height: 844 });
+      await page.goto(`${app.server.url}/jobs/${jobId}`);
+      await page.getByTestId('hart-trim-reading-verify-12').first().waitFor();
+      // Nothing spills out of its box (outside the frames that scroll on purpose, such as the step rail).
+      const wide = await page.evaluate(() =>
+        Array.from(document.querySelectorAll('main *'))
+          .filter((e) => {
+            if (e.scrollWidth <= e.clientWidth + 1 || getComputedStyle(e).overflowX !== 'visible' || e.classList.contains('sr-only')) return false;
+            for (let a = e.parentElement; a && a !== document.body; a = a.parentElement) if (getComputedStyle(a).overflowX !== 'visible') return false;
+            return true;
+          })
+          .slice(-5)
+          .map((e) => `${e.tagName.toLowerCase()}.${e.className} "${(e.textContent ?? '').slice(0, 40)}" ${e.scrollWidth} px in ${e.clientWidth}`),
+      );
+      if (process.env.E2E_SHOTS) await page.screenshot({ path: `${process.env.E2E_SHOTS}/job-390.png` });
+      expect(wide).toEqual([]);
+      expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+      for (const id of ['hart-panel', 'hart-trim-panel']) {
+        const panel = page.getByTestId(id);
+        const box = (await panel.boundingBox())!;
+        expect(box.x + box.width, `${id} ends inside the page`).toBeLessThanOrEqual(390);
+        const text = await panel.innerText();
+        expect(text, id).not.toMatch(/\bMA\b|INH|K=2|−0(?![.0-9])/);
+        if (process.env.E2E_SHOTS) await panel.screenshot({ path: `${process.env.E2E_SHOTS}/${id}-390.png` });
+      }
+      expect(await page.getByTestId('hart-trim-panel').innerText()).toContain('mA');
       expect(pageErrors).toEqual([]);
     } finally {
       await context.close();

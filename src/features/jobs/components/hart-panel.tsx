@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useState, type ReactNode } from 'react';
 import type { HartReading, JobHart } from '../../../../shared/schemas/hart-job';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
@@ -12,12 +12,21 @@ const hex = (n: number, digits: number) => `0x${n.toString(16).toUpperCase().pad
 /** The device's identity and configuration as read (commands 0, 13, 15). */
 export function HartReadingList({ reading, testId }: { reading: HartReading; testId: string }) {
   const { identity: i, config: c } = reading;
-  const rows: [string, string][] = [
+  const rows: [string, ReactNode][] = [
     ['Tag', i.tag || '(blank)'],
     ['Descriptor', i.descriptor || '(blank)'],
     ['Manufacturer / device type', `${i.manufacturerId === null ? '—' : hex(i.manufacturerId, 4)} / ${hex(i.expandedDeviceType, 4)}`],
     ['Device id', hex(i.deviceId, 6)],
-    ['Range', `${formatNumber(c.lrv)} to ${formatNumber(c.urv)} ${c.unit ? unitLabel(c.unit) : `(unit code ${c.unitCode})`}`],
+    [
+      'Range',
+      // The numbers and the unit each kept on one line: a narrow screen breaks between them only.
+      <>
+        <span className="whitespace-nowrap">
+          {formatNumber(c.lrv)} to {formatNumber(c.urv)}
+        </span>{' '}
+        <span className="whitespace-nowrap">{c.unit ? unitLabel(c.unit) : `(unit code ${c.unitCode})`}</span>
+      </>,
+    ],
     ['Transfer function', c.transferFunction],
     ['Damping', `${formatNumber(c.dampingS, 3)} s`],
     ['Write protect', c.writeProtect ? 'on' : 'off'],
@@ -27,7 +36,7 @@ export function HartReadingList({ reading, testId }: { reading: HartReading; tes
       {rows.map(([k, v]) => (
         <div key={k} className="contents">
           <dt className="text-ink-muted">{k}</dt>
-          <dd className="num">{v}</dd>
+          <dd className="num break-words whitespace-normal!">{v}</dd>
         </div>
       ))}
     </dl>

@@ -15,7 +15,7 @@ function TrimResult({ t }: { t: HartTrim }) {
         <span className="font-medium">{t.kind === 'output-trim' ? 'Output (loop current) trim' : 'Zero trim (command 43)'}</span>{' '}
         <Badge tone={STATUS_TONE[t.status]}>{t.status}</Badge> <span className="text-ink-muted">{t.step}</span>
       </p>
-      {t.error && <p className="text-danger">{t.error}</p>}
+      {t.error && <p className="text-danger">{t.error.charAt(0).toUpperCase() + t.error.slice(1)}.</p>}
       {t.readings.length > 0 && (
         <table className="w-fit text-sm">
           <thead className="text-xs text-ink-muted">
