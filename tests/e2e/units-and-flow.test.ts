@@ -119,6 +119,7 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
       const page = await signIn(context, 'tech');
       page.on('pageerror', (e) => errors.push(e.message));
       await page.goto(`${server.url}/jobs/${jobId}`);
+      await page.getByText(`0–100 ${UNIT}`).first().waitFor({ timeout: 30_000 });
       await scan(page, 'job');
       // The output-mode check first (the as-found waits for it), hands-free.
       await page.getByTestId('start-mode-check').click();
@@ -163,7 +164,7 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
       expect(submit.status, JSON.stringify(submit.body)).toBe(200);
       await page.goto(`${server.url}/jobs/${jobId}`);
       await page.getByTestId('submitted').waitFor();
-      // The instrument line comes from its own query: under load it can arrive after the job.
+      // The instrument line comes from its own query: under load it can arrive after the job's.
       await page.getByText(`0–100 ${UNIT}`).first().waitFor({ timeout: 30_000 });
       await scan(page, 'job (submitted)');
       jobText = await page.evaluate(() => document.body.innerText);
@@ -229,7 +230,7 @@ describe('flow in engineering units on an orifice-element instrument (FT-101)', 
         await scan(page, name);
       };
       await visit('queue', '/queue', 'h1');
-      await visit('job (lead)', `/jobs/${jobId}`, '[data-testid="submitted"]');
+      await visit('job (lead)', `/jobs/${jobId}`, `text=0–100 ${UNIT}`);
       await visit('review (lead)', `/jobs/${jobId}/review`, `[data-testid^="review-flow-"]`);
       await visit('records', '/records', 'table tbody tr');
       await visit('audit', '/audit', 'table tbody tr');
