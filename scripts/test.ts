@@ -48,12 +48,19 @@ const projects = (...names: string[]) => names.flatMap((p) => ['--project', p]);
 const NO_DATABASE = ['composition-root', 'lint-boundaries', 'serial-driver-pty', 'serial-driver-sim', 'serial-faults'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const OUTAGE = 'tests/proof/agent-outage.test.ts';
 
+/**
+ * The lint-boundaries suite lints probe files (CPU work, no server, no clock): it runs in the lint
+ * lane after `eslint .`, at that lane's low priority, instead of taking one of the integration
+ * lane's two file slots from the suites that wait on the rig.
+ */
+const LINT_SUITE = 'tests/integration/lint-boundaries.test.ts';
+
 const TIERS: Record<string, Lane[]> = {
   test: [
-    { name: 'lint', steps: [[bin('eslint'), '.']], background: true },
+    { name: 'lint', steps: [[bin('eslint'), '.'], vitest(...projects('integration'), LINT_SUITE)], background: true },
     { name: 'types', steps: [tsc('app'), tsc('node')], background: true },
     { name: 'unit', steps: [vitest(...projects('shared', 'shared-dom', 'server', 'client'))], background: true },
-    { name: 'integration', steps: [vitest(...projects('integration'))] },
+    { name: 'integration', steps: [vitest(...projects('integration'), '--exclude', LINT_SUITE)] },
     { name: 'e2e', steps: [vitest(...projects('e2e'))] },
     { name: 'proof', steps: [vitest(...projects('proof'))] },
   ],

@@ -1,7 +1,10 @@
 /**
  * Scheduled mail (issue 13, item 12): croner schedules whose last slot is kept in the database, so
  * restarting the server sends no scheduled mail twice; the weekly due list fills every column.
- * Real server starts over one data directory, with the local fake SMTP server and its Outbox.
+ * Real server starts over one data directory, with the local fake SMTP server and its Outbox. The
+ * data directory starts as the migrated, seeded template (tests/helpers/db-template.ts: the same
+ * migrations and seed a first start runs, no mail sent and no slot claimed), so the first start
+ * does not seed two years of demo history again; what it sends is still its own.
  */
 import fs from 'node:fs';
 import os from 'node:os';
@@ -12,6 +15,8 @@ import { parseEnv } from '../../server/env';
 import { createLogger } from '../../server/logger';
 import { createMailScheduler, MAIL_SCHEDULES } from '../../server/services/mail-schedule.service';
 import type { MailService } from '../../server/services/mail.service';
+import { seedDataDir } from '../helpers/db-template';
+import { DEMO_PASSWORD } from '../helpers/test-server';
 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-mail-schedule-'));
 let running: Running | undefined;
@@ -22,6 +27,7 @@ afterAll(async () => {
 });
 
 async function start(): Promise<Running> {
+  if (!fs.existsSync(path.join(dir, 'pglite'))) await seedDataDir(dir, DEMO_PASSWORD);
   const env = parseEnv({ NODE_ENV: 'test', PORT: '0', HOST: '127.0.0.1', LOG_LEVEL: 'silent', DATA_DIR: dir, DATABASE_URL: '' });
   running = await boot({ env, logger: createLogger(env.LOG_LEVEL) });
   return running;

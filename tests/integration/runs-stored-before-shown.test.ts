@@ -144,11 +144,11 @@ describe('stored before shown', () => {
     gate.close();
     const answer = tech.post(`/api/runs/${run.id}/points/0/capture`, { reason: 'technician judged the reading steady' });
     await until(() => engine.snapshot()?.points[0]?.state === 'captured', 10_000, 'engine captured');
-    let answered = false;
-    void answer.then(() => (answered = true));
+    let answered: string | false = false;
+    void answer.then((a) => (answered = `${a.status} ${JSON.stringify(a.body)}`));
     // Held back: no answer yet, and the API does not show the capture.
     expect((await getRun(run.id)).points[0]!.capture).toBeNull();
-    expect(answered).toBe(false);
+    expect(answered, 'the manual capture answered before its write went through').toBe(false);
     gate.open();
     const r = await answer;
     expect(r.status, JSON.stringify(r.body)).toBe(200);

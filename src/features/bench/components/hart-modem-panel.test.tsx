@@ -1,9 +1,18 @@
 import { cleanup, render, screen } from '@testing-library/react';
-import { afterEach, describe, expect, it } from 'vitest';
+import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { BenchStatusSchema } from '../api/get-bench';
 import { HartModemPanel } from './hart-modem-panel';
 
-afterEach(cleanup);
+/** The clock the panel reads (`… s ago`), fixed: a render late by a second on a loaded machine must not change the text. */
+const NOW = Date.parse('2026-12-03T10:00:00Z');
+beforeEach(() => {
+  vi.useFakeTimers({ toFake: ['Date'] });
+  vi.setSystemTime(NOW);
+});
+afterEach(() => {
+  cleanup();
+  vi.useRealTimers();
+});
 
 /** The HART part of a GET /api/bench reply as the server sends it (server/bench/hart-modem.ts). */
 const hart = {
@@ -16,8 +25,8 @@ const hart = {
   device: { deviceId: 0x00b2c7, expandedDeviceType: 0x3a51, universalRevision: 7 },
   loopCurrentFixed: true,
   deviceStatus: ['configuration changed', 'loop current fixed'],
-  lastCommand: { command: 45, name: 'trim loop current zero', at: Date.now() - 5_000, outcome: 'error', responseCode: 7 },
-  lastError: { code: 'hart-write-protected', message: 'HART command 45 (trim loop current zero) on /dev/sim-hart: the device answered "in write protect mode" (response code 7)', at: Date.now() - 5_000 },
+  lastCommand: { command: 45, name: 'trim loop current zero', at: NOW - 5_000, outcome: 'error', responseCode: 7 },
+  lastError: { code: 'hart-write-protected', message: 'HART command 45 (trim loop current zero) on /dev/sim-hart: the device answered "in write protect mode" (response code 7)', at: NOW - 5_000 },
   stats: { sent: 12, replied: 11, retries: 1, timeouts: 1, checksumErrors: 0, busy: 0, communicationErrors: 0, garbageBytes: 0, transactions: 11, errors: 1 },
 };
 
