@@ -22,6 +22,12 @@ const EnvSchema = z.object({
    * shedding benchmark asks for (our own figure).
    */
   SHED_TARGET_MS: z.coerce.number().int().min(0).max(60_000).default(100),
+  /**
+   * Nice value of the PGlite database thread (0–19; 0: the process's own priority). A higher value
+   * lets the live path on the main thread win the CPU over a long review query, but on a machine
+   * shared with other busy programs it also queues every HTTP request's query behind them.
+   */
+  DB_THREAD_NICE: z.coerce.number().int().min(0).max(19).default(10),
   /** Where PGlite keeps its files, the lock, the signing secret, the sample journal and uploads. */
   DATA_DIR: z.string().min(1).default('./data'),
   /** A postgres:// URL switches storage to a PostgreSQL server; unset means embedded PGlite. */
