@@ -14,12 +14,14 @@ const EnvSchema = z.object({
    * the address the sign-in throttle sees.
    */
   TRUST_PROXY: z.string().min(1).optional(),
-  /** Requests served at once before new ones get 503 with Retry-After (0 turns shedding off). */
+  /** Most requests served at once; past the limit in force new ones wait briefly for a turn or get 503 with Retry-After (0 turns shedding off). */
   MAX_IN_FLIGHT: z.coerce.number().int().min(0).max(100_000).default(48),
   /**
-   * Latency the served requests are held to, ms: while they take longer, fewer are taken at once
-   * (down to 16) and the rest get 503. 0 keeps the limit at MAX_IN_FLIGHT. Half the 200 ms p99 the
-   * shedding benchmark asks for (our own figure).
+   * Latency the served requests are held to, ms: the limit in force starts at 2 and climbs towards
+   * MAX_IN_FLIGHT while requests take less once started, and falls while they take longer; a
+   * request past it waits up to this long for a turn while the queue has lately been empty, 5 ms
+   * while it has stood longer (controlled delay), then gets 503. 0 keeps the limit at MAX_IN_FLIGHT
+   * with no waiting. Half the 200 ms p99 the shedding benchmark asks for (our own figure).
    */
   SHED_TARGET_MS: z.coerce.number().int().min(0).max(60_000).default(100),
   /**
