@@ -121,7 +121,8 @@ export async function run(): Promise<BenchFigure[]> {
       for (const s of order) {
         const t = await openLoopTraffic({ base: s.base, clients: s.clients, mix: s.mix, rate, seconds: SECONDS });
         s.steps.push({ rate, sent: t.sent, served: t.served.length, shed: t.shed, failed: t.failures.length, p50: percentile(t.served, 50), p99: percentile(t.served, 99) });
-        process.stderr.write(`  ${s.v.name ? `${s.v.name} ` : ''}${rate} req/s: ${JSON.stringify(s.steps[s.steps.length - 1])} load ${os.loadavg()[0]!.toFixed(2)}\n`);
+        const failures = [...new Set(t.failures.map((f) => f.replace(/[0-9a-f-]{36}/g, ':id')))].slice(0, 3);
+        process.stderr.write(`  ${s.v.name ? `${s.v.name} ` : ''}${rate} req/s: ${JSON.stringify(s.steps[s.steps.length - 1])} load ${os.loadavg()[0]!.toFixed(2)}${failures.length ? ` failures: ${failures.join('; ')}` : ''}\n`);
         await sleep(1000);
       }
     }

@@ -28,10 +28,12 @@ const EnvSchema = z.object({
   SHED_TARGET_MS: z.coerce.number().int().min(0).max(60_000).default(50),
   /**
    * Nice value of the PGlite database thread (0–19; 0: the process's own priority). A higher value
-   * lets the live path on the main thread win the CPU over a long review query, but on a machine
-   * shared with other busy programs it also queues every HTTP request's query behind them.
+   * lets the main thread (the live path) win the CPU over a long review query when the cores are
+   * oversubscribed, but it also lets every other program on the machine win it: on a shared two-core
+   * machine at load average 22–24 the database thread at nice 10 served fewer requests at a higher
+   * p99 than at 0 at each of 100, 150 and 200 req/s (perf/shedding.bench.ts, one run, 2026-12-03).
    */
-  DB_THREAD_NICE: z.coerce.number().int().min(0).max(19).default(10),
+  DB_THREAD_NICE: z.coerce.number().int().min(0).max(19).default(0),
   /** Where PGlite keeps its files, the lock, the signing secret, the sample journal and uploads. */
   DATA_DIR: z.string().min(1).default('./data'),
   /** A postgres:// URL switches storage to a PostgreSQL server; unset means embedded PGlite. */
