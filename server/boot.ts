@@ -13,7 +13,7 @@ import { createSimControl, type SimController } from './bench/sim-control';
 import { defaultBinding } from './bench/transport';
 import type { LineProtocolProfile } from '../shared/protocol';
 import { openDatabase, type Database } from './db/client';
-import { clientAddressOf } from './http/client-address';
+import { addressKey, clientAddressOf } from './http/client-address';
 import { demoSeedPolicy, listenHost, trustProxySetting, type Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
 import { storageRoutes } from './http/routes/bench/storage.routes';
@@ -269,7 +269,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       server.once('error', reject);
       server.listen(env.PORT, listenHost(env), () => resolve());
     });
-    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins, clientAddress: clientAddressOf(app) });
+    const addressOf = clientAddressOf(app);
+    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins, clientAddress: (req) => addressKey(addressOf(req)) });
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 

@@ -2,7 +2,7 @@ import type http from 'node:http';
 import { Socket } from 'node:net';
 import express from 'express';
 import { describe, expect, it } from 'vitest';
-import { clientAddressOf } from './client-address';
+import { addressKey, clientAddressOf } from './client-address';
 
 /** An upgrade request as the HTTP server hands it over: headers and the peer's socket. */
 function upgradeFrom(remoteAddress: string, headers: http.IncomingHttpHeaders = {}): http.IncomingMessage {
@@ -31,8 +31,11 @@ describe('client address of a socket upgrade', () => {
     expect(of(upgradeFrom('198.51.100.7', { 'x-forwarded-for': '203.0.113.9' }))).toBe('198.51.100.7');
   });
 
-  it('keys an IPv6 peer by its /56 network, as the sign-in throttle does', () => {
-    const of = clientAddressOf(appTrusting(false));
-    expect(of(upgradeFrom('2001:db8:1:2:3::1'))).toBe(of(upgradeFrom('2001:db8:1:2:ffff::9')));
+  it('is keyed by /56 for IPv6, as the sign-in throttle does, and not at all for a peer on this host', () => {
+    expect(addressKey('2001:db8:1:2:3::1')).toBe(addressKey('2001:db8:1:2:ffff::9'));
+    expect(addressKey('2001:db8:1:2:3::1')).not.toBe(addressKey('2001:db8:1:3400::1'));
+    expect(addressKey('203.0.113.9')).toBe('203.0.113.9');
+    for (const local of ['127.0.0.1', '127.3.4.5', '::1', '::ffff:127.0.0.1']) expect(addressKey(local)).toBeUndefined();
+    expect(addressKey('::ffff:203.0.113.9')).toBeDefined();
   });
 });

@@ -72,7 +72,7 @@ export function attachStreamServer(o: StreamServerOptions) {
   const stallMs = o.replayStallMs ?? 30_000;
   const sessions = createSessionSockets<UserClient>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
   const slots = createReplaySlots({ total: o.maxReplays ?? 2, perUser: o.maxReplaysPerUser ?? 1 });
-  const addressOf = o.clientAddress ?? ((req: http.IncomingMessage) => req.socket.remoteAddress ?? '');
+  const addressOf = o.clientAddress ?? ((req: http.IncomingMessage): string | undefined => req.socket.remoteAddress);
   const upgrades = createUpgradeGate({
     atOnce: o.maxUpgradesAtOnce ?? 2,
     maxWaiting: o.maxUpgradesWaiting ?? 500,

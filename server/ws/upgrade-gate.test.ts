@@ -98,4 +98,13 @@ describe('upgrade gate', () => {
     expect(ran).toHaveLength(5);
     expect(gate.stats().addressesWaiting).toBe(0);
   });
+  it('does not limit by address an upgrade with no address key (a peer on this host), only by the whole queue', async () => {
+    const gate = createUpgradeGate({ atOnce: 1, maxWaiting: 6, maxWaitingPerAddress: 3 });
+    const hold = deferred();
+    gate.enter(new PassThrough(), () => hold.promise);
+    await tick();
+    const taken = Array.from({ length: 7 }, () => gate.enter(new PassThrough(), async () => {}));
+    expect(taken).toEqual([true, true, true, true, true, true, false]);
+    hold.resolve();
+  });
 });

@@ -29,17 +29,19 @@ export function createUpgradeGate(o: UpgradeGateOptions) {
   return {
     /**
      * Runs `admit` when the socket's turn comes and frees the turn when it settles; false (and
-     * nothing run) when too many are already waiting, in all or from `address` (the client
-     * address, as the HTTP side derives it; see server/http/client-address.ts).
+     * nothing run) when too many are already waiting, in all or from `address` (the client's
+     * address key, server/http/client-address.ts; undefined: not limited by address).
      */
-    enter(socket: Duplex, admit: () => Promise<void>, address = ''): boolean {
+    enter(socket: Duplex, admit: () => Promise<void>, address?: string): boolean {
       if (slots.stats().waiting >= o.maxWaiting) return false;
-      const mine = waitingFrom.get(address) ?? 0;
-      if (mine >= perAddress) return false;
-      waitingFrom.set(address, mine + 1);
-      let waiting = true;
+      let waiting = address !== undefined;
+      if (address !== undefined) {
+        const mine = waitingFrom.get(address) ?? 0;
+        if (mine >= perAddress) return false;
+        waitingFrom.set(address, mine + 1);
+      }
       const leave = () => {
-        if (!waiting) return;
+        if (!waiting || address === undefined) return;
         waiting = false;
         const n = (waitingFrom.get(address) ?? 1) - 1;
         if (n > 0) waitingFrom.set(address, n);
