@@ -28,7 +28,12 @@ export async function keepCaptureRunning(tech: ApiClient, admin: ApiClient, jobI
     const r = await tech.post(`/api/jobs/${jobId}/runs`, { kind: 'as-found' });
     if (r.status !== 201) throw new Error(`run not started: ${r.status} ${JSON.stringify(r.body)}`);
     runIds.push(r.body.id as string);
-    const sim = await admin.post('/api/sim', { autopilot: { speed: 2 } });
+    let sim = await admin.post('/api/sim', { autopilot: { speed: 2 } });
+    // The simulator's control is not exempt from shedding: a busy server asks to come back (Retry-After).
+    for (let i = 0; i < 30 && sim.status === 503 && sim.headers.get('retry-after'); i++) {
+      await sleep(Number(sim.headers.get('retry-after')) * 1000);
+      sim = await admin.post('/api/sim', { autopilot: { speed: 2 } });
+    }
     if (sim.status !== 200) throw new Error(`autopilot not started: ${sim.status} ${JSON.stringify(sim.body)}`);
   };
   await startRun();
@@ -91,14 +96,20 @@ export interface TrafficResult {
  * third of a core (measured 2026-12-03), which on a two-core machine would be measured as server
  * latency.
  */
-function send(agent: http.Agent, url: string, method: string, headers: Record<string, string>, body: string | undefined): Promise<{ status: number; retryAfter: boolean }> {
+function send(agent: http.Agent, url: string, method: string, headers: Record<string, string>, body: string | undefined, retried = false): Promise<{ status: number; retryAfter: boolean }> {
   return new Promise((resolve, reject) => {
     const req = http.request(url, { method, agent, headers: body === undefined ? headers : { ...headers, 'content-length': String(Buffer.byteLength(body)) } }, (res) => {
       res.on('data', () => {});
       res.on('end', () => resolve({ status: res.statusCode ?? 0, retryAfter: res.headers['retry-after'] !== undefined }));
       res.on('error', reject);
     });
-    req.on('error', reject);
+    req.on('error', (err: NodeJS.ErrnoException) => {
+      // A kept-alive socket the server closed as idle just as it was reused: sent again once, as the
+      // Node.js documentation of `request.reusedSocket` advises (the mix is reads and a calculation,
+      // safe to send twice).
+      if (!retried && req.reusedSocket && err.code === 'ECONNRESET') send(agent, url, method, headers, body, true).then(resolve, reject);
+      else reject(err);
+    });
     req.end(body);
   });
 }
