@@ -13,6 +13,7 @@ import { createSimControl, type SimController } from './bench/sim-control';
 import { defaultBinding } from './bench/transport';
 import type { LineProtocolProfile } from '../shared/protocol';
 import { openDatabase, type Database } from './db/client';
+import { addressKey, clientAddressOf } from './http/client-address';
 import { demoSeedPolicy, listenHost, trustProxySetting, type Env } from './env';
 import { benchRoutes } from './http/routes/bench/bench.routes';
 import { storageRoutes } from './http/routes/bench/storage.routes';
@@ -134,7 +135,7 @@ function serialPaths(env: Env): { pressure: string; current: string; hart?: stri
 export async function boot(opts: BootOptions): Promise<Running> {
   const { env, logger } = opts;
   const memory = !!opts.memory && !env.DATABASE_URL;
-  const database = await openDatabase({ ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }) });
+  const database = await openDatabase({ threadNice: env.DB_THREAD_NICE, ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }) });
   let benchToStop: BenchService | undefined;
   let rig: SimRig | undefined;
   let fakeSmtp: FakeSmtp | undefined;
@@ -268,7 +269,8 @@ export async function boot(opts: BootOptions): Promise<Running> {
       server.once('error', reject);
       server.listen(env.PORT, listenHost(env), () => resolve());
     });
-    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins });
+    const addressOf = clientAddressOf(app);
+    const stream = attachStreamServer({ server, auth: services.auth, bench, sessionEvents, registry: benches, forward, logger, allowedOrigins, clientAddress: (req) => addressKey(addressOf(req)) });
     const port = (server.address() as AddressInfo).port;
     if (!env.PORT) appUrl = `http://localhost:${port}`;
 

@@ -141,6 +141,8 @@ export interface OpenOptions {
   template?: Uint8Array;
   /** PostgreSQL only: how long to wait for another process's hold on the database to go, ms (default 10 000). */
   lockWaitMs?: number;
+  /** PGlite only: nice value of the database thread (DB_THREAD_NICE; see {@link WorkerInit.nice}). */
+  threadNice?: number;
 }
 
 /** Opens the database and applies the migrations in drizzle/ in-process. */
@@ -185,13 +187,10 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
   const release = opts.dataDir ? lockDataDir(opts.dataDir) : undefined;
   let client: PgliteWorkerClient;
   try {
-    client = await PgliteWorkerClient.start(
-      opts.dataDir
-        ? { dataDir: path.join(path.resolve(opts.dataDir), 'pglite') }
-        : opts.template
-          ? { loadDataDir: opts.template.slice().buffer }
-          : {},
-    );
+    client = await PgliteWorkerClient.start({
+      ...(opts.dataDir ? { dataDir: path.join(path.resolve(opts.dataDir), 'pglite') } : opts.template ? { loadDataDir: opts.template.slice().buffer } : {}),
+      ...(opts.threadNice === undefined ? {} : { nice: opts.threadNice }),
+    });
   } catch (e) {
     release?.();
     throw e;

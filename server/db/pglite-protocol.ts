@@ -10,6 +10,11 @@ export interface WorkerInit {
   dataDir?: string;
   /** An in-memory database's starting contents: a tarball from `dumpDataDir` (tests start from a migrated, seeded template). */
   loadDataDir?: ArrayBuffer;
+  /**
+   * Nice value the worker thread gives itself (it only ever lowers its priority); absent or 0: the
+   * process's priority.
+   */
+  nice?: number;
 }
 
 export type WorkerRequest =

@@ -93,17 +93,15 @@ async function copyJsonArray(pg: PGlite, select: string, limit: number, wrap: Js
 }
 
 /**
- * Nice value of this thread. On a busy machine the live path (serial → hub → WebSocket, on the main
- * thread) must win the CPU over a long review query; a sample is acknowledged from the journal, not
- * from here, so running the database a little behind costs no durability. Linux applies
- * setpriority(2) to a single thread when given its thread id; elsewhere this is skipped.
+ * Lowers this thread's priority to the nice value it was started with (`init.nice`, DB_THREAD_NICE),
+ * if any. Linux applies setpriority(2) to a single thread when given its thread id; elsewhere this
+ * is skipped. See DB_THREAD_NICE in server/env.ts for what it costs.
  */
-const DB_THREAD_NICE = 10;
-
-function lowerOwnPriority(): void {
+function lowerOwnPriority(nice: number | undefined): void {
+  if (!nice || nice <= 0) return;
   try {
     const tid = Number(fs.readlinkSync('/proc/thread-self').split('/').pop());
-    if (Number.isInteger(tid) && tid > 0) os.setPriority(tid, Math.max(os.getPriority(tid), DB_THREAD_NICE));
+    if (Number.isInteger(tid) && tid > 0) os.setPriority(tid, Math.max(os.getPriority(tid), nice));
   } catch {
     // Not Linux, or not allowed: the thread keeps the process's priority.
   }
@@ -175,7 +173,7 @@ async function gzipEnd(stream: number, tail: string | undefined): Promise<ArrayB
 }
 
 async function main(): Promise<void> {
-  lowerOwnPriority();
+  lowerOwnPriority(init.nice);
   let pg: PGlite;
   try {
     pg = init.dataDir ? new PGlite(init.dataDir) : new PGlite(init.loadDataDir ? { loadDataDir: new Blob([init.loadDataDir]) } : {});

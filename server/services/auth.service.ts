@@ -104,11 +104,21 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
   const sites = siteRepository(db);
   const now = opts.now ?? Date.now;
   const cacheMs = opts.sessionCacheMs ?? SESSION_CACHE_MS;
-  /** Verified sessions by jti, so a burst of requests costs one database look-up. */
-  const cache = new Map<string, { user: SessionUser; sub: string; until: number }>();
+  /**
+   * Verified sessions by their token, so a burst of requests costs one signature check and one
+   * database look-up: the same token string within {@link SESSION_CACHE_MS} of its verification is
+   * taken from here (an HS256 check through WebCrypto cost about 1.4 ms of the main thread per
+   * request, measured 2026-12-03).
+   */
+  const cache = new Map<string, { user: SessionUser; until: number }>();
 
   function forget(userId: string, exceptJti?: string) {
-    for (const [jti, e] of cache) if (e.user.id === userId && jti !== exceptJti) cache.delete(jti);
+    for (const [token, e] of cache) if (e.user.id === userId && e.user.jti !== exceptJti) cache.delete(token);
+  }
+
+  /** Drops the cached verification of session `jti`. */
+  function forgetSession(jti: string) {
+    for (const [token, e] of cache) if (e.user.jti === jti) cache.delete(token);
   }
 
   async function issue(user: UserRow): Promise<{ token: string; expiresAt: Date; jti: string }> {
@@ -189,6 +199,11 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
      * {@link SESSION_CACHE_MS}; ending a session removes it at once.
      */
     async verify(token: string): Promise<SessionUser> {
+      const hit = cache.get(token);
+      if (hit) {
+        if (hit.until > now()) return hit.user;
+        cache.delete(token);
+      }
       let payload;
       try {
         ({ payload } = await jwtVerify(token, secret, { algorithms: ALGORITHMS, issuer: TOKEN_ISSUER, audience: TOKEN_AUDIENCE, currentDate: new Date(now()) }));
@@ -197,9 +212,6 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
         throw unauthenticated('Sign in first');
       }
       if (!payload.jti || !payload.sub) throw unauthenticated();
-      const hit = cache.get(payload.jti);
-      if (hit && hit.until > now() && hit.sub === payload.sub) return hit.user;
-      if (hit) cache.delete(payload.jti);
       const session = await sessions.findActive(payload.jti, payload.sub);
       if (!session || session.expiresAt.getTime() < now()) throw unauthenticated('Your session has ended; sign in again');
       const user = await users.findById(payload.sub);
@@ -208,7 +220,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
       const out: SessionUser = { id: user.id, email: user.email, name: user.name, role: user.role, jti: payload.jti, mustChangePassword: user.mustChangePassword, expiresAtMs };
       if (cacheMs > 0) {
         if (cache.size >= SESSION_CACHE_MAX) for (const [k, e] of cache) if (e.until <= now() || cache.size >= SESSION_CACHE_MAX) cache.delete(k);
-        cache.set(payload.jti, { user: out, sub: payload.sub, until: Math.min(now() + cacheMs, session.expiresAt.getTime()) });
+        cache.set(token, { user: out, until: Math.min(now() + cacheMs, expiresAtMs) });
       }
       return out;
     },
@@ -229,7 +241,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
     async endSessions(userId: string, opts: { except?: string; reason?: SessionEndReason } = {}): Promise<string[]> {
       const ended = await sessions.revokeAllFor(userId, opts.except);
       forget(userId, opts.except);
-      for (const jti of ended) cache.delete(jti);
+      for (const jti of ended) forgetSession(jti);
       sessionEvents.ended({ userId, reason: opts.reason ?? 'revoked', ...(opts.except === undefined ? {} : { except: opts.except }) });
       return ended;
     },
@@ -249,13 +261,13 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
       if (problem) throw badRequest('Choose a less common password', { next: [problem] });
       await users.update(user.id, { passwordHash: await hashPassword(next), mustChangePassword: false });
       const ended = await service.endSessions(user.id, { except: user.jti, reason: 'password-changed' });
-      cache.delete(user.jti);
+      forgetSession(user.jti);
       await audit.record(user, 'auth.password-changed', 'user', user.id, undefined, { otherSessionsEnded: ended.length });
     },
 
     async logout(user: SessionUser): Promise<void> {
       await sessions.revoke(user.jti);
-      cache.delete(user.jti);
+      forgetSession(user.jti);
       sessionEvents.ended({ userId: user.id, jti: user.jti, reason: 'signed-out' });
       await audit.record({ id: user.id, email: user.email }, 'auth.signed-out', 'user', user.id);
     },

@@ -17,7 +17,7 @@ import { CaptureEngines } from '../bench/capture-engines';
 import type { BenchHub } from '../bench/hub';
 import type { SimRunContext } from '../bench/sim-control';
 import type { Db } from '../db/client';
-import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow, type StandardRow } from '../db/repositories/register.repository';
+import { instrumentRepository, jobRepository, standardRepository, type InstrumentRow } from '../db/repositories/register.repository';
 import { runRepository, type RunRepository, type RunRow } from '../db/repositories/run.repository';
 import { sampleRepository } from '../db/repositories/sample.repository';
 import { siteRepository, userRepository } from '../db/repositories/user.repository';
@@ -117,16 +117,17 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
     return u ? { id: u.id, email: u.email } : null;
   }
 
-  async function computeResults(row: RunRow): Promise<RunResultsView> {
+  /** Results of a run; `points`, when the caller has just read them, saves reading them again. */
+  async function computeResults(row: RunRow, points?: RunPoint[]): Promise<RunResultsView> {
     const p = row.plan as FrozenPlan;
-    const captured = (await currentPoints(row)).filter((x) => x.capture);
+    const captured = (points ?? (await currentPoints(row))).filter((x) => x.capture);
     if (!captured.length) return { results: null, problem: null, modeCheck: null };
     const modeCheck = modeCheckOf(row.kind, p, captured);
     // A finished run answers with the results stored when it completed — the ones a submission
     // freezes into the record — so a later edit of a standard does not change what the API says.
     const live = engines.activeRunId(p.benchId) === row.id;
     if (row.status === 'complete' && !live && row.results) return { results: row.results as EvaluateOutput, problem: null, modeCheck };
-    const chosen = (await Promise.all(p.standardIds.map((id) => standards.get(id)))).filter((s): s is StandardRow => !!s);
+    const chosen = await standards.getMany(p.standardIds);
     return { ...evaluateRun(p, captured, chosen), modeCheck };
   }
 
@@ -153,7 +154,7 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
   async function toRun(row: RunRow): Promise<Run> {
     const p = row.plan as FrozenPlan;
     const points = await currentPoints(row);
-    const { results, problem, modeCheck } = await computeResults(row);
+    const { results, problem, modeCheck } = await computeResults(row, points);
     const active = row.status === 'running' || row.status === 'paused';
     return {
       id: row.id,

@@ -38,6 +38,14 @@ export interface StreamServerOptions {
   maxUpgradesAtOnce?: number;
   /** Upgrades that may wait for authentication; one more is refused with 503. Default 500. */
   maxUpgradesWaiting?: number;
+  /** Upgrades from one client address that may wait; one more from it is refused with 503. Default 50. */
+  maxUpgradesWaitingPerAddress?: number;
+  /**
+   * The key the upgrades of a client are counted under: its address as the HTTP side derives it
+   * (TRUST_PROXY respected; server/http/client-address.ts); undefined for one not limited by
+   * address. Default: the socket's remote address.
+   */
+  clientAddress?: (req: http.IncomingMessage) => string | undefined;
   /** A replay sends its next page once the socket has fewer buffered bytes than this. Default 64 KiB. */
   replayLowWaterBytes?: number;
   /** A replay whose socket does not drain for this long is dropped, ms. Default 30 000. */

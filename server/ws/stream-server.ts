@@ -72,9 +72,13 @@ export function attachStreamServer(o: StreamServerOptions) {
   const stallMs = o.replayStallMs ?? 30_000;
   const sessions = createSessionSockets<UserClient>({ sessionEvents: o.sessionEvents, maxPerUser: o.maxConnectionsPerUser ?? 10 });
   const slots = createReplaySlots({ total: o.maxReplays ?? 2, perUser: o.maxReplaysPerUser ?? 1 });
+  const addressOf = o.clientAddress ?? ((req: http.IncomingMessage): string | undefined => req.socket.remoteAddress);
   const upgrades = createUpgradeGate({
     atOnce: o.maxUpgradesAtOnce ?? 2,
     maxWaiting: o.maxUpgradesWaiting ?? 500,
+    // A tenth of the queue (our own figure): one peer cannot fill it, a site behind one proxy
+    // without TRUST_PROXY still gets fifty sockets in line at once.
+    maxWaitingPerAddress: o.maxUpgradesWaitingPerAddress ?? 50,
     onError: (err) => o.logger.warn({ err }, 'a socket upgrade failed'),
   });
   const wss = new WebSocketServer({ noServer: true, maxPayload: o.maxPayload ?? 64 * 1024 });
@@ -138,7 +142,7 @@ export function attachStreamServer(o: StreamServerOptions) {
     }
     socket.on('error', () => {});
     const asked = performance.now();
-    const admitted = upgrades.enter(socket, () => admitUpgrade(req, socket, head, url, asked));
+    const admitted = upgrades.enter(socket, () => admitUpgrade(req, socket, head, url, asked), addressOf(req));
     if (!admitted) {
       stats.refused++;
       refuse(socket, 503, 'Service Unavailable', 'Too many connections are opening; try again shortly');

@@ -72,4 +72,39 @@ describe('upgrade gate', () => {
     for (let i = 0; i < 4; i++) await tick();
     expect(ran).toBe(0);
   });
+  it('caps the upgrades waiting from one address, so one peer cannot fill the queue for the others', async () => {
+    const gate = createUpgradeGate({ atOnce: 1, maxWaiting: 10, maxWaitingPerAddress: 3 });
+    const hold = deferred();
+    const ran: string[] = [];
+    expect(gate.enter(new PassThrough(), () => hold.promise, '203.0.113.9')).toBe(true);
+    await tick();
+    const flood = Array.from({ length: 10 }, () => new PassThrough());
+    const taken = flood.map((s) => gate.enter(s, async () => void ran.push('flood'), '203.0.113.9'));
+    expect(taken).toEqual([true, true, true, false, false, false, false, false, false, false]);
+    expect(gate.stats().waiting).toBe(3);
+    // Another peer still gets in line.
+    expect(gate.enter(new PassThrough(), async () => void ran.push('other'), '198.51.100.7')).toBe(true);
+    // A waiting socket from the flooding address that closes frees its place for that address.
+    flood[0]!.destroy();
+    await tick();
+    expect(gate.enter(new PassThrough(), async () => void ran.push('flood'), '203.0.113.9')).toBe(true);
+    expect(gate.enter(new PassThrough(), async () => void ran.push('flood'), '203.0.113.9')).toBe(false);
+    hold.resolve();
+    for (let i = 0; i < 12; i++) await tick();
+    expect(ran).toEqual(['flood', 'flood', 'other', 'flood']);
+    // Once its upgrades have had their turn, the address may queue again.
+    expect(gate.enter(new PassThrough(), async () => void ran.push('again'), '203.0.113.9')).toBe(true);
+    for (let i = 0; i < 4; i++) await tick();
+    expect(ran).toHaveLength(5);
+    expect(gate.stats().addressesWaiting).toBe(0);
+  });
+  it('does not limit by address an upgrade with no address key (a peer on this host), only by the whole queue', async () => {
+    const gate = createUpgradeGate({ atOnce: 1, maxWaiting: 6, maxWaitingPerAddress: 3 });
+    const hold = deferred();
+    gate.enter(new PassThrough(), () => hold.promise);
+    await tick();
+    const taken = Array.from({ length: 7 }, () => gate.enter(new PassThrough(), async () => {}));
+    expect(taken).toEqual([true, true, true, true, true, true, false]);
+    hold.resolve();
+  });
 });

@@ -7,6 +7,11 @@ export interface UpgradeGateOptions {
   atOnce: number;
   /** Upgrades that may wait their turn; one more is refused. */
   maxWaiting: number;
+  /**
+   * Upgrades from one client address that may wait their turn; one more from that address is
+   * refused, so a single peer (signed in or not) cannot fill the whole queue. Default: no cap.
+   */
+  maxWaitingPerAddress?: number;
   /** An admission that failed (its socket is destroyed). */
   onError?: (err: unknown) => void;
 }
@@ -18,16 +23,37 @@ export interface UpgradeGateOptions {
  */
 export function createUpgradeGate(o: UpgradeGateOptions) {
   const slots = createReplaySlots({ total: o.atOnce, perUser: o.atOnce });
+  const perAddress = o.maxWaitingPerAddress ?? Infinity;
+  /** Upgrades waiting, by client address. */
+  const waitingFrom = new Map<string, number>();
   return {
     /**
      * Runs `admit` when the socket's turn comes and frees the turn when it settles; false (and
-     * nothing run) when too many are already waiting.
+     * nothing run) when too many are already waiting, in all or from `address` (the client's
+     * address key, server/http/client-address.ts; undefined: not limited by address).
      */
-    enter(socket: Duplex, admit: () => Promise<void>): boolean {
+    enter(socket: Duplex, admit: () => Promise<void>, address?: string): boolean {
       if (slots.stats().waiting >= o.maxWaiting) return false;
+      let waiting = address !== undefined;
+      if (address !== undefined) {
+        const mine = waitingFrom.get(address) ?? 0;
+        if (mine >= perAddress) return false;
+        waitingFrom.set(address, mine + 1);
+      }
+      const leave = () => {
+        if (!waiting || address === undefined) return;
+        waiting = false;
+        const n = (waitingFrom.get(address) ?? 1) - 1;
+        if (n > 0) waitingFrom.set(address, n);
+        else waitingFrom.delete(address);
+      };
       const turn = slots.acquire('upgrade');
-      socket.once('close', () => turn.cancel());
+      socket.once('close', () => {
+        leave();
+        turn.cancel();
+      });
       void turn.ready.then(async (done) => {
+        leave();
         try {
           if (!socket.destroyed) await admit();
         } catch (err) {
@@ -39,6 +65,6 @@ export function createUpgradeGate(o: UpgradeGateOptions) {
       });
       return true;
     },
-    stats: () => slots.stats(),
+    stats: () => ({ ...slots.stats(), addressesWaiting: waitingFrom.size }),
   };
 }

@@ -25,11 +25,12 @@ export interface ServerProcess {
  * Starts the production server on loopback with a simulated bench. On PGlite, an empty data
  * directory first gets the migrated, seeded template (tests/helpers/db-template.ts), the database
  * the server's own first start would make; `firstStart: true` leaves it empty for the server to
- * migrate and seed itself.
+ * migrate and seed itself. `bundle`: run that server bundle instead of this tree's (a benchmark
+ * comparing with another checkout).
  */
-export async function startServerProcess(o: { port: number; dataDir: string; databaseUrl?: string; env?: Record<string, string>; firstStart?: boolean }): Promise<ServerProcess> {
+export async function startServerProcess(o: { port: number; dataDir: string; databaseUrl?: string; env?: Record<string, string>; firstStart?: boolean; bundle?: string }): Promise<ServerProcess> {
   if (!o.databaseUrl && !o.firstStart && o.env?.SEED_DEMO !== '0' && !fs.existsSync(path.join(o.dataDir, 'pglite'))) await seedDataDir(o.dataDir, o.env?.DEMO_PASSWORD ?? DEMO_PASSWORD);
-  const child = spawn(process.execPath, [await serverBundle()], {
+  const child = spawn(process.execPath, [o.bundle ?? (await serverBundle())], {
     env: {
       ...process.env,
       NODE_ENV: 'production',

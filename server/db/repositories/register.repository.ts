@@ -1,4 +1,4 @@
-import { asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
+import { asc, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
 import { instruments, jobs, runs, standards, users } from '../schema';
 import { parsedRun } from './run.repository';
@@ -15,6 +15,16 @@ export interface ListQuery {
   dir?: 'asc' | 'desc';
   page: number;
   pageSize: number;
+}
+
+/**
+ * The total of a list when its page already tells it: a page that is not full and not empty (or
+ * the first page, empty) is the last one, so the total is what came before it plus what is on it.
+ * Otherwise undefined, and the rows are counted.
+ */
+function knownTotal(query: ListQuery, onPage: number): number | undefined {
+  if (onPage >= query.pageSize || (onPage === 0 && query.page > 1)) return undefined;
+  return (query.page - 1) * query.pageSize + onPage;
 }
 
 const instrumentSort = {
@@ -47,6 +57,8 @@ export function instrumentRepository(db: Db) {
         .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(instruments.tag))
         .limit(query.pageSize)
         .offset((query.page - 1) * query.pageSize);
+      const known = knownTotal(query, items.length);
+      if (known !== undefined) return { items, total: known };
       const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(instruments).where(where);
       return { items, total: count?.n ?? 0 };
     },
@@ -97,6 +109,8 @@ export function standardRepository(db: Db) {
         .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(standards.serial))
         .limit(query.pageSize)
         .offset((query.page - 1) * query.pageSize);
+      const known = knownTotal(query, items.length);
+      if (known !== undefined) return { items, total: known };
       const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(standards).where(where);
       return { items, total: count?.n ?? 0 };
     },
@@ -106,6 +120,13 @@ export function standardRepository(db: Db) {
     async get(id: string): Promise<StandardRow | undefined> {
       const [row] = await db.select().from(standards).where(eq(standards.id, id)).limit(1);
       return row;
+    },
+    /** The standards of `ids` that exist, in the order of `ids` (one query). */
+    async getMany(ids: string[]): Promise<StandardRow[]> {
+      if (!ids.length) return [];
+      const rows = await db.select().from(standards).where(inArray(standards.id, ids));
+      const byId = new Map(rows.map((r) => [r.id, r]));
+      return ids.map((id) => byId.get(id)).filter((r): r is StandardRow => !!r);
     },
     async findBySerial(serial: string): Promise<StandardRow | undefined> {
       const [row] = await db.select().from(standards).where(eq(standards.serial, serial)).limit(1);

@@ -90,6 +90,14 @@ export function sessionRepository(db: Db) {
   };
 }
 
+/**
+ * How long the parsed site settings are reused, ms: they are read by every list that shows due
+ * dates (the site's time zone) and change only through {@link siteRepository}'s own writes, which
+ * drop the copy at once. One process per database (its lock), so no other process writes them.
+ */
+const SITE_SETTINGS_CACHE_MS = 5_000;
+const siteSettingsCache = new WeakMap<Db, { value: SiteSettings; until: number }>();
+
 export function siteRepository(db: Db) {
   return {
     async get(): Promise<SiteRow | undefined> {
@@ -97,16 +105,23 @@ export function siteRepository(db: Db) {
       return row;
     },
     async create(values: typeof sites.$inferInsert): Promise<SiteRow> {
+      siteSettingsCache.delete(db);
       const [row] = await db.insert(sites).values(values).returning();
       return row!;
     },
     /** The site's settings parsed with SiteSettingsSchema (defaults where absent or invalid). */
     async settings(): Promise<SiteSettings> {
+      const hit = siteSettingsCache.get(db);
+      if (hit && hit.until > Date.now()) return structuredClone(hit.value);
       const [row] = await db.select({ settings: sites.settings }).from(sites).limit(1);
-      return parseSiteSettings(row?.settings);
+      const value = parseSiteSettings(row?.settings);
+      siteSettingsCache.set(db, { value: structuredClone(value), until: Date.now() + SITE_SETTINGS_CACHE_MS });
+      return value;
     },
     async updateSettings(id: string, settings: string): Promise<void> {
+      siteSettingsCache.delete(db);
       await db.update(sites).set({ settings }).where(eq(sites.id, id));
+      siteSettingsCache.delete(db);
     },
   };
 }
