@@ -48,6 +48,8 @@ export interface AppDeps {
   maxInFlight?: number;
   /** Latency the served requests are held to by adapting the in-flight limit (SHED_TARGET_MS); 0 or unset: a fixed limit. */
   shedTargetMs?: number;
+  /** Floor of the adaptive in-flight limit (SHED_MIN_IN_FLIGHT). */
+  shedMinInFlight?: number;
 }
 
 const strictUtf8 = new TextDecoder('utf-8', { fatal: true });
@@ -58,7 +60,7 @@ export function createApp(deps: AppDeps) {
   app.disable('x-powered-by');
   app.set('trust proxy', deps.trustProxy ?? false);
   // First, before any work: shed load past the in-flight limit, then refuse foreign Host headers.
-  const shedder = shedLoad({ maxInFlight: deps.maxInFlight ?? 0, targetMs: deps.shedTargetMs ?? 0, exempt: neverShed });
+  const shedder = shedLoad({ maxInFlight: deps.maxInFlight ?? 0, targetMs: deps.shedTargetMs ?? 0, ...(deps.shedMinInFlight ? { minInFlight: deps.shedMinInFlight } : {}), exempt: neverShed });
   app.locals.shedding = shedder.stats;
   app.use(shedder);
   app.use(

@@ -258,6 +258,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
       trustProxy: trustProxySetting(env),
       maxInFlight: env.MAX_IN_FLIGHT,
       shedTargetMs: env.SHED_TARGET_MS,
+      shedMinInFlight: env.SHED_MIN_IN_FLIGHT,
     });
     const server = http.createServer(app);
     const sockets = new Set<Socket>();

@@ -26,6 +26,8 @@ const EnvSchema = z.object({
    * gave a p99 at 200 req/s of 540–575 ms where 50 gave 140–470 ms, in one run, 2026-12-03).
    */
   SHED_TARGET_MS: z.coerce.number().int().min(0).max(60_000).default(50),
+  /** The adaptive in-flight limit never goes below this: on a machine busy with other work a floor of 2 served ~14 req/s (2026-12-03 bench). */
+  SHED_MIN_IN_FLIGHT: z.coerce.number().int().min(1).max(10_000).default(16),
   /**
    * Nice value of the PGlite database thread (0–19; 0: the process's own priority). A higher value
    * lets the main thread (the live path) win the CPU over a long review query when the cores are
