@@ -17,7 +17,7 @@ const EnvSchema = z.object({
   /** Most requests served at once; past the limit in force new ones wait briefly for a turn or get 503 with Retry-After (0 turns shedding off). */
   MAX_IN_FLIGHT: z.coerce.number().int().min(0).max(100_000).default(48),
   /**
-   * Latency the served requests are held to, ms: the limit in force starts at 2 and climbs towards
+   * Latency the served requests are held to, ms: the limit in force starts at SHED_MIN_IN_FLIGHT and climbs towards
    * MAX_IN_FLIGHT while requests take less once started, and falls while they take longer; a
    * request past it waits up to this long for a turn while the queue has lately been empty, 5 ms
    * while it has stood longer (controlled delay), then gets 503. 0 keeps the limit at MAX_IN_FLIGHT
