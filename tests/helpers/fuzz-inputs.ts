@@ -125,7 +125,7 @@ export const nonObjectJson: fc.Arbitrary<Body> = fc.oneof(
 
 export const brokenBody: fc.Arbitrary<Body> = fc.oneof(
   fc
-    .constantFrom('{', '{"a":', '[1,2', 'nul', '{"a":1}}', "{'a':1}", '{"a":NaN}', '{"a":Infinity}', '{"a":-}', '\u0000', '{"a":"\\ud800"', '{"a":1,}', '\uFEFF{"a":1}')
+    .constantFrom('{', '{"a":', '[1,2', 'nul', '{"a":1}}', "{'a':1}", '{"a":NaN}', '{"a":Infinity}', '{"a":-}', '\u0000', '{"a":"\\ud800"', '{"a":1,}')
     .map((t) => json('malformed-json', t, 'always')),
   fc.constant(json('oversize', `{"a":"${'x'.repeat(1_100_000)}"}`, 'always')),
   fc.constant(json('deep-nesting', `${'['.repeat(20_000)}${']'.repeat(20_000)}`, 'always')),
@@ -160,6 +160,9 @@ const objectBody: fc.Arbitrary<Body> = fc.oneof(
   wrongTypedObject.map((v) => json('wrong-types', toJson(v), false)),
   fc.constant(json('large-string', toJson({ csv: 'a,b\n'.repeat(220_000), name: 'x'.repeat(100_000) }), false)),
   fc.constant(json('many-keys', toJson(Object.fromEntries(Array.from({ length: 60_000 }, (_, i) => [`k${i}`, i]))), false)),
+  // Not broken: RFC 8259 §8.1 lets a parser ignore a leading byte order mark, and Express's parser
+  // does, so this is the object {"a":1} and may be accepted where an all-optional body is.
+  fc.constant(json('bom-object', '\uFEFF{"a":1}', false)),
   fc.constant(json('invalid-utf8', Buffer.from([0x7b, 0x22, 0x6e, 0x61, 0x6d, 0x65, 0x22, 0x3a, 0x22, 0xff, 0xfe, 0xc3, 0x28, 0x22, 0x7d]).toString('latin1'), false)),
 );
 
