@@ -46,7 +46,15 @@ const projects = (...names: string[]) => names.flatMap((p) => ['--project', p]);
 
 /** Integration suites that never open a database (lint, wiring, serial drivers): left out of the PostgreSQL pass. */
 const NO_DATABASE = ['composition-root', 'lint-boundaries', 'serial-driver-pty', 'serial-driver-sim', 'serial-faults'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
+/** Suites of one storage only, left out of the other's pass (they say so by skipping when run there by hand). */
+const PGLITE_ONLY = ['data-dir-lock', 'mail-schedule'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
+const POSTGRES_ONLY = ['database-lock'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const OUTAGE = 'tests/proof/agent-outage.test.ts';
+/**
+ * The proofs that kill and restart server processes: mostly waiting on processes and the clock, so
+ * in `npm test` they run in a lane of their own beside the other proofs instead of after them.
+ */
+const RESTARTS = ['tests/proof/durability.test.ts', 'tests/proof/stream-epochs.test.ts', OUTAGE];
 
 /**
  * The lint-boundaries suite lints probe files (CPU work, no server, no clock): it runs in the lint
@@ -60,16 +68,17 @@ const TIERS: Record<string, Lane[]> = {
     { name: 'lint', steps: [[bin('eslint'), '.'], vitest(...projects('integration'), LINT_SUITE)], background: true },
     { name: 'types', steps: [tsc('app'), tsc('node')], background: true },
     { name: 'unit', steps: [vitest(...projects('shared', 'shared-dom', 'server', 'client'))], background: true },
-    { name: 'integration', steps: [vitest(...projects('integration'), '--exclude', LINT_SUITE)] },
+    { name: 'integration', steps: [vitest(...projects('integration'), '--exclude', LINT_SUITE, ...POSTGRES_ONLY)] },
     { name: 'e2e', steps: [vitest(...projects('e2e'))] },
-    { name: 'proof', steps: [vitest(...projects('proof'))] },
+    { name: 'proof', steps: [vitest(...projects('proof'), ...RESTARTS.flatMap((f) => ['--exclude', f]))] },
+    { name: 'restarts', steps: [vitest(...projects('proof'), ...RESTARTS)] },
   ],
   proof: [
     { name: 'proof', steps: [vitest(...projects('proof'), '--exclude', OUTAGE)], env: { PROOF_LEVEL: 'full' } },
     { name: 'outage', steps: [vitest(...projects('proof'), OUTAGE)], env: { PROOF_LEVEL: 'full' } },
   ],
   postgres: [
-    { name: 'integration', steps: [vitest(...projects('integration'), ...NO_DATABASE)] },
+    { name: 'integration', steps: [vitest(...projects('integration'), ...NO_DATABASE, ...PGLITE_ONLY)] },
     { name: 'proof', steps: [vitest(...projects('proof'))] },
   ],
 };

@@ -144,7 +144,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
   try {
     const hooks: ServiceHooks = {};
     const sessionEvents = createSessionEvents();
-    const services = createServices(database, loadSecret(env, memory), hooks, sessionEvents);
+    const services = createServices(database, loadSecret(env, memory), hooks, sessionEvents, { hashCost: env.PASSWORD_HASH_COST });
     const seedPolicy = demoSeedPolicy(env);
     if (seedPolicy === 'refuse' && !(await services.users.siteExists())) {
       throw new Error(
@@ -155,7 +155,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
     if (seedPolicy === 'seed-exposed') {
       logger.warn({ host: env.HOST }, `SEED_DEMO=1 on a network address: the demo users (admin included) sign in with the demo password "${env.DEMO_PASSWORD}"; change it or set DEMO_PASSWORD`);
     }
-    if ((seedPolicy === 'seed' || seedPolicy === 'seed-exposed') && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD))) {
+    if ((seedPolicy === 'seed' || seedPolicy === 'seed-exposed') && (await seedDemo(database.db, services.audit, env.DEMO_PASSWORD, new Date(), env.PASSWORD_HASH_COST))) {
       logger.info('seeded the demo site');
     }
     // Uploads live outside the web root: DATA_DIR/uploads (in-memory servers: a temp dir, removed on close).

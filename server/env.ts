@@ -61,6 +61,12 @@ const EnvSchema = z.object({
   HOLD_SECONDS: z.coerce.number().positive().max(3600).default(30),
   /** SMTP URL for mail; unset starts a local fake SMTP server and the Outbox. */
   SMTP_URL: z.string().url().optional(),
+  /**
+   * bcrypt cost factor of new password hashes (2^N rounds). Unset: 11. Production refuses less than
+   * 10 (OWASP Password Storage Cheat Sheet: a work factor of at least 10); test servers use 4,
+   * bcrypt's minimum, so each of their sign-ins costs milliseconds instead of a third of a second.
+   */
+  PASSWORD_HASH_COST: z.coerce.number().int().min(4).max(15).optional(),
   DEMO_PASSWORD: z.string().min(10, 'DEMO_PASSWORD must have at least 10 characters').default('stillpoint-demo'),
   /** Secret for signing session tokens (≥ 32 chars); generated into DATA_DIR when unset. */
   SESSION_SECRET: z.string().min(32, 'SESSION_SECRET must have at least 32 characters').optional(),
@@ -74,6 +80,9 @@ const EnvSchema = z.object({
   SEED_DEMO: z.enum(['0', '1']).optional(),
   /** Free disk in DATA_DIR below which /api/health answers 503 (the product could not store what it acknowledges), MiB. */
   MIN_FREE_DISK_MB: z.coerce.number().positive().default(256),
+}).refine((e) => e.NODE_ENV !== 'production' || e.PASSWORD_HASH_COST === undefined || e.PASSWORD_HASH_COST >= 10, {
+  message: 'PASSWORD_HASH_COST must be at least 10 in production (OWASP Password Storage Cheat Sheet)',
+  path: ['PASSWORD_HASH_COST'],
 }).refine((e) => !e.BENCH_PRESSURE_PORT === !e.BENCH_CURRENT_PORT, {
   message: 'set both BENCH_PRESSURE_PORT and BENCH_CURRENT_PORT, or neither',
   path: ['BENCH_CURRENT_PORT'],

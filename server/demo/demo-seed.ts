@@ -40,7 +40,7 @@ const INSTRUMENTS: Demo[] = [
 ];
 
 /** Seeds the demo site when the database has no site yet; returns whether it seeded. */
-export async function seedDemo(db: Db, audit: AuditService, password: string, now = new Date()): Promise<boolean> {
+export async function seedDemo(db: Db, audit: AuditService, password: string, now = new Date(), hashCost?: number): Promise<boolean> {
   const sites = siteRepository(db);
   if (await sites.get()) return false;
   const today = isoDate(now);
@@ -50,7 +50,7 @@ export async function seedDemo(db: Db, audit: AuditService, password: string, no
     settings: JSON.stringify({ holdSeconds: 30, decisionRule: 'guard-band' }),
   });
   const users = userRepository(db);
-  const hash = await hashPassword(password);
+  const hash = await hashPassword(password, hashCost);
   const ids: Record<string, string> = {};
   for (const u of DEMO_USERS) ids[u.role + (u.email.startsWith('tech2') ? '2' : '')] = (await users.create({ ...u, passwordHash: hash })).id;
 

@@ -11,8 +11,13 @@ import type { AuditService } from './audit.service';
 import { createSessionEvents, type SessionEndReason, type SessionEvents } from './session-events';
 import { MIN_PASSWORD_SCORE, passwordStrength } from './password-strength';
 
-/** bcrypt cost factor; 2^11 rounds (OWASP password storage guidance asks for at least 10). */
-export const BCRYPT_COST = 11;
+/**
+ * bcrypt cost factor by default: 2^11 rounds. The OWASP Password Storage Cheat Sheet asks for a
+ * work factor of at least 10 ({@link MIN_PRODUCTION_HASH_COST}); PASSWORD_HASH_COST may raise it,
+ * and lower it (down to bcrypt's own minimum, 4) only outside production, for test servers.
+ */
+export const DEFAULT_HASH_COST = 11;
+export const MIN_PRODUCTION_HASH_COST = 10;
 export const SESSION_TTL_SECONDS = 12 * 3600;
 export const TOKEN_ISSUER = 'stillpoint';
 export const TOKEN_AUDIENCE = 'stillpoint-web';
@@ -53,16 +58,24 @@ export interface SessionUser {
 export interface AuthOptions {
   /** Clock, ms since the epoch (tests inject one). */
   now?: () => number;
+  /** bcrypt cost factor of new password hashes (PASSWORD_HASH_COST; {@link DEFAULT_HASH_COST} unset). */
+  hashCost?: number;
   sessionCacheMs?: number;
 }
 
 // A hash to compare against when the email is unknown, so timing does not reveal accounts. Made at
 // the first sign-in that needs it, not at import (every process that imports this would pay a hash).
-let dummyHash: Promise<string> | undefined;
-const dummy = () => (dummyHash ??= bcrypt.hash('not-a-real-password-0', BCRYPT_COST));
+// One per cost factor, so the unknown-email path costs what a real account's check costs.
+const dummyHashes = new Map<number, Promise<string>>();
+function dummy(cost: number): Promise<string> {
+  let h = dummyHashes.get(cost);
+  if (!h) dummyHashes.set(cost, (h = bcrypt.hash('not-a-real-password-0', cost)));
+  return h;
+}
 
-export function hashPassword(password: string): Promise<string> {
-  return bcrypt.hash(password, BCRYPT_COST);
+/** A bcrypt hash of `password` at `cost` (a stored hash carries its cost, so any cost verifies). */
+export function hashPassword(password: string, cost: number = DEFAULT_HASH_COST): Promise<string> {
+  return bcrypt.hash(password, cost);
 }
 
 /**
@@ -104,6 +117,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
   const sites = siteRepository(db);
   const now = opts.now ?? Date.now;
   const cacheMs = opts.sessionCacheMs ?? SESSION_CACHE_MS;
+  const hashCost = opts.hashCost ?? DEFAULT_HASH_COST;
   /**
    * Verified sessions by their token, so a burst of requests costs one signature check and one
    * database look-up: the same token string within {@link SESSION_CACHE_MS} of its verification is
@@ -162,6 +176,8 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
   }
 
   const service = {
+    /** A hash of a new password at this service's cost factor (invites, resets). */
+    hashPassword: (password: string) => hashPassword(password, hashCost),
     /**
      * Checks the password; on success opens a session. A wrong password is a 401 with one message
      * for any failure; a locked account is a 429 (checked before the password, which is not tried).
@@ -173,7 +189,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
         await audit.record({ id: user.id, email: user.email }, 'auth.sign-in-failed', 'user', user.id, undefined, { email, reason: 'account locked' });
         throw new AccountLockedError(`Too many failed sign-ins for this account; try again after ${hhmm(until)} UTC or ask an admin to unlock it`, Math.ceil((until - now()) / 1000));
       }
-      const ok = await bcrypt.compare(password, user?.passwordHash ?? (await dummy()));
+      const ok = await bcrypt.compare(password, user?.passwordHash ?? (await dummy(hashCost)));
       if (!user || !ok || !user.active) {
         await audit.record(user ? { id: user.id, email: user.email } : null, 'auth.sign-in-failed', 'user', user?.id ?? null, undefined, { email });
         if (user && !ok) {
@@ -259,7 +275,7 @@ export function createAuthService(db: Db, secret: Uint8Array, audit: AuditServic
       if (current === next) throw badRequest('Choose a new password', { next: ['The new password must differ from the current one'] });
       const problem = newPasswordProblem(next, user.email);
       if (problem) throw badRequest('Choose a less common password', { next: [problem] });
-      await users.update(user.id, { passwordHash: await hashPassword(next), mustChangePassword: false });
+      await users.update(user.id, { passwordHash: await hashPassword(next, hashCost), mustChangePassword: false });
       const ended = await service.endSessions(user.id, { except: user.jti, reason: 'password-changed' });
       forgetSession(user.jti);
       await audit.record(user, 'auth.password-changed', 'user', user.id, undefined, { otherSessionsEnded: ended.length });

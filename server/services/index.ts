@@ -12,9 +12,9 @@ import { createSiteService } from './site.service';
 import { createUserService } from './user.service';
 
 /** Builds every service over one database; the composition root and tests share this. */
-export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}, sessionEvents: SessionEvents = createSessionEvents()) {
+export function createServices(database: Database, secret: Uint8Array, hooks: ServiceHooks = {}, sessionEvents: SessionEvents = createSessionEvents(), opts: { hashCost?: number } = {}) {
   const audit = createAuditService(database.db);
-  const auth = createAuthService(database.db, secret, audit, {}, sessionEvents);
+  const auth = createAuthService(database.db, secret, audit, { hashCost: opts.hashCost }, sessionEvents);
   const registers = createRegisterService(database.db, audit);
   const jobs = createJobService(database.db, audit, (n) => hooks.onJob?.(n));
   return {

@@ -4,7 +4,7 @@ import { siteRepository, userRepository, type UserRow } from '../db/repositories
 import { badRequest, conflict, notFound } from '../errors';
 import type { InviteUserBody, UpdateUserBody, User } from '../../shared/schemas/users';
 import type { Actor, AuditService } from './audit.service';
-import { hashPassword, newPasswordProblem, type AuthService } from './auth.service';
+import { newPasswordProblem, type AuthService } from './auth.service';
 
 export function toUser(r: UserRow, now = Date.now()): User {
   const lockedUntil = (d: Date | null) => (d && d.getTime() > now ? d.toISOString() : null);
@@ -30,7 +30,7 @@ export function oneTimePassword(): string {
   return [group(), group(), group(), group()].join('-');
 }
 
-export function createUserService(db: Db, audit: AuditService, auth: Pick<AuthService, 'endSessions'>) {
+export function createUserService(db: Db, audit: AuditService, auth: Pick<AuthService, 'endSessions' | 'hashPassword'>) {
   const users = userRepository(db);
   const sites = siteRepository(db);
   async function existing(id: string): Promise<UserRow> {
@@ -51,7 +51,7 @@ export function createUserService(db: Db, audit: AuditService, auth: Pick<AuthSe
       const problem = newPasswordProblem(body.password, body.email);
       if (problem) throw badRequest('Choose a less common password', { password: [problem] });
       if (await users.findByEmail(body.email)) throw conflict('That email is already registered', { email: ['Already registered'] });
-      const row = await users.create({ email: body.email, name: body.name, role: body.role, passwordHash: await hashPassword(body.password), mustChangePassword: true });
+      const row = await users.create({ email: body.email, name: body.name, role: body.role, passwordHash: await auth.hashPassword(body.password), mustChangePassword: true });
       await audit.record(actor, 'user.invited', 'user', row.id, undefined, toUser(row));
       return toUser(row);
     },
@@ -75,7 +75,7 @@ export function createUserService(db: Db, audit: AuditService, auth: Pick<AuthSe
       if (id === actor.id) throw badRequest('Change your own password on the password page instead', { id: ['You cannot reset your own password'] });
       const password = oneTimePassword();
       const row = await users.update(id, {
-        passwordHash: await hashPassword(password),
+        passwordHash: await auth.hashPassword(password),
         mustChangePassword: true,
         failedSignIns: 0,
         signInLockedUntil: null,

@@ -28,10 +28,16 @@ function filesUnder(dir: string): string[] {
     .flatMap((f) => filesUnder(path.join(dir, f)));
 }
 
-/** Name of the template for today, this password and the code that makes it. */
+/**
+ * bcrypt cost of the template's password hashes: bcrypt's minimum, so a test's sign-in costs
+ * milliseconds (a stored hash carries its cost, so servers at any PASSWORD_HASH_COST verify it).
+ */
+export const TEST_HASH_COST = 4;
+
+/** Name of the template for today, this password, the hash cost and the code that makes it. */
 function templateKey(password: string): string {
   const h = createHash('sha256');
-  h.update(`${new Date().toISOString().slice(0, 10)}\0${password}\0`);
+  h.update(`${new Date().toISOString().slice(0, 10)}\0${password}\0${TEST_HASH_COST}\0`);
   const inputs = [...filesUnder('drizzle'), ...filesUnder('server/db/schema'), ...filesUnder('server/demo'), ...filesUnder('server/db/repositories')];
   for (const f of fs.readdirSync(path.join(root, 'server/services')).sort()) if (f.startsWith('demo') || f.startsWith('auth') || f.startsWith('audit')) inputs.push(`server/services/${f}`);
   for (const f of inputs) h.update(f).update(fs.readFileSync(path.join(root, f)));
@@ -55,7 +61,7 @@ export async function demoTemplate(password: string): Promise<Uint8Array> {
   const database = await openDatabase({});
   try {
     const services = createServices(database, randomBytes(32));
-    await seedDemo(database.db, services.audit, password);
+    await seedDemo(database.db, services.audit, password, new Date(), TEST_HASH_COST);
     const bytes = await database.dump!();
     fs.mkdirSync(DIR, { recursive: true });
     const tmp = `${file}.${process.pid}.tmp`;

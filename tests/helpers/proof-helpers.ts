@@ -149,23 +149,44 @@ export function expectErrorBody(r: { status: number; json: unknown; text?: strin
   }
 }
 
-/** Merges figures into .tmp/proof-summary.json (the README's Reliability section quotes it). */
+/**
+ * Merges figures into .tmp/proof-summary.json (the README's Reliability section quotes it). Proof
+ * files run in two lanes at once, so the read-merge-write holds a lock file (exclusive create).
+ */
 export function recordSummary(key: string, value: Record<string, unknown>): void {
   const file = path.resolve(import.meta.dirname, '../../.tmp/proof-summary.json');
   fs.mkdirSync(path.dirname(file), { recursive: true });
-  let all: Record<string, unknown> = {};
-  try {
-    all = JSON.parse(fs.readFileSync(file, 'utf8')) as Record<string, unknown>;
-  } catch {
-    /* first write */
+  const lock = `${file}.lock`;
+  for (const until = Date.now() + 10_000; ; ) {
+    try {
+      fs.closeSync(fs.openSync(lock, 'wx'));
+      break;
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+      // A lock older than the wait is left by a killed process: take it over.
+      if (Date.now() > until) break;
+      Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 20);
+    }
   }
-  all[key] = {
-    ...value,
-    database: process.env.TEST_DATABASE_URL ? 'postgres' : 'pglite',
-    at: new Date().toISOString(),
-    machine: `${os.cpus().length} cores, ${Math.round(os.totalmem() / 2 ** 30)} GiB, ${os.platform()} ${os.arch()}, node ${process.version}`,
-  };
-  fs.writeFileSync(file, JSON.stringify(all, null, 2) + '\n');
+  try {
+    let all: Record<string, unknown> = {};
+    try {
+      all = JSON.parse(fs.readFileSync(file, 'utf8')) as Record<string, unknown>;
+    } catch {
+      /* first write */
+    }
+    all[key] = {
+      ...value,
+      database: process.env.TEST_DATABASE_URL ? 'postgres' : 'pglite',
+      at: new Date().toISOString(),
+      machine: `${os.cpus().length} cores, ${Math.round(os.totalmem() / 2 ** 30)} GiB, ${os.platform()} ${os.arch()}, node ${process.version}`,
+    };
+    const tmp = `${file}.${process.pid}.tmp`;
+    fs.writeFileSync(tmp, JSON.stringify(all, null, 2) + '\n');
+    fs.renameSync(tmp, file);
+  } finally {
+    fs.rmSync(lock, { force: true });
+  }
 }
 
 /** Percentile of a list of numbers (nearest rank). */

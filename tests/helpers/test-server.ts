@@ -5,7 +5,7 @@ import pg from 'pg';
 import { boot, type BootOptions, type Running } from '../../server/boot';
 import { demoSeedPolicy, parseEnv } from '../../server/env';
 import { createLogger } from '../../server/logger';
-import { demoTemplate } from './db-template';
+import { demoTemplate, TEST_HASH_COST } from './db-template';
 
 export const DEMO_PASSWORD = 'stillpoint-demo';
 export const demoEmail = (role: 'tech' | 'tech2' | 'lead' | 'admin' | 'auditor') => `${role}@stillpoint-demo.test`;
@@ -52,6 +52,8 @@ export async function startTestServer(opts: { env?: Record<string, string>; boot
     PORT: '0',
     HOST: '127.0.0.1',
     LOG_LEVEL: 'silent',
+    // New hashes (invites, resets, password changes) at bcrypt's minimum cost, like the template's.
+    PASSWORD_HASH_COST: String(TEST_HASH_COST),
     DATA_DIR: dataDir,
     ...(pgdb ? { DATABASE_URL: pgdb.url } : {}),
     ...opts.env,

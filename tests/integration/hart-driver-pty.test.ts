@@ -14,8 +14,8 @@ const available = await ensureSocat().catch(() => false);
 if (available) {
   defineHartSuite('HART driver over socat pseudo-terminals (1200 8O1)', async () => {
     const sim = await startPtySim({ rig: HART_SUITE_RIG });
-    return { rig: sim.rig, binding: defaultBinding(), path: sim.hostPaths.hart, canUnplug: false, teardown: () => sim.stop() };
-  });
+    return { rig: sim.rig, binding: defaultBinding(), path: sim.hostPaths.hart, teardown: () => sim.stop() };
+  }, false);
 } else {
   describe('HART driver over socat pseudo-terminals (1200 8O1)', () => {
     it('needs socat, which is missing and could not be installed (run as root, or apt-get install socat)', () => {

@@ -6,8 +6,8 @@ import { HartMasterDriver, HartTimeoutError } from '../../server/bench/protocols
 
 defineHartSuite('HART driver over the simulator binding', async () => {
   const rig = new SimRig(HART_SUITE_RIG);
-  return { rig, binding: rig.binding, path: rig.paths.hart, canUnplug: true, teardown: async () => rig.dispose() };
-});
+  return { rig, binding: rig.binding, path: rig.paths.hart, teardown: async () => rig.dispose() };
+}, true);
 
 describe('HART driver with an RS-232 modem keyed by RTS (simulator binding)', () => {
   it('is heard only while it keys RTS', async () => {

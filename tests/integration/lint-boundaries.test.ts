@@ -67,15 +67,23 @@ describe('lint: accessibility and promises', () => {
     expect(await messages('src/components/ui/probe.tsx', code, 'jsx-a11y/alt-text')).toHaveLength(1);
     expect(await messages('src/components/ui/probe.tsx', code.replace('/>', 'alt="As-found photo" />'), 'jsx-a11y/alt-text')).toEqual([]);
   });
-  it('fails on a floating promise in server code (type-aware: the file must exist for the tsconfig to hold it)', async () => {
-    const file = path.join(process.cwd(), 'server', `lint-probe-${process.pid}.ts`);
+  it('fails on a floating promise in server code (type-aware: the file must exist for a tsconfig to hold it)', async () => {
+    // The probe's own directory and tsconfig.json (the nearest one is the one the project service
+    // takes), so type information is built for this one file, not for the whole server.
+    const dir = path.join(process.cwd(), 'server', `lint-probe-${process.pid}`);
+    const file = path.join(dir, 'probe.ts');
     const code = "export async function f(): Promise<void> {}\nexport function g() {\n  f();\n}\n";
+    fs.mkdirSync(dir, { recursive: true });
+    fs.writeFileSync(path.join(dir, 'tsconfig.json'), JSON.stringify({ extends: '../../tsconfig.base.json', compilerOptions: { noEmit: true }, include: ['probe.ts'] }));
     fs.writeFileSync(file, code);
     try {
       const [result] = await new ESLint({ cwd: process.cwd() }).lintFiles([file]);
       expect(result!.messages.filter((m) => m.ruleId === '@typescript-eslint/no-floating-promises')).toHaveLength(1);
+      fs.writeFileSync(file, code.replace('  f();', '  void f();'));
+      const [handled] = await new ESLint({ cwd: process.cwd() }).lintFiles([file]);
+      expect(handled!.messages.filter((m) => m.ruleId === '@typescript-eslint/no-floating-promises')).toEqual([]);
     } finally {
-      fs.rmSync(file, { force: true });
+      fs.rmSync(dir, { recursive: true, force: true });
     }
   });
 });
