@@ -50,11 +50,6 @@ const NO_DATABASE = ['composition-root', 'lint-boundaries', 'serial-driver-pty',
 const PGLITE_ONLY = ['data-dir-lock', 'mail-schedule'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const POSTGRES_ONLY = ['database-lock'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const OUTAGE = 'tests/proof/agent-outage.test.ts';
-/**
- * The proofs that kill and restart server processes: mostly waiting on processes and the clock, so
- * in `npm test` they run in a lane of their own beside the other proofs instead of after them.
- */
-const RESTARTS = ['tests/proof/durability.test.ts', 'tests/proof/stream-epochs.test.ts', OUTAGE];
 
 /**
  * The lint-boundaries suite lints probe files (CPU work, no server, no clock): it runs in the lint
@@ -70,8 +65,7 @@ const TIERS: Record<string, Lane[]> = {
     { name: 'unit', steps: [vitest(...projects('shared', 'shared-dom', 'server', 'client'))], background: true },
     { name: 'integration', steps: [vitest(...projects('integration'), '--exclude', LINT_SUITE, ...POSTGRES_ONLY)] },
     { name: 'e2e', steps: [vitest(...projects('e2e'))] },
-    { name: 'proof', steps: [vitest(...projects('proof'), ...RESTARTS.flatMap((f) => ['--exclude', f]))] },
-    { name: 'restarts', steps: [vitest(...projects('proof'), ...RESTARTS)] },
+    { name: 'proof', steps: [vitest(...projects('proof'))] },
   ],
   proof: [
     { name: 'proof', steps: [vitest(...projects('proof'), '--exclude', OUTAGE)], env: { PROOF_LEVEL: 'full' } },
