@@ -94,6 +94,16 @@ const agent = new http.Agent({ keepAlive: true, maxSockets: 8 });
 
 /** Sends exactly this method, path (not normalised, not re-encoded) and body. */
 export function rawRequest(base: string, o: { method: string; path: string; headers?: Record<string, string>; body?: Buffer | string }): Promise<RawResponse> {
+  return rawRequestOnce(base, o).catch((e: NodeJS.ErrnoException & { reusedSocket?: boolean }) => {
+    // A kept-alive socket the server closed as idle just as this request went out on it: the
+    // request never reached the app, so it is sent again once on a new socket (the pattern of the
+    // Node.js http documentation, `request.reusedSocket`).
+    if (e.reusedSocket && e.code === 'ECONNRESET') return rawRequestOnce(base, o);
+    throw e;
+  });
+}
+
+function rawRequestOnce(base: string, o: { method: string; path: string; headers?: Record<string, string>; body?: Buffer | string }): Promise<RawResponse> {
   const u = new URL(base);
   return new Promise((resolve, reject) => {
     const body = o.body === undefined ? undefined : Buffer.isBuffer(o.body) ? o.body : Buffer.from(o.body, 'utf8');
@@ -122,7 +132,7 @@ export function rawRequest(base: string, o: { method: string; path: string; head
         res.on('error', reject);
       },
     );
-    req.on('error', reject);
+    req.on('error', (e) => reject(Object.assign(e, { reusedSocket: req.reusedSocket })));
     req.end(body);
   });
 }
