@@ -242,6 +242,73 @@ describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)'
     expect(last?.trend.kind).toBe('leak');
     expect(last?.trend.leakBeyondLimit).toBe(true);
   });
+  // Sparse, irregular readings (a loaded host or a slow link). With a 2 s hold the sub-windows are
+  // 667 ms; a fast settle (τ = 75 ms: the simulated pump at 20× speed) may then be caught by two or
+  // three readings at the start of s₁, whose slope has no usable standard error, so its decay
+  // cannot be shown while S carries the step: the old verdict called it a leak of several % of span
+  // per minute, rising (seen as a leak warning at the wrong point of a run under load). Product
+  // criterion (hold.ts TrendVerdict: the trend must go on over s₂ and s₃), not a published value.
+  const SHORT = { dpSpan: 100, holdTimeMs: 2000, trendWindowMs: 2000 / 3 };
+  it('a fast settle caught by two readings at the start of the first sub-window is not a leak', () => {
+    const h = new HoldAnalyzer(SHORT);
+    h.pushDp(0, 24.6);
+    h.pushDp(300, 24.99);
+    for (let t = 700; t <= 2100; t += 100) h.pushDp(t, 24.99);
+    const v = h.trend();
+    expect(v.windows).toBe(3);
+    expect(v.kind).toBe('relaxation');
+    expect(h.result().trend.leakBeyondLimit).toBe(false);
+  });
+  it('readings that do not change at all are no trend (round-off in the merged moments is not a slope)', () => {
+    const h = new HoldAnalyzer(SHORT);
+    // Readings as the simulated calibrator prints them (5 decimals), at irregular times.
+    for (const t of [0, 70, 190, 330, 520, 690, 760, 900, 1180, 1400, 1460, 1700, 2010, 2100, 2240]) h.pushDp(t, 24.99997);
+    expect(h.trend().kind).toBe('none');
+  });
+  it('with sparse irregular readings a fast settle is never flagged, and a leak after it always is (seeded)', () => {
+    const rng = seededRng(2026);
+    const q = (x: number) => Math.round(x * 1e5) / 1e5;
+    const target = 25;
+    const trial = (leakPerMin: number) => {
+      // First-order approach from 22 (τ = 75 ms), isolated within 0.01 of the target, then the leak.
+      let isolatedAt: number | undefined;
+      let held = 0;
+      const dpAt = (t: number) => {
+        if (isolatedAt === undefined) {
+          const v = target - 3 * Math.exp(-t / 75);
+          if (target - v > 0.01) return v;
+          isolatedAt = t;
+          held = v;
+        }
+        return held - (leakPerMin / 60_000) * (t - isolatedAt);
+      };
+      const h = new HoldAnalyzer(SHORT);
+      let t = 0;
+      let readAt = 0;
+      let inWindow = false;
+      let flagged: { t: number; rate: number } | undefined;
+      while (t < 8000) {
+        // Mostly 60–180 ms apart, one gap in seven 0.3–1.2 s; each reading stamped up to 300 ms after it was taken.
+        const gap = rng() < 0.15 ? 300 + rng() * 900 : 60 + rng() * 120;
+        t += gap;
+        readAt = Math.max(readAt, t - rng() * Math.min(gap, 300));
+        const v = q(dpAt(readAt));
+        inWindow ||= Math.abs(v - target) < 0.5; // the point's window: 0.5 % of span
+        if (!inWindow) continue;
+        h.pushDp(t, v);
+        const r = h.result();
+        if (r.trend.leakBeyondLimit && !flagged) flagged = { t, rate: r.trend.ratePerMin };
+      }
+      return flagged;
+    };
+    for (let i = 0; i < 300; i++) expect(trial(0), `trial ${i}`).toBeUndefined();
+    for (let i = 0; i < 300; i++) {
+      // 0.6 inH2O/min on 100 inH2O: 6 × the default limit, towards zero DP.
+      const f = trial(0.6);
+      expect(f, `trial ${i}`).toBeDefined();
+      expect(f!.rate).toBeLessThan(-LIMIT);
+    }
+  });
   for (const f of [0.2, 0.5, 1, 2, 5]) {
     it(`a leak of ${f} × the limit is always flagged once three sub-windows are in, rate within 10 %`, () => {
       const rate = f * LIMIT; // kPa/min

@@ -56,9 +56,20 @@ export interface HoldSettings {
  * errors; it is `relaxation` when the rate decays both significantly (s₁ − s₃, in the direction of
  * the trend, beyond 2 standard errors of the difference) and materially (s₃/s₁ < 0.8: a slower
  * decay over 2W means τ > 2W/ln(1/0.8) ≈ 9·W, 90 s at the default W = 10 s, which no longer
- * settles within a hold); otherwise it is a `leak` with rate S. A relaxation whose decay is lost
- * in the noise reads as a leak at its current (small) rate; only a leak beyond the leak limit is
- * flagged (`leakBeyondLimit`). `undetermined`: fewer than three sub-windows, or s₁ and s₃ significant and of opposite signs (a reversal).
+ * settles within a hold). A leak also goes on: the slope S₂₃ over the last two sub-windows
+ * together must itself be significant and of the sign of S; a trend that is not there any more
+ * (S₂₃ within 2 standard errors of zero) has settled and is `relaxation` too, and one whose S₂₃
+ * has the other sign has reversed (`undetermined`). Otherwise it is a `leak` with rate S. The
+ * second test matters when the readings are sparse: a fast settle caught by two or three readings
+ * at the start of s₁ leaves s₁ without a usable standard error (fewer than three readings, or a
+ * curve fitted by a line), so its decay cannot be shown, while S still carries the step. A
+ * relaxation whose decay is lost in the noise reads as a leak at its current (small) rate; only a
+ * leak beyond the leak limit is flagged (`leakBeyondLimit`). `undetermined`: fewer than three
+ * sub-windows, or s₁ and s₃ (or S and S₂₃) significant and of opposite signs (a reversal).
+ *
+ * A slope within {@link NEGLIGIBLE_SLOPE_OF_SPAN} of zero is never significant: readings that do
+ * not change at all (a quantised or simulated signal) leave round-off in the merged moments whose
+ * standard error is smaller still.
  */
 export interface TrendVerdict {
   kind: 'none' | 'relaxation' | 'leak' | 'undetermined';
@@ -74,6 +85,14 @@ export interface TrendVerdict {
 
 /** The s₃/s₁ ratio at or above which a significant trend counts as persistent (a leak). */
 export const LEAK_PERSISTENCE_RATIO = 0.8;
+
+/**
+ * Slope, as a fraction of the DP span per minute, at or below which a trend counts as none
+ * whatever its standard error: far below any leak limit (the default is 1e-3 of span per minute)
+ * and far above the round-off of moments merged over constant readings (about 1e-13 of the
+ * values). Our own choice.
+ */
+export const NEGLIGIBLE_SLOPE_OF_SPAN = 1e-9;
 
 /** Default hold settings (product defaults / common practice). */
 export const DEFAULT_HOLD_SETTINGS = {
@@ -127,6 +146,30 @@ export const HOLD_REASON_TEXT: Record<HoldReason, string> = {
   leak: 'leak',
   'hold-time': 'hold time not reached',
 };
+
+/** Least-squares slope and its standard error, per minute, over consecutive sub-windows (moments merged pairwise, Chan et al.). */
+function mergedSlope(windows: readonly { m: ReturnType<ChannelAccumulator['moments']> }[]): { slope: number; se: number } {
+  let n = 0;
+  let mt = 0;
+  let my = 0;
+  let m2t = 0;
+  let m2y = 0;
+  let cty = 0;
+  for (const x of windows) {
+    const nb = x.m.n;
+    const N = n + nb;
+    const dt = x.m.meanT - mt;
+    const dy = x.m.meanY - my;
+    m2t += x.m.m2t + (dt * dt * n * nb) / N;
+    m2y += x.m.m2y + (dy * dy * n * nb) / N;
+    cty += x.m.cty + (dt * dy * n * nb) / N;
+    mt += (dt * nb) / N;
+    my += (dy * nb) / N;
+    n = N;
+  }
+  const fit = slopeOfMoments({ n, m2t, m2y, cty });
+  return { slope: fit.slope * MS_PER_MIN, se: fit.se * MS_PER_MIN };
+}
 
 /** Two-channel hold analyser (applied DP and mA), fed one sample at a time. */
 export class HoldAnalyzer {
@@ -191,28 +234,11 @@ export class HoldAnalyzer {
       return { kind: 'undetermined', ratePerMin: r, ratePctSpanPerMin: pct(r), decayRatio: null, windows: this.subWindows };
     }
     const [a, , c] = w as [(typeof w)[number], (typeof w)[number], (typeof w)[number]];
-    // Least-squares slope over the three sub-windows together (moments merged pairwise).
-    let n = 0;
-    let mt = 0;
-    let my = 0;
-    let m2t = 0;
-    let m2y = 0;
-    let cty = 0;
-    for (const x of w) {
-      const nb = x.m.n;
-      const N = n + nb;
-      const dt = x.m.meanT - mt;
-      const dy = x.m.meanY - my;
-      m2t += x.m.m2t + (dt * dt * n * nb) / N;
-      m2y += x.m.m2y + (dy * dy * n * nb) / N;
-      cty += x.m.cty + (dt * dy * n * nb) / N;
-      mt += (dt * nb) / N;
-      my += (dy * nb) / N;
-      n = N;
-    }
-    const fit = slopeOfMoments({ n, m2t, m2y, cty });
-    const slope = fit.slope * MS_PER_MIN;
-    const se = fit.se * MS_PER_MIN;
+    // Least-squares slope over the three sub-windows together, and over the last two.
+    const { slope, se } = mergedSlope(w);
+    const later = mergedSlope(w.slice(1));
+    const floor = NEGLIGIBLE_SLOPE_OF_SPAN * this.s.dpSpan;
+    const significant = (x: number, xSe: number) => Number.isFinite(xSe) && Math.abs(x) > floor && exceedsBySe(Math.abs(x), xSe);
     const ratio = a.slope !== 0 ? c.slope / a.slope : 0;
     // Decay: the first sub-window slope exceeds the last, in the direction of the trend, by more
     // than SIGNIFICANCE_SE standard errors of their difference.
@@ -223,9 +249,12 @@ export class HoldAnalyzer {
     // sub-windows agree again (a fall that persists is then a leak).
     const reversed = Math.sign(a.slope) !== Math.sign(c.slope) && exceedsBySe(Math.abs(a.slope), a.se) && exceedsBySe(Math.abs(c.slope), c.se);
     let kind: TrendVerdict['kind'] = 'none';
-    if (Number.isFinite(se) && exceedsBySe(Math.abs(slope), se)) {
+    if (significant(slope, se)) {
       if (reversed) kind = 'undetermined';
-      else kind = decaying && ratio < LEAK_PERSISTENCE_RATIO ? 'relaxation' : 'leak';
+      else if (decaying && ratio < LEAK_PERSISTENCE_RATIO) kind = 'relaxation';
+      // Not shown to decay: a leak only if the trend goes on over the last two sub-windows.
+      else if (!significant(later.slope, later.se)) kind = 'relaxation';
+      else kind = Math.sign(later.slope) === Math.sign(slope) ? 'leak' : 'undetermined';
     }
     const rate = kind === 'leak' ? slope : c.slope;
     return { kind, ratePerMin: rate, ratePctSpanPerMin: pct(rate), decayRatio: ratio, windows: this.subWindows };

@@ -15,10 +15,85 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { createLogger } from '../../server/logger';
 import { tinyPng } from '../fixtures/test-files';
-import { rawRequest } from '../helpers/proof-helpers';
+import { rawRequest, type RawResponse } from '../helpers/proof-helpers';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 const PLANT_ORIGIN = 'http://calibration.plant.example:8080';
+/**
+ * rawRequest on a connection of its own. rawRequest's pooled keep-alive sockets keep no idle timeout
+ * of their own, so one left idle since an earlier test may be reused just as the server drops it
+ * for idleness (Node's keepAliveTimeout, 5 s): with the event loop held up by load, the close and
+ * the new request land in one turn and the request dies with `read ECONNRESET` (reproduced outside
+ * the app with a plain Node server and agent: 2 resets in 10 tries). A test about the server's
+ * answer sends it on a fresh connection.
+ */
+async function freshRequest(base: string, o: { method: string; path: string; headers?: Record<string, string>; body?: Buffer | string }): Promise<RawResponse> {
+  const u = new URL(base);
+  const body = o.body === undefined ? undefined : Buffer.isBuffer(o.body) ? o.body : Buffer.from(o.body, 'utf8');
+  return new Promise((resolve, reject) => {
+    const req = http.request(
+      { host: u.hostname, port: u.port, method: o.method, path: o.path, agent: false, headers: { ...(body ? { 'content-length': String(body.length) } : {}), ...o.headers } },
+      (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => {
+          const text = Buffer.concat(chunks).toString('utf8');
+          let json: unknown;
+          try {
+            json = text ? JSON.parse(text) : undefined;
+          } catch {
+            json = undefined;
+          }
+          resolve({ status: res.statusCode ?? 0, headers: res.headers, text, json });
+        });
+        res.on('error', reject);
+      },
+    );
+    req.on('error', reject);
+    req.end(body);
+  });
+}
+
+/**
+ * Sends `total` bytes (beginning with `head`) in 64 KiB writes 2 ms apart on one keep-alive
+ * connection, then a small request on the same connection; resolves with both answers, or with
+ * the socket error where one came instead.
+ */
+async function slowUploadThenAnother(path: string, headers: Record<string, string>, head: Buffer, total: number): Promise<{ first: string; then: string }> {
+  const u = new URL(srv.url);
+  const agent = new http.Agent({ keepAlive: true, maxSockets: 1 });
+  const send = (hdrs: Record<string, string>, body: Buffer) =>
+    new Promise<string>((resolve) => {
+      const req = http.request({ host: u.hostname, port: u.port, method: 'POST', path, agent, headers: { 'content-length': String(body.length), ...hdrs } }, (res) => {
+        const parts: Buffer[] = [];
+        res.on('data', (c: Buffer) => parts.push(c));
+        res.on('end', () => resolve(`${res.statusCode} ${(JSON.parse(Buffer.concat(parts).toString() || '{}') as { error?: { code?: string } }).error?.code ?? ''}`));
+        res.on('error', (e: NodeJS.ErrnoException) => resolve(`error ${e.code}`));
+      });
+      req.on('error', (e: NodeJS.ErrnoException) => resolve(`error ${e.code}`));
+      let sent = 0;
+      const tick = () => {
+        if (req.destroyed) return;
+        const n = Math.min(64 * 1024, body.length - sent);
+        req.write(body.subarray(sent, sent + n));
+        sent += n;
+        if (sent < body.length) setTimeout(tick, 2);
+        else req.end();
+      };
+      tick();
+    });
+  try {
+    const body = Buffer.alloc(total, 0x41);
+    head.copy(body);
+    const first = await send(headers, body);
+    const then = await send({ 'content-type': 'text/csv', origin: srv.url, cookie: lead.cookie }, head);
+    return { first, then };
+  } finally {
+    agent.destroy();
+  }
+}
+
+
 let srv: TestServer;
 let lead: ApiClient;
 let tech: ApiClient;
@@ -189,22 +264,42 @@ describe('CSV', () => {
 
   it('refuses invalid UTF-8 on the text/csv body path as on the multipart path (415)', async () => {
     const bytes = Buffer.concat([Buffer.from('tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-9'), Buffer.from([0xff, 0xfe, 0xc3, 0x28]), Buffer.from(',dp-flow,0,100,kPa,linear,0.5,365\n')]);
-    const text = await rawRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv', origin: srv.url, cookie: lead.cookie }, body: bytes });
+    const text = await freshRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv', origin: srv.url, cookie: lead.cookie }, body: bytes });
     expect(text.status).toBe(415);
     expect((text.json as { error: { code: string } }).error.code).toBe('unsupported_media');
     const form = new FormData();
     form.append('file', new Blob([new Uint8Array(bytes)], { type: 'text/csv' }), 'x.csv');
     const multi = await fetch(`${srv.url}/api/instruments/import`, { method: 'POST', body: form, headers: { origin: srv.url, cookie: lead.cookie } });
     expect(multi.status).toBe(415);
-    const json = await rawRequest(srv.url, {
+    const json = await freshRequest(srv.url, {
       method: 'POST',
       path: '/api/instruments/import',
       headers: { 'content-type': 'application/json', origin: srv.url, cookie: lead.cookie },
       body: Buffer.concat([Buffer.from('{"csv":"'), Buffer.from([0xff, 0xfe]), Buffer.from('"}')]),
     });
     expect(json.status).toBe(415);
-    const good = await rawRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv; charset=utf-8', origin: srv.url, cookie: lead.cookie }, body: 'tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-981,dp-flow,0,100,kPa,linear,0.5,365\n' });
+    const good = await freshRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv; charset=utf-8', origin: srv.url, cookie: lead.cookie }, body: 'tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-981,dp-flow,0,100,kPa,linear,0.5,365\n' });
     expect(good.status, good.text).toBe(200);
+  });
+
+  it('answers a large upload it refuses with its status, read to the end, never a reset; the connection stays usable', async () => {
+    // 1.5 MB (under the 2 MiB CSV limit) sent in 64 KiB writes: refused after reading (415), past
+    // the limit (413), before reading by the route (400: no parser for the type), or before the route
+    // (401: not signed in; 403: another site). Each answer arrives whole, and the same keep-alive
+    // connection then carries the next request.
+    const bad = Buffer.concat([Buffer.from('tag,kind\nFT-9'), Buffer.from([0xff, 0xfe])]);
+    const own = { origin: srv.url, cookie: lead.cookie };
+    const cases: [Record<string, string>, number, string][] = [
+      [{ ...own, 'content-type': 'text/csv' }, 1_500_000, '415 unsupported_media'],
+      [{ ...own, 'content-type': 'text/csv' }, 3_000_000, '413 payload_too_large'],
+      [{ ...own, 'content-type': 'application/octet-stream' }, 1_500_000, '400 validation_failed'],
+      [{ origin: srv.url, 'content-type': 'text/csv' }, 1_500_000, '401 unauthenticated'],
+      [{ origin: 'http://evil.example', cookie: lead.cookie, 'content-type': 'text/csv' }, 1_500_000, '403 cross_site'],
+    ];
+    for (const [headers, total, expected] of cases) {
+      const r = await slowUploadThenAnother('/api/instruments/import', headers, bad, total);
+      expect(r, JSON.stringify(headers)).toEqual({ first: expected, then: '415 unsupported_media' });
+    }
   });
 
   it('makes an unterminated quote a row error (dry run) and a 400 (confirm)', async () => {

@@ -3,7 +3,7 @@
  * point by point; an injected leak warns and blocks auto-capture; an overshoot flags the point and
  * asks for a re-approach; a disconnect during a hold throws the hold away. HOLD_SECONDS = 2.
  */
-import { describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it } from 'vitest';
 import { RunSchema, type Run } from '../../shared/schemas/runs';
 import type { StreamMessage } from '../../shared/schemas/stream';
 import { ApiClient, demoEmail } from '../helpers/test-server';
@@ -11,10 +11,20 @@ import { streamClient, until, useRunJob } from './runs-helpers';
 
 const ctx = useRunJob();
 
+/** Runs started and streams opened by the current test (aborted, closed after it, so one failure stays one failure). */
+const started: string[] = [];
+const streams: { close: () => void }[] = [];
+function openStream() {
+  const ws = streamClient(ctx.srv, ctx.tech);
+  streams.push(ws);
+  return ws;
+}
 async function startRun(kind: 'as-found' | 'as-left' | 'mode-check' = 'as-found'): Promise<Run> {
   const r = await ctx.tech.post(`/api/jobs/${ctx.jobId}/runs`, { kind });
   expect(r.status, JSON.stringify(r.body)).toBe(201);
-  return RunSchema.parse(r.body);
+  const run = RunSchema.parse(r.body);
+  started.push(run.id);
+  return run;
 }
 const getRun = async (id: string): Promise<Run> => RunSchema.parse((await ctx.tech.get(`/api/runs/${id}`)).body);
 const sim = async (body: unknown) => {
@@ -36,6 +46,19 @@ describe('runs: start and plan', () => {
 });
 
 describe('capture engine with the autopilot', () => {
+  // A test that fails midway leaves its run active on bench-1, and every later test would get 409
+  // "Another run is active": abort it through the API, as the technician would (the autopilot follows
+  // the run's end and takes its leak away with it).
+  afterEach(async () => {
+    for (const ws of streams.splice(0)) ws.close();
+    for (const id of started.splice(0)) {
+      const status = (await getRun(id)).status;
+      if (status !== 'running' && status !== 'paused') continue;
+      const r = await ctx.tech.post(`/api/runs/${id}/abort`);
+      expect(r.status, `abort of run ${id} left by the test: ${JSON.stringify(r.body)}`).toBe(200);
+    }
+  });
+
   it('captures every point of an as-found run automatically and computes results', async () => {
     const run = await startRun('as-found');
     // Rooted output: 10, 25, 50, 75, 100 % flow up and back down (common practice).
@@ -65,7 +88,7 @@ describe('capture engine with the autopilot', () => {
 
   it('warns of a leak at once and does not auto-capture the leaking point', async () => {
     const run = await startRun('as-left');
-    const ws = streamClient(ctx.srv, ctx.tech);
+    const ws = openStream();
     await ws.opened;
     // 0.6 inH2O/min on a 100 inH2O span = 0.6 % span/min, six times the default leak limit, at 75 % flow (index 3).
     await sim({ autopilot: { speed: 20, leak: { perMin: 0.6, points: [3] } } });
@@ -90,7 +113,7 @@ describe('capture engine with the autopilot', () => {
     await sim({ autopilot: 'stop', source: { leakPerMin: 0 }, setpoint: { value: 0 } });
     await until(() => Math.abs(ctx.srv.rig!.snapshot().appliedDp) < 0.05, 20_000, 'vented');
     const run = await startRun('as-left');
-    const ws = streamClient(ctx.srv, ctx.tech);
+    const ws = openStream();
     await ws.opened;
     await sim({ autopilot: { speed: 20, overshoot: { fraction: 0.5, points: [1] } } });
     await until(() => warnings(ws.messages, run.id).some((w) => w.kind === 'overshoot'), 60_000, 'overshoot warning');
@@ -108,7 +131,7 @@ describe('capture engine with the autopilot', () => {
     await sim({ autopilot: 'stop', source: { timeConstantS: 0.1 }, setpoint: { value: 0 } });
     await until(() => Math.abs(ctx.srv.rig!.snapshot().appliedDp) < 0.01, 10_000, 'vented');
     const run = await startRun('as-left');
-    const ws = streamClient(ctx.srv, ctx.tech);
+    const ws = openStream();
     await ws.opened;
     const p0 = run.points[0]!;
     await sim({ setpoint: { value: p0.targetDp } });
