@@ -15,45 +15,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { createLogger } from '../../server/logger';
 import { tinyPng } from '../fixtures/test-files';
-import { rawRequest, type RawResponse } from '../helpers/proof-helpers';
+import { rawRequest } from '../helpers/proof-helpers';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 const PLANT_ORIGIN = 'http://calibration.plant.example:8080';
-/**
- * rawRequest on a connection of its own. rawRequest's pooled keep-alive sockets keep no idle timeout
- * of their own, so one left idle since an earlier test may be reused just as the server drops it
- * for idleness (Node's keepAliveTimeout, 5 s): with the event loop held up by load, the close and
- * the new request land in one turn and the request dies with `read ECONNRESET` (reproduced outside
- * the app with a plain Node server and agent: 2 resets in 10 tries). A test about the server's
- * answer sends it on a fresh connection.
- */
-async function freshRequest(base: string, o: { method: string; path: string; headers?: Record<string, string>; body?: Buffer | string }): Promise<RawResponse> {
-  const u = new URL(base);
-  const body = o.body === undefined ? undefined : Buffer.isBuffer(o.body) ? o.body : Buffer.from(o.body, 'utf8');
-  return new Promise((resolve, reject) => {
-    const req = http.request(
-      { host: u.hostname, port: u.port, method: o.method, path: o.path, agent: false, headers: { ...(body ? { 'content-length': String(body.length) } : {}), ...o.headers } },
-      (res) => {
-        const chunks: Buffer[] = [];
-        res.on('data', (c: Buffer) => chunks.push(c));
-        res.on('end', () => {
-          const text = Buffer.concat(chunks).toString('utf8');
-          let json: unknown;
-          try {
-            json = text ? JSON.parse(text) : undefined;
-          } catch {
-            json = undefined;
-          }
-          resolve({ status: res.statusCode ?? 0, headers: res.headers, text, json });
-        });
-        res.on('error', reject);
-      },
-    );
-    req.on('error', reject);
-    req.end(body);
-  });
-}
-
 /**
  * Sends `total` bytes (beginning with `head`) in 64 KiB writes 2 ms apart on one keep-alive
  * connection, then a small request on the same connection; resolves with both answers, or with
@@ -264,21 +229,21 @@ describe('CSV', () => {
 
   it('refuses invalid UTF-8 on the text/csv body path as on the multipart path (415)', async () => {
     const bytes = Buffer.concat([Buffer.from('tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-9'), Buffer.from([0xff, 0xfe, 0xc3, 0x28]), Buffer.from(',dp-flow,0,100,kPa,linear,0.5,365\n')]);
-    const text = await freshRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv', origin: srv.url, cookie: lead.cookie }, body: bytes });
+    const text = await rawRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv', origin: srv.url, cookie: lead.cookie }, body: bytes });
     expect(text.status).toBe(415);
     expect((text.json as { error: { code: string } }).error.code).toBe('unsupported_media');
     const form = new FormData();
     form.append('file', new Blob([new Uint8Array(bytes)], { type: 'text/csv' }), 'x.csv');
     const multi = await fetch(`${srv.url}/api/instruments/import`, { method: 'POST', body: form, headers: { origin: srv.url, cookie: lead.cookie } });
     expect(multi.status).toBe(415);
-    const json = await freshRequest(srv.url, {
+    const json = await rawRequest(srv.url, {
       method: 'POST',
       path: '/api/instruments/import',
       headers: { 'content-type': 'application/json', origin: srv.url, cookie: lead.cookie },
       body: Buffer.concat([Buffer.from('{"csv":"'), Buffer.from([0xff, 0xfe]), Buffer.from('"}')]),
     });
     expect(json.status).toBe(415);
-    const good = await freshRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv; charset=utf-8', origin: srv.url, cookie: lead.cookie }, body: 'tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-981,dp-flow,0,100,kPa,linear,0.5,365\n' });
+    const good = await rawRequest(srv.url, { method: 'POST', path: '/api/instruments/import', headers: { 'content-type': 'text/csv; charset=utf-8', origin: srv.url, cookie: lead.cookie }, body: 'tag,kind,lrv,urv,unit,outputMode,tolerancePct,intervalDays\nFT-981,dp-flow,0,100,kPa,linear,0.5,365\n' });
     expect(good.status, good.text).toBe(200);
   });
 
