@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { buildPlan, type PlanPoint } from '../../shared/calc';
 import { seededRng } from '../../shared/random';
+import { approachThenLeak, fiveDecimals, sparseReadings } from '../../shared/calc/sparse-readings';
 import { CaptureEngine, type EngineEvent } from './capture-engine';
 import type { HubEntry } from './hub';
 
@@ -78,34 +79,19 @@ describe('capture engine: sparse readings under load', () => {
   const target = 25;
   it('a fast approach read sparsely is captured with no leak warning or flag (seeded, 60 runs)', () => {
     const rng = seededRng(43);
-    const q = (x: number) => Math.round(x * 1e5) / 1e5;
     for (let k = 0; k < 60; k++) {
       const engine = new CaptureEngine('bench-t');
       const events: EngineEvent[] = [];
       engine.on('event', (e) => events.push(e));
       engine.start({ runId: 'r1', benchId: 'bench-t', unit: 'inH2O@68F', dpSpan: SPAN, holdSeconds: 2, performer: PERFORMER }, plan());
-      let isolatedAt: number | undefined;
-      let held = 0;
-      const dpAt = (t: number) => {
-        if (isolatedAt === undefined) {
-          const v = target - 3 * Math.exp(-t / 75);
-          if (target - v > 0.01) return v;
-          isolatedAt = t;
-          held = v;
-        }
-        return held;
-      };
+      const dpAt = approachThenLeak({ target });
       let seq = 0;
       const entry = (device: 'pressure' | 'current', t: number, value: number): HubEntry =>
         ({ kind: 'sample', seq: ++seq, benchId: 'bench-t', device, raw: String(value), value, unit: device === 'pressure' ? 'inH2O@68F' : 'mA', wallMs: 1_800_000_000_000 + t, monoMs: t, tMs: t, source: AGENT, clientWallMs: null }) as HubEntry;
-      let t = 0;
-      let readAt = 0;
-      while (t < 8000 && !events.some((e) => e.type === 'point.captured')) {
-        const gap = rng() < 0.15 ? 300 + rng() * 900 : 60 + rng() * 120;
-        t += gap;
-        readAt = Math.max(readAt, t - rng() * Math.min(gap, 300));
-        const dp = q(dpAt(readAt));
-        engine.consume([entry('pressure', t, dp), entry('current', t + 5, q(4 + 16 * Math.sqrt(dp / SPAN)))]);
+      for (const { t, readAt } of sparseReadings(rng, 8000)) {
+        const dp = fiveDecimals(dpAt(readAt));
+        engine.consume([entry('pressure', t, dp), entry('current', t + 5, fiveDecimals(4 + 16 * Math.sqrt(dp / SPAN)))]);
+        if (events.some((e) => e.type === 'point.captured')) break;
       }
       const warned = events.find((e) => e.type === 'run.warned' && e.kind === 'leak');
       expect(warned, `run ${k}: ${JSON.stringify(warned)}`).toBeUndefined();

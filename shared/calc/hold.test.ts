@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { normalSource, seededRng } from '../random';
+import { approachThenLeak, fiveDecimals, sparseReadings } from './sparse-readings';
 import { analyzeHold, BoundedSeries, ChannelAccumulator, HoldAnalyzer, typeAOfMean, type HoldSample } from './hold';
 
 
@@ -267,32 +268,15 @@ describe('leak versus relaxation (sub-window slope ratio, hold.ts TrendVerdict)'
   });
   it('with sparse irregular readings a fast settle is never flagged, and a leak after it always is (seeded)', () => {
     const rng = seededRng(2026);
-    const q = (x: number) => Math.round(x * 1e5) / 1e5;
     const target = 25;
     const trial = (leakPerMin: number) => {
       // First-order approach from 22 (τ = 75 ms), isolated within 0.01 of the target, then the leak.
-      let isolatedAt: number | undefined;
-      let held = 0;
-      const dpAt = (t: number) => {
-        if (isolatedAt === undefined) {
-          const v = target - 3 * Math.exp(-t / 75);
-          if (target - v > 0.01) return v;
-          isolatedAt = t;
-          held = v;
-        }
-        return held - (leakPerMin / 60_000) * (t - isolatedAt);
-      };
+      const dpAt = approachThenLeak({ target, leakPerMin });
       const h = new HoldAnalyzer(SHORT);
-      let t = 0;
-      let readAt = 0;
       let inWindow = false;
       let flagged: { t: number; rate: number } | undefined;
-      while (t < 8000) {
-        // Mostly 60–180 ms apart, one gap in seven 0.3–1.2 s; each reading stamped up to 300 ms after it was taken.
-        const gap = rng() < 0.15 ? 300 + rng() * 900 : 60 + rng() * 120;
-        t += gap;
-        readAt = Math.max(readAt, t - rng() * Math.min(gap, 300));
-        const v = q(dpAt(readAt));
+      for (const { t, readAt } of sparseReadings(rng, 8000)) {
+        const v = fiveDecimals(dpAt(readAt));
         inWindow ||= Math.abs(v - target) < 0.5; // the point's window: 0.5 % of span
         if (!inWindow) continue;
         h.pushDp(t, v);
