@@ -135,7 +135,12 @@ function serialPaths(env: Env): { pressure: string; current: string; hart?: stri
 export async function boot(opts: BootOptions): Promise<Running> {
   const { env, logger } = opts;
   const memory = !!opts.memory && !env.DATABASE_URL;
-  const database = await openDatabase({ threadNice: env.DB_THREAD_NICE, ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}), ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }) });
+  const database = await openDatabase({
+    threadNice: env.DB_THREAD_NICE,
+    onIdleError: (e) => logger.warn({ err: e }, 'PostgreSQL ended an idle pooled connection; the next query opens a new one'),
+    ...(env.DATABASE_URL ? { databaseUrl: env.DATABASE_URL } : {}),
+    ...(memory ? (opts.template ? { template: opts.template } : {}) : { dataDir: env.DATA_DIR }),
+  });
   let benchToStop: BenchService | undefined;
   let rig: SimRig | undefined;
   let fakeSmtp: FakeSmtp | undefined;

@@ -143,6 +143,12 @@ export interface OpenOptions {
   lockWaitMs?: number;
   /** PGlite only: nice value of the database thread (DB_THREAD_NICE; see {@link WorkerInit.nice}). */
   threadNice?: number;
+  /**
+   * PostgreSQL only: told when the server ends an idle pooled connection (a restart, an admin's
+   * pg_terminate_backend, a network cut). The pool drops that connection and opens a new one for
+   * the next query; without a listener node-postgres throws the error and the process dies.
+   */
+  onIdleError?: (e: Error) => void;
 }
 
 /** Opens the database and applies the migrations in drizzle/ in-process. */
@@ -158,6 +164,9 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
       throw e;
     }
     const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10 });
+    // node-postgres: an idle client's error is emitted by the pool, and an 'error' event nobody
+    // listens to is thrown (Pool docs, "error" event: always add a listener).
+    pool.on('error', (e) => opts.onIdleError?.(e));
     const db = drizzlePg(pool, { schema }) as unknown as Db;
     const close = async () => {
       try {

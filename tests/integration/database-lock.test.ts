@@ -7,6 +7,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import pg from 'pg';
 import { afterAll, describe, expect, it } from 'vitest';
 import { DataDirLockedError, DatabaseInUseError, openDatabase, type Database } from '../../server/db/client';
 import { freshPostgres } from '../helpers/test-server';
@@ -36,6 +37,35 @@ describe('one process per PostgreSQL database', { skip: !process.env.TEST_DATABA
     const third = await openDatabase({ databaseUrl: fresh.url, lockWaitMs: 600 });
     opened.push(third);
     expect(third.kind).toBe('postgres');
+  });
+
+  it('lives through the server ending its idle pooled connections, and queries again on new ones', async () => {
+    const fresh = (await freshPostgres('sp_lock'))!;
+    const idleErrors: Error[] = [];
+    const db = await openDatabase({ databaseUrl: fresh.url, onIdleError: (e) => idleErrors.push(e) });
+    try {
+      // Several pooled connections, then idle.
+      await Promise.all(Array.from({ length: 4 }, () => db.exec('SELECT pg_sleep(0.05)')));
+      const admin = new pg.Client({ connectionString: process.env.TEST_DATABASE_URL });
+      await admin.connect();
+      try {
+        const { rows } = await admin.query(
+          "SELECT count(pg_terminate_backend(pid))::int AS n FROM pg_stat_activity WHERE datname = $1 AND state = 'idle' AND query NOT ILIKE '%pg_advisory%'",
+          [new URL(fresh.url).pathname.slice(1)],
+        );
+        expect(rows[0].n).toBeGreaterThan(0);
+      } finally {
+        await admin.end();
+      }
+      const until = Date.now() + 5000;
+      while (!idleErrors.length && Date.now() < until) await new Promise((r) => setTimeout(r, 20));
+      // Told, not thrown (an unhandled one would fail this run), and the next query gets a new connection.
+      expect(idleErrors[0]?.message).toMatch(/terminating connection due to administrator command/);
+      await db.exec('SELECT 1');
+    } finally {
+      await db.close();
+      await fresh.drop();
+    }
   });
 
   it('also locks the data directory, where the sample journal lives', async () => {
