@@ -36,8 +36,10 @@ const standard = (over: Record<string, unknown> = {}) => ({
   ...over,
 });
 
+/** Tags of this file's instruments: one server per file, so a counter keeps them apart (a random tag collided: 409). */
+let tagSeq = 100;
 async function newJob(instrument: Record<string, unknown>): Promise<{ jobId: string; tag: string }> {
-  const tag = `FT-9${Math.floor(Math.random() * 900 + 100)}`;
+  const tag = `FT-9${++tagSeq}`;
   const ins = await lead.post('/api/instruments', {
     tag, kind: 'dp-flow', service: 'Test fuel gas flow', location: 'Test bench', lrv: 0, urv: 25, unit: 'kPa', outputMode: 'sqrt-transmitter',
     cutoffMode: 'none', cutoffValue: 0, tolerancePct: 0.5, intervalDays: 180, ...instrument,
