@@ -123,8 +123,8 @@ describe('SampleWriter', () => {
     w.consume(entries(1, 100)); // starts a batch at once (batchRows)
     await tick();
     w.consume(entries(101, 100));
-    await tick();
     // Batch 2 is acknowledged (journaled) while batch 1's database write is still held.
+    await until(() => w.stats.ackedSeq === 200, 'batch 2 journaled');
     expect(w.stats.ackedSeq).toBe(200);
     expect(w.stats.storedSeq).toBe(0);
     expect(sink.waiting).toBe(1);
