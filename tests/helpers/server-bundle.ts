@@ -19,13 +19,20 @@ import { build, type Plugin } from 'esbuild';
 const root = path.resolve(import.meta.dirname, '../..');
 const SOURCES = ['server', 'shared', 'simulators'];
 
+/**
+ * The lint-boundaries suite writes short-lived probe files into `server/lint-probe-<pid>/` and
+ * `shared/lint-probe-<pid>/` (a path-based rule only applies where the file lives) while other lanes
+ * build this bundle: they are not server sources, and may vanish between listing and reading.
+ */
+const LINT_PROBE = /^lint-probe-/;
+
 function sourceFiles(dir: string): string[] {
   return fs
     .readdirSync(path.join(root, dir), { withFileTypes: true })
     .sort((a, b) => a.name.localeCompare(b.name))
     .flatMap((e) => {
       const rel = path.join(dir, e.name);
-      if (e.isDirectory()) return sourceFiles(rel);
+      if (e.isDirectory()) return LINT_PROBE.test(e.name) ? [] : sourceFiles(rel);
       return /\.tsx?$/.test(e.name) && !/\.test\.tsx?$/.test(e.name) ? [rel] : [];
     });
 }
@@ -49,9 +56,14 @@ export function serverBundle(): Promise<string> {
   return (built ??= buildBundle());
 }
 
+/** The source files the bundle's content hash covers (relative to the repository). */
+export function bundleSources(): string[] {
+  return SOURCES.flatMap(sourceFiles);
+}
+
 async function buildBundle(): Promise<string> {
   const h = createHash('sha256');
-  for (const f of SOURCES.flatMap(sourceFiles)) h.update(f).update('\0').update(fs.readFileSync(path.join(root, f)));
+  for (const f of bundleSources()) h.update(f).update('\0').update(fs.readFileSync(path.join(root, f)));
   const dir = path.join(root, '.tmp', 'server-bundle', h.digest('hex').slice(0, 16));
   const main = path.join(dir, 'main.mjs');
   if (!fs.existsSync(main)) {

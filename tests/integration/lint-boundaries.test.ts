@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { ESLint } from 'eslint';
 import { afterAll, describe, expect, it } from 'vitest';
+import { bundleSources } from '../helpers/server-bundle';
 
 // The import boundaries of HOUSE-STYLE.md and the lint of issue-prone patterns, proved by linting
 // code placed at the paths it would live at.
@@ -77,6 +78,10 @@ describe('lint: accessibility and promises', () => {
     fs.writeFileSync(path.join(dir, 'tsconfig.json'), JSON.stringify({ extends: '../../tsconfig.base.json', compilerOptions: { noEmit: true }, include: ['probe.ts'] }));
     fs.writeFileSync(file, code);
     try {
+      // Other lanes hash the server's sources meanwhile: the probe is not one of them (it may vanish
+      // between their listing and reading it, which once failed a SIGKILL proof with ENOENT).
+      expect(bundleSources().filter((f) => f.includes('lint-probe-'))).toEqual([]);
+      expect(bundleSources()).toContain(path.join('server', 'main.ts'));
       const [result] = await new ESLint({ cwd: process.cwd() }).lintFiles([file]);
       expect(result!.messages.filter((m) => m.ruleId === '@typescript-eslint/no-floating-promises')).toHaveLength(1);
       fs.writeFileSync(file, code.replace('  f();', '  void f();'));
