@@ -120,10 +120,19 @@ for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
   });
 }
 
+/**
+ * CPU seconds (user + system) of each lane's commands and everything they started and waited for
+ * (vitest workers, server processes, Chromium): the shell's `times` after the command, on a line of
+ * its own that is read here and not printed. Wall time on a shared two-core machine says how busy
+ * it was; these say what each lane costs.
+ */
+const cpu = new Map<string, number>();
+const TIMES = /^(\d+)m([\d.]+)s (\d+)m([\d.]+)s$/;
+
 /** Runs one command in a process group of its own, printing each line of its output with the lane's name in front. */
 function run(lane: string, argv: string[], env: Record<string, string> = {}, background = false): Promise<number> {
   return new Promise((resolve) => {
-    const cmd = background ? ['nice', '-n', '10', ...argv] : argv;
+    const cmd = ['sh', '-c', '"$@"; c=$?; times >&2; exit $c', 'sh', ...(background ? ['nice', '-n', '10', ...argv] : argv)];
     const child = spawn(cmd[0]!, cmd.slice(1), {
       cwd: root,
       env: { ...process.env, ...(process.stdout.isTTY ? { FORCE_COLOR: '1' } : { NO_COLOR: '1' }), ...env },
@@ -138,7 +147,11 @@ function run(lane: string, argv: string[], env: Record<string, string> = {}, bac
       stream.on('data', (d: string) => {
         const lines = (rest + d).split('\n');
         rest = lines.pop()!;
-        for (const l of lines) process.stdout.write(`${tag}${l}\n`);
+        for (const l of lines) {
+          const t = stream === child.stderr ? TIMES.exec(l) : null;
+          if (t) cpu.set(lane, (cpu.get(lane) ?? 0) + Number(t[1]) * 60 + Number(t[2]) + Number(t[3]) * 60 + Number(t[4]));
+          else process.stdout.write(`${tag}${l}\n`);
+        }
       });
       stream.on('end', () => rest && process.stdout.write(`${tag}${rest}\n`));
     }
@@ -175,6 +188,7 @@ for (const lane of lanes) {
 await Promise.all(done.values());
 const total = (performance.now() - t0) / 1000;
 console.log('');
-console.table(lanes.map((l) => ({ lane: l.name, seconds: Math.round(results.get(l.name)!.seconds), result: results.get(l.name)!.code === 0 ? 'passed' : `FAILED (exit ${results.get(l.name)!.code})` })));
-console.log(`${tier} tier: ${Math.round(total)} s in all on ${os.availableParallelism()} cores (load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')})`);
+console.table(lanes.map((l) => ({ lane: l.name, seconds: Math.round(results.get(l.name)!.seconds), 'CPU-s': Math.round(cpu.get(l.name) ?? 0), result: results.get(l.name)!.code === 0 ? 'passed' : `FAILED (exit ${results.get(l.name)!.code})` })));
+const cpuTotal = [...cpu.values()].reduce((a, b) => a + b, 0);
+console.log(`${tier} tier: ${Math.round(total)} s in all, ${Math.round(cpuTotal)} CPU-s (prepare included) on ${os.availableParallelism()} cores (load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')})`);
 process.exit([...results.values()].some((r) => r.code !== 0) ? 1 : 0);
