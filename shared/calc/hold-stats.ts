@@ -60,6 +60,31 @@ export function slopeOfMoments(m: Pick<Moments, 'n' | 'm2t' | 'm2y' | 'cty'>): {
   return { slope, se };
 }
 
+/** The moments of no samples: the identity of {@link mergeMoments}. */
+export const NO_MOMENTS: Moments = { n: 0, meanT: 0, meanY: 0, m2t: 0, m2y: 0, cty: 0 };
+
+/**
+ * The moments of two sample sets together, from each set's moments (the pairwise update of Chan,
+ * Golub and LeVeque, "Updating formulae and a pairwise algorithm for computing sample variances",
+ * 1979, extended to the co-moment).
+ */
+export function mergeMoments(a: Moments, b: Moments): Moments {
+  if (a.n === 0) return b;
+  if (b.n === 0) return a;
+  const n = a.n + b.n;
+  const dt = b.meanT - a.meanT;
+  const dy = b.meanY - a.meanY;
+  const w = (a.n * b.n) / n;
+  return {
+    n,
+    meanT: a.meanT + (dt * b.n) / n,
+    meanY: a.meanY + (dy * b.n) / n,
+    m2t: a.m2t + b.m2t + dt * dt * w,
+    m2y: a.m2y + b.m2y + dy * dy * w,
+    cty: a.cty + b.cty + dt * dy * w,
+  };
+}
+
 /** Incremental statistics of one channel; O(1) per sample. Timestamps in ms, non-decreasing. */
 export class ChannelAccumulator {
   private n = 0;

@@ -11,7 +11,7 @@
  * setting, and each default is a product default / common practice, not a standard's value.
  */
 
-import { BoundedSeries, ChannelAccumulator, exceedsBySe, MS_PER_MIN, slopeOfMoments, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
+import { BoundedSeries, ChannelAccumulator, exceedsBySe, mergeMoments, MS_PER_MIN, NO_MOMENTS, slopeOfMoments, typeAOfMean, type ChannelStats, type Moments, type TypeAOfMean } from './hold-stats';
 
 export { BoundedSeries, ChannelAccumulator, exceedsBySe, SIGNIFICANCE_SE, typeAOfMean, type ChannelStats, type TypeAOfMean } from './hold-stats';
 
@@ -147,27 +147,9 @@ export const HOLD_REASON_TEXT: Record<HoldReason, string> = {
   'hold-time': 'hold time not reached',
 };
 
-/** Least-squares slope and its standard error, per minute, over consecutive sub-windows (moments merged pairwise, Chan et al.). */
-function mergedSlope(windows: readonly { m: ReturnType<ChannelAccumulator['moments']> }[]): { slope: number; se: number } {
-  let n = 0;
-  let mt = 0;
-  let my = 0;
-  let m2t = 0;
-  let m2y = 0;
-  let cty = 0;
-  for (const x of windows) {
-    const nb = x.m.n;
-    const N = n + nb;
-    const dt = x.m.meanT - mt;
-    const dy = x.m.meanY - my;
-    m2t += x.m.m2t + (dt * dt * n * nb) / N;
-    m2y += x.m.m2y + (dy * dy * n * nb) / N;
-    cty += x.m.cty + (dt * dy * n * nb) / N;
-    mt += (dt * nb) / N;
-    my += (dy * nb) / N;
-    n = N;
-  }
-  const fit = slopeOfMoments({ n, m2t, m2y, cty });
+/** Least-squares slope and its standard error, per minute, over consecutive sub-windows (their moments merged). */
+function mergedSlope(windows: readonly { m: Moments }[]): { slope: number; se: number } {
+  const fit = slopeOfMoments(windows.map((x) => x.m).reduce(mergeMoments, NO_MOMENTS));
   return { slope: fit.slope * MS_PER_MIN, se: fit.se * MS_PER_MIN };
 }
 
