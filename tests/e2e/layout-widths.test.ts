@@ -88,6 +88,11 @@ async function open(page: Page, c: PageCase): Promise<void> {
   await page.evaluate(() => document.fonts.ready.then(() => undefined));
 }
 
+/** Waits for the layout after a resize: two animation frames (observers and re-renders run in between). */
+function settled(page: Page): Promise<void> {
+  return page.evaluate(() => new Promise<void>((r) => requestAnimationFrame(() => requestAnimationFrame(() => r()))));
+}
+
 /** Elements that stick out past the right edge, to name the culprit when a page scrolls sideways. */
 function overflowers(page: Page): Promise<string[]> {
   return page.evaluate(() => {
@@ -139,9 +144,13 @@ describe('every screen width', () => {
         const { context, page } = await signedIn(who, theme);
         try {
           for (const c of PAGES.filter((p) => p.who === who)) {
+            // Loaded once at the narrowest width, then widened step by step as a window or a turned
+            // tablet would be (the layout must follow a resize, not only a fresh load).
+            await page.setViewportSize(WIDTHS[0]);
+            await open(page, c);
             for (const size of WIDTHS) {
               await page.setViewportSize(size);
-              await open(page, c);
+              await settled(page);
               const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
               if (scrollWidth > innerWidth) problems.push(`${c.name} @${size.width} ${theme}: scrollWidth ${scrollWidth} > ${innerWidth}: ${(await overflowers(page)).join(' | ')}`);
               if (c.name === 'capture') {

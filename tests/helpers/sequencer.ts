@@ -3,27 +3,32 @@
  * first; with no timings yet (a clean clone) it starts the larger files first, which left some of
  * the longest suites (a capture run, a first start seeding a data directory) to start near the end
  * and run alone while the other worker slot stood idle. Here, files that have no timing yet and
- * are known to be long (measured 2026-12-03, one lane at a time on the shared two-core machine)
- * start first; everything else keeps vitest's order. Only the order changes, never what runs.
+ * are known to be long start first; everything else keeps vitest's order. Only the order changes, never what runs.
  */
 import path from 'node:path';
 import { BaseSequencer, type TestSpecification } from 'vitest/node';
 
-/** Longest first: integration and end-to-end files over about 30 s. */
+/**
+ * Longest first: integration and end-to-end files over about 60 s in a clean-clone `npm test`
+ * (2026-12-03, every lane at once on the shared two-core machine), longest at the top.
+ */
 const LONG = [
+  'tests/integration/data-dir-lock.test.ts',
+  'tests/integration/storage-edges.test.ts',
   'tests/integration/runs-capture.test.ts',
   'tests/integration/stream-replay-storm.test.ts',
   'tests/integration/mail-schedule.test.ts',
-  'tests/integration/sim-autopilot-follow.test.ts',
+  'tests/integration/accounts.test.ts',
   'tests/integration/bench-identity.test.ts',
+  'tests/integration/sim-autopilot-follow.test.ts',
+  'tests/integration/review-loop.test.ts',
   'tests/integration/hart-job-trims.test.ts',
-  'tests/integration/records-uploads.test.ts',
-  'tests/integration/data-dir-lock.test.ts',
+  'tests/e2e/layout-widths.test.ts',
   'tests/e2e/record-flow.test.ts',
   'tests/e2e/run-flow.test.ts',
-  'tests/e2e/layout-widths.test.ts',
-  'tests/e2e/run-warnings.test.ts',
   'tests/e2e/units-and-flow.test.ts',
+  'tests/e2e/run-warnings.test.ts',
+  'tests/e2e/hart-job.test.ts',
 ];
 
 export default class LongFirstSequencer extends BaseSequencer {
