@@ -5,7 +5,9 @@
  * - `npm run test:proof` (`--tier proof`): the full proofs (PROOF_LEVEL=full), the agent's
  *   ten-minute outage in a lane of its own beside the others;
  * - `npm run test:postgres` (`--tier postgres`, under scripts/with-postgres.sh): the integration
- *   suites that touch the database and the short proofs, on a PostgreSQL server.
+ *   suites that touch the database and the short proofs, on a PostgreSQL server;
+ * - `--tier ci` (`.ci/run`, under scripts/with-postgres.sh): the full proofs, and the PostgreSQL
+ *   pass once the proof lane is done, beside the outage.
  *
  * The suites that wait on the real clock (captures with their holds, Chromium, server processes
  * killed and restarted) spend most of their time idle, so each runs in a lane beside the others
@@ -75,6 +77,19 @@ const TIERS: Record<string, Lane[]> = {
     { name: 'integration', steps: [vitest(...projects('integration'), ...NO_DATABASE, ...PGLITE_ONLY)] },
     { name: 'proof', steps: [vitest(...projects('proof'))] },
   ],
+  /**
+   * What `.ci/run` runs after `npm test`, under scripts/with-postgres.sh: the full proofs on PGlite
+   * (TEST_DATABASE_URL emptied for them), then the PostgreSQL pass as soon as the proof lane is done,
+   * while the ten-minute outage (a lane that mostly waits) still runs beside it. The load proof
+   * still has the machine to itself but for the outage, and the PostgreSQL pass no longer waits
+   * for the outage to end.
+   */
+  ci: [
+    { name: 'proof', steps: [vitest(...projects('proof'), '--exclude', OUTAGE)], env: { PROOF_LEVEL: 'full', TEST_DATABASE_URL: '' } },
+    { name: 'outage', steps: [vitest(...projects('proof'), OUTAGE)], env: { PROOF_LEVEL: 'full', TEST_DATABASE_URL: '' } },
+    { name: 'pg-integration', steps: [vitest(...projects('integration'), ...NO_DATABASE, ...PGLITE_ONLY)], after: ['proof'] },
+    { name: 'pg-proof', steps: [vitest(...projects('proof'))], after: ['proof'] },
+  ],
 };
 
 function arg(name: string): string | undefined {
@@ -87,8 +102,8 @@ if (!TIERS[tier]) {
   console.error(`--tier takes one of ${Object.keys(TIERS).join(', ')}`);
   process.exit(2);
 }
-if (tier === 'postgres' && !process.env.TEST_DATABASE_URL) {
-  console.error('--tier postgres needs TEST_DATABASE_URL: run it as `npm run test:postgres` (scripts/with-postgres.sh starts the server)');
+if ((tier === 'postgres' || tier === 'ci') && !process.env.TEST_DATABASE_URL) {
+  console.error(`--tier ${tier} needs TEST_DATABASE_URL: run it under scripts/with-postgres.sh (\`npm run test:postgres\` does), which starts the server`);
   process.exit(2);
 }
 const LANES = TIERS[tier]!;
