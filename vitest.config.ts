@@ -12,7 +12,7 @@ import LongFirstSequencer from './tests/helpers/sequencer';
  * `fileParallelism: false` is put in one group that runs after all the others, one file at a time.
  * `npm test` (scripts/test.ts) therefore runs the slow projects in lanes of their own, one vitest
  * process each, at the same time. Integration files are independent (each boots its own in-memory
- * server on its own port), mostly wait on the simulated rig's real-time holds, and run three at a
+ * server on its own port), mostly wait on the simulated rig's real-time holds, and run two at a
  * time; so do the e2e files (each its own in-memory app on an ephemeral port and its own Chromium,
  * its own temporary files); proof files (server processes, load, timing figures) run one at a time.
  */
@@ -55,9 +55,10 @@ export default defineConfig({
           // Generous for a shared two-core machine: a server boot has taken over a minute under load.
           testTimeout: 120_000,
           hookTimeout: 120_000,
-          // Three at a time: most files wait on the rig's real-time holds, and with two the machine
-          // stood about a quarter idle over a clean-clone `npm test` (CPU-s against wall time).
-          maxWorkers: 3,
+          // Two at a time. Three (tried 2026-12-03: most files wait on the rig's real-time holds,
+          // and with two the machine stood about a quarter idle) saved 6 % of `npm test` but took
+          // the load average to 20, where a 2 s hold and the replay storm's health check failed.
+          maxWorkers: 2,
           // One module graph per worker, not per file: a fresh worker importing the whole server
           // for each of some forty files was a third of this project's time. Each file boots and
           // closes its own app; the one file on fake timers puts the real ones back after each test.

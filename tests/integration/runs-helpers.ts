@@ -50,11 +50,11 @@ export async function prepareJob(srv: TestServer, lead: ApiClient, tag = 'FT-101
 }
 
 /**
- * Boots the app (simulated rig, HOLD_SECONDS = 2) before the calling file's tests with the
- * technician and the admin signed in and the tech's FT-101 job ready (the lead prepares it); closes
- * it after them.
+ * Boots the app (simulated rig, HOLD_SECONDS = 2 unless `holdSeconds` says otherwise) before the
+ * calling file's tests with the technician and the admin signed in and the tech's FT-101 job ready
+ * (the lead prepares it); closes it after them.
  */
-export function useRunJob() {
+export function useRunJob(holdSeconds = 2) {
   return useTestServer(
     async (srv) => {
       const tech = new ApiClient(srv.url);
@@ -63,6 +63,6 @@ export function useRunJob() {
       await Promise.all([tech.login(demoEmail('tech')), admin.login(demoEmail('admin')), lead.login(demoEmail('lead'))]);
       return { tech, admin, jobId: await prepareJob(srv, lead) };
     },
-    { env: { HOLD_SECONDS: '2' }, timeoutMs: 180_000 },
+    { env: { HOLD_SECONDS: String(holdSeconds) }, timeoutMs: 180_000 },
   );
 }
