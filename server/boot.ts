@@ -255,6 +255,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
         mode: env.BENCH,
         dataDir: memory ? undefined : env.DATA_DIR,
         minFreeBytes: env.MIN_FREE_DISK_MB * 1024 * 1024,
+        dbTimeoutMs: env.HEALTH_DB_TIMEOUT_MS,
       }),
       allowedOrigins,
       clientDir: path.resolve(import.meta.dirname, '../dist'),

@@ -80,6 +80,11 @@ const EnvSchema = z.object({
   SEED_DEMO: z.enum(['0', '1']).optional(),
   /** Free disk in DATA_DIR below which /api/health answers 503 (the product could not store what it acknowledges), MiB. */
   MIN_FREE_DISK_MB: z.coerce.number().positive().default(256),
+  /**
+   * How long /api/health waits for the database's trivial query before it answers 503, ms (our own
+   * default). Test servers on a shared two-core machine at a load average near 20 take longer.
+   */
+  HEALTH_DB_TIMEOUT_MS: z.coerce.number().int().min(100).max(60_000).default(2000),
 }).refine((e) => e.NODE_ENV !== 'production' || e.PASSWORD_HASH_COST === undefined || e.PASSWORD_HASH_COST >= 10, {
   message: 'PASSWORD_HASH_COST must be at least 10 in production (OWASP Password Storage Cheat Sheet)',
   path: ['PASSWORD_HASH_COST'],

@@ -10,6 +10,7 @@ import path from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import type { DamagedBatch } from '../bench/journal';
 import type { SampleWriterStats } from '../bench/sample-writer';
+import { parseEnv } from '../env';
 import { createHealth, type HealthOptions } from './health.service';
 
 const dirs: string[] = [];
@@ -91,5 +92,11 @@ describe('health report', () => {
     expect(silent).toMatchObject({ ok: false, status: 'failing', database: { ok: false, error: 'the database did not answer within 50 ms' } });
     const h = await setUp({ journalDir: path.join(tmp(), 'missing') })();
     expect(h).toMatchObject({ ok: false, status: 'failing', journal: { writable: false } });
+  });
+
+  it('takes its database timeout from HEALTH_DB_TIMEOUT_MS: 2000 ms unless set, 100 ms to a minute', () => {
+    expect(parseEnv({}).HEALTH_DB_TIMEOUT_MS).toBe(2000);
+    expect(parseEnv({ HEALTH_DB_TIMEOUT_MS: '20000' }).HEALTH_DB_TIMEOUT_MS).toBe(20_000);
+    for (const bad of ['50', '60001', '1.5', 'soon']) expect(() => parseEnv({ HEALTH_DB_TIMEOUT_MS: bad }), bad).toThrow(/HEALTH_DB_TIMEOUT_MS/);
   });
 });

@@ -54,6 +54,11 @@ export async function startTestServer(opts: { env?: Record<string, string>; boot
     LOG_LEVEL: 'silent',
     // New hashes (invites, resets, password changes) at bcrypt's minimum cost, like the template's.
     PASSWORD_HASH_COST: String(TEST_HASH_COST),
+    // A loaded two-core machine (every lane of `npm test` at once, load average near 20) has kept
+    // the database from answering health's query within the default 2 s: a 503 that says more
+    // about the test machine than the server. The health verdicts themselves are unit-tested with
+    // an injected timeout (server/services/health.service.test.ts).
+    HEALTH_DB_TIMEOUT_MS: '20000',
     DATA_DIR: dataDir,
     ...(pgdb ? { DATABASE_URL: pgdb.url } : {}),
     ...opts.env,
