@@ -1,13 +1,15 @@
 /**
  * The test tiers, each in lanes that run at the same time:
- * - `npm test` (the default tier): lint, types, unit, integration, end-to-end in Chromium and a
- *   short pass of every proof;
+ * - `npm test` (the default tier): lint, types, unit, integration, end-to-end in Chromium and the
+ *   request-level security suites of tests/proof/ (they have no rounds to shorten);
  * - `npm run test:proof` (`--tier proof`): the full proofs (PROOF_LEVEL=full), the agent's
- *   ten-minute outage in a lane of its own beside the others;
+ *   ten-minute outage in a lane of its own beside the others; `--tier proof-short`: every proof at
+ *   its short level (5 kills, 15 s of load), a few minutes for a change to the capture path;
  * - `npm run test:postgres` (`--tier postgres`, under scripts/with-postgres.sh): the integration
  *   suites that touch the database and the short proofs, on a PostgreSQL server;
- * - `--tier ci` (`.ci/run`, under scripts/with-postgres.sh): the full proofs, and the PostgreSQL
- *   pass once the proof lane is done, beside the outage.
+ * - `--tier ci` (`.ci/run`, under scripts/with-postgres.sh): the full proofs (but the security
+ *   suites `npm test` already ran), and the PostgreSQL pass once the proof lane is done, beside the
+ *   outage.
  *
  * The suites that wait on the real clock (captures with their holds, Chromium, server processes
  * killed and restarted) spend most of their time idle, so each runs in a lane beside the others
@@ -52,6 +54,12 @@ const NO_DATABASE = ['composition-root', 'lint-boundaries', 'serial-driver-pty',
 const PGLITE_ONLY = ['data-dir-lock', 'mail-schedule'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const POSTGRES_ONLY = ['database-lock'].flatMap((f) => ['--exclude', `tests/integration/${f}.test.ts`]);
 const OUTAGE = 'tests/proof/agent-outage.test.ts';
+/**
+ * The proofs that send requests and read answers (the attacker's probes): no rounds, no kills, no
+ * clock, so they belong in every `npm test`. The other proofs (SIGKILL restarts, fuzz, load, the
+ * outage, a first start) run in `.ci/run` and `npm run test:proof`.
+ */
+const SECURITY = ['tests/proof/security.test.ts', 'tests/proof/security-requests.test.ts'];
 
 /**
  * The lint-boundaries suite lints probe files (CPU work, no server, no clock): it runs in the lint
@@ -67,12 +75,13 @@ const TIERS: Record<string, Lane[]> = {
     { name: 'unit', steps: [vitest(...projects('shared', 'shared-dom', 'server', 'client'))], background: true },
     { name: 'integration', steps: [vitest(...projects('integration'), '--exclude', LINT_SUITE, ...POSTGRES_ONLY)] },
     { name: 'e2e', steps: [vitest(...projects('e2e'))] },
-    { name: 'proof', steps: [vitest(...projects('proof'))] },
+    { name: 'security', steps: [vitest(...projects('proof'), ...SECURITY)] },
   ],
   proof: [
     { name: 'proof', steps: [vitest(...projects('proof'), '--exclude', OUTAGE)], env: { PROOF_LEVEL: 'full' } },
     { name: 'outage', steps: [vitest(...projects('proof'), OUTAGE)], env: { PROOF_LEVEL: 'full' } },
   ],
+  'proof-short': [{ name: 'proof', steps: [vitest(...projects('proof'))] }],
   postgres: [
     { name: 'integration', steps: [vitest(...projects('integration'), ...NO_DATABASE, ...PGLITE_ONLY)] },
     { name: 'proof', steps: [vitest(...projects('proof'))] },
@@ -85,7 +94,11 @@ const TIERS: Record<string, Lane[]> = {
    * for the outage to end.
    */
   ci: [
-    { name: 'proof', steps: [vitest(...projects('proof'), '--exclude', OUTAGE)], env: { PROOF_LEVEL: 'full', TEST_DATABASE_URL: '' } },
+    {
+      name: 'proof',
+      steps: [vitest(...projects('proof'), '--exclude', OUTAGE, ...SECURITY.flatMap((f) => ['--exclude', f]))],
+      env: { PROOF_LEVEL: 'full', TEST_DATABASE_URL: '' },
+    },
     { name: 'outage', steps: [vitest(...projects('proof'), OUTAGE)], env: { PROOF_LEVEL: 'full', TEST_DATABASE_URL: '' } },
     { name: 'pg-integration', steps: [vitest(...projects('integration'), ...NO_DATABASE, ...PGLITE_ONLY)], after: ['proof'] },
     { name: 'pg-proof', steps: [vitest(...projects('proof'))], after: ['proof'] },

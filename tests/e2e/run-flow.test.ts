@@ -50,8 +50,28 @@ async function runHandsFree(page: Page, startTestId: string, timeoutMs = 240_000
   // at the point the previous run ended on); then there is no active run left to drive.
   const r = await admin.post('/api/sim', { autopilot: { speed: AUTOPILOT_SPEED } });
   if (r.status !== 200) expect((await tech.get(`/api/runs/${runId}`)).body.status, JSON.stringify(r.body)).toBe('complete');
-  await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: timeoutMs });
+  await untilComplete(page, runId, timeoutMs);
   return runId;
+}
+
+/**
+ * Waits for the capture screen to show the run complete. On a timeout the error says where the run,
+ * the page and the rig stood (a bare locator timeout told CI nothing about which of them was stuck).
+ */
+async function untilComplete(page: Page, runId: string, timeoutMs: number): Promise<void> {
+  try {
+    await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: timeoutMs });
+  } catch (e) {
+    const run = await tech.get(`/api/runs/${runId}`);
+    const rig = await admin.get('/api/sim');
+    const shown = await page.getByTestId('capture-screen').getAttribute('data-run-status').catch(() => 'no capture screen');
+    const body = run.body as { status?: string; currentIndex?: number; points?: { index: number; state: string; warning?: string | null }[] };
+    throw new Error(
+      `run ${runId} not shown complete within ${timeoutMs} ms: page shows ${shown}, server says ${run.status} ${body.status} at point ${body.currentIndex} ` +
+        `(${JSON.stringify(body.points?.map((p) => [p.index, p.state, p.warning ?? null]))}); rig ${JSON.stringify(rig.body)}; ${(e as Error).message.split('\n')[0]}`,
+      { cause: e },
+    );
+  }
 }
 
 async function runJson(runId: string) {
@@ -142,7 +162,7 @@ describe('run flow (FT-101, rooted output)', () => {
       await page.evaluate(() => document.documentElement.setAttribute('data-theme', 'bench'));
       await page.screenshot({ path: path.join(SCREENS, 'capture-holding-bench.png') });
       await page.evaluate(() => document.documentElement.setAttribute('data-theme', 'light'));
-      await page.locator('[data-testid="capture-screen"][data-run-status="complete"]').waitFor({ timeout: 240_000 });
+      await untilComplete(page, asFoundId, 240_000);
       const found = await expectResultsMatch(page, asFoundId);
       expect(found.results!.overallDecision).toBe('fail');
       expect(found.points.every((p) => p.state === 'captured')).toBe(true);

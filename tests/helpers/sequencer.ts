@@ -13,7 +13,6 @@ import { BaseSequencer, type TestSpecification } from 'vitest/node';
  * (2026-12-03, every lane at once on the shared two-core machine), longest at the top.
  */
 const LONG = [
-  'tests/integration/data-dir-lock.test.ts',
   'tests/integration/storage-edges.test.ts',
   'tests/integration/runs-capture.test.ts',
   'tests/integration/stream-replay-storm.test.ts',

@@ -7,9 +7,14 @@ import { randomPort, startServerProcess, waitHealthy, type ServerProcess } from 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'sp-lock-'));
 const children: ServerProcess[] = [];
 
-/** The server on an empty data directory: the first start migrates and seeds it itself. */
+/**
+ * The server on a data directory holding the seeded template (the database a first start makes).
+ * A first start on an empty directory (initdb, migrations and two years of demo history in the
+ * server) took minutes on a busy two-core machine and says nothing of the lock: it is a proof of
+ * its own, tests/proof/first-start.test.ts, which checks the lock file too.
+ */
 async function start(): Promise<ServerProcess> {
-  const s = await startServerProcess({ port: await randomPort(), dataDir: dir, firstStart: true });
+  const s = await startServerProcess({ port: await randomPort(), dataDir: dir });
   children.push(s);
   return s;
 }
@@ -23,8 +28,7 @@ afterAll(async () => {
 describe('one process per data directory', { skip: !!process.env.TEST_DATABASE_URL }, () => {
   it('refuses a second server on the same DATA_DIR and leaves the first unharmed', async () => {
     const first = await start();
-    // A first start migrates and seeds two years of demo history: minutes on a busy two-core machine.
-    await waitHealthy(first, 300_000);
+    await waitHealthy(first, 120_000);
     expect(await (await fetch(`${first.base}/api/health`)).json()).toMatchObject({ ok: true, db: 'pglite' });
     const lock = fs.readFileSync(path.join(dir, 'stillpoint.lock'), 'utf8').trim();
     expect(Number(lock)).toBe(first.child.pid);
