@@ -56,23 +56,20 @@ describe('scheduled mail across restarts', { skip: !!process.env.TEST_DATABASE_U
 
     const third = await start();
     expect(await third.scheduledMail).toEqual([]);
-    await stop(third);
-
-    const fourth = await start();
-    const after = (await fourth.mail.list()).filter((m) => scheduledSubject(m.subject));
+    const after = (await third.mail.list()).filter((m) => scheduledSubject(m.subject));
     expect(after.map((m) => m.id).sort()).toEqual(afterFirst.map((m) => m.id).sort());
 
     // The weekly due list: every row names its service (the instrument's), none left empty.
-    const weekly = await fourth.mail.get(afterFirst.find((m) => m.subject.startsWith('Week of'))!.id);
-    const due = (await fourth.services.jobs.list({ id: 'x', role: 'lead' } as never)).filter((j) => j.status !== 'approved');
+    const weekly = await third.mail.get(afterFirst.find((m) => m.subject.startsWith('Week of'))!.id);
+    const due = (await third.services.jobs.list({ id: 'x', role: 'lead' } as never)).filter((j) => j.status !== 'approved');
     const listed = due.filter((j) => weekly.text.includes(j.tag));
     expect(listed.length).toBeGreaterThan(0);
     for (const j of listed) {
-      const inst = await fourth.services.registers.getInstrument(j.instrumentId);
+      const inst = await third.services.registers.getInstrument(j.instrumentId);
       expect(inst.service).not.toBe('');
       expect(weekly.html).toContain(inst.service);
     }
-    await stop(fourth);
+    await stop(third);
   }, 300_000);
 
   it('a schedule sends its slot once, and the next slot when it comes (injected clock, real database)', async () => {
