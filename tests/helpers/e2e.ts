@@ -33,7 +33,8 @@ export interface E2eApp {
 export function e2eApp(o: { env?: Record<string, string>; users?: DemoUser[] } = {}): E2eApp {
   const app = { api: {} } as E2eApp;
   beforeAll(async () => {
-    app.server = await startTestServer(o.env ? { env: o.env } : {});
+    // The server's errors reach the lane's output (a capture that could not be stored says so there).
+    app.server = await startTestServer({ env: { LOG_LEVEL: 'error', ...o.env } });
     app.browser = await launchBrowser();
     for (const who of o.users ?? []) {
       app.api[who] = new ApiClient(app.server.url);
