@@ -15,12 +15,13 @@ export const queryKeys = {
   /** A run's trace for the review chart, in a window (ms, widened to whole milliseconds) or whole. */
   reviewTrace: (runId: string, w: { from: number; to: number } | null | undefined) => ['runs', runId, 'review-trace', w ? Math.floor(w.from) : null, w ? Math.ceil(w.to) : null] as const,
   bench: ['bench'] as const,
+  /** Everything of one register (`instruments`, `standards`): its lists and its rows. */
+  register: (plural: 'instruments' | 'standards') => [plural] as const,
+  /** A page of a register: search, sort and page as the server is asked for them. */
+  registerList: (plural: 'instruments' | 'standards', params: Record<string, string | number>) => [plural, 'list', params] as const,
   instruments: ['instruments'] as const,
-  /** A page of the register: search, sort and page as the server is asked for them. */
-  instrumentList: (params: Record<string, string | number>) => ['instruments', 'list', params] as const,
   instrument: (id: string) => ['instruments', id] as const,
   standards: ['standards'] as const,
-  standardList: (params: Record<string, string | number>) => ['standards', 'list', params] as const,
   records: ['records'] as const,
   recordList: (status: string, from: string | undefined, to: string | undefined) => ['records', status, from, to] as const,
   audit: (entity: string | undefined, entityId: string | undefined) => ['audit', entity ?? '', entityId ?? ''] as const,

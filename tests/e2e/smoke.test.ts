@@ -55,7 +55,7 @@ describe('sign-in and role navigation', () => {
         expect(testIds.includes('nav-audit')).toBe(c.user !== 'tech');
 
         // The register loaded from the server (a table, or its empty message), not an error.
-        await page.getByRole('table', { name: 'Instrument register' }).waitFor();
+        await page.getByRole('table', { name: 'Instruments register' }).waitFor();
 
         // Both faces are bundled and came from our own server (the off-host check covers the rest).
         const fonts = await page.evaluate(async () => {

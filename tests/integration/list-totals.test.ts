@@ -1,8 +1,11 @@
 /**
  * Register lists answer their total without counting when the page already tells it (the last
- * page), and count otherwise: the total is the same either way.
+ * page), and count otherwise: the total is the same either way. They search and sort by the
+ * fields their spec (shared/schemas/registers.ts) names, the ones the page's search box and
+ * first sort are built from.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { INSTRUMENT_REGISTER, STANDARD_REGISTER, registerPath, type RegisterSpec } from '../../shared/schemas/registers';
 import { ApiClient, demoEmail, startTestServer, type TestServer } from '../helpers/test-server';
 
 let srv: TestServer;
@@ -34,4 +37,42 @@ describe('list totals', () => {
     const none = await page('/api/standards?q=no-such-standard-anywhere');
     expect(none).toEqual({ items: [], total: 0 });
   });
+});
+
+describe('register lists follow their spec', () => {
+  const specs = [INSTRUMENT_REGISTER, STANDARD_REGISTER] as RegisterSpec<Record<string, unknown>>[];
+  for (const spec of specs) {
+    it(`${spec.plural}: sort by each sortable field both ways, fall back to the first, search each search field`, async () => {
+      const c = new ApiClient(srv.url);
+      await c.login(demoEmail('tech'));
+      const path = registerPath(spec);
+      type Row = Record<string, unknown>;
+      const list = async (qs: string) => ((await c.get(`${path}?pageSize=100&${qs}`)).body as { items: Row[] }).items;
+      const ids = (rows: Row[]) => rows.map((r) => r.id);
+      const all = await list('');
+      expect(all.length).toBeGreaterThan(3);
+      for (const field of spec.sortable) {
+        const up = await list(`sort=${field}&dir=asc`);
+        const down = await list(`sort=${field}&dir=desc`);
+        expect(up).toHaveLength(all.length);
+        // The values run one way up and the other way down, whatever the collation; ties keep the key's order.
+        expect(down.map((r) => r[field])).toEqual(up.map((r) => r[field]).reverse());
+        // Ascending under the database's collation: byte order (C) or a language's (en_US); numbers and ISO dates as themselves.
+        const v = up.map((r) => r[field] as number | string | null);
+        const inOrder = (a: number | string | null, b: number | string | null) =>
+          a === null || b === null || a <= b || (typeof a === 'string' && typeof b === 'string' && a.localeCompare(b, 'en', { sensitivity: 'base', ignorePunctuation: true }) <= 0);
+        expect(v.slice(1).every((b, i) => inOrder(v[i]!, b)), `${spec.plural} by ${field}: ${JSON.stringify(v)}`).toBe(true);
+      }
+      expect(ids(await list('sort=no-such-field'))).toEqual(ids(await list(`sort=${spec.sortable[0]}`)));
+      expect(ids(all)).toEqual(ids(await list(`sort=${spec.sortable[0]}`)));
+      for (const field of Object.keys(spec.search)) {
+        const row = all.find((r) => typeof r[field] === 'string' && (r[field] as string).length >= 3)!;
+        const q = (row[field] as string).slice(1, 4).toLowerCase();
+        const found = await list(`q=${encodeURIComponent(q)}`);
+        expect(ids(found)).toContain(row.id);
+        for (const r of found) expect(Object.keys(spec.search).some((f) => String(r[f]).toLowerCase().includes(q))).toBe(true);
+        expect(found.length).toBe(all.filter((r) => Object.keys(spec.search).some((f) => String(r[f]).toLowerCase().includes(q))).length);
+      }
+    });
+  }
 });

@@ -1,4 +1,7 @@
-import { asc, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
+import { asc, desc, eq, getTableColumns, ilike, inArray, or, sql, type AnyColumn, type SQL } from 'drizzle-orm';
+import { INSTRUMENT_REGISTER, STANDARD_REGISTER, type RegisterSpec } from '../../../shared/schemas/registers';
+import type { Instrument } from '../../../shared/schemas/instruments';
+import type { Standard } from '../../../shared/schemas/standards';
 import type { Db } from '../client';
 import { instruments, jobs, runs, standards, users } from '../schema';
 import { parsedRun } from './run.repository';
@@ -27,41 +30,39 @@ function knownTotal(query: ListQuery, onPage: number): number | undefined {
   return (query.page - 1) * query.pageSize + onPage;
 }
 
-const instrumentSort = {
-  tag: instruments.tag,
-  service: instruments.service,
-  location: instruments.location,
-  outputMode: instruments.outputMode,
-  intervalDays: instruments.intervalDays,
-  lastCalibratedOn: instruments.lastCalibratedOn,
-} as const;
+type RegisterTable = typeof instruments | typeof standards;
 
-const standardSort = {
-  description: standards.description,
-  serial: standards.serial,
-  kind: standards.kind,
-  dueOn: standards.dueOn,
-} as const;
+/**
+ * A page of a register as its spec describes it: the search matches the spec's fields, the sort
+ * is one of its sortable fields (the first when the query names none or another), and ties are
+ * broken by the field that names a row, so paging is stable.
+ */
+async function listPage<Row, Shown>(db: Db, table: RegisterTable, spec: RegisterSpec<Shown>, query: ListQuery): Promise<{ items: Row[]; total: number }> {
+  const columns: Record<string, AnyColumn> = getTableColumns(table);
+  const column = (field: string): AnyColumn => {
+    const c = columns[field];
+    if (!c) throw new Error(`The ${spec.plural} table has no column ${field}`);
+    return c;
+  };
+  const where: SQL | undefined = query.q ? or(...Object.keys(spec.search).map((f) => ilike(column(f), `%${query.q}%`))) : undefined;
+  const sortable: readonly string[] = spec.sortable;
+  const col = column(query.sort && sortable.includes(query.sort) ? query.sort : spec.sortable[0]);
+  const items = (await db
+    .select()
+    .from(table)
+    .where(where)
+    .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(column(spec.keyField)))
+    .limit(query.pageSize)
+    .offset((query.page - 1) * query.pageSize)) as Row[];
+  const known = knownTotal(query, items.length);
+  if (known !== undefined) return { items, total: known };
+  const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(table).where(where);
+  return { items, total: count?.n ?? 0 };
+}
 
 export function instrumentRepository(db: Db) {
   return {
-    async list(query: ListQuery): Promise<{ items: InstrumentRow[]; total: number }> {
-      const where: SQL | undefined = query.q
-        ? or(ilike(instruments.tag, `%${query.q}%`), ilike(instruments.service, `%${query.q}%`), ilike(instruments.location, `%${query.q}%`))
-        : undefined;
-      const col = instrumentSort[query.sort as keyof typeof instrumentSort] ?? instruments.tag;
-      const items = await db
-        .select()
-        .from(instruments)
-        .where(where)
-        .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(instruments.tag))
-        .limit(query.pageSize)
-        .offset((query.page - 1) * query.pageSize);
-      const known = knownTotal(query, items.length);
-      if (known !== undefined) return { items, total: known };
-      const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(instruments).where(where);
-      return { items, total: count?.n ?? 0 };
-    },
+    list: (query: ListQuery) => listPage<InstrumentRow, Instrument>(db, instruments, INSTRUMENT_REGISTER, query),
     async all(): Promise<InstrumentRow[]> {
       return db.select().from(instruments).orderBy(asc(instruments.tag));
     },
@@ -97,23 +98,7 @@ export function instrumentRepository(db: Db) {
 
 export function standardRepository(db: Db) {
   return {
-    async list(query: ListQuery): Promise<{ items: StandardRow[]; total: number }> {
-      const where: SQL | undefined = query.q
-        ? or(ilike(standards.description, `%${query.q}%`), ilike(standards.serial, `%${query.q}%`), ilike(standards.certificateNo, `%${query.q}%`))
-        : undefined;
-      const col = standardSort[query.sort as keyof typeof standardSort] ?? standards.dueOn;
-      const items = await db
-        .select()
-        .from(standards)
-        .where(where)
-        .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(standards.serial))
-        .limit(query.pageSize)
-        .offset((query.page - 1) * query.pageSize);
-      const known = knownTotal(query, items.length);
-      if (known !== undefined) return { items, total: known };
-      const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(standards).where(where);
-      return { items, total: count?.n ?? 0 };
-    },
+    list: (query: ListQuery) => listPage<StandardRow, Standard>(db, standards, STANDARD_REGISTER, query),
     async all(): Promise<StandardRow[]> {
       return db.select().from(standards).orderBy(asc(standards.dueOn));
     },

@@ -8,10 +8,10 @@ import { RouteErrorBoundary } from './route-error';
  * The route module of one register (instruments, standards): its loader starts the first page's
  * query, the page is the shared register page, editable by the roles that may edit registers.
  */
-export function registerRoute<T extends { id: string }>(config: RegisterPageConfig<T>, prefetchFirstPage: (queryClient: QueryClient) => Promise<void>) {
+export function registerRoute<T extends { id: string }, I>(config: RegisterPageConfig<T, I>) {
   return {
     createLoader: (queryClient: QueryClient) => () => {
-      void prefetchFirstPage(queryClient);
+      void queryClient.prefetchQuery(config.api.listQueryOptions());
       return null;
     },
     Component: function Register() {

@@ -1,6 +1,6 @@
-import type { UseQueryResult } from '@tanstack/react-query';
-import { useDeferredValue, useState, type ReactNode } from 'react';
-import { AttachmentList, type AttachmentKindSpec } from '../ui/attachments';
+import { useDeferredValue, useState, type ComponentType, type ReactNode } from 'react';
+import { registerPath, searchPrompt } from '../../../shared/schemas/registers';
+import { ATTACHMENT_SPECS, AttachmentList } from '../ui/attachments';
 import { Button } from '../ui/button';
 import { Dialog } from '../ui/dialog';
 import { ErrorNotice } from '../ui/error-notice';
@@ -8,51 +8,28 @@ import { PageHeader } from '../ui/page-header';
 import { SearchInput } from '../ui/search-input';
 import { ListSkeleton } from '../ui/skeleton';
 import { toast } from '../ui/toast';
-import type { AttachmentTarget } from '../../lib/attachments';
+import type { RegisterApi } from '../../lib/register-api';
 import { CsvImportDialog } from './csv-import-dialog';
+import type { RegisterFormSlotProps } from './register-form';
 import { ServerTable, type RegisterColumn, type SortState } from './server-table';
 
-/** Search, sort and page of a register list, as the server takes them. */
-export interface RegisterListParams extends SortState {
-  q: string;
-  page: number;
-  pageSize: number;
-}
-
-/** The files kept beside each row (an instrument's datasheets, a standard's certificates). */
-export interface RegisterFiles<T> {
-  /** The row button and the dialog's title start: "Datasheets", "Certificates". */
-  label: string;
-  description: (row: T) => string;
-  spec: AttachmentKindSpec;
-}
-
-/** What one register (instruments, standards) puts into the shared page. */
-export interface RegisterPageConfig<T extends { id: string }> {
-  title: string;
+/** What one register (instruments, standards) puts into the shared page beside its spec and API. */
+export interface RegisterPageConfig<T extends { id: string }, I> {
+  /** The register's API; its spec names the page, the search box, the first sort, the CSV layout and the files. */
+  api: RegisterApi<T, I>;
   description: (total: number | undefined) => ReactNode;
-  /**
-   * What one row is ("instrument"): its files are kept under it, and its plural names the API
-   * path (`/api/instruments`) and the remembered columns.
-   */
-  noun: Exclude<AttachmentTarget['entity'], 'job'>;
-  /** The register's name in captions and errors: "Instrument register". */
-  registerName: string;
-  searchPlaceholder: string;
-  /** The CSV layout (shared with the server); grouped columns (`pe.…`) are named once as `pe.*`. */
-  csvColumns: readonly string[];
-  initialSort: SortState;
   columns: RegisterColumn<T>[];
-  /** How a row is named in titles, toasts and button labels (its tag or serial). */
-  rowName: (row: T) => string;
-  useList: (params: RegisterListParams) => UseQueryResult<{ items: T[]; total: number }>;
-  files: RegisterFiles<T>;
-  renderForm: (props: { row: T | null; onSaved: (row: T) => void; onCancel: () => void }) => ReactNode;
+  /** The files dialog's line about a row. */
+  aboutFiles: (row: T) => string;
+  /** The add and edit form. */
+  Form: ComponentType<RegisterFormSlotProps<T>>;
   /** Shown above the table once the list has loaded (the standards' due counts). */
   summary?: (total: number) => ReactNode;
 }
 
 const PAGE_SIZE = 25;
+
+const capitalise = (w: string) => w.charAt(0).toUpperCase() + w.slice(1);
 
 /** Column names for the import dialog: a group of `prefix.field` columns is shown once as `prefix.*`. */
 export function csvColumnNames(columns: readonly string[]): string[] {
@@ -63,21 +40,27 @@ export function csvColumnNames(columns: readonly string[]): string[] {
  * One register page: a server-paged, searchable table with CSV export, and for those who may edit
  * it (`canEdit`) CSV import, add and edit forms; every row opens its files.
  */
-export function RegisterPage<T extends { id: string }>({ config, canEdit }: { config: RegisterPageConfig<T>; canEdit: boolean }) {
-  const c = config;
-  const nouns = `${c.noun}s`;
-  const apiPath = `/api/${nouns}`;
+export function RegisterPage<T extends { id: string }, I>({ config, canEdit }: { config: RegisterPageConfig<T, I>; canEdit: boolean }) {
+  const { Form, ...c } = config;
+  const { spec } = c.api;
+  const { noun, plural: nouns } = spec;
+  const title = capitalise(nouns);
+  const registerName = `${title} register`;
+  const apiPath = registerPath(spec);
+  const files = ATTACHMENT_SPECS[spec.files];
+  const filesLabel = `${capitalise(files.noun)}s`;
+  const rowName = (row: T) => String(row[spec.keyField]);
   const [search, setSearch] = useState('');
   const q = useDeferredValue(search);
-  const [sort, setSort] = useState<SortState>(c.initialSort);
+  const [sort, setSort] = useState<SortState>({ sort: spec.sortable[0], dir: 'asc' });
   const [page, setPage] = useState(1);
-  const list = c.useList({ q, ...sort, page, pageSize: PAGE_SIZE });
+  const list = c.api.useList({ q, ...sort, page, pageSize: PAGE_SIZE });
   const [editing, setEditing] = useState<T | 'new' | null>(null);
   const [importing, setImporting] = useState(false);
   const [filesOf, setFilesOf] = useState<T | null>(null);
   const table = list.data && (
     <ServerTable
-      caption={c.registerName}
+      caption={registerName}
       storageKey={`sp.columns.${nouns}`}
       columns={c.columns}
       rows={list.data.items}
@@ -95,11 +78,11 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
       empty={q ? `No ${nouns} match “${q}”.` : `No ${nouns} registered yet.`}
       rowActions={(row) => (
         <>
-          <Button size="sm" variant="ghost" onClick={() => setFilesOf(row)} aria-label={`${c.files.label} of ${c.rowName(row)}`}>
-            {c.files.label}
+          <Button size="sm" variant="ghost" onClick={() => setFilesOf(row)} aria-label={`${filesLabel} of ${rowName(row)}`}>
+            {filesLabel}
           </Button>
           {canEdit && (
-            <Button size="sm" variant="ghost" onClick={() => setEditing(row)} aria-label={`Edit ${c.rowName(row)}`}>
+            <Button size="sm" variant="ghost" onClick={() => setEditing(row)} aria-label={`Edit ${rowName(row)}`}>
               Edit
             </Button>
           )}
@@ -110,13 +93,13 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
   return (
     <>
       <PageHeader
-        title={c.title}
+        title={title}
         description={c.description(list.data?.total)}
         actions={
           <div className="flex flex-wrap items-center gap-2">
             <SearchInput
               label={`Search ${nouns}`}
-              placeholder={c.searchPlaceholder}
+              placeholder={searchPrompt(spec)}
               value={search}
               onValueChange={(v) => {
                 setSearch(v);
@@ -132,7 +115,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
                   Import CSV
                 </Button>
                 <Button size="sm" onClick={() => setEditing('new')}>
-                  Add {c.noun}
+                  Add {noun}
                 </Button>
               </>
             )}
@@ -142,7 +125,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
       {list.isPending ? (
         <ListSkeleton />
       ) : list.isError ? (
-        <ErrorNotice title={`Could not load the ${c.registerName.toLowerCase()}`} error={list.error} onRetry={() => void list.refetch()} />
+        <ErrorNotice title={`Could not load the ${registerName.toLowerCase()}`} error={list.error} onRetry={() => void list.refetch()} />
       ) : c.summary && list.data ? (
         <div className="flex flex-col gap-6">
           {c.summary(list.data.total)}
@@ -154,34 +137,35 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
       <Dialog
         open={editing !== null}
         onClose={() => setEditing(null)}
-        title={editing === 'new' ? `New ${c.noun}` : `Edit ${editing ? c.rowName(editing) : ''}`}
+        title={editing === 'new' ? `New ${noun}` : `Edit ${editing ? rowName(editing) : ''}`}
         className="w-[min(48rem,calc(100vw-2rem))]"
       >
-        {editing !== null &&
-          c.renderForm({
-            row: editing === 'new' ? null : editing,
-            onCancel: () => setEditing(null),
-            onSaved: (row) => {
+        {editing !== null && (
+          <Form
+            row={editing === 'new' ? null : editing}
+            onCancel={() => setEditing(null)}
+            onSaved={(row) => {
               setEditing(null);
-              toast(`${c.rowName(row)} saved`, { tone: 'success' });
-            },
-          })}
+              toast(`${rowName(row)} saved`, { tone: 'success' });
+            }}
+          />
+        )}
       </Dialog>
       <Dialog
         open={!!filesOf}
         onClose={() => setFilesOf(null)}
-        title={`${c.files.label} of ${filesOf ? c.rowName(filesOf) : ''}`}
-        description={filesOf ? c.files.description(filesOf) : undefined}
+        title={`${filesLabel} of ${filesOf ? rowName(filesOf) : ''}`}
+        description={filesOf ? c.aboutFiles(filesOf) : undefined}
         className="w-[min(40rem,calc(100vw-2rem))]"
       >
         {filesOf && (
           <AttachmentList
-            target={{ entity: c.noun, id: filesOf.id }}
-            spec={c.files.spec}
+            target={{ entity: noun, id: filesOf.id }}
+            spec={files}
             canUpload={canEdit}
             canRemove={canEdit}
-            emptyText={`No ${c.files.spec.noun} uploaded.`}
-            testId={`${c.noun}-${c.files.label.toLowerCase()}`}
+            emptyText={`No ${files.noun} uploaded.`}
+            testId={`${noun}-${filesLabel.toLowerCase()}`}
           />
         )}
       </Dialog>
@@ -190,7 +174,7 @@ export function RegisterPage<T extends { id: string }>({ config, canEdit }: { co
         onClose={() => setImporting(false)}
         endpoint={`${apiPath}/import`}
         title={`Import ${nouns} from CSV`}
-        columns={csvColumnNames(c.csvColumns)}
+        columns={csvColumnNames(spec.csvColumns)}
         onImported={(n) => {
           setImporting(false);
           toast(`${n} ${nouns} imported`, { tone: 'success' });

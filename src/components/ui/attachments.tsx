@@ -22,6 +22,8 @@ export interface AttachmentKindSpec {
 export const CERTIFICATE: AttachmentKindSpec = { noun: 'certificate', accept: 'application/pdf,.pdf', takes: 'a PDF' };
 export const DATASHEET: AttachmentKindSpec = { noun: 'datasheet', accept: 'application/pdf,.pdf', takes: 'a PDF' };
 export const PHOTO: AttachmentKindSpec = { noun: 'photo', accept: 'image/png,image/jpeg,image/webp,.png,.jpg,.jpeg,.webp', takes: 'a PNG, JPEG or WebP image', images: true };
+/** The file kinds by their stored name (a register's spec names the kind its rows keep). */
+export const ATTACHMENT_SPECS = { certificate: CERTIFICATE, datasheet: DATASHEET, photo: PHOTO } as const;
 
 const kib = (n: number) => (n < 1024 * 1024 ? `${Math.max(1, Math.round(n / 1024))} KiB` : `${(n / (1024 * 1024)).toFixed(1)} MiB`);
 

@@ -1,14 +1,11 @@
-import { zodResolver } from '@hookform/resolvers/zod';
 import { useRef, useState } from 'react';
-import { useForm } from 'react-hook-form';
 import { PRESSURE_UNIT_IDS } from '../../../../shared/calc/units';
 import { CUTOFF_MODES, INSTRUMENT_KINDS, InstrumentInputSchema, isReversedRange, OUTPUT_MODES, type Instrument, type InstrumentInput } from '../../../../shared/schemas/instruments';
-import { RegisterForm } from '../../../components/registers/register-form';
+import { RegisterForm, useRegisterForm, type RegisterFormSlotProps } from '../../../components/registers/register-form';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { applyServerErrors } from '../../../lib/form-errors';
 import { unitLabel } from '../../../lib/format';
-import { useSaveInstrument } from '../api/get-instruments';
+import { instrumentsApi } from '../api/get-instruments';
 import { OUTPUT_MODE_LABELS } from './instrument-columns';
 
 const FIELDS = ['tag', 'kind', 'service', 'location', 'lrv', 'urv', 'unit', 'outputMode', 'cutoffMode', 'cutoffValue', 'tolerancePct', 'intervalDays', 'hazardousMedium', 'notes'] as const;
@@ -37,39 +34,27 @@ function toInput(i: Instrument | null): InstrumentInput {
 }
 
 /** Create or edit an instrument with the shared schema; the server's field errors appear in place. */
-export function InstrumentForm({ instrument, onSaved, onCancel }: { instrument: Instrument | null; onSaved: (i: Instrument) => void; onCancel: () => void }) {
-  const save = useSaveInstrument(instrument?.id ?? null);
+export function InstrumentForm(slot: RegisterFormSlotProps<Instrument>) {
   // A reversed range is legitimate for some level and pressure service: asked about once, not refused.
   const [askReversed, setAskReversed] = useState(false);
   const reversedConfirmed = useRef(false);
+  const { form, onSubmit, frame } = useRegisterForm(instrumentsApi, slot, {
+    schema: InstrumentInputSchema,
+    defaultValues: toInput(slot.row),
+    fields: FIELDS,
+    guard: (values) => {
+      const ask = isReversedRange(values) && !reversedConfirmed.current;
+      setAskReversed(ask);
+      return !ask;
+    },
+  });
   const {
     register,
-    handleSubmit,
-    setError,
-    formState: { errors, isSubmitting },
-  } = useForm<InstrumentInput>({ resolver: zodResolver(InstrumentInputSchema) as never, defaultValues: toInput(instrument), criteriaMode: 'all' });
-  const onSubmit = handleSubmit(async (values) => {
-    if (isReversedRange(values) && !reversedConfirmed.current) {
-      setAskReversed(true);
-      return;
-    }
-    setAskReversed(false);
-    try {
-      onSaved(await save.mutateAsync(values));
-    } catch (e) {
-      applyServerErrors(e, setError, FIELDS);
-    }
-  });
+    formState: { errors },
+  } = form;
   const num = { valueAsNumber: true } as const;
   return (
-    <RegisterForm
-      label={instrument ? `Edit ${instrument.tag}` : 'New instrument'}
-      onSubmit={onSubmit}
-      onCancel={onCancel}
-      rootError={errors.root?.message}
-      submitting={isSubmitting}
-      submitLabel={instrument ? 'Save changes' : 'Add instrument'}
-    >
+    <RegisterForm {...frame}>
       <TextField label="Tag" error={errors.tag?.message} {...register('tag')} />
       <SelectField label="Kind" options={INSTRUMENT_KINDS.map((k) => ({ value: k, label: KIND_LABELS[k] }))} error={errors.kind?.message} {...register('kind')} />
       <TextField label="Service" error={errors.service?.message} {...register('service')} />

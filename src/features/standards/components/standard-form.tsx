@@ -1,13 +1,10 @@
-import { zodResolver } from '@hookform/resolvers/zod';
 import { useEffect } from 'react';
-import { useForm } from 'react-hook-form';
 import { whenValid } from '../../../../shared/schemas/numbers';
 import { STANDARD_KINDS, STANDARD_UNITS, StandardInputSchema, type Standard, type StandardInput } from '../../../../shared/schemas/standards';
-import { RegisterForm } from '../../../components/registers/register-form';
+import { RegisterForm, useRegisterForm, type RegisterFormSlotProps } from '../../../components/registers/register-form';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { applyServerErrors } from '../../../lib/form-errors';
 import { unitLabel } from '../../../lib/format';
-import { useSaveStandard } from '../api/get-standards';
+import { standardsApi } from '../api/get-standards';
 
 const FIELDS = ['kind', 'description', 'serial', 'rangeMin', 'rangeMax', 'unit', 'accuracy.pctReading', 'accuracy.pctFullScale', 'accuracy.floor', 'resolution', 'certificateNo', 'calibratingLab', 'calibratedOn', 'dueOn'] as const;
 
@@ -23,24 +20,16 @@ function toInput(s: Standard | null): StandardInput {
 }
 
 /** Create or edit a reference standard; server field errors appear next to their field. */
-export function StandardForm({ standard, onSaved, onCancel }: { standard: Standard | null; onSaved: (s: Standard) => void; onCancel: () => void }) {
-  const save = useSaveStandard(standard?.id ?? null);
+export function StandardForm(slot: RegisterFormSlotProps<Standard>) {
+  const standard = slot.row;
+  const { form, frame } = useRegisterForm(standardsApi, slot, { schema: StandardFormSchema, defaultValues: toInput(standard), fields: FIELDS });
   const {
     register,
-    handleSubmit,
-    setError,
     setValue,
     getValues,
     watch,
-    formState: { errors, isSubmitting },
-  } = useForm<StandardInput>({ resolver: zodResolver(StandardFormSchema) as never, defaultValues: toInput(standard), criteriaMode: 'all' });
-  const onSubmit = handleSubmit(async (values) => {
-    try {
-      onSaved(await save.mutateAsync(values));
-    } catch (e) {
-      applyServerErrors(e, setError, FIELDS);
-    }
-  });
+    formState: { errors },
+  } = form;
   const kind = watch('kind') === 'current' ? 'current' : 'pressure';
   useEffect(() => {
     // A current meter reads in mA; a pressure reference in a pressure unit: follow the kind.
@@ -55,14 +44,7 @@ export function StandardForm({ standard, onSaved, onCancel }: { standard: Standa
   ];
   const num = { valueAsNumber: true } as const;
   return (
-    <RegisterForm
-      label={standard ? `Edit ${standard.serial}` : 'New standard'}
-      onSubmit={onSubmit}
-      onCancel={onCancel}
-      rootError={errors.root?.message}
-      submitting={isSubmitting}
-      submitLabel={standard ? 'Save changes' : 'Add standard'}
-    >
+    <RegisterForm {...frame}>
       <SelectField label="Kind" options={STANDARD_KINDS.map((k) => ({ value: k, label: k === 'pressure' ? 'Pressure reference' : 'Current meter' }))} error={errors.kind?.message} {...register('kind')} />
       <TextField label="Serial number" error={errors.serial?.message} {...register('serial')} />
       <TextField label="Description" className="sm:col-span-2" error={errors.description?.message} {...register('description')} />
