@@ -2,10 +2,13 @@ import type { Db } from '../db/client';
 import {
   instrumentRepository,
   standardRepository,
+  type InstrumentInsert,
   type InstrumentRow,
   type ListQuery,
+  type StandardInsert,
   type StandardRow,
 } from '../db/repositories/register.repository';
+import { INSTRUMENT_REGISTER, STANDARD_REGISTER, type RegisterSpec } from '../../shared/schemas/registers';
 import { conflict, notFound } from '../errors';
 import type { Instrument, InstrumentInputSchema } from '../../shared/schemas/instruments';
 import type { AccuracySpec, Standard, StandardInputSchema } from '../../shared/schemas/standards';
@@ -65,57 +68,93 @@ export function toStandard(r: StandardRow, today = isoDate(new Date())): Standar
   };
 }
 
+/** Whether a database error is a unique-key violation (PostgreSQL 23505, also from PGlite). */
+const isUniqueViolation = (e: unknown) => (e as { code?: string } | null)?.code === '23505' || (e as { cause?: { code?: string } } | null)?.cause?.code === '23505';
+
+/** The repository surface the entries use (instruments' and standards' alike). */
+interface EntryRows<Row, Insert> {
+  list: (q: ListQuery) => Promise<{ items: Row[]; total: number }>;
+  get: (id: string) => Promise<Row | undefined>;
+  findByKey: (value: string) => Promise<Row | undefined>;
+  create: (values: Insert) => Promise<Row>;
+  update: (id: string, values: Partial<Insert>) => Promise<Row | undefined>;
+}
+
+/**
+ * The entries of one register: list, read, create and edit, each change audited. The field that
+ * names a row (tag, serial) stays unique on create and on edit; a clash is a 409 on that field,
+ * also when a concurrent save wins the race to the database's unique index.
+ */
+function registerEntries<Row extends { id: string }, Insert, Shown, Parsed extends Insert>(o: {
+  rows: EntryRows<Row, Insert>;
+  spec: RegisterSpec<Shown>;
+  /** The key field in words: "tag", "serial number". */
+  keyWords: string;
+  show: (rows: Row[]) => Promise<Shown[]>;
+  audit: AuditService;
+}) {
+  const { rows, spec } = o;
+  const key = (v: Parsed | Row) => (v as Record<string, unknown>)[spec.keyField] as string;
+  const one = async (row: Row) => (await o.show([row]))[0]!;
+  const taken = () => conflict(`That ${o.keyWords} is already registered`, { [spec.keyField]: ['Already registered'] });
+  const unique = async <T>(write: () => Promise<T>): Promise<T> => {
+    try {
+      return await write();
+    } catch (e) {
+      if (isUniqueViolation(e)) throw taken();
+      throw e;
+    }
+  };
+  return {
+    async list(q: ListQuery): Promise<{ items: Shown[]; total: number }> {
+      const { items, total } = await rows.list(q);
+      return { items: await o.show(items), total };
+    },
+    async get(id: string): Promise<Shown> {
+      const row = await rows.get(id);
+      if (!row) throw notFound(`No such ${spec.noun}`);
+      return one(row);
+    },
+    async create(actor: Actor, input: Parsed): Promise<Shown> {
+      if (await rows.findByKey(key(input))) throw taken();
+      const row = await unique(() => rows.create(input));
+      const shown = await one(row);
+      await o.audit.record(actor, `${spec.noun}.created`, spec.noun, row.id, undefined, shown);
+      return shown;
+    },
+    async update(actor: Actor, id: string, input: Parsed): Promise<Shown> {
+      const before = await rows.get(id);
+      if (!before) throw notFound(`No such ${spec.noun}`);
+      if (key(input) !== key(before) && (await rows.findByKey(key(input)))) throw taken();
+      const row = (await unique(() => rows.update(id, input)))!;
+      const shown = await one(row);
+      await o.audit.record(actor, `${spec.noun}.changed`, spec.noun, id, await one(before), shown);
+      return shown;
+    },
+  };
+}
+
 export function createRegisterService(db: Db, audit: AuditService) {
-  const instruments = instrumentRepository(db);
-  const standards = standardRepository(db);
   const clock = createSiteClock(db);
   return {
-    async listInstruments(q: ListQuery) {
-      const { items, total } = await instruments.list(q);
-      return { items: items.map(toInstrument), total };
-    },
-    async getInstrument(id: string): Promise<Instrument> {
-      const row = await instruments.get(id);
-      if (!row) throw notFound('No such instrument');
-      return toInstrument(row);
-    },
-    async createInstrument(actor: Actor, input: InstrumentParsed): Promise<Instrument> {
-      if (await instruments.findByTag(input.tag)) throw conflict('That tag is already registered', { tag: ['Already registered'] });
-      const row = await instruments.create(input);
-      await audit.record(actor, 'instrument.created', 'instrument', row.id, undefined, toInstrument(row));
-      return toInstrument(row);
-    },
-    async updateInstrument(actor: Actor, id: string, input: InstrumentParsed): Promise<Instrument> {
-      const before = await instruments.get(id);
-      if (!before) throw notFound('No such instrument');
-      if (input.tag !== before.tag && (await instruments.findByTag(input.tag))) throw conflict('That tag is already registered', { tag: ['Already registered'] });
-      const row = await instruments.update(id, input);
-      await audit.record(actor, 'instrument.changed', 'instrument', id, toInstrument(before), toInstrument(row!));
-      return toInstrument(row!);
-    },
-    async listStandards(q: ListQuery) {
-      const { items, total } = await standards.list(q);
-      const today = await clock.today();
-      return { items: items.map((r) => toStandard(r, today)), total };
-    },
-    async getStandard(id: string): Promise<Standard> {
-      const row = await standards.get(id);
-      if (!row) throw notFound('No such standard');
-      return toStandard(row, await clock.today());
-    },
-    async createStandard(actor: Actor, input: StandardParsed): Promise<Standard> {
-      if (await standards.findBySerial(input.serial)) throw conflict('That serial number is already registered', { serial: ['Already registered'] });
-      const row = await standards.create(input);
-      await audit.record(actor, 'standard.created', 'standard', row.id, undefined, toStandard(row));
-      return toStandard(row);
-    },
-    async updateStandard(actor: Actor, id: string, input: StandardParsed): Promise<Standard> {
-      const before = await standards.get(id);
-      if (!before) throw notFound('No such standard');
-      const row = await standards.update(id, input);
-      await audit.record(actor, 'standard.changed', 'standard', id, toStandard(before), toStandard(row!));
-      return toStandard(row!);
-    },
+    instruments: registerEntries<InstrumentRow, InstrumentInsert, Instrument, InstrumentParsed>({
+      rows: instrumentRepository(db),
+      spec: INSTRUMENT_REGISTER,
+      keyWords: 'tag',
+      show: async (rows) => rows.map(toInstrument),
+      audit,
+    }),
+    /** A standard's due state is the site's today's. */
+    standards: registerEntries<StandardRow, StandardInsert, Standard, StandardParsed>({
+      rows: standardRepository(db),
+      spec: STANDARD_REGISTER,
+      keyWords: 'serial number',
+      show: async (rows) => {
+        const today = await clock.today();
+        return rows.map((r) => toStandard(r, today));
+      },
+      audit,
+    }),
   };
 }
 export type RegisterService = ReturnType<typeof createRegisterService>;

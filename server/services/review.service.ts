@@ -124,7 +124,7 @@ export function createReviewService(db: Db, deps: ReviewServiceDeps) {
     async bundle(user: SessionUser, jobId: string): Promise<ReviewBundle> {
       const job = await jobs.detail(jobId);
       const [live, runs, sigs, revs, kept, replies] = await Promise.all([
-        deps.registers.getInstrument(job.instrumentId),
+        deps.registers.instruments.get(job.instrumentId),
         repo.runsWithPoints(jobId),
         repo.signatures(jobId),
         repo.revisions(jobId),

@@ -65,7 +65,7 @@ describe('scheduled mail across restarts', { skip: !!process.env.TEST_DATABASE_U
     const listed = due.filter((j) => weekly.text.includes(j.tag));
     expect(listed.length).toBeGreaterThan(0);
     for (const j of listed) {
-      const inst = await third.services.registers.getInstrument(j.instrumentId);
+      const inst = await third.services.registers.instruments.get(j.instrumentId);
       expect(inst.service).not.toBe('');
       expect(weekly.html).toContain(inst.service);
     }

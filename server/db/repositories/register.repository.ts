@@ -32,106 +32,95 @@ function knownTotal(query: ListQuery, onPage: number): number | undefined {
 
 type RegisterTable = typeof instruments | typeof standards;
 
-/**
- * A page of a register as its spec describes it: the search matches the spec's fields, the sort
- * is one of its sortable fields (the first when the query names none or another), and ties are
- * broken by the field that names a row, so paging is stable.
- */
-async function listPage<Row, Shown>(db: Db, table: RegisterTable, spec: RegisterSpec<Shown>, query: ListQuery): Promise<{ items: Row[]; total: number }> {
+/** The table's column for a field the spec names; a spec naming a field the table lacks fails at once. */
+function columnsOf(table: RegisterTable, plural: string) {
   const columns: Record<string, AnyColumn> = getTableColumns(table);
-  const column = (field: string): AnyColumn => {
+  return (field: string): AnyColumn => {
     const c = columns[field];
-    if (!c) throw new Error(`The ${spec.plural} table has no column ${field}`);
+    if (!c) throw new Error(`The ${plural} table has no column ${field}`);
     return c;
   };
-  const where: SQL | undefined = query.q ? or(...Object.keys(spec.search).map((f) => ilike(column(f), `%${query.q}%`))) : undefined;
+}
+
+/**
+ * The rows of one register (instruments, standards), as its spec describes them. A page of the
+ * list matches the spec's search fields and sorts by one of its sortable fields (the first when
+ * the query names none or another); ties are broken by the field that names a row, so paging is
+ * stable.
+ */
+function registerRows<Row, Insert, Shown>(db: Db, table: RegisterTable, spec: RegisterSpec<Shown>) {
+  const column = columnsOf(table, spec.plural);
+  const key = column(spec.keyField);
   const sortable: readonly string[] = spec.sortable;
-  const col = column(query.sort && sortable.includes(query.sort) ? query.sort : spec.sortable[0]);
-  const items = (await db
-    .select()
-    .from(table)
-    .where(where)
-    .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(column(spec.keyField)))
-    .limit(query.pageSize)
-    .offset((query.page - 1) * query.pageSize)) as Row[];
-  const known = knownTotal(query, items.length);
-  if (known !== undefined) return { items, total: known };
-  const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(table).where(where);
-  return { items, total: count?.n ?? 0 };
+  const first = column(spec.sortable[0]);
+  return {
+    async list(query: ListQuery): Promise<{ items: Row[]; total: number }> {
+      const where: SQL | undefined = query.q ? or(...Object.keys(spec.search).map((f) => ilike(column(f), `%${query.q}%`))) : undefined;
+      const col = query.sort && sortable.includes(query.sort) ? column(query.sort) : first;
+      const items = (await db
+        .select()
+        .from(table)
+        .where(where)
+        .orderBy(query.dir === 'desc' ? desc(col) : asc(col), asc(key))
+        .limit(query.pageSize)
+        .offset((query.page - 1) * query.pageSize)) as Row[];
+      const known = knownTotal(query, items.length);
+      if (known !== undefined) return { items, total: known };
+      const [count] = await db.select({ n: sql<number>`count(*)::int` }).from(table).where(where);
+      return { items, total: count?.n ?? 0 };
+    },
+    /** Every row, in the list's first order. */
+    async all(): Promise<Row[]> {
+      return (await db.select().from(table).orderBy(asc(first), asc(key))) as Row[];
+    },
+    async get(id: string): Promise<Row | undefined> {
+      const [row] = await db.select().from(table).where(eq(table.id, id)).limit(1);
+      return row as Row | undefined;
+    },
+    /** The row named by `value` in the spec's key field (tag, serial). */
+    async findByKey(value: string): Promise<Row | undefined> {
+      const [row] = await db.select().from(table).where(eq(key, value)).limit(1);
+      return row as Row | undefined;
+    },
+    async create(values: Insert): Promise<Row> {
+      const [row] = await db
+        .insert(table)
+        .values(values as never)
+        .returning();
+      return row as Row;
+    },
+    /** All or none, in one transaction; how many were written. */
+    async createMany(values: Insert[]): Promise<number> {
+      if (!values.length) return 0;
+      return db.transaction(async (tx) => (await tx.insert(table).values(values as never).returning({ id: table.id })).length);
+    },
+    async update(id: string, values: Partial<Insert>): Promise<Row | undefined> {
+      const [row] = await db
+        .update(table)
+        .set({ ...values, updatedAt: new Date() } as never)
+        .where(eq(table.id, id))
+        .returning();
+      return row as Row | undefined;
+    },
+  };
 }
 
 export function instrumentRepository(db: Db) {
-  return {
-    list: (query: ListQuery) => listPage<InstrumentRow, Instrument>(db, instruments, INSTRUMENT_REGISTER, query),
-    async all(): Promise<InstrumentRow[]> {
-      return db.select().from(instruments).orderBy(asc(instruments.tag));
-    },
-    async get(id: string): Promise<InstrumentRow | undefined> {
-      const [row] = await db.select().from(instruments).where(eq(instruments.id, id)).limit(1);
-      return row;
-    },
-    async findByTag(tag: string): Promise<InstrumentRow | undefined> {
-      const [row] = await db.select().from(instruments).where(eq(instruments.tag, tag)).limit(1);
-      return row;
-    },
-    async create(values: InstrumentInsert): Promise<InstrumentRow> {
-      const [row] = await db.insert(instruments).values(values).returning();
-      return row!;
-    },
-    async createMany(values: InstrumentInsert[]): Promise<number> {
-      if (!values.length) return 0;
-      return db.transaction(async (tx) => {
-        const rows = await tx.insert(instruments).values(values).returning({ id: instruments.id });
-        return rows.length;
-      });
-    },
-    async update(id: string, values: Partial<InstrumentInsert>): Promise<InstrumentRow | undefined> {
-      const [row] = await db
-        .update(instruments)
-        .set({ ...values, updatedAt: new Date() })
-        .where(eq(instruments.id, id))
-        .returning();
-      return row;
-    },
-  };
+  const rows = registerRows<InstrumentRow, InstrumentInsert, Instrument>(db, instruments, INSTRUMENT_REGISTER);
+  return { ...rows, findByTag: rows.findByKey };
 }
 
 export function standardRepository(db: Db) {
+  const rows = registerRows<StandardRow, StandardInsert, Standard>(db, standards, STANDARD_REGISTER);
   return {
-    list: (query: ListQuery) => listPage<StandardRow, Standard>(db, standards, STANDARD_REGISTER, query),
-    async all(): Promise<StandardRow[]> {
-      return db.select().from(standards).orderBy(asc(standards.dueOn));
-    },
-    async get(id: string): Promise<StandardRow | undefined> {
-      const [row] = await db.select().from(standards).where(eq(standards.id, id)).limit(1);
-      return row;
-    },
+    ...rows,
+    findBySerial: rows.findByKey,
     /** The standards of `ids` that exist, in the order of `ids` (one query). */
     async getMany(ids: string[]): Promise<StandardRow[]> {
       if (!ids.length) return [];
-      const rows = await db.select().from(standards).where(inArray(standards.id, ids));
-      const byId = new Map(rows.map((r) => [r.id, r]));
+      const found = await db.select().from(standards).where(inArray(standards.id, ids));
+      const byId = new Map(found.map((r) => [r.id, r]));
       return ids.map((id) => byId.get(id)).filter((r): r is StandardRow => !!r);
-    },
-    async findBySerial(serial: string): Promise<StandardRow | undefined> {
-      const [row] = await db.select().from(standards).where(eq(standards.serial, serial)).limit(1);
-      return row;
-    },
-    async create(values: StandardInsert): Promise<StandardRow> {
-      const [row] = await db.insert(standards).values(values).returning();
-      return row!;
-    },
-    async createMany(values: StandardInsert[]): Promise<number> {
-      if (!values.length) return 0;
-      return db.transaction(async (tx) => (await tx.insert(standards).values(values).returning({ id: standards.id })).length);
-    },
-    async update(id: string, values: Partial<StandardInsert>): Promise<StandardRow | undefined> {
-      const [row] = await db
-        .update(standards)
-        .set({ ...values, updatedAt: new Date() })
-        .where(eq(standards.id, id))
-        .returning();
-      return row;
     },
   };
 }

@@ -1,8 +1,8 @@
 /**
- * Register lists answer their total without counting when the page already tells it (the last
- * page), and count otherwise: the total is the same either way. They search and sort by the
- * fields their spec (shared/schemas/registers.ts) names, the ones the page's search box and
- * first sort are built from.
+ * The register lists and keys. A list answers its total without counting when the page already
+ * tells it (the last page), and counts otherwise: the total is the same either way. It searches
+ * and sorts by the fields its spec (shared/schemas/registers.ts) names, the ones the page's search
+ * box and first sort are built from. The field that names an entry (tag, serial) stays unique.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { INSTRUMENT_REGISTER, STANDARD_REGISTER, registerPath, type RegisterSpec } from '../../shared/schemas/registers';
@@ -73,6 +73,30 @@ describe('register lists follow their spec', () => {
         for (const r of found) expect(Object.keys(spec.search).some((f) => String(r[f]).toLowerCase().includes(q))).toBe(true);
         expect(found.length).toBe(all.filter((r) => Object.keys(spec.search).some((f) => String(r[f]).toLowerCase().includes(q))).length);
       }
+    });
+  }
+});
+
+describe('register keys', () => {
+  for (const spec of [INSTRUMENT_REGISTER, STANDARD_REGISTER] as RegisterSpec<Record<string, unknown>>[]) {
+    it(`${spec.plural}: the ${spec.keyField} stays unique on edit and under two concurrent creates, a 409 on that field, never a 500`, async () => {
+      const c = new ApiClient(srv.url);
+      await c.login(demoEmail('lead'));
+      const path = registerPath(spec);
+      const [a, b] = ((await c.get(`${path}?pageSize=2`)).body as { items: Record<string, unknown>[] }).items;
+      // Editing one entry to the other's key: refused on the key field, the entry unchanged.
+      const clash = await c.req('PUT', `${path}/${a!.id}`, { ...a, [spec.keyField]: b![spec.keyField] });
+      expect(clash.status, JSON.stringify(clash.body)).toBe(409);
+      expect((clash.body as { error: { fields: Record<string, string[]> } }).error.fields[spec.keyField]).toEqual(['Already registered']);
+      expect(((await c.get(`${path}/${a!.id}`)).body as Record<string, unknown>)[spec.keyField]).toBe(a![spec.keyField]);
+      // Two creates of one new key at once: one is stored, the other refused the same way.
+      const fresh = { ...a, [spec.keyField]: `KEY-${spec.noun.toUpperCase()}-NEW` };
+      const both = await Promise.all([c.req('POST', path, fresh), c.req('POST', path, fresh)]);
+      expect(both.map((r) => r.status).sort()).toEqual([201, 409]);
+      const lost = both.find((r) => r.status === 409)!;
+      expect((lost.body as { error: { fields: Record<string, string[]> } }).error.fields[spec.keyField]).toEqual(['Already registered']);
+      const found = (await c.get(`${path}?pageSize=100&q=${encodeURIComponent(fresh[spec.keyField] as string)}`)).body as { total: number };
+      expect(found.total).toBe(1);
     });
   }
 });
