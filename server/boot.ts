@@ -37,6 +37,7 @@ import { seedDemo } from './demo/demo-seed';
 import { createHealth } from './services/health.service';
 import { createSessionEvents } from './services/session-events';
 import { createRunService, type RunService } from './services/run.service';
+import type { StoreRetryOptions } from './services/run-commit';
 import { createHartJobService, type HartJobService } from './services/hart-job.service';
 import { hartRoutes } from './http/routes/hart/hart.routes';
 import { runRepository, type RunRepository } from './db/repositories/run.repository';
@@ -56,6 +57,8 @@ export interface BootOptions {
   bench?: BenchOverrides;
   /** Wraps the run repository the run service stores through (tests hold writes back with it). */
   wrapRunRepository?: (repo: RunRepository) => RunRepository;
+  /** Retries of a run event whose store failed (default: the run service's). */
+  runStoreRetry?: StoreRetryOptions;
 }
 
 /** Bench runtime overrides of {@link BootOptions}. */
@@ -219,7 +222,7 @@ export async function boot(opts: BootOptions): Promise<Running> {
     const runs = createRunService(
       database.db,
       { audit: services.audit, jobs: services.jobs, hub, runs: opts.wrapRunRepository ? opts.wrapRunRepository(runRepo) : runRepo, hart: hartJob },
-      { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn },
+      { envHoldSeconds: env.HOLD_SECONDS, logger, mayRunOn: benches.mayRunOn, ...(opts.runStoreRetry ? { storeRetry: opts.runStoreRetry } : {}) },
     );
     runsRef.current = runs;
     // The local bench's devices: the simulated rig's binding, or real serial ports.

@@ -26,6 +26,7 @@ import type { Actor, AuditService } from './audit.service';
 import { DEFAULT_BENCH_ID } from './bench.service';
 import type { SessionUser } from './auth.service';
 import { cutoffOf, engineSettings, freezePlan, planFields, type FrozenPlan } from './run-plan';
+import { storeWithRetry, type StoreRetryOptions } from './run-commit';
 import { createRunEventWriter } from './run-events';
 import { evaluateRun, modeCheckOf, type RunResultsView } from './run-results';
 
@@ -62,6 +63,8 @@ export interface RunServiceOptions {
   logger: Logger;
   /** Whether a user may start a run on a bench (this server's, an active agent's, their own browser bench); default any. */
   mayRunOn?: (benchId: string, actor: { id: string }) => boolean;
+  /** Retries of a run event whose store failed (run-commit.ts); default 5 attempts, 100 ms doubling to 2 s between them. */
+  storeRetry?: StoreRetryOptions;
 }
 
 
@@ -93,7 +96,8 @@ export function createRunService(db: Db, deps: RunServiceDeps, o: RunServiceOpti
       const hart = deps.hart.pointAtCapture(e.benchId, e.capture, { unit: p.unit, lrv: p.instrument.lrv, urv: p.instrument.urv });
       if (hart) e = { ...e, capture: { ...e.capture, hart } };
     }
-    await writer.store(e);
+    // Retried in place: the chain holds later events back meanwhile, and every attempt stores the same `e`.
+    await storeWithRetry(e, writer.store, o.logger, o.storeRetry);
     hub.publish(e);
     const v = published.get(e.runId) ?? { currentIndex: null, warnings: new Map<number, string | null>() };
     published.set(e.runId, v);

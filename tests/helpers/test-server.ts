@@ -42,7 +42,7 @@ export interface TestServer extends Running {
 }
 
 /** Boots the real app on an ephemeral port with the demo site seeded. */
-export async function startTestServer(opts: { env?: Record<string, string>; boot?: Pick<BootOptions, 'wrapRunRepository'> } = {}): Promise<TestServer> {
+export async function startTestServer(opts: { env?: Record<string, string>; boot?: Partial<Pick<BootOptions, 'wrapRunRepository' | 'runStoreRetry' | 'logger'>> } = {}): Promise<TestServer> {
   const pgdb = await freshPostgres();
   // A directory of its own for each server: on PostgreSQL it holds the lock, the sample journal and
   // the seq reservation, which two servers (two test files at once, or an earlier run) must not share.

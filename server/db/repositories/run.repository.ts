@@ -64,8 +64,16 @@ export function runRepository(db: Db) {
         await alsoIn(tx);
       });
     },
-    async update(id: string, values: Partial<Pick<RunRow, 'status' | 'results' | 'endedAt'>>): Promise<void> {
-      await db.update(runs).set(values).where(eq(runs.id, id));
+    /** Updates a run; with `alsoIn` (the end's audit event), the two commit in one transaction, as in {@link updatePoint}. */
+    async update(id: string, values: Partial<Pick<RunRow, 'status' | 'results' | 'endedAt'>>, alsoIn?: (tx: Db) => Promise<unknown>): Promise<void> {
+      const write = async (d: Db) => {
+        await d.update(runs).set(values).where(eq(runs.id, id));
+      };
+      if (!alsoIn) return write(db);
+      await db.transaction(async (tx) => {
+        await write(tx);
+        await alsoIn(tx);
+      });
     },
   };
 }
