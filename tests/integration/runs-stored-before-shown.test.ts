@@ -53,7 +53,8 @@ let techId: string;
 
 /** Boots the server with the gated repository and this hold time, signs in, and prepares the job. */
 async function bootServer(holdSeconds: number): Promise<void> {
-  srv = await startTestServer({ env: { HOLD_SECONDS: String(holdSeconds) }, boot: { wrapRunRepository: gated } });
+  // A failed store is retried (run-commit.ts); short delays keep the always-failing case below quick.
+  srv = await startTestServer({ env: { HOLD_SECONDS: String(holdSeconds) }, boot: { wrapRunRepository: gated, runStoreRetry: { backoff: { initialMs: 10, maxMs: 40 } } } });
   tech = new ApiClient(srv.url);
   admin = new ApiClient(srv.url);
   const lead = new ApiClient(srv.url);
