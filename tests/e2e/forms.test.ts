@@ -142,6 +142,30 @@ describe('every field error at once, in plain words', () => {
     }
   }, 120_000);
 
+  it('register pages: a search narrows the table, and the counts above it stay the whole register', async () => {
+    const lead = new ApiClient(server.url);
+    await lead.login(demoEmail('lead'));
+    const standards = (await lead.get('/api/standards?pageSize=100')).body as { items: { serial: string }[]; total: number };
+    const instruments = (await lead.get('/api/instruments?pageSize=1')).body as { total: number };
+    const { page, close } = await signIn('lead', '/standards');
+    try {
+      const stat = page.locator('dt', { hasText: /^Standards$/ }).locator('xpath=following-sibling::dd');
+      await expect.poll(() => stat.textContent()).toBe(String(standards.total));
+      await page.getByPlaceholder('Search description, serial, certificate…').fill(standards.items[0]!.serial);
+      await expect.poll(() => page.getByRole('table').locator('tbody tr').count()).toBe(1);
+      expect(await stat.textContent()).toBe(String(standards.total));
+      await page.goto(`${server.url}/instruments`);
+      const header = page.getByText(/^The transmitter register/);
+      await expect.poll(() => header.textContent()).toContain(`${instruments.total} tags`);
+      await page.getByPlaceholder('Search tag, service, location…').fill('no-such-tag-anywhere');
+      await page.getByText('No instruments match').waitFor();
+      // The description no longer gives a count: the search's 0 is not the register's size.
+      await expect.poll(() => header.textContent()).toBe('The transmitter register.');
+    } finally {
+      await close();
+    }
+  }, 120_000);
+
   it('job form: errors together on the due date and the notes', async () => {
     // An instrument never calibrated needs a job: it is listed on the lead's queue.
     const lead = new ApiClient(server.url);

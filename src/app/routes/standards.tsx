@@ -4,14 +4,14 @@ import { STANDARD_COLUMNS } from '../../features/standards/components/standard-c
 import { StandardForm } from '../../features/standards/components/standard-form';
 import { registerRoute } from './register-route';
 
-/** The register's size and how many standards are due soon or expired. */
-function DueCounts({ total }: { total: number }) {
+/** The register's size and how many standards are due soon or expired (whatever the search). */
+function DueCounts() {
   const counts = useStandardDueCounts().data;
   return (
     <dl className="grid grid-cols-3 gap-3 sm:max-w-xl">
-      <Stat label="Standards" value={total} />
-      <Stat label="Due soon" value={counts?.dueSoon ?? 0} tone={counts?.dueSoon ? 'warn' : undefined} />
-      <Stat label="Expired" value={counts?.expired ?? 0} tone={counts?.expired ? 'danger' : undefined} />
+      <Stat label="Standards" value={counts?.total ?? null} />
+      <Stat label="Due soon" value={counts?.dueSoon ?? null} tone={counts?.dueSoon ? 'warn' : undefined} />
+      <Stat label="Expired" value={counts?.expired ?? null} tone={counts?.expired ? 'danger' : undefined} />
     </dl>
   );
 }
@@ -22,5 +22,5 @@ export const { createLoader, Component, ErrorBoundary } = registerRoute({
   columns: STANDARD_COLUMNS,
   aboutFiles: (s) => `${s.description} · certificate ${s.certificateNo}. The newest upload is the standard's certificate; records that used an earlier one keep it.`,
   Form: StandardForm,
-  summary: (total) => <DueCounts total={total} />,
+  summary: <DueCounts />,
 });

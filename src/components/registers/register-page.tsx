@@ -23,8 +23,8 @@ export interface RegisterPageConfig<T extends { id: string }, I> {
   aboutFiles: (row: T) => string;
   /** The add and edit form. */
   Form: ComponentType<RegisterFormSlotProps<T>>;
-  /** Shown above the table once the list has loaded (the standards' due counts). */
-  summary?: (total: number) => ReactNode;
+  /** Shown above the table once the list has loaded (the standards' due counts over the whole register). */
+  summary?: ReactNode;
 }
 
 const PAGE_SIZE = 25;
@@ -94,7 +94,8 @@ export function RegisterPage<T extends { id: string }, I>({ config, canEdit }: {
     <>
       <PageHeader
         title={title}
-        description={c.description(list.data?.total)}
+        // The register's size, not a search's: while searching, the description goes without it.
+        description={c.description(q ? undefined : list.data?.total)}
         actions={
           <div className="flex flex-wrap items-center gap-2">
             <SearchInput
@@ -128,7 +129,7 @@ export function RegisterPage<T extends { id: string }, I>({ config, canEdit }: {
         <ErrorNotice title={`Could not load the ${registerName.toLowerCase()}`} error={list.error} onRetry={() => void list.refetch()} />
       ) : c.summary && list.data ? (
         <div className="flex flex-col gap-6">
-          {c.summary(list.data.total)}
+          {c.summary}
           {table}
         </div>
       ) : (

@@ -1,7 +1,7 @@
 import { cn } from '../../lib/cn';
 
-/** A labelled count for page summaries. */
-export function Stat({ label, value, tone }: { label: string; value: number; tone?: 'danger' | 'warn' | 'ok' | undefined }) {
+/** A labelled count for page summaries; `null` while it is not known yet. */
+export function Stat({ label, value, tone }: { label: string; value: number | null; tone?: 'danger' | 'warn' | 'ok' | undefined }) {
   return (
     <div className="rounded-card border border-line bg-surface px-4 py-3 shadow-card">
       <dt className="text-xs font-medium text-ink-muted">{label}</dt>
@@ -11,7 +11,7 @@ export function Stat({ label, value, tone }: { label: string; value: number; ton
           tone === 'danger' ? 'text-danger' : tone === 'warn' ? 'text-warn' : tone === 'ok' ? 'text-ok' : 'text-ink',
         )}
       >
-        {value}
+        {value ?? '…'}
       </dd>
     </div>
   );
