@@ -36,6 +36,11 @@ describe('list totals', () => {
     expect((await page('/api/standards?pageSize=2&page=2')).total).toBe(4);
     const none = await page('/api/standards?q=no-such-standard-anywhere');
     expect(none).toEqual({ items: [], total: 0 });
+    // A search is literal: LIKE's wildcards typed into the box match only themselves.
+    expect((await page('/api/instruments?q=FT-101')).total).toBe(1);
+    expect((await page('/api/instruments?q=FT_101')).total).toBe(0);
+    expect((await page(`/api/instruments?q=${encodeURIComponent('%')}`)).total).toBe(0);
+    expect((await page(`/api/standards?q=${encodeURIComponent('\\')}`)).total).toBe(0);
   });
 });
 

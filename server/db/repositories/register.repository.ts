@@ -1,9 +1,10 @@
-import { asc, desc, eq, getTableColumns, ilike, inArray, or, sql, type AnyColumn, type SQL } from 'drizzle-orm';
+import { asc, desc, eq, getTableColumns, inArray, sql, type AnyColumn } from 'drizzle-orm';
 import { INSTRUMENT_REGISTER, STANDARD_REGISTER, type RegisterSpec } from '../../../shared/schemas/registers';
 import type { Instrument } from '../../../shared/schemas/instruments';
 import type { Standard } from '../../../shared/schemas/standards';
 import type { Db } from '../client';
 import { instruments, jobs, runs, standards, users } from '../schema';
+import { containsText } from './contains';
 import { parsedRun } from './run.repository';
 
 export type InstrumentRow = typeof instruments.$inferSelect;
@@ -55,7 +56,7 @@ function registerRows<Row, Insert, Shown>(db: Db, table: RegisterTable, spec: Re
   const first = column(spec.sortable[0]);
   return {
     async list(query: ListQuery): Promise<{ items: Row[]; total: number }> {
-      const where: SQL | undefined = query.q ? or(...Object.keys(spec.search).map((f) => ilike(column(f), `%${query.q}%`))) : undefined;
+      const where = containsText(Object.keys(spec.search).map(column), query.q);
       const col = query.sort && sortable.includes(query.sort) ? column(query.sort) : first;
       const items = (await db
         .select()

@@ -1,6 +1,7 @@
-import { and, asc, desc, eq, inArray, or, sql, ilike, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, or, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
 import { instruments, jobRevisions, jobs, points, recordSnapshots, returnReplies, runs, samples, signatures, sites, standards, users } from '../schema';
+import { containsText } from './contains';
 import { parsedRun } from './run.repository';
 
 export type SignatureRow = typeof signatures.$inferSelect;
@@ -218,7 +219,7 @@ export function reviewRepository(db: Db) {
       const where: SQL[] = [];
       if (opts.status === 'all') where.push(or(inArray(jobs.status, ['submitted', 'approved']), sql`${jobs.revision} > 1`)!);
       else where.push(eq(jobs.status, opts.status));
-      if (opts.q) where.push(or(ilike(instruments.tag, `%${opts.q}%`), ilike(instruments.service, `%${opts.q}%`))!);
+      if (opts.q) where.push(containsText([instruments.tag, instruments.service], opts.q)!);
       const rows = await db
         .select({ job: jobs, tag: instruments.tag, assigneeName: users.name })
         .from(jobs)
