@@ -126,7 +126,8 @@ function registerEntries<Row extends { id: string }, Insert, Shown, Parsed exten
       const before = await rows.get(id);
       if (!before) throw notFound(`No such ${spec.noun}`);
       if (key(input) !== key(before) && (await rows.findByKey(key(input)))) throw taken();
-      const row = (await unique(() => rows.update(id, input)))!;
+      const row = await unique(() => rows.update(id, input));
+      if (!row) throw notFound(`No such ${spec.noun}`); // removed since it was read
       const shown = await one(row);
       await o.audit.record(actor, `${spec.noun}.changed`, spec.noun, id, await one(before), shown);
       return shown;
